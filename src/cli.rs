@@ -1,0 +1,179 @@
+//! Command-line definitions (clap only). Every command's help ends with an example.
+
+use std::path::PathBuf;
+
+use clap::{Args, Parser, Subcommand, ValueEnum};
+
+/// Chromatographic method-development advice from a list of analytes.
+#[derive(Debug, Parser)]
+#[command(name = "phasewise", version, about, long_about = None)]
+pub struct Cli {
+    /// Shipped knowledge base file (built on first use if missing).
+    #[arg(long, global = true, env = "PHASEWISE_KB", value_name = "PATH")]
+    pub kb: Option<PathBuf>,
+    /// User overlay database (lab-measured values and new compounds).
+    #[arg(long, global = true, env = "PHASEWISE_USER_KB", value_name = "PATH")]
+    pub user_kb: Option<PathBuf>,
+    /// Never build the knowledge base implicitly; fail if it is missing.
+    #[arg(long, global = true)]
+    pub no_build: bool,
+    /// The command.
+    #[command(subcommand)]
+    pub command: Command,
+}
+
+/// Commands.
+#[derive(Debug, Subcommand)]
+pub enum Command {
+    /// Resolve analytes (names, synonyms, CAS numbers, InChIKeys, PubChem CIDs or SMILES) and
+    /// show their properties with provenance.
+    #[command(
+        after_help = "Example:\n  phasewise lookup caffeine 58-08-2 'CC(=O)Oc1ccccc1C(=O)O'\n  printf 'toluene\\nphenol\\n' | phasewise lookup --format json"
+    )]
+    Lookup(LookupArgs),
+    /// Build, inspect and extend the knowledge base.
+    #[command(subcommand)]
+    Kb(KbCommand),
+}
+
+/// Where analytes come from.
+#[derive(Debug, Args)]
+pub struct AnalyteInput {
+    /// Analytes: names, synonyms, CAS numbers, InChIKeys, PubChem CIDs (`cid:2519`) or
+    /// SMILES (`smiles:CCO` forces a SMILES reading).
+    #[arg(value_name = "ANALYTE")]
+    pub analytes: Vec<String>,
+    /// Read analytes from a file, one per line (`#` starts a comment); `-` reads stdin.
+    #[arg(long, short, value_name = "FILE")]
+    pub input: Option<PathBuf>,
+}
+
+/// `lookup` options.
+#[derive(Debug, Args)]
+pub struct LookupArgs {
+    /// Analytes.
+    #[command(flatten)]
+    pub input: AnalyteInput,
+    /// Output format.
+    #[arg(long, short, value_enum, default_value_t = OutputFormat::Table)]
+    pub format: OutputFormat,
+}
+
+/// Output formats for data commands.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum OutputFormat {
+    /// Aligned tables.
+    Table,
+    /// JSON (schema in docs/json-schema.md).
+    Json,
+    /// Comma-separated values.
+    Csv,
+    /// Tab-separated values.
+    Tsv,
+}
+
+/// Knowledge-base commands.
+#[derive(Debug, Subcommand)]
+pub enum KbCommand {
+    /// Build the shipped knowledge base from the embedded seed data.
+    #[command(after_help = "Example:\n  phasewise kb build --force")]
+    Build {
+        /// Rebuild even if the base is current.
+        #[arg(long)]
+        force: bool,
+    },
+    /// Show counts by source and property.
+    #[command(after_help = "Example:\n  phasewise kb stats --format json")]
+    Stats {
+        /// Output format (table or json).
+        #[arg(long, short, value_enum, default_value_t = OutputFormat::Table)]
+        format: OutputFormat,
+    },
+    /// Add one compound (or lab-measured values for a known one) to the user overlay.
+    #[command(
+        after_help = "Example:\n  phasewise kb add --name 'impurity B' --smiles 'CC(=O)Nc1ccc(O)cc1Cl' \\\n      --prop logp=1.4 --prop 'pka=9.1;type=acidic' --source 'lab notebook 12, p. 40'"
+    )]
+    Add(AddArgs),
+    /// Import compounds from a CSV or TSV file into the user overlay (all or nothing).
+    #[command(
+        after_help = "Columns: name (required), smiles, cas, inchikey, synonyms (|-separated), kind,\nsource, properties, and property columns such as logp, pka, pka_type, boiling_point[C].\n\nExample:\n  phasewise kb import lab-compounds.csv --source 'lab QC data 2026'"
+    )]
+    Import {
+        /// The file (`-` for stdin).
+        file: PathBuf,
+        /// Source for rows without a `source` cell.
+        #[arg(long)]
+        source: Option<String>,
+        /// Leave out bad rows (listed) instead of rejecting the whole file.
+        #[arg(long)]
+        skip_bad: bool,
+    },
+    /// Export the user overlay as TSV (re-importable).
+    #[command(after_help = "Example:\n  phasewise kb export > my-compounds.tsv")]
+    Export,
+    /// Print where the knowledge-base files are.
+    #[command(after_help = "Example:\n  phasewise kb path")]
+    Path,
+}
+
+/// `kb add` options.
+#[derive(Debug, Args)]
+pub struct AddArgs {
+    /// Preferred name.
+    #[arg(long)]
+    pub name: String,
+    /// Further names (repeatable).
+    #[arg(long = "synonym", value_name = "NAME")]
+    pub synonyms: Vec<String>,
+    /// Structure as SMILES.
+    #[arg(long)]
+    pub smiles: Option<String>,
+    /// CAS registry number.
+    #[arg(long)]
+    pub cas: Option<String>,
+    /// Standard InChIKey.
+    #[arg(long)]
+    pub inchikey: Option<String>,
+    /// A property as `name=value[unit][;key=value]`, e.g. `boiling_point=78.4C`,
+    /// `pka=4.76;type=acidic` (repeatable).
+    #[arg(long = "prop", value_name = "PROPERTY")]
+    pub properties: Vec<String>,
+    /// Where the values come from (required).
+    #[arg(long)]
+    pub source: String,
+    /// The values were computed, not measured.
+    #[arg(long)]
+    pub estimated: bool,
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use clap::CommandFactory;
+
+    #[test]
+    fn the_command_definition_is_consistent() {
+        Cli::command().debug_assert();
+    }
+
+    #[test]
+    fn every_command_has_an_example() {
+        fn walk(c: &clap::Command, path: &str) {
+            let name = format!("{path} {}", c.get_name());
+            if c.get_subcommands().next().is_none() {
+                let help = c
+                    .get_after_help()
+                    .map(|h| h.to_string())
+                    .unwrap_or_default();
+                assert!(
+                    help.contains("Example"),
+                    "`{name}` has no example in its help"
+                );
+            }
+            for s in c.get_subcommands() {
+                walk(s, &name);
+            }
+        }
+        walk(&Cli::command(), "");
+    }
+}

@@ -1,0 +1,354 @@
+//! Command handlers: turn parsed arguments into library calls and results into output.
+
+use std::io::{IsTerminal, Read, Write};
+use std::path::{Path, PathBuf};
+use std::process::ExitCode;
+
+use anyhow::{Context, Result, bail};
+use indicatif::{ProgressBar, ProgressStyle};
+
+use phasewise::kb::resolve::{Resolution, Unresolved};
+use phasewise::kb::user::{NewCompound, parse_property};
+use phasewise::kb::{BuildPolicy, Kb, KbError, KbPaths, build};
+use phasewise::property::{Analyte, Origin, PropertyKind};
+use phasewise::report::Format;
+use phasewise::report::lookup::LookupReport;
+
+use crate::cli::{AnalyteInput, Cli, Command, KbCommand, OutputFormat};
+
+/// Exit code: some analytes did not resolve, the rest were handled.
+pub const EXIT_PARTIAL: u8 = 1;
+/// Exit code: bad input or usage.
+pub const EXIT_BAD_INPUT: u8 = 2;
+/// Exit code: the knowledge base is missing, damaged, newer or locked.
+pub const EXIT_KB: u8 = 3;
+
+/// Map an error to its documented exit code.
+pub fn exit_code_for(e: &anyhow::Error) -> u8 {
+    for c in e.chain() {
+        if let Some(k) = c.downcast_ref::<KbError>() {
+            return match k {
+                KbError::BadIdentifier { .. } | KbError::BadInput(_) => EXIT_BAD_INPUT,
+                KbError::Io { .. } => EXIT_BAD_INPUT,
+                _ => EXIT_KB,
+            };
+        }
+    }
+    EXIT_BAD_INPUT
+}
+
+fn format_of(f: OutputFormat) -> Format {
+    match f {
+        OutputFormat::Table => Format::Table,
+        OutputFormat::Json => Format::Json,
+        OutputFormat::Csv => Format::Csv,
+        OutputFormat::Tsv => Format::Tsv,
+    }
+}
+
+fn paths(cli: &Cli) -> Result<KbPaths> {
+    let d = KbPaths::default_location();
+    let shipped = match &cli.kb {
+        Some(p) => p.clone(),
+        None => d
+            .as_ref()
+            .map_err(|e| anyhow::anyhow!("{e}"))?
+            .shipped
+            .clone(),
+    };
+    let user = match &cli.user_kb {
+        Some(p) => p.clone(),
+        None => match &d {
+            Ok(d) => d.user.clone(),
+            // no home directory: keep the overlay beside the shipped base
+            Err(_) => shipped.with_file_name("user.sqlite"),
+        },
+    };
+    Ok(KbPaths { shipped, user })
+}
+
+fn progress_bar() -> ProgressBar {
+    let pb = if std::io::stderr().is_terminal() {
+        ProgressBar::new(1000)
+    } else {
+        ProgressBar::hidden()
+    };
+    pb.set_style(
+        ProgressStyle::with_template("building knowledge base {bar:40} {percent:>3}% {msg}")
+            .unwrap_or_else(|_| ProgressStyle::default_bar()),
+    );
+    pb
+}
+
+fn open_kb(cli: &Cli) -> Result<Kb> {
+    let p = paths(cli)?;
+    let pb = progress_bar();
+    let policy = if cli.no_build {
+        BuildPolicy::Never
+    } else {
+        BuildPolicy::IfNeeded
+    };
+    let kb = Kb::open(&p, policy, &mut |f, msg| {
+        pb.set_position((f * 1000.0) as u64);
+        pb.set_message(msg.to_string());
+    })?;
+    pb.finish_and_clear();
+    Ok(kb)
+}
+
+fn write_out(s: &str) -> Result<()> {
+    let mut out = std::io::stdout().lock();
+    out.write_all(s.as_bytes())?;
+    out.flush()?;
+    Ok(())
+}
+
+/// Read the analyte list: arguments, then `--input FILE` (or `-`), then stdin when nothing
+/// else was given and stdin is not a terminal.
+pub fn read_analytes(input: &AnalyteInput) -> Result<Vec<String>> {
+    let mut out: Vec<String> = input.analytes.clone();
+    let from_text = |text: &str, out: &mut Vec<String>| {
+        for line in text.lines() {
+            let l = line.trim();
+            if !l.is_empty() && !l.starts_with('#') {
+                out.push(l.to_string());
+            }
+        }
+    };
+    match &input.input {
+        Some(p) if p.as_os_str() == "-" => {
+            let mut s = String::new();
+            std::io::stdin()
+                .read_to_string(&mut s)
+                .context("reading analytes from stdin")?;
+            from_text(&s, &mut out);
+        }
+        Some(p) => {
+            let s = std::fs::read_to_string(p)
+                .with_context(|| format!("reading analyte list {}", p.display()))?;
+            from_text(&s, &mut out);
+        }
+        None if out.is_empty() && !std::io::stdin().is_terminal() => {
+            let mut s = String::new();
+            std::io::stdin()
+                .read_to_string(&mut s)
+                .context("reading analytes from stdin")?;
+            from_text(&s, &mut out);
+        }
+        None => {}
+    }
+    if out.is_empty() {
+        bail!("no analytes given: name them as arguments, with --input FILE, or on stdin");
+    }
+    Ok(out)
+}
+
+/// Resolve every query; structure-only SMILES become analytes with no stored properties.
+pub fn resolve_all(kb: &Kb, queries: &[String]) -> Result<(Vec<Analyte>, Vec<Unresolved>)> {
+    let mut found = Vec::new();
+    let mut missing = Vec::new();
+    for q in queries {
+        match kb.resolve(q)? {
+            Resolution::Found(a) => found.push(*a),
+            Resolution::StructureOnly { query, smiles } => found.push(Analyte {
+                query: query.trim().to_string(),
+                name: smiles.clone(),
+                inchikey: None,
+                smiles: Some(smiles),
+                formula: None,
+                molar_mass_g_mol: None,
+                cid: None,
+                cas: None,
+                origin: Origin::Structure,
+                matched_by: "smiles (not in knowledge base)".into(),
+                properties: Vec::new(),
+            }),
+            Resolution::Unresolved(u) => missing.push(u),
+        }
+    }
+    Ok((found, missing))
+}
+
+/// Run a parsed command line.
+pub fn run(cli: Cli) -> Result<ExitCode> {
+    match &cli.command {
+        Command::Lookup(args) => {
+            let queries = read_analytes(&args.input)?;
+            let kb = open_kb(&cli)?;
+            let (found, missing) = resolve_all(&kb, &queries)?;
+            let partial = !missing.is_empty();
+            let report = LookupReport::new(found, missing);
+            write_out(&report.render(format_of(args.format)))?;
+            Ok(if partial {
+                ExitCode::from(EXIT_PARTIAL)
+            } else {
+                ExitCode::SUCCESS
+            })
+        }
+        Command::Kb(k) => run_kb(&cli, k),
+    }
+}
+
+fn run_kb(cli: &Cli, k: &KbCommand) -> Result<ExitCode> {
+    match k {
+        KbCommand::Build { force } => {
+            let p = paths(cli)?;
+            let status = build::shipped_status(&p.shipped)?;
+            if status == build::Status::Current && !force {
+                eprintln!(
+                    "knowledge base {} is current (use --force to rebuild)",
+                    p.shipped.display()
+                );
+                return Ok(ExitCode::SUCCESS);
+            }
+            let pb = progress_bar();
+            let t = std::time::Instant::now();
+            let counts = build::build_shipped(&p.shipped, &mut |f, msg| {
+                pb.set_position((f * 1000.0) as u64);
+                pb.set_message(msg.to_string());
+            })?;
+            pb.finish_and_clear();
+            eprintln!(
+                "built {}: {} compounds, {} names, {} property rows in {:.1} s",
+                p.shipped.display(),
+                counts.compounds,
+                counts.names,
+                counts.properties,
+                t.elapsed().as_secs_f64()
+            );
+            Ok(ExitCode::SUCCESS)
+        }
+        KbCommand::Stats { format } => {
+            let kb = open_kb(cli)?;
+            let s = kb.stats()?;
+            let text = match format {
+                OutputFormat::Json => format!("{}\n", serde_json::to_string_pretty(&s)?),
+                _ => stats_table(&s),
+            };
+            write_out(&text)?;
+            Ok(ExitCode::SUCCESS)
+        }
+        KbCommand::Add(a) => {
+            let properties = a
+                .properties
+                .iter()
+                .map(|p| parse_property(p))
+                .collect::<Result<Vec<_>, _>>()?;
+            let c = NewCompound {
+                name: a.name.clone(),
+                synonyms: a.synonyms.clone(),
+                smiles: a.smiles.clone(),
+                cas: a.cas.clone(),
+                inchikey: a.inchikey.clone(),
+                properties,
+                source: a.source.clone(),
+                kind: if a.estimated {
+                    PropertyKind::Estimated
+                } else {
+                    PropertyKind::Experimental
+                },
+            };
+            let mut kb = open_kb(cli)?;
+            kb.add_compound(&c)?;
+            eprintln!("added `{}` to {}", c.name, kb.user_path().display());
+            Ok(ExitCode::SUCCESS)
+        }
+        KbCommand::Import {
+            file,
+            source,
+            skip_bad,
+        } => {
+            let text = read_file_or_stdin(file)?;
+            let mut kb = open_kb(cli)?;
+            let r = kb
+                .import(&text, source.as_deref(), *skip_bad)
+                .with_context(|| format!("importing {}", file.display()))?;
+            for s in &r.skipped {
+                eprintln!("skipped line {}: {}", s.line, s.reason);
+            }
+            eprintln!(
+                "imported {} compounds into {}{}",
+                r.imported,
+                kb.user_path().display(),
+                if r.skipped.is_empty() {
+                    String::new()
+                } else {
+                    format!(" ({} rows skipped)", r.skipped.len())
+                }
+            );
+            Ok(if r.skipped.is_empty() {
+                ExitCode::SUCCESS
+            } else {
+                ExitCode::from(EXIT_PARTIAL)
+            })
+        }
+        KbCommand::Export => {
+            let kb = open_kb(cli)?;
+            write_out(&kb.export_user()?)?;
+            Ok(ExitCode::SUCCESS)
+        }
+        KbCommand::Path => {
+            let p = paths(cli)?;
+            write_out(&format!(
+                "shipped\t{}\nuser\t{}\n",
+                p.shipped.display(),
+                p.user.display()
+            ))?;
+            Ok(ExitCode::SUCCESS)
+        }
+    }
+}
+
+fn read_file_or_stdin(file: &Path) -> Result<String> {
+    if file.as_os_str() == "-" {
+        let mut s = String::new();
+        std::io::stdin()
+            .read_to_string(&mut s)
+            .context("reading stdin")?;
+        return Ok(s);
+    }
+    std::fs::read_to_string(file)
+        .with_context(|| format!("reading {}", PathBuf::from(file).display()))
+}
+
+fn stats_table(s: &phasewise::kb::stats::KbStats) -> String {
+    use phasewise::report::table::render;
+    let mut out = format!(
+        "Shipped base {} ({} compounds, {} names, {} property rows, {:.1} MB)\n",
+        s.shipped.path,
+        s.shipped.compounds,
+        s.shipped.names,
+        s.shipped.properties,
+        s.shipped.size_bytes as f64 / 1.0e6
+    );
+    let rows: Vec<Vec<String>> = s
+        .shipped
+        .properties_by_source
+        .iter()
+        .chain(s.user.iter().flat_map(|u| u.properties_by_source.iter()))
+        .map(|p| {
+            vec![
+                p.property.clone(),
+                p.kind.clone(),
+                p.source.clone(),
+                p.licence.clone(),
+                p.count.to_string(),
+            ]
+        })
+        .collect();
+    if let Some(u) = &s.user {
+        out.push_str(&format!(
+            "User overlay {} ({} compounds, {} property rows)\n",
+            u.path, u.compounds, u.properties
+        ));
+    } else {
+        out.push_str("User overlay: none yet\n");
+    }
+    out.push('\n');
+    out.push_str(&render(
+        &["property", "kind", "source or method", "licence", "rows"],
+        &rows,
+    ));
+    out.push('\n');
+    out
+}

@@ -1,0 +1,130 @@
+//! Name normalisation for matching what a chemist types against names and synonyms.
+//!
+//! Two spellings match when they differ only in case, Greek letters written as symbols or
+//! words (`α` = `alpha`), punctuation and white space, or a leading stereo descriptor
+//! (`(R)-`, `(S)-`, `(+)-`, `(-)-`, `(±)-`, `rac-`, `dl-`, `d-`, `l-`). Positional locants are
+//! kept (they distinguish isomers), so `1,2-dichlorobenzene` and `1,3-dichlorobenzene` stay
+//! distinct, but the comma itself is dropped. Geometric descriptors (`(E)-`, `(Z)-`, `cis-`,
+//! `trans-`) are kept: they name different compounds that can separate.
+
+/// Greek letters as symbols and their spelled-out names (lower case).
+const GREEK: &[(char, &str)] = &[
+    ('α', "alpha"),
+    ('β', "beta"),
+    ('γ', "gamma"),
+    ('δ', "delta"),
+    ('ε', "epsilon"),
+    ('ζ', "zeta"),
+    ('η', "eta"),
+    ('θ', "theta"),
+    ('ι', "iota"),
+    ('κ', "kappa"),
+    ('λ', "lambda"),
+    ('μ', "mu"),
+    ('ν', "nu"),
+    ('ξ', "xi"),
+    ('ο', "omicron"),
+    ('π', "pi"),
+    ('ρ', "rho"),
+    ('σ', "sigma"),
+    ('τ', "tau"),
+    ('υ', "upsilon"),
+    ('φ', "phi"),
+    ('χ', "chi"),
+    ('ψ', "psi"),
+    ('ω', "omega"),
+];
+
+/// Leading stereo descriptors removed before matching (checked after lower-casing).
+const STEREO_PREFIXES: &[&str] = &[
+    "(+/-)-", "(±)-", "(+-)-", "(rs)-", "(sr)-", "(r,s)-", "(r)-", "(s)-", "(+)-", "(-)-", "rac-",
+    "dl-", "d-", "l-", "(d)-", "(l)-", "(dl)-",
+];
+
+/// Normalise a name for matching. Returns an empty string when nothing matchable is left.
+///
+/// # Examples
+/// ```
+/// use phasewise::kb::normalise::normalise_name;
+/// assert_eq!(normalise_name("α-Pinene"), normalise_name("alpha-pinene"));
+/// assert_eq!(normalise_name("(S)-Ibuprofen"), normalise_name("ibuprofen"));
+/// assert_ne!(normalise_name("1,2-dichlorobenzene"), normalise_name("1,3-dichlorobenzene"));
+/// ```
+pub fn normalise_name(name: &str) -> String {
+    let mut lower = String::with_capacity(name.len());
+    for c in name.trim().chars() {
+        for l in c.to_lowercase() {
+            lower.push(l);
+        }
+    }
+    let mut rest = lower.as_str();
+    // Strip repeated stereo prefixes such as "(r)-(+)-".
+    loop {
+        let before = rest.len();
+        for p in STEREO_PREFIXES {
+            if let Some(r) = rest.strip_prefix(p) {
+                // keep the prefix if nothing (or only punctuation) is left: "d-" alone is a name
+                if r.chars().any(char::is_alphanumeric) {
+                    rest = r;
+                }
+                break;
+            }
+        }
+        if rest.len() == before {
+            break;
+        }
+    }
+    let mut out = String::with_capacity(rest.len());
+    for c in rest.chars() {
+        if let Some((_, word)) = GREEK.iter().find(|(g, _)| *g == c) {
+            out.push_str(word);
+        } else if c == 'µ' {
+            out.push_str("mu");
+        } else if c.is_alphanumeric() {
+            out.push(c);
+        }
+    }
+    out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn case_punctuation_and_space_are_ignored() {
+        assert_eq!(normalise_name("Acetic Acid"), "aceticacid");
+        assert_eq!(normalise_name("acetic-acid"), "aceticacid");
+        assert_eq!(normalise_name("  ACETIC  acid "), "aceticacid");
+    }
+
+    #[test]
+    fn greek_symbols_equal_spelled_names() {
+        assert_eq!(normalise_name("β-carotene"), "betacarotene");
+        assert_eq!(normalise_name("Β-Carotene"), "betacarotene");
+    }
+
+    #[test]
+    fn stereo_prefixes_are_dropped_but_bare_prefix_is_kept() {
+        assert_eq!(normalise_name("(R)-(+)-limonene"), "limonene");
+        assert_eq!(normalise_name("(±)-ibuprofen"), "ibuprofen");
+        assert_eq!(normalise_name("L-alanine"), "alanine");
+        assert_eq!(normalise_name("d-"), "d");
+    }
+
+    #[test]
+    fn quotes_and_sql_are_just_characters() {
+        assert_eq!(
+            normalise_name("O'Brien's; DROP TABLE name;--"),
+            "obriensdroptablename"
+        );
+    }
+
+    proptest::proptest! {
+        #[test]
+        fn normalised_names_hold_no_space_or_punctuation(s in "\\PC{0,40}") {
+            let n = normalise_name(&s);
+            proptest::prop_assert!(n.chars().all(char::is_alphanumeric), "{n:?}");
+        }
+    }
+}

@@ -1,0 +1,441 @@
+//! Resolving what the user typed into an [`Analyte`]: exact name or synonym (normalised),
+//! CAS number, InChIKey, PubChem CID or SMILES; the user overlay first, then the shipped
+//! base. An unknown name is never replaced by a fuzzy match: it comes back unresolved with
+//! up to five suggestions ranked by string similarity.
+
+use std::collections::HashMap;
+
+use rusqlite::{Connection, OptionalExtension, params};
+use serde::{Deserialize, Serialize};
+
+use super::identifier::{Query, classify, could_be_smiles};
+use super::normalise::normalise_name;
+use super::{Kb, KbError};
+use crate::property::{Analyte, Origin, Property, PropertyKind};
+
+/// Most suggestions offered for an unresolved query.
+pub const MAX_SUGGESTIONS: usize = 5;
+
+/// A near-miss offered for an unresolved query.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Suggestion {
+    /// A name or synonym in the knowledge base.
+    pub name: String,
+    /// The compound's preferred name (differs when the suggestion is a synonym).
+    pub compound: String,
+    /// Similarity 0–1 (normalised Damerau–Levenshtein on normalised names).
+    pub similarity: f64,
+}
+
+/// A query that did not resolve.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Unresolved {
+    /// What the user typed.
+    pub query: String,
+    /// Why it did not resolve.
+    pub reason: String,
+    /// Near misses, best first (never used automatically).
+    pub suggestions: Vec<Suggestion>,
+}
+
+/// Outcome of resolving one query.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Resolution {
+    /// Found in a knowledge base.
+    Found(Box<Analyte>),
+    /// Not in a knowledge base, but a SMILES string that the caller may describe from
+    /// structure alone.
+    StructureOnly {
+        /// The query.
+        query: String,
+        /// The SMILES string.
+        smiles: String,
+    },
+    /// Not found.
+    Unresolved(Unresolved),
+}
+
+struct CompoundRow {
+    id: i64,
+    inchikey: Option<String>,
+    name: String,
+    smiles: Option<String>,
+    formula: Option<String>,
+    mw: Option<f64>,
+    cid: Option<i64>,
+    cas: Option<String>,
+}
+
+const COMPOUND_COLUMNS: &str =
+    "id, inchikey, preferred_name, smiles, formula, molar_mass_g_mol, cid, cas";
+
+fn compound_from_row(r: &rusqlite::Row<'_>) -> rusqlite::Result<CompoundRow> {
+    Ok(CompoundRow {
+        id: r.get(0)?,
+        inchikey: r.get(1)?,
+        name: r.get(2)?,
+        smiles: r.get(3)?,
+        formula: r.get(4)?,
+        mw: r.get(5)?,
+        cid: r.get(6)?,
+        cas: r.get(7)?,
+    })
+}
+
+/// Find a compound id in one database. Returns the row and how it matched.
+fn find(conn: &Connection, q: &Query) -> rusqlite::Result<Option<(CompoundRow, &'static str)>> {
+    let by = |sql: &str, p: &dyn rusqlite::ToSql| -> rusqlite::Result<Option<CompoundRow>> {
+        conn.prepare_cached(&format!("SELECT {COMPOUND_COLUMNS} FROM compound WHERE {sql} ORDER BY cid IS NULL, cid, id LIMIT 1"))?
+            .query_row([p], compound_from_row)
+            .optional()
+    };
+    Ok(match q {
+        Query::Cas(c) => by("cas = ?1", c)?.map(|r| (r, "cas")),
+        Query::InchiKey(k) => by("inchikey = ?1", k)?.map(|r| (r, "inchikey")),
+        Query::Cid(n) => by("cid = ?1", n)?.map(|r| (r, "cid")),
+        Query::Smiles(s) => by("smiles = ?1", s)?.map(|r| (r, "smiles")),
+        Query::Name(n) => {
+            let norm = normalise_name(n);
+            if norm.is_empty() {
+                return Ok(None);
+            }
+            let hit: Option<(i64, i64)> = conn
+                .prepare_cached(
+                    "SELECT n.compound_id, n.rank FROM name n JOIN compound c ON c.id = n.compound_id
+                     WHERE n.norm = ?1 ORDER BY n.rank, c.cid IS NULL, c.cid, c.id LIMIT 1",
+                )?
+                .query_row([&norm], |r| Ok((r.get(0)?, r.get(1)?)))
+                .optional()?;
+            match hit {
+                Some((id, rank)) => {
+                    by("id = ?1", &id)?.map(|r| (r, if rank == 0 { "name" } else { "synonym" }))
+                }
+                None => None,
+            }
+        }
+    })
+}
+
+/// InChIKey and SMILES of a compound.
+pub(crate) type KeyAndSmiles = (Option<String>, Option<String>);
+
+/// InChIKey and SMILES of the compound a query finds in one database.
+pub(crate) fn find_row(
+    conn: &Connection,
+    q: &Query,
+) -> rusqlite::Result<Option<(KeyAndSmiles, &'static str)>> {
+    Ok(find(conn, q)?.map(|(r, how)| ((r.inchikey, r.smiles), how)))
+}
+
+fn properties_of(conn: &Connection, id: i64, origin: Origin) -> rusqlite::Result<Vec<Property>> {
+    let mut st = conn.prepare_cached(
+        "SELECT property, value, unit, kind, source, licence, detail FROM property
+         WHERE compound_id = ?1 ORDER BY id",
+    )?;
+    let rows = st.query_map([id], |r| {
+        let kind: String = r.get(3)?;
+        Ok(Property {
+            property: r.get(0)?,
+            value: r.get(1)?,
+            unit: r.get(2)?,
+            kind: PropertyKind::parse(&kind).unwrap_or(PropertyKind::Estimated),
+            source: r.get(4)?,
+            licence: r.get(5)?,
+            detail: r.get(6)?,
+            origin,
+        })
+    })?;
+    rows.collect()
+}
+
+impl Kb {
+    /// Resolve one query.
+    ///
+    /// # Errors
+    /// Malformed identifiers ([`KbError::BadIdentifier`]) are returned as
+    /// [`Resolution::Unresolved`] with the reason; only database failures are errors.
+    pub fn resolve(&self, raw: &str) -> Result<Resolution, KbError> {
+        let q = match classify(raw) {
+            Ok(q) => q,
+            Err(KbError::BadIdentifier { why, .. }) => {
+                return Ok(Resolution::Unresolved(Unresolved {
+                    query: raw.to_string(),
+                    reason: why,
+                    suggestions: Vec::new(),
+                }));
+            }
+            Err(e) => return Err(e),
+        };
+        if let Some(a) = self.find_anywhere(raw, &q)? {
+            return Ok(Resolution::Found(Box::new(a)));
+        }
+        // A name that was not found may be a SMILES string.
+        if let Query::Name(n) = &q
+            && could_be_smiles(n)
+        {
+            if let Some(a) = self.find_anywhere(raw, &Query::Smiles(n.clone()))? {
+                return Ok(Resolution::Found(Box::new(a)));
+            }
+            if crate::structure::is_valid_smiles(n) {
+                return Ok(Resolution::StructureOnly {
+                    query: raw.to_string(),
+                    smiles: n.clone(),
+                });
+            }
+        }
+        if let Query::Smiles(s) = &q {
+            return Ok(match crate::structure::check_smiles(s) {
+                Ok(()) => Resolution::StructureOnly {
+                    query: raw.to_string(),
+                    smiles: s.clone(),
+                },
+                Err(why) => Resolution::Unresolved(Unresolved {
+                    query: raw.to_string(),
+                    reason: format!("not a valid SMILES string: {why}"),
+                    suggestions: Vec::new(),
+                }),
+            });
+        }
+        let reason = match &q {
+            Query::Name(_) => "no compound with this name or synonym".to_string(),
+            Query::Cas(_) => "no compound with this CAS number".to_string(),
+            Query::InchiKey(_) => "no compound with this InChIKey".to_string(),
+            Query::Cid(_) => "no compound with this PubChem CID".to_string(),
+            Query::Smiles(_) => "no compound with this SMILES".to_string(),
+        };
+        let suggestions = match &q {
+            Query::Name(n) => self.suggest(n)?,
+            _ => Vec::new(),
+        };
+        Ok(Resolution::Unresolved(Unresolved {
+            query: raw.to_string(),
+            reason,
+            suggestions,
+        }))
+    }
+
+    fn find_anywhere(&self, raw: &str, q: &Query) -> Result<Option<Analyte>, KbError> {
+        let user_hit = match &self.user {
+            Some(u) => find(u, q).map_err(|e| KbError::sql(&self.user_path, e))?,
+            None => None,
+        };
+        if let Some((row, how)) = user_hit {
+            let mut a = self.analyte_from(raw, &row, how, Origin::User)?;
+            // Shipped values for the same compound stay visible, ranked below the user's.
+            if let Some(key) = &row.inchikey
+                && let Some((srow, _)) = find(&self.shipped, &Query::InchiKey(key.clone()))
+                    .map_err(|e| KbError::sql(&self.shipped_path, e))?
+            {
+                let extra = properties_of(&self.shipped, srow.id, Origin::Shipped)
+                    .map_err(|e| KbError::sql(&self.shipped_path, e))?;
+                a.properties.extend(extra);
+                fill_identity(&mut a, &srow);
+            }
+            a.sort_properties();
+            return Ok(Some(a));
+        }
+        let hit = find(&self.shipped, q).map_err(|e| KbError::sql(&self.shipped_path, e))?;
+        let Some((row, how)) = hit else {
+            return Ok(None);
+        };
+        let mut a = self.analyte_from(raw, &row, how, Origin::Shipped)?;
+        // User values for the same compound (matched by InChIKey) win.
+        if let (Some(u), Some(key)) = (&self.user, &row.inchikey)
+            && let Some((urow, _)) = find(u, &Query::InchiKey(key.clone()))
+                .map_err(|e| KbError::sql(&self.user_path, e))?
+        {
+            let extra = properties_of(u, urow.id, Origin::User)
+                .map_err(|e| KbError::sql(&self.user_path, e))?;
+            a.properties.extend(extra);
+        }
+        a.sort_properties();
+        Ok(Some(a))
+    }
+
+    fn analyte_from(
+        &self,
+        raw: &str,
+        row: &CompoundRow,
+        how: &str,
+        origin: Origin,
+    ) -> Result<Analyte, KbError> {
+        let (conn, path) = match origin {
+            Origin::User => (self.user.as_ref().unwrap_or(&self.shipped), &self.user_path),
+            _ => (&self.shipped, &self.shipped_path),
+        };
+        let properties = properties_of(conn, row.id, origin).map_err(|e| KbError::sql(path, e))?;
+        Ok(Analyte {
+            query: raw.trim().to_string(),
+            name: row.name.clone(),
+            inchikey: row.inchikey.clone(),
+            smiles: row.smiles.clone(),
+            formula: row.formula.clone(),
+            molar_mass_g_mol: row.mw,
+            cid: row.cid,
+            cas: row.cas.clone(),
+            origin,
+            matched_by: how.to_string(),
+            properties,
+        })
+    }
+
+    /// Up to [`MAX_SUGGESTIONS`] names close to `name`, from both databases.
+    ///
+    /// A trigram index narrows the whole base to a few hundred candidates (the rarest
+    /// trigrams of the query that occur at all), which are then ranked by normalised
+    /// Damerau–Levenshtein similarity.
+    ///
+    /// # Errors
+    /// Database failures.
+    pub fn suggest(&self, name: &str) -> Result<Vec<Suggestion>, KbError> {
+        let norm = normalise_name(name);
+        let mut all =
+            suggest_in(&self.shipped, &norm).map_err(|e| KbError::sql(&self.shipped_path, e))?;
+        if let Some(u) = &self.user {
+            all.extend(suggest_in(u, &norm).map_err(|e| KbError::sql(&self.user_path, e))?);
+        }
+        all.sort_by(|a, b| {
+            b.similarity
+                .total_cmp(&a.similarity)
+                .then_with(|| a.name.len().cmp(&b.name.len()))
+                .then_with(|| a.name.cmp(&b.name))
+        });
+        let mut seen = Vec::new();
+        all.retain(|s| {
+            if seen.contains(&s.compound) {
+                false
+            } else {
+                seen.push(s.compound.clone());
+                true
+            }
+        });
+        all.truncate(MAX_SUGGESTIONS);
+        Ok(all)
+    }
+}
+
+fn fill_identity(a: &mut Analyte, row: &CompoundRow) {
+    if a.smiles.is_none() {
+        a.smiles = row.smiles.clone();
+    }
+    if a.formula.is_none() {
+        a.formula = row.formula.clone();
+    }
+    if a.molar_mass_g_mol.is_none() {
+        a.molar_mass_g_mol = row.mw;
+    }
+    if a.cid.is_none() {
+        a.cid = row.cid;
+    }
+    if a.cas.is_none() {
+        a.cas = row.cas.clone();
+    }
+}
+
+/// Most trigrams whose posting lists are read for one query (the rarest ones).
+const TRIGRAMS_READ: usize = 16;
+/// Trigrams in more names than this are skipped (unless fewer than three are left).
+const COMMON_TRIGRAM: i64 = 250_000;
+
+/// A trigram-index rowid holds the (padded, capped) length of the name in its high bits and
+/// the name id in the low [`ID_BITS`] bits. Posting lists are sorted by rowid, so they are
+/// grouped by length: a query reads only names of about its own length (a rowid range), and
+/// ranks them by trigram Jaccard similarity straight from the posting lists.
+const ID_BITS: u32 = 40;
+/// Longest length kept in a rowid.
+const MAX_LEN: i64 = 255;
+
+/// The trigram-index rowid of a name (`text` is the padded index text).
+pub(crate) fn trigram_rowid(name_id: i64, text: &str) -> i64 {
+    let len = (text.chars().count() as i64).min(MAX_LEN);
+    (len << ID_BITS) | name_id
+}
+
+/// The text put into the trigram index: the normalised name between start and end marks, so
+/// that the first and last letters form trigrams of their own (`^be`, `ne$`), which anchor
+/// short names.
+pub(crate) fn trigram_text(norm: &str) -> String {
+    format!("^{norm}$")
+}
+/// Candidates (most shared trigrams first) ranked by edit similarity.
+const CANDIDATES: usize = 300;
+
+fn suggest_in(conn: &Connection, norm: &str) -> rusqlite::Result<Vec<Suggestion>> {
+    if norm.chars().count() < 2 {
+        return Ok(Vec::new());
+    }
+    let chars: Vec<char> = trigram_text(norm).chars().collect();
+    let mut grams: Vec<String> = chars.windows(3).map(|w| w.iter().collect()).collect();
+    grams.sort();
+    grams.dedup();
+    // document frequency of each trigram
+    let mut df: Vec<(i64, String)> = Vec::new();
+    {
+        let mut st = conn.prepare_cached("SELECT doc FROM name_trigram_vocab WHERE term = ?1")?;
+        for g in &grams {
+            if let Some(d) = st.query_row([g], |r| r.get::<_, i64>(0)).optional()? {
+                df.push((d, g.clone()));
+            }
+        }
+    }
+    df.sort();
+    let mut hits: HashMap<i64, u32> = HashMap::new();
+    {
+        let mut st = conn.prepare_cached(
+            "SELECT rowid FROM name_trigram WHERE name_trigram MATCH ?1 AND rowid BETWEEN ?2 AND ?3",
+        )?;
+        // Names whose length differs by more than a quarter cannot be close in edit distance.
+        let len = chars.len() as i64;
+        let slack = (len / 4).max(2);
+        let lo = ((len - slack).max(0)) << ID_BITS;
+        let hi = (((len + slack).min(MAX_LEN) + 1) << ID_BITS) - 1;
+        let rare = df
+            .iter()
+            .filter(|(d, _)| *d <= COMMON_TRIGRAM)
+            .count()
+            .max(3);
+        for (_, g) in df.iter().take(rare.min(TRIGRAMS_READ)) {
+            let quoted = format!("\"{}\"", g.replace('"', "\"\""));
+            let rows = st.query_map(params![quoted, lo, hi], |r| r.get::<_, i64>(0))?;
+            for id in rows {
+                *hits.entry(id?).or_insert(0) += 1;
+            }
+        }
+    }
+    let q_grams = (chars.len() - 2) as f64;
+    let mut cand: Vec<(f64, i64)> = hits
+        .into_iter()
+        .map(|(rowid, n)| {
+            let len = (rowid >> ID_BITS) as f64;
+            let c_grams = (len - 2.0).max(1.0);
+            let jaccard = f64::from(n) / (q_grams + c_grams - f64::from(n)).max(1.0);
+            (jaccard, rowid & ((1 << ID_BITS) - 1))
+        })
+        .collect();
+    cand.sort_by(|a, b| b.0.total_cmp(&a.0).then(a.1.cmp(&b.1)));
+    cand.truncate(CANDIDATES);
+    let mut st = conn.prepare_cached(
+        "SELECT n.name, n.norm, c.preferred_name FROM name n JOIN compound c ON c.id = n.compound_id WHERE n.id = ?1",
+    )?;
+    let mut out = Vec::new();
+    for (_, id) in cand {
+        if let Some((name, cand_norm, compound)) = st
+            .query_row(params![id], |r| {
+                Ok((
+                    r.get::<_, String>(0)?,
+                    r.get::<_, String>(1)?,
+                    r.get::<_, String>(2)?,
+                ))
+            })
+            .optional()?
+        {
+            let similarity = strsim::normalized_damerau_levenshtein(norm, &cand_norm);
+            out.push(Suggestion {
+                name,
+                compound,
+                similarity,
+            });
+        }
+    }
+    Ok(out)
+}

@@ -1,0 +1,660 @@
+//! The user overlay: lab-measured values and new compounds, kept in a separate database that
+//! wins over the shipped base and survives a rebuild of it.
+//!
+//! Writers use SQLite's write-ahead log and a busy timeout, so two processes adding compounds
+//! at once both succeed. Every change (one compound, or a whole import file) is one
+//! transaction: a process killed half-way leaves the database as it was.
+
+use std::fs;
+use std::path::Path;
+
+use rusqlite::{Connection, params};
+use serde::{Deserialize, Serialize};
+
+use super::identifier::{parse_cas, parse_inchikey};
+use super::normalise::normalise_name;
+use super::{BUSY_TIMEOUT, Kb, KbError, migrate};
+use crate::property::{PropertyKind, canonical_unit};
+
+/// Open (creating if needed) the user overlay for reading and writing.
+///
+/// # Errors
+/// File-system trouble, corruption, a newer schema, locks.
+pub fn open_user(path: &Path) -> Result<Connection, KbError> {
+    if let Some(dir) = path.parent()
+        && !dir.as_os_str().is_empty()
+    {
+        fs::create_dir_all(dir).map_err(|e| KbError::Io {
+            path: dir.to_path_buf(),
+            source: e,
+        })?;
+    }
+    let sql = |e| KbError::sql(path, e);
+    let mut conn = Connection::open(path).map_err(sql)?;
+    conn.busy_timeout(BUSY_TIMEOUT).map_err(sql)?;
+    conn.query_row("PRAGMA journal_mode=WAL", [], |_| Ok(()))
+        .map_err(sql)?;
+    conn.execute_batch("PRAGMA foreign_keys=ON;").map_err(sql)?;
+    migrate(&mut conn, path)?;
+    Ok(conn)
+}
+
+/// One property value supplied by the user.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct NewProperty {
+    /// Property name (see [`crate::property::KNOWN_PROPERTIES`]).
+    pub property: String,
+    /// Value in the canonical unit.
+    pub value: f64,
+    /// Canonical unit.
+    pub unit: String,
+    /// Qualifiers such as `type=acidic`.
+    pub detail: String,
+}
+
+/// A compound supplied by the user.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct NewCompound {
+    /// Preferred name.
+    pub name: String,
+    /// Further names.
+    pub synonyms: Vec<String>,
+    /// Structure, if known.
+    pub smiles: Option<String>,
+    /// CAS number (checked).
+    pub cas: Option<String>,
+    /// InChIKey (checked).
+    pub inchikey: Option<String>,
+    /// Property values.
+    pub properties: Vec<NewProperty>,
+    /// Where the values come from (a lab notebook, a paper): required.
+    pub source: String,
+    /// Whether the values were measured (`experimental`) or computed (`estimated`).
+    pub kind: PropertyKind,
+}
+
+/// Parse a property given as `name=value[unit][;key=value...]`, e.g. `boiling_point=78.4C`,
+/// `logp=0.91`, `pka=4.76;type=acidic`. Units are converted to the canonical unit
+/// (°C → K for temperatures; Pa, kPa, mmHg, bar for pressure).
+///
+/// # Errors
+/// [`KbError::BadInput`] naming the text and what is wrong.
+pub fn parse_property(text: &str) -> Result<NewProperty, KbError> {
+    let bad = |why: &str| KbError::BadInput(format!("property `{text}`: {why}"));
+    let (head, detail) = match text.split_once(';') {
+        Some((h, d)) => (h, d.trim().to_string()),
+        None => (text, String::new()),
+    };
+    let (name, value) = head
+        .split_once('=')
+        .ok_or_else(|| bad("expected name=value, e.g. logp=2.1"))?;
+    let name = name.trim().to_ascii_lowercase();
+    let unit_expected = canonical_unit(&name).ok_or_else(|| {
+        bad(&format!(
+            "unknown property `{name}`; known: {}",
+            known_list()
+        ))
+    })?;
+    let value = value.trim();
+    let split = value
+        .char_indices()
+        .find(|(i, c)| {
+            !(c.is_ascii_digit()
+                || *c == '.'
+                || *c == 'e'
+                || *c == 'E'
+                || ((*c == '-' || *c == '+') && (*i == 0 || value[..*i].ends_with(['e', 'E']))))
+        })
+        .map_or(value.len(), |(i, _)| i);
+    let (num, unit) = value.split_at(split);
+    let v: f64 = num
+        .parse()
+        .map_err(|_| bad(&format!("`{num}` is not a number")))?;
+    if !v.is_finite() {
+        return Err(bad("value is not finite"));
+    }
+    let unit = unit.trim();
+    let v = convert(v, unit, unit_expected).ok_or_else(|| {
+        bad(&format!(
+            "unit `{unit}` cannot be converted to `{unit_expected}` for {name}"
+        ))
+    })?;
+    check_range(&name, v).map_err(|why| bad(&why))?;
+    if !detail.is_empty() && !detail.split(';').all(|kv| kv.contains('=')) {
+        return Err(bad("qualifiers after `;` must be key=value"));
+    }
+    if name == "pka"
+        && let Some(t) = detail.split(';').find_map(|kv| kv.strip_prefix("type="))
+        && !["acidic", "basic"].contains(&t)
+    {
+        return Err(bad("pKa type must be acidic or basic"));
+    }
+    Ok(NewProperty {
+        property: name,
+        value: v,
+        unit: unit_expected.to_string(),
+        detail,
+    })
+}
+
+fn known_list() -> String {
+    crate::property::KNOWN_PROPERTIES
+        .iter()
+        .map(|(p, _, _)| *p)
+        .collect::<Vec<_>>()
+        .join(", ")
+}
+
+fn convert(v: f64, unit: &str, expected: &str) -> Option<f64> {
+    let u = unit.trim_start_matches('°');
+    match (expected, u) {
+        // no unit given: the value is taken to be in the canonical unit
+        (_, "") => Some(v),
+        ("K", "K") => Some(v),
+        ("K", "C") => Some(v + 273.15),
+        ("kPa", "kPa") => Some(v),
+        ("kPa", "Pa") => Some(v / 1000.0),
+        ("kPa", "mmHg") | ("kPa", "Torr") => Some(v * 0.133_322),
+        ("kPa", "bar") => Some(v * 100.0),
+        ("g/mol", "g/mol") => Some(v),
+        (e, u) if e == u => Some(v),
+        _ => None,
+    }
+}
+
+/// Plausible ranges; values outside are almost always a unit mistake.
+fn check_range(name: &str, v: f64) -> Result<(), String> {
+    let (lo, hi) = match name {
+        "logp" => (-15.0, 20.0),
+        "pka" => (-15.0, 30.0),
+        "boiling_point" => (4.0, 1500.0),
+        "vapour_pressure" => (0.0, 1.0e5),
+        "molar_mass" => (1.0, 1.0e5),
+        "charge" => (-10.0, 10.0),
+        _ => (f64::MIN, f64::MAX),
+    };
+    if v < lo || v > hi {
+        Err(format!("{v} is outside the plausible range {lo} to {hi}"))
+    } else {
+        Ok(())
+    }
+}
+
+/// Result of an import.
+#[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]
+pub struct ImportReport {
+    /// Compounds written.
+    pub imported: usize,
+    /// Rows skipped (only with skip-bad), each with its line number and reason.
+    pub skipped: Vec<SkippedRow>,
+}
+
+/// A row left out of an import.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct SkippedRow {
+    /// 1-based line number in the file.
+    pub line: usize,
+    /// What was wrong.
+    pub reason: String,
+}
+
+impl Kb {
+    /// The user overlay for writing, opened (and created) on demand.
+    fn user_mut(&mut self) -> Result<&mut Connection, KbError> {
+        if self.user.is_none() {
+            self.user = Some(open_user(&self.user_path)?);
+        }
+        self.user.as_mut().ok_or_else(|| KbError::Missing {
+            path: self.user_path.clone(),
+        })
+    }
+
+    /// Add (or replace) one compound in the user overlay.
+    ///
+    /// # Errors
+    /// Bad identifiers, a bad SMILES string, database failures.
+    pub fn add_compound(&mut self, c: &NewCompound) -> Result<(), KbError> {
+        let c = self.complete(c)?;
+        let path = self.user_path.clone();
+        let conn = self.user_mut()?;
+        let tx = conn.transaction().map_err(|e| KbError::sql(&path, e))?;
+        insert_compound(&tx, &c).map_err(|e| KbError::sql(&path, e))?;
+        tx.commit().map_err(|e| KbError::sql(&path, e))
+    }
+
+    /// Validate identifiers and fill in the InChIKey from the shipped base when the name,
+    /// CAS or SMILES identifies a shipped compound (so the user's values attach to it).
+    fn complete(&self, c: &NewCompound) -> Result<NewCompound, KbError> {
+        let mut c = c.clone();
+        if c.name.trim().is_empty() {
+            return Err(KbError::BadInput("a compound needs a name".into()));
+        }
+        if c.source.trim().is_empty() {
+            return Err(KbError::BadInput(format!(
+                "compound `{}`: say where the values come from (source)",
+                c.name
+            )));
+        }
+        if let Some(cas) = &c.cas {
+            c.cas = Some(parse_cas(cas)?);
+        }
+        if let Some(k) = &c.inchikey {
+            c.inchikey = Some(parse_inchikey(k)?);
+        }
+        if let Some(s) = &c.smiles {
+            crate::structure::check_smiles(s)
+                .map_err(|why| KbError::BadInput(format!("SMILES `{s}` of `{}`: {why}", c.name)))?;
+        }
+        if c.inchikey.is_none() {
+            let mut queries = vec![super::identifier::Query::Name(c.name.clone())];
+            if let Some(cas) = &c.cas {
+                queries.insert(0, super::identifier::Query::Cas(cas.clone()));
+            }
+            if let Some(s) = &c.smiles {
+                queries.push(super::identifier::Query::Smiles(s.clone()));
+            }
+            for q in queries {
+                if let Some((row, _)) = super::resolve::find_row(&self.shipped, &q)
+                    .map_err(|e| KbError::sql(&self.shipped_path, e))?
+                {
+                    c.inchikey = row.0;
+                    if c.smiles.is_none() {
+                        c.smiles = row.1;
+                    }
+                    break;
+                }
+            }
+        }
+        Ok(c)
+    }
+
+    /// Import compounds from a CSV or TSV file (see [`parse_import`] for the format). The
+    /// import is all-or-nothing unless `skip_bad` is set, in which case bad rows are left
+    /// out and listed.
+    ///
+    /// # Errors
+    /// The first bad row (line and column) when `skip_bad` is off; database failures.
+    pub fn import(
+        &mut self,
+        text: &str,
+        default_source: Option<&str>,
+        skip_bad: bool,
+    ) -> Result<ImportReport, KbError> {
+        let rows = parse_import(text, default_source)?;
+        let mut good = Vec::new();
+        let mut report = ImportReport::default();
+        for (line, row) in rows {
+            match row.and_then(|c| self.complete(&c)) {
+                Ok(c) => good.push(c),
+                Err(e) if skip_bad => report.skipped.push(SkippedRow {
+                    line,
+                    reason: e.to_string(),
+                }),
+                Err(e) => return Err(KbError::BadInput(format!("line {line}: {e}"))),
+            }
+        }
+        let path = self.user_path.clone();
+        let conn = self.user_mut()?;
+        let tx = conn.transaction().map_err(|e| KbError::sql(&path, e))?;
+        for c in &good {
+            insert_compound(&tx, c).map_err(|e| KbError::sql(&path, e))?;
+        }
+        tx.commit().map_err(|e| KbError::sql(&path, e))?;
+        report.imported = good.len();
+        Ok(report)
+    }
+
+    /// Export the user overlay in the import format (TSV), so that it can be re-imported.
+    ///
+    /// # Errors
+    /// Database failures.
+    pub fn export_user(&self) -> Result<String, KbError> {
+        let mut out =
+            String::from("name\tsmiles\tcas\tinchikey\tsynonyms\tkind\tsource\tproperties\n");
+        let Some(conn) = &self.user else {
+            return Ok(out);
+        };
+        let p = &self.user_path;
+        let mut st = conn
+            .prepare("SELECT id, preferred_name, smiles, cas, inchikey FROM compound ORDER BY id")
+            .map_err(|e| KbError::sql(p, e))?;
+        type Row = (i64, String, Option<String>, Option<String>, Option<String>);
+        let rows: Vec<Row> = st
+            .query_map([], |r| {
+                Ok((r.get(0)?, r.get(1)?, r.get(2)?, r.get(3)?, r.get(4)?))
+            })
+            .map_err(|e| KbError::sql(p, e))?
+            .collect::<Result<_, _>>()
+            .map_err(|e| KbError::sql(p, e))?;
+        for (id, name, smiles, cas, key) in rows {
+            let syn: Vec<String> = conn
+                .prepare("SELECT name FROM name WHERE compound_id = ?1 AND rank = 1 ORDER BY id")
+                .and_then(|mut s| s.query_map([id], |r| r.get(0))?.collect())
+                .map_err(|e| KbError::sql(p, e))?;
+            let props: Vec<(String, f64, String, String, String)> = conn
+                .prepare("SELECT property, value, detail, kind, source FROM property WHERE compound_id = ?1 ORDER BY id")
+                .and_then(|mut s| s.query_map([id], |r| Ok((r.get(0)?, r.get(1)?, r.get(2)?, r.get(3)?, r.get(4)?)))?.collect())
+                .map_err(|e| KbError::sql(p, e))?;
+            let (kind, source) = props
+                .first()
+                .map(|(_, _, _, k, s)| (k.clone(), s.clone()))
+                .unwrap_or_else(|| ("experimental".into(), "user".into()));
+            let plist: Vec<String> = props
+                .iter()
+                .map(|(n, v, d, _, _)| {
+                    if d.is_empty() {
+                        format!("{n}={v}")
+                    } else {
+                        format!("{n}={v};{d}")
+                    }
+                })
+                .collect();
+            out.push_str(&format!(
+                "{}\t{}\t{}\t{}\t{}\t{}\t{}\t{}\n",
+                clean(&name),
+                clean(smiles.as_deref().unwrap_or("")),
+                clean(cas.as_deref().unwrap_or("")),
+                clean(key.as_deref().unwrap_or("")),
+                syn.iter().map(|s| clean(s)).collect::<Vec<_>>().join("|"),
+                kind,
+                clean(&source),
+                plist.join(" ")
+            ));
+        }
+        Ok(out)
+    }
+}
+
+/// Tabs and newlines cannot survive a TSV cell.
+fn clean(s: &str) -> String {
+    s.replace(['\t', '\n', '\r'], " ")
+}
+
+pub(crate) fn insert_compound(
+    tx: &rusqlite::Transaction<'_>,
+    c: &NewCompound,
+) -> rusqlite::Result<()> {
+    // Replace an earlier user record of the same compound (same InChIKey or same name).
+    let norm = normalise_name(&c.name);
+    let old: Vec<i64> = {
+        let mut st = tx.prepare(
+            "SELECT id FROM compound WHERE (inchikey IS NOT NULL AND inchikey = ?1)
+             OR id IN (SELECT compound_id FROM name WHERE norm = ?2 AND rank = 0)",
+        )?;
+        st.query_map(params![c.inchikey, norm], |r| r.get(0))?
+            .collect::<Result<_, _>>()?
+    };
+    for id in old {
+        let names: Vec<(i64, String)> = tx
+            .prepare("SELECT id, norm FROM name WHERE compound_id = ?1")?
+            .query_map([id], |r| Ok((r.get(0)?, r.get(1)?)))?
+            .collect::<Result<_, _>>()?;
+        for (n, norm) in names {
+            tx.execute(
+                "DELETE FROM name_trigram WHERE rowid = ?1",
+                [super::resolve::trigram_rowid(
+                    n,
+                    &super::resolve::trigram_text(&norm),
+                )],
+            )?;
+        }
+        tx.execute("DELETE FROM property WHERE compound_id = ?1", [id])?;
+        tx.execute("DELETE FROM name WHERE compound_id = ?1", [id])?;
+        tx.execute("DELETE FROM compound WHERE id = ?1", [id])?;
+    }
+    tx.execute(
+        "INSERT INTO compound(inchikey, preferred_name, smiles, formula, molar_mass_g_mol, cid, cas, origin)
+         VALUES (?1, ?2, ?3, NULL, NULL, NULL, ?4, 'user')",
+        params![c.inchikey, c.name, c.smiles, c.cas],
+    )?;
+    let id = tx.last_insert_rowid();
+    let mut seen = Vec::new();
+    for (j, n) in std::iter::once(&c.name)
+        .chain(c.synonyms.iter())
+        .enumerate()
+    {
+        let norm = normalise_name(n);
+        if norm.is_empty() || seen.contains(&norm) {
+            continue;
+        }
+        tx.execute(
+            "INSERT INTO name(compound_id, name, norm, rank) VALUES (?1, ?2, ?3, ?4)",
+            params![id, n, norm, if j == 0 { 0 } else { 1 }],
+        )?;
+        let nid = tx.last_insert_rowid();
+        if norm.len() >= 2 {
+            tx.execute(
+                "INSERT INTO name_trigram(rowid, norm) VALUES (?1, ?2)",
+                params![
+                    super::resolve::trigram_rowid(nid, &super::resolve::trigram_text(&norm)),
+                    super::resolve::trigram_text(&norm)
+                ],
+            )?;
+        }
+        seen.push(norm);
+    }
+    for p in &c.properties {
+        tx.execute(
+            "INSERT INTO property(compound_id, property, value, unit, kind, source, licence, detail)
+             VALUES (?1, ?2, ?3, ?4, ?5, ?6, 'user data', ?7)",
+            params![id, p.property, p.value, p.unit, c.kind.as_str(), c.source, p.detail],
+        )?;
+    }
+    Ok(())
+}
+
+/// Parse an import file: CSV or TSV (by the header's delimiter), UTF-8, a header row. Columns
+/// (case-insensitive): `name` (required), `smiles`, `cas`, `inchikey`, `synonyms` (`|`
+/// separated), `kind` (`experimental`, the default, or `estimated`), `source` (required per
+/// row unless given for the whole file), `properties` (space-separated `name=value[unit]`
+/// items as for `kb add --prop`), and any known property name as its own column (e.g.
+/// `logp`, `boiling_point`, `pka`; a unit may be appended to the header in brackets, e.g.
+/// `boiling_point[C]`). Lines starting with `#` and blank lines are ignored.
+///
+/// Returns each data row with its 1-based line number, parsed or with its error.
+///
+/// # Errors
+/// A missing header or `name` column.
+#[allow(clippy::type_complexity)]
+pub fn parse_import(
+    text: &str,
+    default_source: Option<&str>,
+) -> Result<Vec<(usize, Result<NewCompound, KbError>)>, KbError> {
+    let mut lines = text
+        .lines()
+        .enumerate()
+        .map(|(i, l)| (i + 1, l.trim_end_matches('\r')))
+        .filter(|(_, l)| !l.trim().is_empty() && !l.starts_with('#'));
+    let (_, header) = lines
+        .next()
+        .ok_or_else(|| KbError::BadInput("import file is empty: expected a header row".into()))?;
+    let delim = if header.contains('\t') { '\t' } else { ',' };
+    let cols: Vec<String> = split_row(header, delim)
+        .iter()
+        .map(|c| c.trim().to_ascii_lowercase())
+        .collect();
+    let idx = |n: &str| cols.iter().position(|c| c == n);
+    let name_col = idx("name").ok_or_else(|| {
+        KbError::BadInput(format!(
+            "import header has no `name` column (found: {})",
+            cols.join(", ")
+        ))
+    })?;
+    let mut out = Vec::new();
+    for (line, l) in lines {
+        let cells = split_row(l, delim);
+        let get = |i: Option<usize>| {
+            i.and_then(|i| cells.get(i))
+                .map(|s| s.trim().to_string())
+                .filter(|s| !s.is_empty())
+        };
+        let row = (|| -> Result<NewCompound, KbError> {
+            if cells.len() > cols.len() {
+                return Err(KbError::BadInput(format!(
+                    "{} cells but the header has {} columns",
+                    cells.len(),
+                    cols.len()
+                )));
+            }
+            let name = get(Some(name_col)).ok_or_else(|| {
+                KbError::BadInput(format!("column {} (`name`) is empty", name_col + 1))
+            })?;
+            let kind = match get(idx("kind")).as_deref() {
+                None | Some("experimental") => PropertyKind::Experimental,
+                Some("estimated") => PropertyKind::Estimated,
+                Some(k) => {
+                    return Err(KbError::BadInput(format!(
+                        "column {} (`kind`): `{k}` is neither experimental nor estimated",
+                        idx("kind").map_or(0, |i| i + 1)
+                    )));
+                }
+            };
+            let mut properties = Vec::new();
+            if let Some(list) = get(idx("properties")) {
+                for item in list.split_whitespace() {
+                    properties.push(parse_property(item).map_err(|e| {
+                        KbError::BadInput(format!(
+                            "column {} (`properties`): {e}",
+                            idx("properties").map_or(0, |i| i + 1)
+                        ))
+                    })?);
+                }
+            }
+            for (i, c) in cols.iter().enumerate() {
+                let (base, unit) = match c.split_once('[') {
+                    Some((b, u)) => (b.trim(), u.trim_end_matches(']').trim()),
+                    None => (c.as_str(), ""),
+                };
+                if canonical_unit(base).is_none() {
+                    continue;
+                }
+                if let Some(v) = get(Some(i)) {
+                    let detail = if base == "pka" {
+                        get(idx("pka_type"))
+                            .map(|t| format!(";type={t}"))
+                            .unwrap_or_default()
+                    } else {
+                        String::new()
+                    };
+                    properties.push(
+                        parse_property(&format!("{base}={v}{unit}{detail}")).map_err(|e| {
+                            KbError::BadInput(format!("column {} (`{c}`): {e}", i + 1))
+                        })?,
+                    );
+                }
+            }
+            let source = get(idx("source"))
+                .or_else(|| default_source.map(str::to_string))
+                .ok_or_else(|| {
+                    KbError::BadInput("no `source` (give a source column or --source)".into())
+                })?;
+            Ok(NewCompound {
+                name,
+                synonyms: get(idx("synonyms"))
+                    .map(|s| {
+                        s.split('|')
+                            .map(|x| x.trim().to_string())
+                            .filter(|x| !x.is_empty())
+                            .collect()
+                    })
+                    .unwrap_or_default(),
+                smiles: get(idx("smiles")),
+                cas: get(idx("cas")),
+                inchikey: get(idx("inchikey")),
+                properties,
+                source,
+                kind,
+            })
+        })();
+        out.push((line, row));
+    }
+    Ok(out)
+}
+
+/// Split one row; in CSV, double quotes protect commas and `""` is a literal quote.
+fn split_row(line: &str, delim: char) -> Vec<String> {
+    if delim == '\t' {
+        return line.split('\t').map(str::to_string).collect();
+    }
+    let mut out = Vec::new();
+    let mut cur = String::new();
+    let mut quoted = false;
+    let mut chars = line.chars().peekable();
+    while let Some(c) = chars.next() {
+        match c {
+            '"' if quoted && chars.peek() == Some(&'"') => {
+                cur.push('"');
+                chars.next();
+            }
+            '"' => quoted = !quoted,
+            c if c == delim && !quoted => out.push(std::mem::take(&mut cur)),
+            c => cur.push(c),
+        }
+    }
+    out.push(cur);
+    out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn properties_parse_with_units_and_qualifiers() {
+        let p = parse_property("boiling_point=78.4C").unwrap();
+        assert!((p.value - 351.55).abs() < 1e-9 && p.unit == "K");
+        let p = parse_property("pka=4.76;type=acidic").unwrap();
+        assert_eq!((p.value, p.detail.as_str()), (4.76, "type=acidic"));
+        let p = parse_property("logp=-0.31").unwrap();
+        assert_eq!(p.value, -0.31);
+        let p = parse_property("vapour_pressure=760mmHg").unwrap();
+        assert!((p.value - 101.32).abs() < 0.01);
+    }
+
+    #[test]
+    fn bad_properties_name_the_problem() {
+        for (t, want) in [
+            ("logp", "name=value"),
+            ("colour=red", "unknown property"),
+            ("logp=abc", "not a number"),
+            ("boiling_point=78psi", "cannot be converted"),
+            ("boiling_point=-400C", "plausible range"),
+            ("pka=4;type=neutral", "acidic or basic"),
+        ] {
+            let e = parse_property(t).unwrap_err().to_string();
+            assert!(e.contains(want) && e.contains(t), "{t}: {e}");
+        }
+    }
+
+    #[test]
+    fn import_rows_report_line_and_column() {
+        let text = "name,logp,source\nfoo,1.2,lab book 7\nbar,x,lab book 7\n,1,lab\n";
+        let rows = parse_import(text, None).unwrap();
+        assert!(rows[0].1.is_ok());
+        let e = rows[1].1.as_ref().unwrap_err().to_string();
+        assert_eq!(rows[1].0, 3);
+        assert!(e.contains("column 2") && e.contains("`x`"), "{e}");
+        let e = rows[2].1.as_ref().unwrap_err().to_string();
+        assert!(e.contains("column 1"), "{e}");
+    }
+
+    #[test]
+    fn csv_quotes_protect_commas_and_quotes() {
+        assert_eq!(
+            split_row(r#""1,2-dichloroethane","say ""hi""",x"#, ','),
+            vec!["1,2-dichloroethane", "say \"hi\"", "x"]
+        );
+    }
+
+    proptest::proptest! {
+        #[test]
+        fn import_parser_never_panics(s in "\\PC{0,200}") {
+            let _ = parse_import(&s, Some("x"));
+        }
+
+        #[test]
+        fn property_parser_never_panics(s in "\\PC{0,40}") {
+            let _ = parse_property(&s);
+        }
+    }
+}

@@ -1,0 +1,12 @@
+//! phasewise: chromatographic method-development advice from a list of analytes.
+//!
+//! The library follows one flow: [`kb`] resolves what the user typed into analytes with
+//! properties and provenance ([`property`]); [`structure`] computes what the knowledge base
+//! lacks from the SMILES string; the report layer renders results. The command-line program
+//! is a thin layer over this API: the library never prints and never exits.
+#![deny(missing_docs)]
+
+pub mod kb;
+pub mod property;
+pub mod report;
+pub mod structure;

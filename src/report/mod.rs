@@ -1,0 +1,71 @@
+//! Reports: one serde model per command and one renderer per output format.
+//!
+//! Tables are for people, JSON for scripts (documented in `docs/json-schema.md`, versioned by
+//! [`SCHEMA_VERSION`]), CSV/TSV for spreadsheets. Renderers return strings; the CLI writes
+//! them, so a report is written in one step and never half-way.
+
+pub mod lookup;
+pub mod table;
+
+use serde::{Deserialize, Serialize};
+
+/// Version of the JSON output schema. Bumped on any incompatible change.
+pub const SCHEMA_VERSION: u32 = 1;
+
+/// Output formats.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "lowercase")]
+pub enum Format {
+    /// Aligned text tables.
+    Table,
+    /// JSON, pretty-printed.
+    Json,
+    /// Comma-separated values.
+    Csv,
+    /// Tab-separated values.
+    Tsv,
+}
+
+/// Format a float for text output: up to `digits` decimals, trailing zeros trimmed.
+pub fn num(v: f64, digits: usize) -> String {
+    let s = format!("{v:.digits$}");
+    if s.contains('.') {
+        s.trim_end_matches('0').trim_end_matches('.').to_string()
+    } else {
+        s
+    }
+}
+
+/// Quote a CSV cell when needed (RFC 4180).
+pub fn csv_cell(s: &str, delim: char) -> String {
+    if delim == '\t' {
+        return s.replace(['\t', '\n', '\r'], " ");
+    }
+    if s.contains([',', '"', '\n', '\r']) {
+        format!("\"{}\"", s.replace('"', "\"\""))
+    } else {
+        s.to_string()
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn numbers_drop_trailing_zeros() {
+        assert_eq!(num(1.500, 3), "1.5");
+        assert_eq!(num(2.0, 2), "2");
+        assert_eq!(num(-0.0712, 2), "-0.07");
+    }
+
+    #[test]
+    fn csv_cells_are_quoted_when_needed() {
+        assert_eq!(
+            csv_cell("1,2-dichloroethane", ','),
+            "\"1,2-dichloroethane\""
+        );
+        assert_eq!(csv_cell("say \"x\"", ','), "\"say \"\"x\"\"\"");
+        assert_eq!(csv_cell("a\tb", '\t'), "a b");
+    }
+}

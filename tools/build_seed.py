@@ -3,8 +3,8 @@
 
 Sources (see data/ATTRIBUTION.md):
   * the MIT-licensed Python package `chemicals` 1.5.2 (PyPI): PubChem identifier
-    tables `Identifiers/chemical identifiers pubchem large.tsv` and `... small.tsv`,
-    and `Identifiers/Anion db.tsv`, `Cation db.tsv`, `Inorganic db.tsv`;
+    tables `Identifiers/chemical identifiers pubchem large.tsv`, `... small.tsv` and
+    `... example user db.tsv`, and `Identifiers/Anion db.tsv`, `Cation db.tsv`, `Inorganic db.tsv`;
     `Misc/wikidata_properties.tsv` (values from Wikidata, CC0) for boiling point and logP.
   * experimental aqueous pKa, CC BY 4.0 rows only, from ../shared/data/pka/pka_train.tsv
     (Baltruschat & Czodrowski 2020).
@@ -84,8 +84,11 @@ def main():
                                   formula=formula, mw=mw, smiles=smiles, key=key, pref=pref,
                                   names=names, source=source)
             order.append(key)
-    add_rows(read_member(z, "Identifiers/chemical identifiers pubchem large.tsv"), "pubchem-large")
+    # The package's "example user db" holds many of the commonest chemicals (hexane, aspirin)
+    # that the large table lacks; it is read first so its records win on duplicates.
+    add_rows(read_member(z, "Identifiers/chemical identifiers example user db.tsv"), "pubchem-common")
     add_rows(read_member(z, "Identifiers/chemical identifiers pubchem small.tsv"), "pubchem-small")
+    add_rows(read_member(z, "Identifiers/chemical identifiers pubchem large.tsv"), "pubchem-large")
     for f, s in (("Anion db.tsv", "ions-anion"), ("Cation db.tsv", "ions-cation"), ("Inorganic db.tsv", "inorganic")):
         add_rows(read_member(z, "Identifiers/" + f), s)
 

@@ -192,7 +192,8 @@ fn build_into(tmp: &Path, progress: &mut dyn FnMut(f64, &str)) -> Result<BuildCo
                     continue;
                 }
                 name_id += 1;
-                let rank = if j == 0 { 0 } else { 1 };
+                // 0 preferred name, 1 IUPAC name (first of the synonyms), 2 other synonyms
+                let rank = j.min(2) as i64;
                 ins_n
                     .execute(params![name_id, id, n, norm, rank])
                     .map_err(sql)?;

@@ -26,11 +26,20 @@ pub const SCHEMA_SQL: &str = include_str!("schema.sql");
 /// The newest schema version this build understands.
 pub const SCHEMA_VERSION: i64 = 1;
 
-/// Fingerprint of the embedded seed data (set by `build.rs`).
-pub const SEED_HASH: &str = env!("PHASEWISE_SEED_HASH");
+/// Fingerprint of the embedded seed data (set by `build.rs`) and of the way it is turned
+/// into a database: a base built by another version of either is stale and rebuilt.
+pub const SEED_HASH: &str = concat!(env!("PHASEWISE_SEED_HASH"), "-build3");
 
 /// How long a writer waits for another process's lock before giving up.
-const BUSY_TIMEOUT: Duration = Duration::from_secs(10);
+const BUSY_TIMEOUT_DEFAULT: Duration = Duration::from_secs(10);
+
+/// The busy timeout: `PHASEWISE_BUSY_TIMEOUT_MS` when set (used by tests), else 10 s.
+pub(crate) fn busy_timeout() -> Duration {
+    std::env::var("PHASEWISE_BUSY_TIMEOUT_MS")
+        .ok()
+        .and_then(|v| v.parse().ok())
+        .map_or(BUSY_TIMEOUT_DEFAULT, Duration::from_millis)
+}
 
 /// Errors of the knowledge base.
 #[derive(Debug, thiserror::Error)]
@@ -244,7 +253,7 @@ pub(crate) fn open_read_only(path: &Path) -> Result<Connection, KbError> {
         OpenFlags::SQLITE_OPEN_READ_ONLY | OpenFlags::SQLITE_OPEN_NO_MUTEX,
     )
     .map_err(|e| KbError::sql(path, e))?;
-    conn.busy_timeout(BUSY_TIMEOUT)
+    conn.busy_timeout(busy_timeout())
         .map_err(|e| KbError::sql(path, e))?;
     Ok(conn)
 }
@@ -297,7 +306,9 @@ pub(crate) fn migrate(conn: &mut Connection, path: &Path) -> Result<(), KbError>
         if version <= current {
             continue;
         }
-        let tx = conn.transaction().map_err(|e| KbError::sql(path, e))?;
+        let tx = conn
+            .transaction_with_behavior(rusqlite::TransactionBehavior::Immediate)
+            .map_err(|e| KbError::sql(path, e))?;
         tx.execute_batch(sql).map_err(|e| KbError::sql(path, e))?;
         tx.execute("DELETE FROM schema_version", [])
             .map_err(|e| KbError::sql(path, e))?;

@@ -13,7 +13,7 @@ use serde::{Deserialize, Serialize};
 
 use super::identifier::{parse_cas, parse_inchikey};
 use super::normalise::normalise_name;
-use super::{BUSY_TIMEOUT, Kb, KbError, migrate};
+use super::{Kb, KbError, busy_timeout, migrate};
 use crate::property::{PropertyKind, canonical_unit};
 
 /// Open (creating if needed) the user overlay for reading and writing.
@@ -31,7 +31,7 @@ pub fn open_user(path: &Path) -> Result<Connection, KbError> {
     }
     let sql = |e| KbError::sql(path, e);
     let mut conn = Connection::open(path).map_err(sql)?;
-    conn.busy_timeout(BUSY_TIMEOUT).map_err(sql)?;
+    conn.busy_timeout(busy_timeout()).map_err(sql)?;
     conn.query_row("PRAGMA journal_mode=WAL", [], |_| Ok(()))
         .map_err(sql)?;
     conn.execute_batch("PRAGMA foreign_keys=ON;").map_err(sql)?;
@@ -109,7 +109,7 @@ pub fn parse_property(text: &str) -> Result<NewProperty, KbError> {
     let (num, unit) = value.split_at(split);
     let v: f64 = num
         .parse()
-        .map_err(|_| bad(&format!("`{num}` is not a number")))?;
+        .map_err(|_| bad(&format!("`{value}` does not start with a number")))?;
     if !v.is_finite() {
         return Err(bad("value is not finite"));
     }
@@ -217,7 +217,11 @@ impl Kb {
         let c = self.complete(c)?;
         let path = self.user_path.clone();
         let conn = self.user_mut()?;
-        let tx = conn.transaction().map_err(|e| KbError::sql(&path, e))?;
+        // IMMEDIATE takes the write lock up front, so a second writer waits (busy timeout)
+        // instead of failing when it tries to upgrade a read transaction.
+        let tx = conn
+            .transaction_with_behavior(rusqlite::TransactionBehavior::Immediate)
+            .map_err(|e| KbError::sql(&path, e))?;
         insert_compound(&tx, &c).map_err(|e| KbError::sql(&path, e))?;
         tx.commit().map_err(|e| KbError::sql(&path, e))
     }
@@ -295,7 +299,11 @@ impl Kb {
         }
         let path = self.user_path.clone();
         let conn = self.user_mut()?;
-        let tx = conn.transaction().map_err(|e| KbError::sql(&path, e))?;
+        // IMMEDIATE takes the write lock up front, so a second writer waits (busy timeout)
+        // instead of failing when it tries to upgrade a read transaction.
+        let tx = conn
+            .transaction_with_behavior(rusqlite::TransactionBehavior::Immediate)
+            .map_err(|e| KbError::sql(&path, e))?;
         for c in &good {
             insert_compound(&tx, c).map_err(|e| KbError::sql(&path, e))?;
         }
@@ -328,7 +336,7 @@ impl Kb {
             .map_err(|e| KbError::sql(p, e))?;
         for (id, name, smiles, cas, key) in rows {
             let syn: Vec<String> = conn
-                .prepare("SELECT name FROM name WHERE compound_id = ?1 AND rank = 1 ORDER BY id")
+                .prepare("SELECT name FROM name WHERE compound_id = ?1 AND rank > 0 ORDER BY id")
                 .and_then(|mut s| s.query_map([id], |r| r.get(0))?.collect())
                 .map_err(|e| KbError::sql(p, e))?;
             let props: Vec<(String, f64, String, String, String)> = conn
@@ -471,7 +479,11 @@ pub fn parse_import(
     let delim = if header.contains('\t') { '\t' } else { ',' };
     let cols: Vec<String> = split_row(header, delim)
         .iter()
-        .map(|c| c.trim().to_ascii_lowercase())
+        // names are case-insensitive; a unit in brackets keeps its case (`[C]`, `[kPa]`)
+        .map(|c| match c.trim().split_once('[') {
+            Some((b, u)) => format!("{}[{u}", b.trim().to_ascii_lowercase()),
+            None => c.trim().to_ascii_lowercase(),
+        })
         .collect();
     let idx = |n: &str| cols.iter().position(|c| c == n);
     let name_col = idx("name").ok_or_else(|| {
@@ -616,7 +628,7 @@ mod tests {
         for (t, want) in [
             ("logp", "name=value"),
             ("colour=red", "unknown property"),
-            ("logp=abc", "not a number"),
+            ("logp=abc", "not start with a number"),
             ("boiling_point=78psi", "cannot be converted"),
             ("boiling_point=-400C", "plausible range"),
             ("pka=4;type=neutral", "acidic or basic"),

@@ -1,0 +1,591 @@
+//! Knowledge base and look-up, through the binary.
+
+mod common;
+
+use std::io::Write;
+use std::process::Stdio;
+
+use common::{Ctx, stderr, stdout};
+
+/// Twenty-five common analytes with their PubChem identities: preferred name, CAS, PubChem
+/// CID, InChIKey. Source: PubChem compound records (values from memory of those records; the
+/// shipped table is derived from PubChem via the `chemicals` 1.5.2 package, so a mismatch
+/// here means a wrong memory or a broken import, and either is worth a look).
+const ANALYTES: &[(&str, &str, i64, &str)] = &[
+    ("caffeine", "58-08-2", 2519, "RYYVLZVUVIJVGH-UHFFFAOYSA-N"),
+    ("toluene", "108-88-3", 1140, "YXFVVABEGXRONW-UHFFFAOYSA-N"),
+    ("benzene", "71-43-2", 241, "UHOVQNZJYSORNB-UHFFFAOYSA-N"),
+    ("ethanol", "64-17-5", 702, "LFQSCWFLJHTTHZ-UHFFFAOYSA-N"),
+    ("methanol", "67-56-1", 887, "OKKJLVBELUTLKV-UHFFFAOYSA-N"),
+    (
+        "acetonitrile",
+        "75-05-8",
+        6342,
+        "WEVYAHXRMPXWCK-UHFFFAOYSA-N",
+    ),
+    ("acetone", "67-64-1", 180, "CSCPPACGZOOCGX-UHFFFAOYSA-N"),
+    ("phenol", "108-95-2", 996, "ISWSIDIOOBJBQZ-UHFFFAOYSA-N"),
+    ("naphthalene", "91-20-3", 931, "UFWIBTONFRDIAS-UHFFFAOYSA-N"),
+    (
+        "salicylic acid",
+        "69-72-7",
+        338,
+        "YGSDEFSMJLZEOE-UHFFFAOYSA-N",
+    ),
+    (
+        "ibuprofen",
+        "15687-27-1",
+        3672,
+        "HEFNNWSXXWATRW-UHFFFAOYSA-N",
+    ),
+    (
+        "acetaminophen",
+        "103-90-2",
+        1983,
+        "RZVAJINKPMORJF-UHFFFAOYSA-N",
+    ),
+    ("chloroform", "67-66-3", 6212, "HEDRZPFGACZZDS-UHFFFAOYSA-N"),
+    (
+        "dichloromethane",
+        "75-09-2",
+        6344,
+        "YMWUJEATGCHHMB-UHFFFAOYSA-N",
+    ),
+    ("hexane", "110-54-3", 8058, "VLKZOEOYAKHREP-UHFFFAOYSA-N"),
+    ("acetic acid", "64-19-7", 176, "QTBSBXVTEAMEQO-UHFFFAOYSA-N"),
+    ("citric acid", "77-92-9", 311, "KRKNYBCHXYNGOX-UHFFFAOYSA-N"),
+    ("urea", "57-13-6", 1176, "XSQUKJJJFZCRTK-UHFFFAOYSA-N"),
+    (
+        "diclofenac",
+        "15307-86-5",
+        3033,
+        "DCOPUUMXTXDBNB-UHFFFAOYSA-N",
+    ),
+    (
+        "sulfamethoxazole",
+        "723-46-6",
+        5329,
+        "JLKIGFTWXXRPMT-UHFFFAOYSA-N",
+    ),
+    (
+        "testosterone",
+        "58-22-0",
+        6013,
+        "MUMGGOZAMZWBJJ-DYKIIFRCSA-N",
+    ),
+    (
+        "ethyl acetate",
+        "141-78-6",
+        8857,
+        "XEKOWRVHYACXOJ-UHFFFAOYSA-N",
+    ),
+    ("pyridine", "110-86-1", 1049, "JUJWROOIHBZHMG-UHFFFAOYSA-N"),
+    ("water", "7732-18-5", 962, "XLYOFNOQVPJJNP-UHFFFAOYSA-N"),
+    ("nitrate", "14797-55-8", 943, "NHNBFGGVMKEFGY-UHFFFAOYSA-N"),
+];
+
+fn lookup_one(ctx: &Ctx, q: &str) -> serde_json::Value {
+    let (v, code) = ctx.json(&["lookup", "--format", "json", q]);
+    assert_eq!(code, 0, "lookup {q}: {v}");
+    assert_eq!(v["analytes"].as_array().map(Vec::len), Some(1), "{q}: {v}");
+    v["analytes"][0].clone()
+}
+
+#[test]
+fn common_analytes_resolve_by_name_cas_inchikey_and_cid_to_the_same_compound() {
+    let ctx = Ctx::new();
+    for (name, cas, cid, key) in ANALYTES {
+        let cid_q = format!("cid:{cid}");
+        for (q, how) in [
+            (*name, "name"),
+            (*cas, "cas"),
+            (*key, "inchikey"),
+            (cid_q.as_str(), "cid"),
+        ] {
+            let a = lookup_one(&ctx, q);
+            assert_eq!(a["inchikey"], *key, "{q} resolved to {}", a["name"]);
+            assert_eq!(a["cid"], *cid, "{q}");
+            assert_eq!(a["cas"], *cas, "{q}");
+            let m = a["matched_by"].as_str().unwrap_or_default();
+            assert!(
+                m == how || (how == "name" && m == "synonym"),
+                "{q}: matched by {m}"
+            );
+        }
+    }
+}
+
+#[test]
+fn synonyms_greek_letters_and_case_resolve() {
+    let ctx = Ctx::new();
+    for (q, key) in [
+        ("4-Acetamidophenol", "RZVAJINKPMORJF-UHFFFAOYSA-N"),
+        ("paracetamol", "RZVAJINKPMORJF-UHFFFAOYSA-N"),
+        ("methylene chloride", "YMWUJEATGCHHMB-UHFFFAOYSA-N"),
+        ("wood alcohol", "OKKJLVBELUTLKV-UHFFFAOYSA-N"),
+        ("ETHANOL", "LFQSCWFLJHTTHZ-UHFFFAOYSA-N"),
+        ("(±)-ibuprofen", "HEFNNWSXXWATRW-UHFFFAOYSA-N"),
+        ("α-pinene", "GRWFGVWFFZKLTI-UHFFFAOYSA-N"),
+    ] {
+        let a = lookup_one(&ctx, q);
+        assert_eq!(a["inchikey"], key, "{q} resolved to {}", a["name"]);
+    }
+}
+
+#[test]
+fn a_pubchem_smiles_resolves_and_an_unknown_valid_smiles_is_kept_as_a_structure() {
+    let ctx = Ctx::new();
+    // PubChem's SMILES for ibuprofen (CID 3672) as stored in the shipped table.
+    let a = lookup_one(&ctx, "CC(C)CC1=CC=C(C=C1)C(C)C(=O)O");
+    assert_eq!(a["inchikey"], "HEFNNWSXXWATRW-UHFFFAOYSA-N");
+    assert_eq!(a["matched_by"], "smiles");
+    let a = lookup_one(&ctx, "smiles:CCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCO");
+    assert_eq!(a["origin"], "structure");
+}
+
+#[test]
+fn a_misspelling_is_not_replaced_but_gets_suggestions_and_the_partial_exit_code() {
+    let ctx = Ctx::new();
+    let (v, code) = ctx.json(&["lookup", "--format", "json", "caffiene", "toluene"]);
+    assert_eq!(code, 1, "partial exit code");
+    assert_eq!(v["analytes"].as_array().map(Vec::len), Some(1));
+    assert_eq!(v["unresolved"][0]["query"], "caffiene");
+    let sugg: Vec<String> = v["unresolved"][0]["suggestions"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|s| s["compound"].as_str().unwrap().to_string())
+        .collect();
+    assert!(
+        sugg.len() <= 5 && sugg.contains(&"caffeine".to_string()),
+        "{sugg:?}"
+    );
+    for (typo, want) in [
+        ("benzne", "benzene"),
+        ("diclofenak", "diclofenac"),
+        ("acetonitrle", "acetonitrile"),
+    ] {
+        let (v, _) = ctx.json(&["lookup", "--format", "json", typo]);
+        let s = v["unresolved"][0]["suggestions"].to_string();
+        assert!(s.contains(want), "{typo}: {s}");
+    }
+}
+
+#[test]
+fn malformed_identifiers_are_reported_with_the_value_and_reason() {
+    let ctx = Ctx::new();
+    for (q, want) in [
+        ("64-17-6", "check digit"),
+        ("inchikey:RYYVLZVUVIJVGH", "InChIKey"),
+        ("smiles:C1CC(", "SMILES"),
+        ("cid:0", "CID"),
+    ] {
+        let (v, code) = ctx.json(&["lookup", "--format", "json", q]);
+        assert_eq!(code, 1, "{q}");
+        let r = v["unresolved"][0]["reason"].as_str().unwrap_or_default();
+        assert!(r.contains(want), "{q}: {r}");
+    }
+}
+
+#[test]
+fn analytes_are_read_from_a_file_and_from_stdin() {
+    let ctx = Ctx::new();
+    let list = ctx.path("panel.txt");
+    std::fs::write(&list, "# invented test panel\ncaffeine\n\ntoluene\n").unwrap();
+    let (v, code) = ctx.json(&[
+        "lookup",
+        "--format",
+        "json",
+        "--input",
+        list.to_str().unwrap(),
+    ]);
+    assert_eq!(code, 0);
+    assert_eq!(v["analytes"].as_array().map(Vec::len), Some(2));
+    let out = ctx
+        .cmd()
+        .args(["lookup", "--format", "tsv"])
+        .write_stdin("phenol\nbenzene\n")
+        .output()
+        .unwrap();
+    assert!(out.status.success());
+    let s = stdout(&out);
+    assert!(
+        s.lines().next().unwrap().starts_with("status\tquery\tname"),
+        "{s}"
+    );
+    assert!(s.contains("\tphenol\t") && s.contains("\tbenzene\t"), "{s}");
+}
+
+#[test]
+fn no_analytes_is_a_usage_error() {
+    let ctx = Ctx::new();
+    let out = ctx.cmd().arg("lookup").write_stdin("").output().unwrap();
+    assert_eq!(out.status.code(), Some(2));
+    assert!(stderr(&out).contains("no analytes"), "{}", stderr(&out));
+}
+
+#[test]
+fn user_values_win_over_shipped_values_and_survive_a_rebuild() {
+    let ctx = Ctx::new();
+    let out = ctx.run(&[
+        "kb",
+        "add",
+        "--name",
+        "caffeine",
+        "--prop",
+        "logp=5.5",
+        "--source",
+        "invented test value",
+    ]);
+    assert!(out.status.success(), "{}", stderr(&out));
+    let a = lookup_one(&ctx, "caffeine");
+    assert_eq!(a["origin"], "user");
+    assert_eq!(
+        a["inchikey"], "RYYVLZVUVIJVGH-UHFFFAOYSA-N",
+        "attached to the shipped compound"
+    );
+    let first_logp = a["properties"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|p| p["property"] == "logp")
+        .unwrap();
+    assert_eq!(first_logp["value"], 5.5);
+    assert_eq!(first_logp["origin"], "user");
+    // found by CAS too (through the shipped record), still with the user's value first
+    let a = lookup_one(&ctx, "58-08-2");
+    let first_logp = a["properties"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|p| p["property"] == "logp")
+        .unwrap();
+    assert_eq!(first_logp["value"], 5.5);
+}
+
+#[test]
+fn a_new_compound_with_quotes_sql_and_control_characters_is_stored_and_printed_literally() {
+    let ctx = Ctx::new();
+    let name = "impurity 'B'; DROP TABLE compound;-- \u{7}";
+    let out = ctx.run(&[
+        "kb",
+        "add",
+        "--name",
+        name,
+        "--smiles",
+        "CC(=O)Nc1ccc(O)cc1Cl",
+        "--prop",
+        "pka=9.1;type=acidic",
+        "--source",
+        "invented lab notebook",
+    ]);
+    assert!(out.status.success(), "{}", stderr(&out));
+    let a = lookup_one(&ctx, &format!("name:{name}"));
+    assert_eq!(a["name"], name);
+    assert_eq!(a["properties"][0]["detail"], "type=acidic");
+    // the table escapes the control character instead of sending it to the terminal
+    let out = ctx.run(&["lookup", &format!("name:{name}")]);
+    let s = stdout(&out);
+    assert!(
+        s.contains("DROP TABLE compound;--") && !s.contains('\u{7}'),
+        "{s}"
+    );
+    // the shipped base is intact
+    assert_eq!(lookup_one(&ctx, "toluene")["cid"], 1140);
+}
+
+#[test]
+fn bad_add_arguments_name_the_value() {
+    let ctx = Ctx::new();
+    for (args, want) in [
+        (vec!["--prop", "logp=abc"], "abc"),
+        (vec!["--cas", "58-08-3"], "check digit"),
+        (vec!["--smiles", "C1CC(("], "SMILES"),
+        (vec!["--prop", "boiling_point=5psi"], "psi"),
+    ] {
+        let mut a = vec!["kb", "add", "--name", "x compound", "--source", "invented"];
+        a.extend(args);
+        let out = ctx.run(&a);
+        assert_eq!(out.status.code(), Some(2), "{a:?}");
+        assert!(stderr(&out).contains(want), "{a:?}: {}", stderr(&out));
+    }
+    assert!(!ctx.user_kb().exists() || lookup_json_unresolved(&ctx, "x compound"));
+}
+
+fn lookup_json_unresolved(ctx: &Ctx, q: &str) -> bool {
+    let (v, _) = ctx.json(&["lookup", "--format", "json", q]);
+    v["analytes"].as_array().is_some_and(Vec::is_empty)
+}
+
+#[test]
+fn an_import_with_a_bad_row_is_rejected_whole_naming_line_and_column() {
+    let ctx = Ctx::new();
+    let f = ctx.path("import.csv");
+    std::fs::write(
+        &f,
+        "name,smiles,logp,source\ncompound one,CCO,0.1,invented\ncompound two,CCC,oops,invented\n",
+    )
+    .unwrap();
+    let out = ctx.run(&["kb", "import", f.to_str().unwrap()]);
+    assert_eq!(out.status.code(), Some(2));
+    let e = stderr(&out);
+    assert!(
+        e.contains("line 3") && e.contains("column 3") && e.contains("oops"),
+        "{e}"
+    );
+    assert!(
+        lookup_json_unresolved(&ctx, "compound one"),
+        "nothing was written"
+    );
+}
+
+#[test]
+fn an_import_can_skip_bad_rows_and_lists_them() {
+    let ctx = Ctx::new();
+    let f = ctx.path("import.tsv");
+    std::fs::write(
+        &f,
+        "name\tsmiles\tboiling_point[C]\tpka\tpka_type\nsolvent A\tCCCO\t97\t\t\nbad one\tC1CC((\t\t\t\nacid C\tCC(=O)O\t\t4.8\tacidic\n",
+    )
+    .unwrap();
+    let out = ctx.run(&[
+        "kb",
+        "import",
+        f.to_str().unwrap(),
+        "--skip-bad",
+        "--source",
+        "invented import",
+    ]);
+    assert_eq!(out.status.code(), Some(1), "{}", stderr(&out));
+    assert!(stderr(&out).contains("skipped line 3"), "{}", stderr(&out));
+    let a = lookup_one(&ctx, "solvent A");
+    let bp = a["properties"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|p| p["property"] == "boiling_point")
+        .unwrap();
+    assert!((bp["value"].as_f64().unwrap() - 370.15).abs() < 1e-9 && bp["unit"] == "K");
+    // export round-trips
+    let out = ctx.run(&["kb", "export"]);
+    let s = stdout(&out);
+    assert!(
+        s.contains("solvent A") && s.contains("acid C") && !s.contains("bad one"),
+        "{s}"
+    );
+}
+
+#[test]
+fn a_damaged_database_file_is_reported_with_exit_code_3() {
+    let ctx = Ctx::new();
+    let bad = ctx.path("bad.sqlite");
+    std::fs::write(
+        &bad,
+        b"this is not a database, just text that is long enough to be read as a header.....",
+    )
+    .unwrap();
+    let out = ctx
+        .cmd_with_kb(&bad)
+        .args(["lookup", "caffeine"])
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(3));
+    assert!(stderr(&out).contains("damaged"), "{}", stderr(&out));
+    // a damaged user overlay too
+    let out = ctx
+        .cmd_with_user_kb(&bad)
+        .args(["lookup", "caffeine"])
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(3), "{}", stderr(&out));
+}
+
+#[test]
+fn a_database_from_a_newer_schema_is_refused() {
+    let ctx = Ctx::new();
+    let user = ctx.user_kb();
+    {
+        let c = rusqlite::Connection::open(&user).unwrap();
+        c.execute_batch("CREATE TABLE schema_version (version INTEGER NOT NULL); INSERT INTO schema_version VALUES (99);")
+            .unwrap();
+    }
+    let out = ctx.run(&["lookup", "caffeine"]);
+    assert_eq!(out.status.code(), Some(3));
+    assert!(
+        stderr(&out).contains("schema version 99"),
+        "{}",
+        stderr(&out)
+    );
+}
+
+#[test]
+fn a_locked_overlay_gives_a_clear_message_after_the_busy_timeout() {
+    let ctx = Ctx::new();
+    assert!(
+        ctx.run(&["kb", "add", "--name", "lock test", "--source", "invented"])
+            .status
+            .success()
+    );
+    let c = rusqlite::Connection::open(ctx.user_kb()).unwrap();
+    c.execute_batch("BEGIN EXCLUSIVE;").unwrap();
+    let out = ctx
+        .cmd()
+        .env("PHASEWISE_BUSY_TIMEOUT_MS", "200")
+        .args(["kb", "add", "--name", "second", "--source", "invented"])
+        .output()
+        .unwrap();
+    c.execute_batch("ROLLBACK;").unwrap();
+    assert_eq!(out.status.code(), Some(3), "{}", stderr(&out));
+    assert!(stderr(&out).contains("locked"), "{}", stderr(&out));
+}
+
+#[test]
+fn two_processes_adding_compounds_at_once_both_succeed() {
+    let ctx = Ctx::new();
+    // create the overlay first so both writers open an existing WAL database
+    assert!(
+        ctx.run(&[
+            "kb",
+            "add",
+            "--name",
+            "seed compound",
+            "--source",
+            "invented"
+        ])
+        .status
+        .success()
+    );
+    let mut files = Vec::new();
+    for w in 0..2 {
+        let f = ctx.path(&format!("w{w}.csv"));
+        let mut s = String::from("name,logp,source\n");
+        for i in 0..300 {
+            s.push_str(&format!("writer {w} compound {i},{}.5,invented\n", i % 5));
+        }
+        std::fs::write(&f, s).unwrap();
+        files.push(f);
+    }
+    let children: Vec<_> = files
+        .iter()
+        .map(|f| {
+            ctx.spawnable()
+                .arg("kb")
+                .arg("import")
+                .arg(f)
+                .stdout(Stdio::null())
+                .stderr(Stdio::piped())
+                .spawn()
+                .unwrap()
+        })
+        .collect();
+    for c in children {
+        let out = c.wait_with_output().unwrap();
+        assert!(
+            out.status.success(),
+            "{}",
+            String::from_utf8_lossy(&out.stderr)
+        );
+    }
+    let (v, _) = ctx.json(&["kb", "stats", "--format", "json"]);
+    assert_eq!(v["user"]["compounds"], 601);
+}
+
+#[test]
+fn killing_an_import_half_way_leaves_the_overlay_as_it_was() {
+    let ctx = Ctx::new();
+    assert!(
+        ctx.run(&[
+            "kb",
+            "add",
+            "--name",
+            "before the import",
+            "--source",
+            "invented"
+        ])
+        .status
+        .success()
+    );
+    let f = ctx.path("big.csv");
+    let mut w = std::io::BufWriter::new(std::fs::File::create(&f).unwrap());
+    writeln!(w, "name,smiles,logp,source").unwrap();
+    for i in 0..150_000 {
+        writeln!(w, "bulk compound {i},CCO,1.0,invented").unwrap();
+    }
+    drop(w);
+    let mut child = ctx
+        .spawnable()
+        .arg("kb")
+        .arg("import")
+        .arg(&f)
+        .stdout(Stdio::null())
+        .stderr(Stdio::null())
+        .spawn()
+        .unwrap();
+    std::thread::sleep(std::time::Duration::from_millis(1500));
+    let finished = child.try_wait().unwrap().is_some();
+    let _ = child.kill();
+    let _ = child.wait();
+    let (v, _) = ctx.json(&["kb", "stats", "--format", "json"]);
+    let n = v["user"]["compounds"].as_i64().unwrap();
+    if finished {
+        // the machine was fast enough to finish: then everything must be there
+        assert_eq!(n, 150_001);
+    } else {
+        assert_eq!(n, 1, "a killed import must leave nothing behind");
+    }
+    assert!(!lookup_json_unresolved(&ctx, "before the import"));
+}
+
+#[test]
+fn stats_report_more_than_70000_shipped_compounds_with_sources_and_licences() {
+    let ctx = Ctx::new();
+    let (v, code) = ctx.json(&["kb", "stats", "--format", "json"]);
+    assert_eq!(code, 0);
+    assert!(
+        v["shipped"]["compounds"].as_i64().unwrap() >= 70_000,
+        "{}",
+        v["shipped"]["compounds"]
+    );
+    let by = v["shipped"]["properties_by_source"].as_array().unwrap();
+    assert!(
+        by.iter().all(|p| !p["source"].as_str().unwrap().is_empty()
+            && !p["licence"].as_str().unwrap().is_empty())
+    );
+    assert!(
+        by.iter()
+            .any(|p| p["property"] == "pka" && p["licence"] == "CC-BY-4.0")
+    );
+}
+
+#[test]
+fn a_stale_shipped_base_is_rebuilt_and_a_missing_one_is_an_error_with_no_build() {
+    let ctx = Ctx::new();
+    let copy = ctx.path("stale.sqlite");
+    std::fs::copy(common::shipped_kb(), &copy).unwrap();
+    {
+        let c = rusqlite::Connection::open(&copy).unwrap();
+        c.execute("UPDATE meta SET value = 'old' WHERE key = 'seed_hash'", [])
+            .unwrap();
+    }
+    let out = ctx
+        .cmd_with_kb(&copy)
+        .args(["lookup", "benzene"])
+        .output()
+        .unwrap();
+    assert!(out.status.success(), "{}", stderr(&out));
+    let c = rusqlite::Connection::open(&copy).unwrap();
+    let h: String = c
+        .query_row("SELECT value FROM meta WHERE key='seed_hash'", [], |r| {
+            r.get(0)
+        })
+        .unwrap();
+    assert_ne!(h, "old");
+    let missing = ctx.path("none.sqlite");
+    let out = ctx
+        .cmd_with_kb(&missing)
+        .args(["--no-build", "lookup", "benzene"])
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(3));
+    assert!(stderr(&out).contains("does not exist"), "{}", stderr(&out));
+}

@@ -7,6 +7,8 @@
 #![deny(missing_docs)]
 
 pub mod kb;
+pub mod model;
+pub mod phase;
 pub mod property;
 pub mod report;
 pub mod structure;

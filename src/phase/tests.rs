@@ -149,7 +149,7 @@ fn lc_phases_have_ph_limits_and_training_classes_gc_phases_do_not() {
 
 #[test]
 fn training_data_classes_are_spelled_as_in_systems_tsv() {
-    // The classes of /work/shared/data/retention/systems.tsv (RepoRT-derived, CC BY-SA 4.0).
+    // The classes of ../shared/data/retention/systems.tsv (RepoRT-derived, CC BY-SA 4.0).
     let known = [
         "C18",
         "C8",

@@ -31,6 +31,12 @@ pub enum Command {
         after_help = "Example:\n  phasewise lookup caffeine 58-08-2 'CC(=O)Oc1ccccc1C(=O)O'\n  printf 'toluene\\nphenol\\n' | phasewise lookup --format json"
     )]
     Lookup(LookupArgs),
+    /// Compute descriptors, ionisable sites, boiling point and GC suitability from SMILES
+    /// (arguments, `--input FILE` with `SMILES<TAB>name` lines, or stdin).
+    #[command(
+        after_help = "Example:\n  phasewise describe 'CC(=O)Oc1ccccc1C(=O)O' 'c1ccccc1O'\n  printf 'CCO\\tethanol\\n' | phasewise describe --format json"
+    )]
+    Describe(DescribeArgs),
     /// Build, inspect and extend the knowledge base.
     #[command(subcommand)]
     Kb(KbCommand),
@@ -54,6 +60,20 @@ pub struct LookupArgs {
     /// Analytes.
     #[command(flatten)]
     pub input: AnalyteInput,
+    /// Output format.
+    #[arg(long, short, value_enum, default_value_t = OutputFormat::Table)]
+    pub format: OutputFormat,
+}
+
+/// `describe` options.
+#[derive(Debug, Args)]
+pub struct DescribeArgs {
+    /// SMILES strings.
+    #[arg(value_name = "SMILES")]
+    pub smiles: Vec<String>,
+    /// Read `SMILES` or `SMILES<TAB>name` lines from a file; `-` reads stdin.
+    #[arg(long, short, value_name = "FILE")]
+    pub input: Option<PathBuf>,
     /// Output format.
     #[arg(long, short, value_enum, default_value_t = OutputFormat::Table)]
     pub format: OutputFormat,

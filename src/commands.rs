@@ -185,6 +185,26 @@ pub fn run(cli: Cli) -> Result<ExitCode> {
                 ExitCode::SUCCESS
             })
         }
+        Command::Describe(args) => {
+            let input = AnalyteInput {
+                analytes: args.smiles.clone(),
+                input: args.input.clone(),
+            };
+            let lines = read_analytes(&input)?;
+            let report = phasewise::report::describe::DescribeReport::from_inputs(&lines);
+            write_out(&report.render(format_of(args.format)))?;
+            if report.molecules.is_empty() {
+                bail!(
+                    "no input could be described ({} failed)",
+                    report.failures.len()
+                );
+            }
+            Ok(if report.failures.is_empty() {
+                ExitCode::SUCCESS
+            } else {
+                ExitCode::from(EXIT_PARTIAL)
+            })
+        }
         Command::Kb(k) => run_kb(&cli, k),
     }
 }

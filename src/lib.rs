@@ -7,6 +7,7 @@
 #![deny(missing_docs)]
 
 pub mod kb;
+pub mod measured;
 pub mod model;
 pub mod phase;
 pub mod property;

@@ -282,7 +282,25 @@ fn a_new_compound_with_quotes_sql_and_control_characters_is_stored_and_printed_l
     assert!(out.status.success(), "{}", stderr(&out));
     let a = lookup_one(&ctx, &format!("name:{name}"));
     assert_eq!(a["name"], name);
-    assert_eq!(a["properties"][0]["detail"], "type=acidic");
+    let pka = a["properties"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|p| p["property"] == "pka")
+        .unwrap();
+    assert_eq!(pka["detail"], "type=acidic");
+    assert_eq!(
+        pka["kind"], "experimental",
+        "the user's value ranks above the estimate"
+    );
+    // the structure's estimates are stored beside it, labelled with their method
+    assert!(
+        a["properties"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .any(|p| p["property"] == "logp" && p["kind"] == "estimated")
+    );
     // the table escapes the control character instead of sending it to the terminal
     let out = ctx.run(&["lookup", &format!("name:{name}")]);
     let s = stdout(&out);

@@ -441,6 +441,13 @@ pub(crate) fn insert_compound(
         }
         seen.push(norm);
     }
+    if let Some(smiles) = &c.smiles {
+        let mut ins = tx.prepare(
+            "INSERT INTO property(compound_id, property, value, unit, kind, source, licence, detail)
+             VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8)",
+        )?;
+        super::build::insert_estimates(&mut ins, id, smiles)?;
+    }
     for p in &c.properties {
         tx.execute(
             "INSERT INTO property(compound_id, property, value, unit, kind, source, licence, detail)

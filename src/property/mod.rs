@@ -5,6 +5,7 @@
 //! may be passed on. When several values exist for one property the precedence is:
 //! the user's own overlay, then experimental, then estimated; ties keep their stored order.
 
+pub mod estimate;
 pub mod ionisation;
 
 use serde::{Deserialize, Serialize};

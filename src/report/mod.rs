@@ -4,6 +4,8 @@
 //! [`SCHEMA_VERSION`]), CSV/TSV for spreadsheets. Renderers return strings; the CLI writes
 //! them, so a report is written in one step and never half-way.
 
+pub mod advice;
+pub mod describe;
 pub mod lookup;
 pub mod table;
 

@@ -110,6 +110,18 @@ pub enum StructureError {
         /// Why.
         reason: String,
     },
+    /// An atom written aromatic (lower case) that is in no ring (RDKit rejects these too).
+    #[error(
+        "SMILES `{smiles}`: atom `{atom}` at character {position} is written aromatic (lower case) but is not in a ring; write it in upper case"
+    )]
+    AromaticOutsideRing {
+        /// The input.
+        smiles: String,
+        /// Character position of the atom (0-based).
+        position: usize,
+        /// Element symbol of the atom.
+        atom: String,
+    },
     /// More heavy atoms (or a longer string) than the documented limit.
     #[error(
         "SMILES starting `{smiles_start}` is too large: {size} {unit} (limit {limit}); split it or describe a smaller structure"
@@ -270,18 +282,54 @@ pub fn parse_smiles_with(smiles: &str, options: &ParseOptions) -> Result<Parsed,
         raw.nodes().iter().any(|a| a.aromatic()) || raw_bonds.iter().any(|b| b.3);
 
     // Kekulé form: the written one, or smiles-rs's kekulization of lowercase input.
+    // `smiles-rs` 0.2.1 refuses to kekulize an aromatic system in which no
+    // atom needs a double bond (e.g. `n1c(=O)n(C)c(=O)n(C)c1=O`, RDKit's own
+    // output for trimethyl isocyanurate): "0 candidate atoms". Its Kekulé form
+    // is then the written graph with every aromatic bond single, which is what
+    // `written_orders` below means.
+    if any_aromatic_written {
+        // Checked before kekulization, which can take long on long chains of
+        // lowercase atoms (a fuzzing find: 0.1 s for a 512-byte input).
+        let membership = raw.ring_membership();
+        if let Some(i) = (0..n).find(|&i| raw.nodes()[i].aromatic() && !membership.contains_atom(i))
+        {
+            return Err(StructureError::AromaticOutsideRing {
+                smiles: text.to_string(),
+                position: pos_of(i),
+                atom: symbol(atoms[i].atomic_number).to_string(),
+            });
+        }
+    }
     let kekulized: Smiles;
+    let mut written_orders = false;
     let kekule: &Smiles = if any_aromatic_written {
-        kekulized = raw.kekulize().map_err(|e| StructureError::Kekulization {
-            smiles: text.to_string(),
-            reason: e.to_string(),
-        })?;
-        &kekulized
+        match raw.kekulize() {
+            Ok(k) => {
+                kekulized = k;
+                &kekulized
+            }
+            Err(smiles_rs::KekulizationError::NoPerfectMatching {
+                candidate_atom_count: 0,
+            }) => {
+                written_orders = true;
+                &raw
+            }
+            Err(e) => {
+                return Err(StructureError::Kekulization {
+                    smiles: text.to_string(),
+                    reason: e.to_string(),
+                });
+            }
+        }
     } else {
         &raw
     };
     let mut kekule_order: Vec<u8> = Vec::with_capacity(raw_bonds.len());
     for &(a, b, written, _) in &raw_bonds {
+        if written_orders {
+            kekule_order.push(written);
+            continue;
+        }
         let o = kekule
             .edge_for_node_pair((a, b))
             .map(|e| match e.bond() {
@@ -304,7 +352,16 @@ pub fn parse_smiles_with(smiles: &str, options: &ParseOptions) -> Result<Parsed,
         let z = atoms[i].atomic_number;
         let charge = atoms[i].formal_charge;
         let ev = explicit_valence[i];
-        if !bracket[i] {
+        if !bracket[i] && written_orders && raw.nodes()[i].aromatic() {
+            // Lowercase atom of a system without double bonds: RDKit gives
+            // `c` the hydrogens that complete valence 3 over its written
+            // bonds, other lowercase atoms none.
+            atoms[i].hydrogens = if z == 6 {
+                u8::try_from(3u16.saturating_sub(ev)).unwrap_or(0)
+            } else {
+                0
+            };
+        } else if !bracket[i] {
             match implicit_h_organic(z, ev) {
                 Some(h) => atoms[i].hydrogens = h,
                 None => {
@@ -506,14 +563,26 @@ pub fn parse_smiles_with(smiles: &str, options: &ParseOptions) -> Result<Parsed,
 /// Largest ring system (ring bonds) for which equal-size alternative rings are searched.
 const MAX_RING_BONDS_FOR_SYMMETRIZATION: usize = 256;
 
+/// Largest ring set the completion below may grow to.
+const MAX_RINGS: usize = 512;
+
 /// Completes the ring set the way RDKit's `symmetrizeSSSR` does where
-/// `smiles-rs` keeps only one of two interchangeable rings: a *relevant* cycle
-/// (one that is not a sum of strictly smaller cycles, Vismara, Electron. J.
-/// Combin. 1997, 4, R9) whose size equals that of a ring already in the set is
-/// added. Example: in `C1CCC2C3CCCCC2C3C1` two seven-membered rings can each
-/// complete the basis; RDKit reports both (5 rings), `smiles-rs` one (4).
-/// Candidates are Horton's cycles (shortest path + edge + shortest path).
+/// `smiles-rs` keeps only one of two interchangeable rings. For a ring C of
+/// the set and a strictly smaller ring R, the edge sum C + R (GF(2)) is
+/// another ring of the same size exactly when R shares half its bonds with C;
+/// such a C + R is a *relevant* cycle (Vismara, Electron. J. Combin. 1997, 4,
+/// R9: not a sum of strictly smaller cycles, since C is not) and RDKit lists
+/// it. Example: in `C1CCC2C3CCCCC2C3C1` two seven-membered rings each
+/// complete the basis next to the four-membered ring; RDKit reports both
+/// (5 rings), `smiles-rs` one (4). The closure is repeated on added rings.
 fn add_interchangeable_rings(graph: &mut MolGraph) {
+    if graph.rings.len() < 2 {
+        return;
+    }
+    let smallest = graph.rings.iter().map(Vec::len).min().unwrap_or(0);
+    if graph.rings.iter().all(|r| r.len() == smallest) {
+        return;
+    }
     let ring_bonds: Vec<usize> = (0..graph.bonds.len())
         .filter(|&b| graph.bonds[b].in_ring)
         .collect();
@@ -521,42 +590,12 @@ fn add_interchangeable_rings(graph: &mut MolGraph) {
     if m == 0 || m > MAX_RING_BONDS_FOR_SYMMETRIZATION {
         return;
     }
-    let ring_atoms: Vec<usize> = (0..graph.atoms.len())
-        .filter(|&a| graph.atoms[a].in_ring)
-        .collect();
-    // Cyclomatic number of the ring subgraph; one ring per system needs nothing.
-    let mut seen = vec![false; graph.atoms.len()];
-    let mut systems = 0usize;
-    for &s0 in &ring_atoms {
-        if seen[s0] {
-            continue;
-        }
-        systems += 1;
-        let mut stack = vec![s0];
-        seen[s0] = true;
-        while let Some(x) = stack.pop() {
-            for &(y, b) in &graph.neighbours[x] {
-                if graph.bonds[b].in_ring && !seen[y] {
-                    seen[y] = true;
-                    stack.push(y);
-                }
-            }
-        }
-    }
-    if m + systems <= ring_atoms.len() + graph.rings.len().min(systems) {
-        return;
-    }
     let mut edge_index = vec![usize::MAX; graph.bonds.len()];
     for (k, &b) in ring_bonds.iter().enumerate() {
         edge_index[b] = k;
     }
     let words = m.div_ceil(64);
-    fn edge_bits(
-        graph: &MolGraph,
-        edge_index: &[usize],
-        words: usize,
-        cycle: &[usize],
-    ) -> Option<Vec<u64>> {
+    let edge_bits = |graph: &MolGraph, cycle: &[usize]| -> Option<Vec<u64>> {
         let mut bits = vec![0u64; words];
         for k in 0..cycle.len() {
             let b = graph.bond_between(cycle[k], cycle[(k + 1) % cycle.len()])?;
@@ -567,134 +606,32 @@ fn add_interchangeable_rings(graph: &mut MolGraph) {
             bits[e / 64] |= 1 << (e % 64);
         }
         Some(bits)
-    }
-    let edge_set = |g: &MolGraph, cycle: &[usize]| edge_bits(g, &edge_index, words, cycle);
-    let existing: Vec<Vec<u64>> = graph
-        .rings
-        .iter()
-        .filter_map(|r| edge_set(graph, r))
-        .collect();
-    let sizes: Vec<usize> = graph.rings.iter().map(Vec::len).collect();
-    let max_size = sizes.iter().copied().max().unwrap_or(0);
-    // Horton candidates.
-    let n = graph.atoms.len();
-    let mut candidates: Vec<(Vec<usize>, Vec<u64>)> = Vec::new();
-    let mut dist = vec![usize::MAX; n];
-    let mut parent = vec![usize::MAX; n];
-    for &v in &ring_atoms {
-        dist.iter_mut().for_each(|d| *d = usize::MAX);
-        parent.iter_mut().for_each(|p| *p = usize::MAX);
-        dist[v] = 0;
-        let mut queue = VecDeque::from([v]);
-        while let Some(x) = queue.pop_front() {
-            for &(y, b) in &graph.neighbours[x] {
-                if graph.bonds[b].in_ring && dist[y] == usize::MAX {
-                    dist[y] = dist[x] + 1;
-                    parent[y] = x;
-                    queue.push_back(y);
-                }
-            }
-        }
-        for &b in &ring_bonds {
-            let (x, y) = (graph.bonds[b].a, graph.bonds[b].b);
-            if dist[x] == usize::MAX || dist[y] == usize::MAX || parent[x] == y || parent[y] == x {
-                continue;
-            }
-            let len = dist[x] + dist[y] + 1;
-            if len > max_size || len < 3 {
-                continue;
-            }
-            let path = |mut z: usize| {
-                let mut p = vec![z];
-                while z != v {
-                    z = parent[z];
-                    p.push(z);
-                }
-                p
-            };
-            let px = path(x); // x .. v
-            let py = path(y); // y .. v
-            if px[..px.len() - 1].iter().any(|a| py.contains(a)) {
-                continue;
-            }
-            let mut cycle: Vec<usize> = px.iter().rev().copied().collect(); // v .. x
-            cycle.extend(py[..py.len() - 1].iter()); // y .. (before v)
-            if let Some(bits) = edge_set(graph, &cycle) {
-                candidates.push((cycle, bits));
-            }
-        }
-        if candidates.len() > 4096 {
-            return;
-        }
-    }
-    candidates.sort_by(|a, b| a.0.len().cmp(&b.0.len()).then_with(|| a.1.cmp(&b.1)));
-    candidates.dedup_by(|a, b| a.1 == b.1);
-    // GF(2) elimination: a candidate is relevant if independent of strictly shorter cycles.
-    let mut basis: Vec<Vec<u64>> = Vec::new();
-    let reduce = |basis: &[Vec<u64>], v: &mut Vec<u64>| {
-        for row in basis {
-            let pivot = (0..words)
-                .find(|&w| row[w] != 0)
-                .map(|w| (w, row[w].trailing_zeros()));
-            if let Some((w, bit)) = pivot
-                && v[w] >> bit & 1 == 1
-            {
-                for k in 0..words {
-                    v[k] ^= row[k];
-                }
-            }
-        }
     };
-    let mut k = 0;
-    while k < candidates.len() {
-        let len = candidates[k].0.len();
-        let end = (k..candidates.len())
-            .find(|&j| candidates[j].0.len() != len)
-            .unwrap_or(candidates.len());
-        let mut group_new: Vec<Vec<u64>> = Vec::new();
-        for (cycle, bits) in &candidates[k..end] {
-            let mut v = bits.clone();
-            reduce(&basis, &mut v);
-            if v.iter().all(|&w| w == 0) {
-                continue;
-            }
-            if sizes.contains(&len) && !existing.contains(bits) {
-                graph.rings.push(cycle.clone());
-            }
-            // Keep the group's independent part for the next lengths.
-            let mut u = v;
-            reduce(&group_new, &mut u);
-            if u.iter().any(|&w| w != 0) {
-                group_new.push(u);
-            }
+    let mut sets: Vec<Vec<u64>> = Vec::with_capacity(graph.rings.len());
+    for r in &graph.rings {
+        match edge_bits(graph, r) {
+            Some(b) => sets.push(b),
+            None => return,
         }
-        for row in group_new {
-            insert_row(&mut basis, row);
-        }
-        k = end;
-    }
-    // Horton's candidates use one shortest path per atom pair, so equal-length
-    // variants (a macrocycle passing either side of two benzene rings) can be
-    // missing. C + R, for a ring C of the set and a strictly smaller ring R,
-    // is relevant whenever C is; add those that are simple cycles of C's size.
-    let mut sets: Vec<Vec<u64>> = graph
-        .rings
-        .iter()
-        .filter_map(|r| edge_set(graph, r))
-        .collect();
-    if sets.len() != graph.rings.len() {
-        return;
     }
     let mut i = 0;
-    while i < sets.len() && sets.len() < 512 {
+    while i < sets.len() && sets.len() < MAX_RINGS {
         let len = graph.rings[i].len();
         for j in 0..sets.len() {
-            if graph.rings[j].len() >= len {
+            let small = graph.rings[j].len();
+            if small >= len {
+                continue;
+            }
+            let shared: usize = sets[i]
+                .iter()
+                .zip(&sets[j])
+                .map(|(a, b)| (a & b).count_ones() as usize)
+                .sum();
+            if 2 * shared != small {
                 continue;
             }
             let x: Vec<u64> = sets[i].iter().zip(&sets[j]).map(|(a, b)| a ^ b).collect();
-            let bits: usize = x.iter().map(|w| w.count_ones() as usize).sum();
-            if bits != len || sets.contains(&x) {
+            if sets.contains(&x) {
                 continue;
             }
             if let Some(cycle) = simple_cycle(graph, &ring_bonds, &x) {
@@ -739,27 +676,6 @@ fn simple_cycle(graph: &MolGraph, ring_bonds: &[usize], bits: &[u64]) -> Option<
         cur = next;
     }
     (cycle.len() == edges.len()).then_some(cycle)
-}
-
-/// Inserts a GF(2) row into a basis kept in a form where each row's lowest set
-/// bit is unique (rows reduced against earlier rows).
-fn insert_row(basis: &mut Vec<Vec<u64>>, mut row: Vec<u64>) {
-    let words = row.len();
-    for existing in basis.iter() {
-        let pivot = (0..words)
-            .find(|&w| existing[w] != 0)
-            .map(|w| (w, existing[w].trailing_zeros()));
-        if let Some((w, bit)) = pivot
-            && row[w] >> bit & 1 == 1
-        {
-            for k in 0..words {
-                row[k] ^= existing[k];
-            }
-        }
-    }
-    if row.iter().any(|&w| w != 0) {
-        basis.push(row);
-    }
 }
 
 /// Implicit hydrogens of an unbracketed organic-subset atom: complete the
@@ -985,6 +901,14 @@ mod tests {
             Err(StructureError::UnsupportedElement { .. })
         ));
         assert!(matches!(parse_smiles("   "), Err(StructureError::Empty)));
+    }
+
+    #[test]
+    fn aromatic_outside_ring_is_rejected() {
+        assert!(matches!(
+            parse_smiles("Ccc1ccccc1"),
+            Err(StructureError::AromaticOutsideRing { position: 1, .. })
+        ));
     }
 
     #[test]

@@ -108,6 +108,10 @@ pub fn describe(smiles: &str) -> Result<Description, StructureError> {
 }
 
 /// Computes every descriptor of a graph.
+///
+/// # Panics
+/// Only on an inconsistent hand-built graph (a bond or neighbour index out of
+/// range); graphs from [`parse_smiles`] are always consistent.
 pub fn describe_graph(g: &MolGraph) -> Descriptors {
     let (logp, mr) = crippen::crippen_logp_mr(g);
     let mcgowan = mcgowan::mcgowan_volume_cm3_mol(g);

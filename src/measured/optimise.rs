@@ -1,0 +1,1247 @@
+//! Gradient optimisation from fitted LSS parameters: search gradient time, initial and final
+//! % organic (optionally a two-segment gradient) to maximise the smallest resolution of all
+//! adjacent pairs (or of named critical pairs) within a maximum run time, and the window diagram
+//! (smallest resolution versus gradient time) with a hand-written SVG renderer.
+//!
+//! Predictions: retention from [`gradient_elution`] (exact for LSS), baseline widths
+//! w = 4 t0 (1 + k_e)/√N (SD 2007 ch. 2, band compression ignored, G = 1), resolution
+//! Rs = 2 Δt/(w1 + w2) (SKD 2010 ch. 2). Search: a full grid over (tG, %B start, %B end),
+//! then compass (pattern) search with step halving from the best grid points. Ties are broken
+//! by shorter run time, then by grid order, so results are deterministic.
+//!
+//! Predictions are starting points to verify by a confirming run; the LSS model ignores
+//! curvature and peak-shape effects.
+
+use serde::{Deserialize, Serialize};
+use thiserror::Error;
+
+use crate::measured::scout::ScoutFit;
+use crate::model::gradient::{
+    ElutionPhase, GradientError, GradientPoint, GradientProgram, GradientSystem, LssParameters,
+    gradient_elution, gradient_peak_width_min,
+};
+use crate::model::theory::{self, TheoryError};
+
+/// Errors from the optimiser.
+#[derive(Debug, Clone, PartialEq, Error)]
+pub enum OptimiseError {
+    /// Fewer than two analytes.
+    #[error("need at least 2 analytes to optimise resolution, got {count}")]
+    TooFewAnalytes {
+        /// Analytes given.
+        count: usize,
+    },
+    /// A search range is empty or invalid.
+    #[error("range for {name} is invalid: min {min}, max {max} ({reason})")]
+    BadRange {
+        /// Range name.
+        name: &'static str,
+        /// Lower end.
+        min: f64,
+        /// Upper end.
+        max: f64,
+        /// Why.
+        reason: &'static str,
+    },
+    /// A grid setting is outside what the search supports.
+    #[error("{name} = {value} is outside {min}..={max}; choose a value in that range")]
+    BadGridSetting {
+        /// Setting name.
+        name: &'static str,
+        /// Value given.
+        value: f64,
+        /// Lowest allowed.
+        min: f64,
+        /// Highest allowed.
+        max: f64,
+    },
+    /// A critical-pair name is unknown.
+    #[error("critical pair names `{name}`, which is not among the analytes ({available})")]
+    UnknownAnalyte {
+        /// The name.
+        name: String,
+        /// Analytes available.
+        available: String,
+    },
+    /// A critical pair names one analyte twice.
+    #[error("critical pair names `{name}` twice; give two different analytes")]
+    CriticalPairSameAnalyte {
+        /// The name.
+        name: String,
+    },
+    /// Two analytes share a name.
+    #[error("analyte `{name}` is listed twice")]
+    DuplicateAnalyte {
+        /// The name.
+        name: String,
+    },
+    /// No condition in the search space elutes everything within the run time.
+    #[error(
+        "no gradient in the search space elutes every analyte within {max_run_time_min} min; \
+         allow a longer run, a higher final % organic or a shorter gradient"
+    )]
+    NoFeasibleCondition {
+        /// Maximum run time, min.
+        max_run_time_min: f64,
+    },
+    /// A quantity failed validation.
+    #[error(transparent)]
+    Theory(#[from] TheoryError),
+    /// A gradient could not be built or evaluated.
+    #[error(transparent)]
+    Gradient(#[from] GradientError),
+}
+
+/// An analyte with its LSS parameters.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct NamedAnalyte {
+    /// Name.
+    pub name: String,
+    /// log10 kw.
+    pub log_kw: f64,
+    /// S.
+    pub s: f64,
+    /// 1σ uncertainty of log kw and S and their correlation (from a scouting fit), used to put
+    /// an interval on predicted retention times; None when unknown.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub uncertainty: Option<ParameterUncertainty>,
+}
+
+/// 1σ uncertainties of fitted LSS parameters.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+pub struct ParameterUncertainty {
+    /// 1σ of log kw.
+    pub log_kw: f64,
+    /// 1σ of S.
+    pub s: f64,
+    /// Correlation of the two estimates (−1..1).
+    pub correlation: f64,
+}
+
+/// Where the plate number for widths comes from.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+#[serde(tag = "source", rename_all = "snake_case")]
+pub enum PlateSource {
+    /// A measured or assumed plate number.
+    Given {
+        /// Plate number N.
+        plates: f64,
+    },
+    /// N = L/(2.5 dp) ([`theory::estimated_plate_number`]).
+    Estimated {
+        /// Column length, mm.
+        column_length_mm: f64,
+        /// Particle size, µm.
+        particle_size_um: f64,
+    },
+}
+
+impl PlateSource {
+    /// The plate number.
+    ///
+    /// # Errors
+    /// Non-positive inputs.
+    pub fn plates(&self) -> Result<f64, TheoryError> {
+        match *self {
+            PlateSource::Given { plates } => theory::positive("plate number", plates),
+            PlateSource::Estimated {
+                column_length_mm,
+                particle_size_um,
+            } => theory::estimated_plate_number(column_length_mm, particle_size_um),
+        }
+    }
+}
+
+/// A closed range.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+pub struct Range {
+    /// Lower end.
+    pub min: f64,
+    /// Upper end.
+    pub max: f64,
+}
+
+/// An optimisation request.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct OptimiseRequest {
+    /// Analytes with LSS parameters (e.g. from [`ScoutFit`] via [`OptimiseRequest::analytes_from_fit`]).
+    pub analytes: Vec<NamedAnalyte>,
+    /// Dead time, min.
+    pub dead_time_min: f64,
+    /// Dwell time, min.
+    pub dwell_time_min: f64,
+    /// Plate number for peak widths.
+    pub plates: PlateSource,
+    /// Allowed gradient (ramp) time, min.
+    pub gradient_time_min: Range,
+    /// Allowed initial composition, % organic.
+    pub initial_pct: Range,
+    /// Allowed final composition, % organic.
+    pub final_pct: Range,
+    /// Maximum run time (last peak out), min.
+    pub max_run_time_min: f64,
+    /// If given, only these pairs' resolution counts.
+    #[serde(default)]
+    pub critical_pairs: Vec<[String; 2]>,
+    /// Also try a two-segment gradient (start → knee → end).
+    #[serde(default)]
+    pub two_segment: bool,
+    /// Resolution target drawn in the window diagram and reported as met or not; default 1.5.
+    #[serde(default = "default_target")]
+    pub target_resolution: f64,
+    /// Grid steps for gradient time (≥ 2); default 25.
+    #[serde(default = "default_tg_steps")]
+    pub gradient_time_steps: usize,
+    /// Grid step for compositions, % organic; default 5.
+    #[serde(default = "default_pct_step")]
+    pub composition_step_pct: f64,
+}
+
+fn default_target() -> f64 {
+    1.5
+}
+fn default_tg_steps() -> usize {
+    25
+}
+fn default_pct_step() -> f64 {
+    5.0
+}
+
+impl OptimiseRequest {
+    /// Analytes from a scouting fit.
+    pub fn analytes_from_fit(fit: &ScoutFit) -> Vec<NamedAnalyte> {
+        fit.analytes
+            .iter()
+            .map(|a| NamedAnalyte {
+                name: a.name.clone(),
+                log_kw: a.log_kw,
+                s: a.s,
+                uncertainty: (a.log_kw_uncertainty.is_finite()
+                    && a.s_uncertainty.is_finite()
+                    && a.correlation.is_finite())
+                .then_some(ParameterUncertainty {
+                    log_kw: a.log_kw_uncertainty,
+                    s: a.s_uncertainty,
+                    correlation: a.correlation,
+                }),
+            })
+            .collect()
+    }
+}
+
+/// A predicted peak under given conditions.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct PredictedPeak {
+    /// Analyte.
+    pub name: String,
+    /// Retention time, min.
+    pub retention_time_min: f64,
+    /// Baseline width, min.
+    pub width_base_min: f64,
+    /// Composition at elution, %.
+    pub organic_at_elution_pct: f64,
+    /// Phase of the run at elution.
+    pub phase: ElutionPhase,
+    /// 1σ of the retention time from the parameter uncertainties (linear propagation), min;
+    /// None when the analyte has no uncertainty.
+    pub retention_time_uncertainty_min: Option<f64>,
+}
+
+/// A predicted pair.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct PredictedPair {
+    /// Earlier analyte.
+    pub first: String,
+    /// Later analyte.
+    pub second: String,
+    /// Resolution.
+    pub resolution: f64,
+}
+
+/// Predicted separation under one gradient program.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Prediction {
+    /// The program.
+    pub program: GradientProgram,
+    /// Peaks in elution order.
+    pub peaks: Vec<PredictedPeak>,
+    /// Adjacent pairs (or the critical pairs) with resolution.
+    pub pairs: Vec<PredictedPair>,
+    /// Smallest resolution among `pairs`.
+    pub min_resolution: f64,
+    /// The pair with the smallest resolution.
+    pub critical_pair: [String; 2],
+    /// Time the last peak leaves the column, min.
+    pub run_time_min: f64,
+}
+
+/// One point of the window diagram.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct WindowPoint {
+    /// Gradient time, min.
+    pub gradient_time_min: f64,
+    /// Smallest resolution.
+    pub min_resolution: f64,
+    /// Critical pair at this point.
+    pub critical_pair: [String; 2],
+    /// Last peak time, min.
+    pub run_time_min: f64,
+    /// Within the maximum run time.
+    pub within_run_time: bool,
+}
+
+/// Window diagram: smallest resolution versus gradient time at fixed start and end composition.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct WindowDiagram {
+    /// Initial composition held fixed, %.
+    pub initial_pct: f64,
+    /// Final composition held fixed, %.
+    pub final_pct: f64,
+    /// Resolution target line.
+    pub target_resolution: f64,
+    /// Optimum gradient time marked on the diagram, min.
+    pub optimum_gradient_time_min: f64,
+    /// The series.
+    pub points: Vec<WindowPoint>,
+}
+
+/// The optimiser's report.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct OptimiseReport {
+    /// Plate number used for widths.
+    pub plates_used: f64,
+    /// Best gradient time, min (end of ramp).
+    pub gradient_time_min: f64,
+    /// Best initial composition, %.
+    pub initial_pct: f64,
+    /// Best final composition, %.
+    pub final_pct: f64,
+    /// Knee of the two-segment gradient, when it was better.
+    pub knee: Option<GradientPoint>,
+    /// The predicted separation at the optimum.
+    pub optimum: Prediction,
+    /// Whether the optimum reaches the target resolution.
+    pub meets_target: bool,
+    /// Best single-linear-ramp result (for comparison when a two-segment gradient won).
+    pub best_linear_min_resolution: f64,
+    /// The optimum with times rounded to 0.1 min and compositions to 0.1 %, as one would type
+    /// it into an instrument method, predicted again (None if rounding broke feasibility).
+    pub rounded: Option<Prediction>,
+    /// Window diagram around the optimum.
+    pub window: WindowDiagram,
+    /// Conditions evaluated.
+    pub evaluated_conditions: usize,
+    /// Notes (assumptions, warnings).
+    pub notes: Vec<String>,
+}
+
+/// One analyte's predicted elution: (index, tR min, base width min, % organic at elution, phase).
+type El = (usize, f64, f64, f64, ElutionPhase);
+
+struct Ctx<'a> {
+    analytes: Vec<(&'a str, LssParameters)>,
+    uncertainty: Vec<Option<ParameterUncertainty>>,
+    system: GradientSystem,
+    plates: f64,
+    pairs: Vec<(usize, usize)>,
+    max_run: f64,
+}
+
+/// Score for comparison: (feasible, min Rs, −run time).
+#[derive(Clone, Copy, PartialEq)]
+struct Score {
+    feasible: bool,
+    min_rs: f64,
+    run: f64,
+}
+
+impl Score {
+    fn better_than(&self, o: &Score) -> bool {
+        if self.feasible != o.feasible {
+            return self.feasible;
+        }
+        if !self.feasible {
+            return self.run < o.run;
+        }
+        if (self.min_rs - o.min_rs).abs() > 1e-9 {
+            return self.min_rs > o.min_rs;
+        }
+        self.run < o.run - 1e-9
+    }
+}
+
+impl Ctx<'_> {
+    fn evaluate(&self, program: &GradientProgram) -> Option<(Score, Vec<El>)> {
+        let t0 = self.system.dead_time_min;
+        let mut el = Vec::with_capacity(self.analytes.len());
+        for (i, (_, p)) in self.analytes.iter().enumerate() {
+            let e = gradient_elution(p, program, &self.system).ok()?;
+            let w =
+                gradient_peak_width_min(t0, e.retention_factor_at_elution.max(0.0), self.plates)
+                    .ok()?;
+            el.push((
+                i,
+                e.retention_time_min,
+                w,
+                e.organic_at_elution_pct,
+                e.phase,
+            ));
+        }
+        let run = el.iter().map(|x| x.1).fold(0.0, f64::max);
+        let min_rs = self.min_rs(&el);
+        Some((
+            Score {
+                feasible: run <= self.max_run && min_rs.is_finite(),
+                min_rs,
+                run,
+            },
+            el,
+        ))
+    }
+
+    fn rs(a: &El, b: &El) -> f64 {
+        2.0 * (b.1 - a.1).abs() / (a.2 + b.2)
+    }
+
+    fn sorted(el: &[El], names: &[(&str, LssParameters)]) -> Vec<El> {
+        let mut s = el.to_vec();
+        s.sort_by(|x, y| {
+            x.1.total_cmp(&y.1)
+                .then_with(|| names[x.0].0.cmp(names[y.0].0))
+        });
+        s
+    }
+
+    fn pair_list(&self, el: &[El]) -> Vec<(usize, usize, f64)> {
+        if self.pairs.is_empty() {
+            let s = Self::sorted(el, &self.analytes);
+            s.windows(2)
+                .map(|w| (w[0].0, w[1].0, Self::rs(&w[0], &w[1])))
+                .collect()
+        } else {
+            self.pairs
+                .iter()
+                .map(|&(i, j)| {
+                    let (a, b) = if el[i].1 <= el[j].1 { (i, j) } else { (j, i) };
+                    (a, b, Self::rs(&el[a], &el[b]))
+                })
+                .collect()
+        }
+    }
+
+    fn min_rs(&self, el: &[El]) -> f64 {
+        self.pair_list(el)
+            .iter()
+            .map(|p| p.2)
+            .fold(f64::INFINITY, f64::min)
+    }
+
+    /// σ(tR)² = J_l² σ_l² + J_s² σ_s² + 2 ρ J_l J_s σ_l σ_s, J by central differences.
+    fn propagate(
+        &self,
+        p: LssParameters,
+        u: ParameterUncertainty,
+        program: &GradientProgram,
+    ) -> Option<f64> {
+        let tr = |lk: f64, s: f64| {
+            gradient_elution(&LssParameters { log_kw: lk, s }, program, &self.system)
+                .ok()
+                .map(|e| e.retention_time_min)
+        };
+        let (hl, hs) = (1e-5, 1e-5 * p.s.abs().max(1.0));
+        let jl = (tr(p.log_kw + hl, p.s)? - tr(p.log_kw - hl, p.s)?) / (2.0 * hl);
+        let js = (tr(p.log_kw, p.s + hs)? - tr(p.log_kw, p.s - hs)?) / (2.0 * hs);
+        let var = jl * jl * u.log_kw * u.log_kw
+            + js * js * u.s * u.s
+            + 2.0 * u.correlation * jl * js * u.log_kw * u.s;
+        (var.is_finite() && var >= 0.0).then(|| var.sqrt())
+    }
+
+    fn prediction(&self, program: &GradientProgram) -> Option<Prediction> {
+        let (score, el) = self.evaluate(program)?;
+        let pairs = self.pair_list(&el);
+        let crit = pairs
+            .iter()
+            .min_by(|a, b| a.2.total_cmp(&b.2))
+            .map(|p| {
+                [
+                    self.analytes[p.0].0.to_string(),
+                    self.analytes[p.1].0.to_string(),
+                ]
+            })
+            .unwrap_or_default();
+        let peaks = Self::sorted(&el, &self.analytes)
+            .into_iter()
+            .map(|x| PredictedPeak {
+                name: self.analytes[x.0].0.to_string(),
+                retention_time_min: x.1,
+                width_base_min: x.2,
+                organic_at_elution_pct: x.3,
+                phase: x.4,
+                retention_time_uncertainty_min: self.uncertainty[x.0]
+                    .and_then(|u| self.propagate(self.analytes[x.0].1, u, program)),
+            })
+            .collect();
+        Some(Prediction {
+            program: program.clone(),
+            peaks,
+            pairs: pairs
+                .iter()
+                .map(|p| PredictedPair {
+                    first: self.analytes[p.0].0.to_string(),
+                    second: self.analytes[p.1].0.to_string(),
+                    resolution: p.2,
+                })
+                .collect(),
+            min_resolution: score.min_rs,
+            critical_pair: crit,
+            run_time_min: score.run,
+        })
+    }
+}
+
+fn check_range(name: &'static str, r: Range, lo: f64, hi: f64) -> Result<(), OptimiseError> {
+    if !r.min.is_finite() || !r.max.is_finite() {
+        return Err(OptimiseError::BadRange {
+            name,
+            min: r.min,
+            max: r.max,
+            reason: "not finite",
+        });
+    }
+    if r.min > r.max {
+        return Err(OptimiseError::BadRange {
+            name,
+            min: r.min,
+            max: r.max,
+            reason: "min is above max",
+        });
+    }
+    if r.min < lo || r.max > hi {
+        return Err(OptimiseError::BadRange {
+            name,
+            min: r.min,
+            max: r.max,
+            reason: if lo == 0.0 && hi == 100.0 {
+                "compositions must lie in 0–100 %"
+            } else {
+                "must be positive"
+            },
+        });
+    }
+    Ok(())
+}
+
+fn linspace(r: Range, n: usize) -> Vec<f64> {
+    if n < 2 || r.max == r.min {
+        return vec![r.min];
+    }
+    (0..n)
+        .map(|i| r.min + (r.max - r.min) * i as f64 / (n - 1) as f64)
+        .collect()
+}
+
+fn steps(r: Range, step: f64) -> Vec<f64> {
+    let mut v = Vec::new();
+    let mut x = r.min;
+    while x < r.max - 1e-9 {
+        v.push(x);
+        x += step;
+    }
+    v.push(r.max);
+    v
+}
+
+/// Linear program, or None when the composition would not rise.
+fn linear(initial: f64, final_: f64, tg: f64) -> Option<GradientProgram> {
+    if final_ <= initial || tg <= 0.0 {
+        return None;
+    }
+    GradientProgram::linear(initial, final_, tg).ok()
+}
+
+fn two_segment(
+    initial: f64,
+    knee_frac_t: f64,
+    knee_pct: f64,
+    final_: f64,
+    tg: f64,
+) -> Option<GradientProgram> {
+    let tk = tg * knee_frac_t;
+    if !(initial <= knee_pct && knee_pct <= final_ && final_ > initial && tk > 0.0 && tk < tg) {
+        return None;
+    }
+    GradientProgram::from_points(&[
+        GradientPoint {
+            time_min: 0.0,
+            organic_pct: initial,
+        },
+        GradientPoint {
+            time_min: tk,
+            organic_pct: knee_pct,
+        },
+        GradientPoint {
+            time_min: tg,
+            organic_pct: final_,
+        },
+    ])
+    .ok()
+}
+
+/// Optimises a gradient for the analytes of the request.
+///
+/// # Errors
+/// Fewer than 2 analytes, invalid ranges, unknown critical-pair names, invalid plate source or
+/// times, or no feasible condition.
+pub fn optimise(req: &OptimiseRequest) -> Result<OptimiseReport, OptimiseError> {
+    if req.analytes.len() < 2 {
+        return Err(OptimiseError::TooFewAnalytes {
+            count: req.analytes.len(),
+        });
+    }
+    for (i, a) in req.analytes.iter().enumerate() {
+        if req.analytes[..i].iter().any(|b| b.name == a.name) {
+            return Err(OptimiseError::DuplicateAnalyte {
+                name: a.name.clone(),
+            });
+        }
+        theory::finite("log kw", a.log_kw)?;
+        theory::finite("S", a.s)?;
+    }
+    theory::positive("dead time (min)", req.dead_time_min)?;
+    theory::non_negative("dwell time (min)", req.dwell_time_min)?;
+    theory::positive("maximum run time (min)", req.max_run_time_min)?;
+    theory::positive("composition grid step (%)", req.composition_step_pct)?;
+    // Bound the grid so a typo cannot make the search run for hours.
+    if !(0.1..=50.0).contains(&req.composition_step_pct) {
+        return Err(OptimiseError::BadGridSetting {
+            name: "composition_step_pct",
+            value: req.composition_step_pct,
+            min: 0.1,
+            max: 50.0,
+        });
+    }
+    if !(2..=500).contains(&req.gradient_time_steps) {
+        return Err(OptimiseError::BadGridSetting {
+            name: "gradient_time_steps",
+            value: req.gradient_time_steps as f64,
+            min: 2.0,
+            max: 500.0,
+        });
+    }
+    theory::non_negative("target resolution", req.target_resolution)?;
+    check_range(
+        "gradient_time_min",
+        req.gradient_time_min,
+        f64::MIN_POSITIVE,
+        f64::MAX,
+    )?;
+    check_range("initial_pct", req.initial_pct, 0.0, 100.0)?;
+    check_range("final_pct", req.final_pct, 0.0, 100.0)?;
+    if req.final_pct.max <= req.initial_pct.min {
+        return Err(OptimiseError::BadRange {
+            name: "final_pct",
+            min: req.final_pct.min,
+            max: req.final_pct.max,
+            reason: "final % organic must be able to exceed the initial %",
+        });
+    }
+    let plates = req.plates.plates()?;
+    let names: Vec<&str> = req.analytes.iter().map(|a| a.name.as_str()).collect();
+    let mut pairs = Vec::new();
+    for [a, b] in &req.critical_pairs {
+        if a == b {
+            return Err(OptimiseError::CriticalPairSameAnalyte { name: a.clone() });
+        }
+        let find = |n: &String| {
+            names
+                .iter()
+                .position(|x| x == n)
+                .ok_or_else(|| OptimiseError::UnknownAnalyte {
+                    name: n.clone(),
+                    available: names.join(", "),
+                })
+        };
+        pairs.push((find(a)?, find(b)?));
+    }
+    let ctx = Ctx {
+        analytes: req
+            .analytes
+            .iter()
+            .map(|a| {
+                (
+                    a.name.as_str(),
+                    LssParameters {
+                        log_kw: a.log_kw,
+                        s: a.s,
+                    },
+                )
+            })
+            .collect(),
+        uncertainty: req.analytes.iter().map(|a| a.uncertainty).collect(),
+        system: GradientSystem {
+            dead_time_min: req.dead_time_min,
+            dwell_time_min: req.dwell_time_min,
+        },
+        plates,
+        pairs,
+        max_run: req.max_run_time_min,
+    };
+    let mut evaluated = 0usize;
+    let mut eval = |p: &GradientProgram| -> Option<Score> {
+        evaluated += 1;
+        ctx.evaluate(p).map(|x| x.0)
+    };
+    // Grid over linear gradients.
+    let tgs = linspace(req.gradient_time_min, req.gradient_time_steps.max(2));
+    let inits = steps(req.initial_pct, req.composition_step_pct);
+    let finals = steps(req.final_pct, req.composition_step_pct);
+    let mut grid: Vec<(Score, [f64; 3])> = Vec::new();
+    for &tg in &tgs {
+        for &i in &inits {
+            for &f in &finals {
+                if let Some(p) = linear(i, f, tg)
+                    && let Some(s) = eval(&p)
+                {
+                    grid.push((s, [tg, i, f]));
+                }
+            }
+        }
+    }
+    // Best few grid points (stable order: grid order breaks ties).
+    let mut order: Vec<usize> = (0..grid.len()).collect();
+    order.sort_by(|&a, &b| {
+        if grid[a].0.better_than(&grid[b].0) {
+            std::cmp::Ordering::Less
+        } else if grid[b].0.better_than(&grid[a].0) {
+            std::cmp::Ordering::Greater
+        } else {
+            a.cmp(&b)
+        }
+    });
+    if order.is_empty() || !grid[order[0]].0.feasible {
+        return Err(OptimiseError::NoFeasibleCondition {
+            max_run_time_min: req.max_run_time_min,
+        });
+    }
+    let lo = [
+        req.gradient_time_min.min,
+        req.initial_pct.min,
+        req.final_pct.min,
+    ];
+    let hi = [
+        req.gradient_time_min.max,
+        req.initial_pct.max,
+        req.final_pct.max,
+    ];
+    let init_step = [
+        ((hi[0] - lo[0]) / (tgs.len().max(2) - 1) as f64).max(1e-3),
+        req.composition_step_pct,
+        req.composition_step_pct,
+    ];
+    let mut best_lin: Option<(Score, [f64; 3])> = None;
+    for &gi in order.iter().take(5) {
+        let (mut s, mut x) = grid[gi];
+        if !s.feasible {
+            continue;
+        }
+        let mut step = init_step;
+        for _ in 0..200 {
+            let mut moved = false;
+            for d in 0..3 {
+                for sign in [1.0, -1.0] {
+                    let mut y = x;
+                    y[d] = (y[d] + sign * step[d]).clamp(lo[d], hi[d]);
+                    if y == x {
+                        continue;
+                    }
+                    if let Some(p) = linear(y[1], y[2], y[0])
+                        && let Some(sy) = eval(&p)
+                        && sy.better_than(&s)
+                    {
+                        s = sy;
+                        x = y;
+                        moved = true;
+                    }
+                }
+            }
+            if !moved {
+                step.iter_mut().for_each(|v| *v /= 2.0);
+                if step[0] < 1e-3 && step[1] < 1e-3 {
+                    break;
+                }
+            }
+        }
+        if best_lin.as_ref().is_none_or(|(b, _)| s.better_than(b)) {
+            best_lin = Some((s, x));
+        }
+    }
+    let Some((lin_score, lin_x)) = best_lin else {
+        return Err(OptimiseError::NoFeasibleCondition {
+            max_run_time_min: req.max_run_time_min,
+        });
+    };
+    let mut best_program =
+        linear(lin_x[1], lin_x[2], lin_x[0]).ok_or(OptimiseError::NoFeasibleCondition {
+            max_run_time_min: req.max_run_time_min,
+        })?;
+    let mut knee = None;
+    let mut notes = Vec::new();
+    if req.two_segment {
+        // Knee at fraction u of tG and composition v of the way from start to end.
+        let mut best2: Option<(Score, [f64; 5])> = None;
+        for iu in 1..10 {
+            for iv in 1..10 {
+                let (u, v) = (iu as f64 / 10.0, iv as f64 / 10.0);
+                let x = [lin_x[0], lin_x[1], lin_x[2], u, v];
+                let kp = x[1] + v * (x[2] - x[1]);
+                if let Some(p) = two_segment(x[1], u, kp, x[2], x[0])
+                    && let Some(s) = eval(&p)
+                    && best2.as_ref().is_none_or(|(b, _)| s.better_than(b))
+                {
+                    best2 = Some((s, x));
+                }
+            }
+        }
+        if let Some((mut s, mut x)) = best2 {
+            let lo5 = [lo[0], lo[1], lo[2], 0.02, 0.0];
+            let hi5 = [hi[0], hi[1], hi[2], 0.98, 1.0];
+            let mut step = [init_step[0], init_step[1], init_step[2], 0.05, 0.05];
+            for _ in 0..300 {
+                let mut moved = false;
+                for d in 0..5 {
+                    for sign in [1.0, -1.0] {
+                        let mut y = x;
+                        y[d] = (y[d] + sign * step[d]).clamp(lo5[d], hi5[d]);
+                        if y == x {
+                            continue;
+                        }
+                        let kp = y[1] + y[4] * (y[2] - y[1]);
+                        if let Some(p) = two_segment(y[1], y[3], kp, y[2], y[0])
+                            && let Some(sy) = eval(&p)
+                            && sy.better_than(&s)
+                        {
+                            s = sy;
+                            x = y;
+                            moved = true;
+                        }
+                    }
+                }
+                if !moved {
+                    step.iter_mut().for_each(|v| *v /= 2.0);
+                    if step[0] < 1e-3 && step[3] < 1e-4 {
+                        break;
+                    }
+                }
+            }
+            // Keep the two-segment gradient only if clearly better (0.01 in Rs), since it is
+            // harder to transfer and to run.
+            if s.feasible && s.min_rs > lin_score.min_rs + 0.01 {
+                let kp = x[1] + x[4] * (x[2] - x[1]);
+                if let Some(p) = two_segment(x[1], x[3], kp, x[2], x[0]) {
+                    knee = Some(GradientPoint {
+                        time_min: x[0] * x[3],
+                        organic_pct: kp,
+                    });
+                    best_program = p;
+                    notes.push(format!(
+                        "two-segment gradient improves the smallest resolution from {:.2} to {:.2}",
+                        lin_score.min_rs, s.min_rs
+                    ));
+                }
+            } else {
+                notes.push("a two-segment gradient gave no clear gain over one linear ramp".into());
+            }
+        }
+    }
+    let optimum = ctx
+        .prediction(&best_program)
+        .ok_or(OptimiseError::NoFeasibleCondition {
+            max_run_time_min: req.max_run_time_min,
+        })?;
+    let (tg, ip, fp) = match knee {
+        Some(_) => {
+            let pts = best_program.points();
+            (pts[2].time_min, pts[0].organic_pct, pts[2].organic_pct)
+        }
+        None => (lin_x[0], lin_x[1], lin_x[2]),
+    };
+    let rounded_points: Vec<GradientPoint> = best_program
+        .points()
+        .iter()
+        .map(|p| GradientPoint {
+            time_min: (p.time_min * 10.0).round() / 10.0,
+            organic_pct: (p.organic_pct * 10.0).round() / 10.0,
+        })
+        .collect();
+    let rounded = GradientProgram::from_points(&rounded_points)
+        .ok()
+        .and_then(|p| ctx.prediction(&p))
+        .filter(|p| p.run_time_min <= req.max_run_time_min);
+    // Window diagram at the optimum's start and end compositions (linear ramps).
+    let mut points = Vec::new();
+    for tgw in linspace(req.gradient_time_min, 60) {
+        if let Some(p) = linear(ip, fp, tgw)
+            && let Some(pr) = ctx.prediction(&p)
+        {
+            points.push(WindowPoint {
+                gradient_time_min: tgw,
+                min_resolution: pr.min_resolution,
+                critical_pair: pr.critical_pair,
+                run_time_min: pr.run_time_min,
+                within_run_time: pr.run_time_min <= req.max_run_time_min,
+            });
+        }
+    }
+    if optimum
+        .peaks
+        .iter()
+        .any(|p| p.phase == ElutionPhase::AfterGradient)
+    {
+        notes.push("some analytes elute after the ramp ends (in the final hold)".into());
+    }
+    if optimum
+        .peaks
+        .iter()
+        .any(|p| p.phase == ElutionPhase::BeforeGradient)
+    {
+        notes.push("some analytes elute before the gradient reaches them (during dwell)".into());
+    }
+    notes.push(format!(
+        "widths from N = {plates:.0} with w = 4 t0 (1 + k_e)/√N (band compression ignored); \
+         verify with a confirming run"
+    ));
+    Ok(OptimiseReport {
+        plates_used: plates,
+        gradient_time_min: tg,
+        initial_pct: ip,
+        final_pct: fp,
+        knee,
+        meets_target: optimum.min_resolution >= req.target_resolution,
+        best_linear_min_resolution: lin_score.min_rs,
+        optimum,
+        rounded,
+        window: WindowDiagram {
+            initial_pct: ip,
+            final_pct: fp,
+            target_resolution: req.target_resolution,
+            optimum_gradient_time_min: tg,
+            points,
+        },
+        evaluated_conditions: evaluated,
+        notes,
+    })
+}
+
+fn esc(s: &str) -> String {
+    s.replace('&', "&amp;")
+        .replace('<', "&lt;")
+        .replace('>', "&gt;")
+        .replace('"', "&quot;")
+}
+
+fn nice_step(range: f64) -> f64 {
+    let raw = range / 5.0;
+    let mag = 10f64.powf(raw.log10().floor());
+    let n = raw / mag;
+    let m = if n < 1.5 {
+        1.0
+    } else if n < 3.5 {
+        2.0
+    } else if n < 7.5 {
+        5.0
+    } else {
+        10.0
+    };
+    m * mag
+}
+
+/// Renders the window diagram as a standalone SVG: a polyline of smallest resolution versus
+/// gradient time, axis labels with units, a dashed target line labelled in text, the optimum
+/// marked with a labelled vertical line, and points beyond the maximum run time drawn as open
+/// circles (explained in a text legend), so no meaning depends on colour.
+pub fn render_window_svg(diagram: &WindowDiagram) -> String {
+    let (w, h) = (640.0, 400.0);
+    let (ml, mr, mt, mb) = (70.0, 20.0, 40.0, 60.0);
+    let pw = w - ml - mr;
+    let ph = h - mt - mb;
+    let pts = &diagram.points;
+    let (x0, x1) = pts
+        .iter()
+        .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), p| {
+            (a.min(p.gradient_time_min), b.max(p.gradient_time_min))
+        });
+    let (x0, x1) = if x0.is_finite() && x1 > x0 {
+        (x0, x1)
+    } else {
+        (0.0, 1.0)
+    };
+    let ymax = pts
+        .iter()
+        .map(|p| p.min_resolution)
+        .filter(|v| v.is_finite())
+        .fold(diagram.target_resolution, f64::max)
+        .max(0.5)
+        * 1.1;
+    let sx = |x: f64| ml + (x - x0) / (x1 - x0) * pw;
+    let sy = |y: f64| mt + ph - (y.clamp(0.0, ymax) / ymax) * ph;
+    let mut s = String::new();
+    s.push_str(&format!(
+        "<svg xmlns=\"http://www.w3.org/2000/svg\" width=\"{w}\" height=\"{h}\" viewBox=\"0 0 {w} {h}\" font-family=\"sans-serif\" font-size=\"12\">\n"
+    ));
+    s.push_str(&format!(
+        "<title>Window diagram: smallest resolution versus gradient time ({:.0}–{:.0} % organic)</title>\n",
+        diagram.initial_pct, diagram.final_pct
+    ));
+    s.push_str("<rect width=\"100%\" height=\"100%\" fill=\"white\"/>\n");
+    // Axes.
+    s.push_str(&format!(
+        "<line x1=\"{ml}\" y1=\"{}\" x2=\"{}\" y2=\"{}\" stroke=\"black\"/>\n<line x1=\"{ml}\" y1=\"{mt}\" x2=\"{ml}\" y2=\"{}\" stroke=\"black\"/>\n",
+        mt + ph, ml + pw, mt + ph, mt + ph
+    ));
+    let xs = nice_step(x1 - x0);
+    let mut t = (x0 / xs).ceil() * xs;
+    while t <= x1 + 1e-9 {
+        let x = sx(t);
+        s.push_str(&format!(
+            "<line x1=\"{x:.1}\" y1=\"{}\" x2=\"{x:.1}\" y2=\"{}\" stroke=\"black\"/><text x=\"{x:.1}\" y=\"{}\" text-anchor=\"middle\">{}</text>\n",
+            mt + ph, mt + ph + 5.0, mt + ph + 18.0, fmt_tick(t)
+        ));
+        t += xs;
+    }
+    let ys = nice_step(ymax);
+    let mut t = 0.0;
+    while t <= ymax + 1e-9 {
+        let y = sy(t);
+        s.push_str(&format!(
+            "<line x1=\"{}\" y1=\"{y:.1}\" x2=\"{ml}\" y2=\"{y:.1}\" stroke=\"black\"/><text x=\"{}\" y=\"{:.1}\" text-anchor=\"end\">{}</text>\n",
+            ml - 5.0, ml - 8.0, y + 4.0, fmt_tick(t)
+        ));
+        t += ys;
+    }
+    s.push_str(&format!(
+        "<text x=\"{:.1}\" y=\"{}\" text-anchor=\"middle\">Gradient time tG (min)</text>\n",
+        ml + pw / 2.0,
+        h - 15.0
+    ));
+    s.push_str(&format!(
+        "<text x=\"18\" y=\"{:.1}\" text-anchor=\"middle\" transform=\"rotate(-90 18 {:.1})\">Smallest resolution Rs (dimensionless)</text>\n",
+        mt + ph / 2.0,
+        mt + ph / 2.0
+    ));
+    s.push_str(&format!(
+        "<text x=\"{ml}\" y=\"20\">Window diagram, {:.1}–{:.1} % organic; open circles: beyond the maximum run time</text>\n",
+        diagram.initial_pct, diagram.final_pct
+    ));
+    // Target line.
+    let yt = sy(diagram.target_resolution);
+    s.push_str(&format!(
+        "<line x1=\"{ml}\" y1=\"{yt:.1}\" x2=\"{}\" y2=\"{yt:.1}\" stroke=\"black\" stroke-dasharray=\"6 4\"/><text x=\"{}\" y=\"{:.1}\" text-anchor=\"end\">target Rs = {}</text>\n",
+        ml + pw, ml + pw - 4.0, yt - 4.0, diagram.target_resolution
+    ));
+    // Series.
+    let poly: Vec<String> = pts
+        .iter()
+        .filter(|p| p.min_resolution.is_finite())
+        .map(|p| format!("{:.1},{:.1}", sx(p.gradient_time_min), sy(p.min_resolution)))
+        .collect();
+    s.push_str(&format!(
+        "<polyline fill=\"none\" stroke=\"black\" stroke-width=\"1.5\" points=\"{}\"/>\n",
+        poly.join(" ")
+    ));
+    for p in pts
+        .iter()
+        .filter(|p| !p.within_run_time && p.min_resolution.is_finite())
+    {
+        s.push_str(&format!(
+            "<circle cx=\"{:.1}\" cy=\"{:.1}\" r=\"3\" fill=\"white\" stroke=\"black\"/>\n",
+            sx(p.gradient_time_min),
+            sy(p.min_resolution)
+        ));
+    }
+    let xo = sx(diagram.optimum_gradient_time_min.clamp(x0, x1));
+    // Put the label on the side of the line with room for it.
+    let (lx, anchor) = if xo > ml + 0.6 * pw {
+        (xo - 4.0, "end")
+    } else {
+        (xo + 4.0, "start")
+    };
+    s.push_str(&format!(
+        "<line x1=\"{xo:.1}\" y1=\"{mt}\" x2=\"{xo:.1}\" y2=\"{}\" stroke=\"black\" stroke-dasharray=\"2 3\"/><text x=\"{lx:.1}\" y=\"{}\" text-anchor=\"{anchor}\">optimum tG = {:.2} min</text>\n",
+        mt + ph,
+        mt + 12.0,
+        diagram.optimum_gradient_time_min
+    ));
+    s.push_str(&format!("<desc>{}</desc>\n", esc("generated by phasewise")));
+    s.push_str("</svg>\n");
+    s
+}
+
+fn fmt_tick(v: f64) -> String {
+    if (v - v.round()).abs() < 1e-9 {
+        format!("{}", v.round())
+    } else {
+        format!("{v:.2}")
+            .trim_end_matches('0')
+            .trim_end_matches('.')
+            .to_string()
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    // Invented analytes, chosen so that two of them cross over as tG changes.
+    fn analytes() -> Vec<NamedAnalyte> {
+        [
+            ("inv-a", 2.0, 3.0),
+            ("inv-b", 2.9, 4.4),
+            ("inv-c", 3.1, 4.0),
+            ("inv-d", 4.0, 5.0),
+        ]
+        .iter()
+        .map(|(n, lk, s)| NamedAnalyte {
+            name: n.to_string(),
+            log_kw: *lk,
+            s: *s,
+            uncertainty: None,
+        })
+        .collect()
+    }
+
+    fn request() -> OptimiseRequest {
+        OptimiseRequest {
+            analytes: analytes(),
+            dead_time_min: 1.0,
+            dwell_time_min: 0.5,
+            plates: PlateSource::Given { plates: 10_000.0 },
+            gradient_time_min: Range {
+                min: 5.0,
+                max: 40.0,
+            },
+            initial_pct: Range {
+                min: 5.0,
+                max: 30.0,
+            },
+            final_pct: Range {
+                min: 60.0,
+                max: 100.0,
+            },
+            max_run_time_min: 45.0,
+            critical_pairs: vec![],
+            two_segment: false,
+            target_resolution: 1.5,
+            gradient_time_steps: 12,
+            composition_step_pct: 5.0,
+        }
+    }
+
+    #[test]
+    fn optimum_is_no_worse_than_any_window_point_and_grid() {
+        let r = optimise(&request()).unwrap();
+        for p in &r.window.points {
+            if p.within_run_time {
+                assert!(r.optimum.min_resolution >= p.min_resolution - 1e-9);
+            }
+        }
+        assert!(r.optimum.run_time_min <= 45.0);
+        assert_eq!(r.optimum.peaks.len(), 4);
+        assert_eq!(r.optimum.pairs.len(), 3);
+        // The rounded program (0.1 min, 0.1 %) stays within 2 % of the optimum's resolution.
+        let rounded = r.rounded.as_ref().unwrap();
+        assert!((rounded.min_resolution / r.optimum.min_resolution - 1.0).abs() < 0.02);
+        // Brute force check on a finer grid (self-consistency): no point beats the optimum by more
+        // than the refinement tolerance.
+        let ctx_best = r.optimum.min_resolution;
+        for tg in [5.0, 10.0, 20.0, 30.0, 40.0] {
+            for i in [5.0, 15.0, 30.0] {
+                for f in [60.0, 80.0, 100.0] {
+                    let p = GradientProgram::linear(i, f, tg).unwrap();
+                    let sys = GradientSystem {
+                        dead_time_min: 1.0,
+                        dwell_time_min: 0.5,
+                    };
+                    let mut el: Vec<(f64, f64)> = analytes()
+                        .iter()
+                        .map(|a| {
+                            let e = gradient_elution(
+                                &LssParameters {
+                                    log_kw: a.log_kw,
+                                    s: a.s,
+                                },
+                                &p,
+                                &sys,
+                            )
+                            .unwrap();
+                            (
+                                e.retention_time_min,
+                                4.0 * (1.0 + e.retention_factor_at_elution) / 100.0,
+                            )
+                        })
+                        .collect();
+                    el.sort_by(|a, b| a.0.total_cmp(&b.0));
+                    if el.last().unwrap().0 > 45.0 {
+                        continue;
+                    }
+                    let m = el
+                        .windows(2)
+                        .map(|w| 2.0 * (w[1].0 - w[0].0) / (w[0].1 + w[1].1))
+                        .fold(f64::INFINITY, f64::min);
+                    assert!(m <= ctx_best + 1e-6, "tg {tg} {i}-{f}: {m} > {ctx_best}");
+                }
+            }
+        }
+    }
+
+    #[test]
+    fn critical_pair_and_two_segment() {
+        let mut q = request();
+        q.critical_pairs = vec![["inv-b".into(), "inv-c".into()]];
+        q.two_segment = true;
+        let r = optimise(&q).unwrap();
+        assert_eq!(r.optimum.pairs.len(), 1);
+        let mut names = r.optimum.critical_pair.clone();
+        names.sort();
+        assert_eq!(names, ["inv-b".to_string(), "inv-c".to_string()]);
+        assert!(r.optimum.min_resolution >= r.best_linear_min_resolution - 1e-9);
+    }
+
+    #[test]
+    fn bad_ranges_and_names_are_errors() {
+        let mut q = request();
+        q.initial_pct = Range {
+            min: 5.0,
+            max: 130.0,
+        };
+        assert!(optimise(&q).unwrap_err().to_string().contains("130"));
+        let mut q = request();
+        q.critical_pairs = vec![["inv-a".into(), "nope".into()]];
+        assert!(optimise(&q).unwrap_err().to_string().contains("nope"));
+        let mut q = request();
+        q.max_run_time_min = 1.2;
+        assert!(matches!(
+            optimise(&q),
+            Err(OptimiseError::NoFeasibleCondition { .. })
+        ));
+        let mut q = request();
+        q.gradient_time_min = Range {
+            min: -5.0,
+            max: 10.0,
+        };
+        assert!(optimise(&q).is_err());
+    }
+
+    #[test]
+    fn svg_has_axes_labels_and_polyline() {
+        let r = optimise(&request()).unwrap();
+        let svg = render_window_svg(&r.window);
+        assert!(svg.starts_with("<svg"));
+        assert!(svg.contains("Gradient time tG (min)"));
+        assert!(svg.contains("Smallest resolution Rs"));
+        assert!(svg.contains("<polyline"));
+        assert!(svg.contains("target Rs = 1.5"));
+        assert_eq!(svg.matches("<svg").count(), 1);
+        assert!(svg.trim_end().ends_with("</svg>"));
+    }
+}

@@ -1,0 +1,281 @@
+//! The `advise` report model: the JSON schema of `phasewise advise --format json` (documented
+//! field by field in `docs/json-schema.md`, versioned by [`super::SCHEMA_VERSION`]) and the
+//! input of the method-plan renderers.
+
+use serde::{Deserialize, Serialize};
+
+use crate::kb::resolve::Unresolved;
+use crate::property::Property;
+
+/// Everything `advise` found, best recommendation first.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct AdviceReport {
+    /// JSON schema version.
+    pub schema_version: u32,
+    /// phasewise version that wrote the report.
+    pub phasewise_version: String,
+    /// The resolved analytes with the properties that drove the decision.
+    pub analytes: Vec<AnalyteSummary>,
+    /// Queries that did not resolve, with suggestions.
+    pub unresolved: Vec<Unresolved>,
+    /// Recommendations, best first (`rank` 1 is the recommendation).
+    pub recommendations: Vec<Recommendation>,
+    /// The orthogonal back-up to the first recommendation, if one was found.
+    pub backup: Option<Backup>,
+    /// Modes considered and how each scored for the list as a whole.
+    pub mode_scores: Vec<ModeScore>,
+    /// Non-fatal problems (estimated properties used for decisions, analytes the models could
+    /// not predict, etc.).
+    pub warnings: Vec<String>,
+    /// Safety notes that apply to the recommended conditions.
+    pub cautions: Vec<Caution>,
+}
+
+/// One analyte as the advisor saw it.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct AnalyteSummary {
+    /// What the user typed.
+    pub query: String,
+    /// Preferred name.
+    pub name: String,
+    /// InChIKey, when known.
+    pub inchikey: Option<String>,
+    /// SMILES used for structure-based estimates.
+    pub smiles: Option<String>,
+    /// Properties with value, unit, kind and source (experimental or estimated), including
+    /// the estimates computed from structure for this run (logP, pKa sites, boiling point,
+    /// TPSA, charge) and logD at the recommended pH.
+    pub properties: Vec<Property>,
+    /// Ionisation at the recommended pH, when the first recommendation is an LC mode.
+    pub ionisation: Option<IonisationSummary>,
+    /// GC verdict: `suitable`, `suitable after derivatisation` or `unsuitable`, with reasons.
+    pub gc_suitability: String,
+    /// Reasons behind the GC verdict.
+    pub gc_reasons: Vec<String>,
+}
+
+/// Charge state at a pH.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct IonisationSummary {
+    /// pH.
+    pub ph: f64,
+    /// Mean net charge (elementary charges).
+    pub net_charge_e: f64,
+    /// Fraction in the neutral form, 0–1.
+    pub fraction_neutral: f64,
+    /// Label: `neutral`, `cationic`, `anionic`, `zwitterionic`, `permanently charged`.
+    pub charge_state: String,
+    /// logD at this pH (estimated unless stated otherwise in `properties`).
+    pub log_d: Option<f64>,
+    /// True when a pKa lies within 1.5 units of the pH (peak shape and retention sensitive to
+    /// small pH changes).
+    pub near_pka: bool,
+}
+
+/// How a separation mode scored for the whole list.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct ModeScore {
+    /// Mode: `gc`, `rp`, `hilic`, `ic-anion`, `ic-cation`, `ion-exclusion`.
+    pub mode: String,
+    /// Score 0–1 for the list as a whole (mean of the per-analyte fit).
+    pub score: f64,
+    /// Analytes that fit the mode.
+    pub fitting: usize,
+    /// Analytes that do not, with the reason.
+    pub not_fitting: Vec<Excluded>,
+}
+
+/// An analyte left out of a recommendation, and what would serve it.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Excluded {
+    /// Analyte name.
+    pub analyte: String,
+    /// Why it does not fit.
+    pub reason: String,
+    /// The mode that would serve it.
+    pub better_mode: Option<String>,
+}
+
+/// One recommended method.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Recommendation {
+    /// 1 = first choice.
+    pub rank: u32,
+    /// Separation mode (see [`ModeScore::mode`]).
+    pub mode: String,
+    /// Stationary phase.
+    pub phase: PhaseRef,
+    /// Overall score 0–1 (higher is better).
+    pub score: f64,
+    /// Starting conditions.
+    pub conditions: Conditions,
+    /// Predicted retention of every analyte, in elution order.
+    pub predictions: Vec<PredictionRow>,
+    /// Pairs at risk of co-elution, most likely first.
+    pub coelutions: Vec<Coelution>,
+    /// Why this phase and these conditions: each reason names its rule or model number.
+    pub reasons: Vec<Reason>,
+    /// Analytes outside this mode, with why and what would serve them.
+    pub excluded: Vec<Excluded>,
+    /// Predicted minimum resolution over adjacent pairs (dimensionless).
+    pub critical_resolution: Option<f64>,
+    /// The critical pair (names).
+    pub critical_pair: Option<(String, String)>,
+}
+
+/// A stationary phase as shown in reports.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct PhaseRef {
+    /// Catalogue id (e.g. `rp-c18`).
+    pub id: String,
+    /// Generic name.
+    pub name: String,
+    /// Chemistry description.
+    pub chemistry: String,
+}
+
+/// A reason behind a score.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Reason {
+    /// Rule id (e.g. `rule:pi-rich-analytes`) or model id (e.g. `model:lc-regression`).
+    pub source: String,
+    /// Plain sentence.
+    pub text: String,
+    /// Contribution to the score (positive helps), if the reason moved it.
+    pub weight: Option<f64>,
+}
+
+/// One gradient or oven-program step.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct ProgramStep {
+    /// Time from injection, min.
+    pub time_min: f64,
+    /// % organic (LC), eluent concentration in mM (IC), or oven temperature in °C (GC).
+    pub value: f64,
+}
+
+/// Starting conditions. Fields that do not apply to the mode are `None`.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Conditions {
+    /// Column length, mm.
+    pub column_length_mm: f64,
+    /// Column inner diameter, mm.
+    pub column_id_mm: f64,
+    /// Particle size (LC), µm.
+    pub particle_um: Option<f64>,
+    /// Film thickness (GC), µm.
+    pub film_um: Option<f64>,
+    /// Mobile phase A (LC: aqueous with buffer; IC: eluent).
+    pub mobile_phase_a: Option<String>,
+    /// Mobile phase B (LC: organic modifier).
+    pub mobile_phase_b: Option<String>,
+    /// Organic modifier id (`acetonitrile`, `methanol`).
+    pub modifier: Option<String>,
+    /// Aqueous pH (LC).
+    pub ph: Option<f64>,
+    /// Buffer or additive, with concentration.
+    pub buffer: Option<String>,
+    /// How to prepare the buffer.
+    pub buffer_preparation: Option<String>,
+    /// Gradient (% organic), eluent or oven program.
+    pub program: Vec<ProgramStep>,
+    /// What `program` values are: `% organic`, `mM eluent`, `°C`.
+    pub program_unit: String,
+    /// Flow, mL/min (LC, IC) or carrier linear velocity in cm/s (GC, see `carrier_gas`).
+    pub flow_ml_min: Option<f64>,
+    /// Column temperature, °C (LC, IC).
+    pub temperature_c: Option<f64>,
+    /// Carrier gas (GC).
+    pub carrier_gas: Option<String>,
+    /// Carrier linear velocity, cm/s (GC).
+    pub linear_velocity_cm_s: Option<f64>,
+    /// Inlet mode (GC): split, splitless, headspace.
+    pub inlet: Option<String>,
+    /// Derivatisation advice (GC).
+    pub derivatisation: Option<String>,
+    /// Suppression (IC).
+    pub suppression: Option<String>,
+    /// Injection volume guidance.
+    pub injection: String,
+    /// Detector and its settings.
+    pub detection: String,
+    /// Column dead time, min.
+    pub dead_time_min: f64,
+    /// Estimated plate number of the column (dimensionless).
+    pub plate_number: f64,
+    /// Run time, min.
+    pub run_time_min: f64,
+    /// Estimated back pressure, bar (LC), if computed.
+    pub pressure_bar: Option<f64>,
+}
+
+/// Predicted retention of one analyte.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct PredictionRow {
+    /// Analyte name.
+    pub analyte: String,
+    /// Predicted retention time, min.
+    pub retention_time_min: f64,
+    /// Lower end of the prediction interval, min.
+    pub interval_low_min: f64,
+    /// Upper end of the prediction interval, min.
+    pub interval_high_min: f64,
+    /// Coverage of the interval (e.g. 0.9).
+    pub interval_coverage: f64,
+    /// Retention factor at elution (dimensionless).
+    pub retention_factor: f64,
+    /// Predicted peak width at half height, min.
+    pub peak_width_half_min: f64,
+    /// Which path predicted it (`memory`, `descriptor`, `retention-index`, `ion-table`, ...).
+    pub path: String,
+    /// Retention index (GC) where applicable.
+    pub retention_index: Option<f64>,
+}
+
+/// A pair at risk of co-eluting.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Coelution {
+    /// First analyte (earlier predicted).
+    pub a: String,
+    /// Second analyte.
+    pub b: String,
+    /// Probability 0–1 that the pair is not resolved (resolution below 1.0).
+    pub probability: f64,
+    /// Predicted resolution (dimensionless).
+    pub resolution: f64,
+    /// Why the pair is hard (e.g. positional isomers), if a rule flagged it.
+    pub note: Option<String>,
+}
+
+/// The orthogonal back-up.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Backup {
+    /// The back-up recommendation (full detail, `rank` 0).
+    pub recommendation: Recommendation,
+    /// What it changes for the first choice's risky pairs.
+    pub changes: Vec<PairChange>,
+    /// Why it is orthogonal.
+    pub why: String,
+}
+
+/// How a pair's resolution changes on the back-up phase.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct PairChange {
+    /// First analyte.
+    pub a: String,
+    /// Second analyte.
+    pub b: String,
+    /// Resolution on the first choice.
+    pub resolution_first: f64,
+    /// Resolution on the back-up.
+    pub resolution_backup: f64,
+}
+
+/// A safety note.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Caution {
+    /// Topic: `solvent`, `pressure`, `ph`, `gas`, `general`.
+    pub topic: String,
+    /// The note.
+    pub text: String,
+}

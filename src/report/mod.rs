@@ -5,8 +5,10 @@
 //! them, so a report is written in one step and never half-way.
 
 pub mod advice;
+pub mod chromatogram;
 pub mod describe;
 pub mod lookup;
+pub mod plan;
 pub mod table;
 
 use serde::{Deserialize, Serialize};

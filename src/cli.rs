@@ -31,6 +31,17 @@ pub enum Command {
         after_help = "Example:\n  phasewise lookup caffeine 58-08-2 'CC(=O)Oc1ccccc1C(=O)O'\n  printf 'toluene\\nphenol\\n' | phasewise lookup --format json"
     )]
     Lookup(LookupArgs),
+    /// Recommend separation mode, stationary phase, starting conditions, co-elution risks and
+    /// an orthogonal back-up for a list of analytes.
+    #[command(
+        after_help = "Example:\n  phasewise advise caffeine theobromine theophylline paraxanthine --detector uv:273\n  phasewise advise --input panel.txt --detector ms --format json"
+    )]
+    Advise(AdviseArgs),
+    /// Write a reviewable method-development plan (HTML or Markdown) for a list of analytes.
+    #[command(
+        after_help = "Example:\n  phasewise plan toluene ethylbenzene p-xylene m-xylene o-xylene --output plan.html"
+    )]
+    Plan(PlanArgs),
     /// Compute descriptors, ionisable sites, boiling point and GC suitability from SMILES
     /// (arguments, `--input FILE` with `SMILES<TAB>name` lines, or stdin).
     #[command(
@@ -63,6 +74,69 @@ pub struct LookupArgs {
     /// Output format.
     #[arg(long, short, value_enum, default_value_t = OutputFormat::Table)]
     pub format: OutputFormat,
+}
+
+/// Options shared by `advise` and `plan`.
+#[derive(Debug, Args)]
+pub struct AdviseOptions {
+    /// Analytes.
+    #[command(flatten)]
+    pub input: AnalyteInput,
+    /// Detector: uv[:nm] (default uv:220), ms, fluorescence, elsd, fid, ecd, conductivity.
+    #[arg(long, default_value = "uv:220")]
+    pub detector: String,
+    /// LC column as LENGTHxID in mm, e.g. 100x2.1 (default 150x4.6).
+    #[arg(long, value_name = "LxID")]
+    pub column: Option<String>,
+    /// LC particle size, µm (default 3.5).
+    #[arg(long, value_name = "UM")]
+    pub particle: Option<f64>,
+    /// LC flow, mL/min (default scaled from 1.0 mL/min at 4.6 mm).
+    #[arg(long, value_name = "ML_MIN")]
+    pub flow: Option<f64>,
+    /// Dwell volume of the LC system, mL.
+    #[arg(long, value_name = "ML", default_value_t = 0.0)]
+    pub dwell: f64,
+    /// Modes to consider, comma-separated: gc, rp, hilic, ic-anion, ic-cation, ion-exclusion.
+    #[arg(long, value_delimiter = ',')]
+    pub modes: Vec<String>,
+    /// File listing the stationary-phase ids the lab has, one per line (see `docs/phases.md`).
+    #[arg(long, value_name = "FILE")]
+    pub phases_available: Option<PathBuf>,
+    /// Number of recommendations to list.
+    #[arg(long, default_value_t = 3)]
+    pub alternatives: usize,
+    /// List pairs whose co-elution probability is at least this (0-1).
+    #[arg(long, default_value_t = 0.2)]
+    pub risk: f64,
+}
+
+/// `advise` options.
+#[derive(Debug, Args)]
+pub struct AdviseArgs {
+    /// Shared options.
+    #[command(flatten)]
+    pub opts: AdviseOptions,
+    /// Output format (table or json).
+    #[arg(long, short, value_enum, default_value_t = OutputFormat::Table)]
+    pub format: OutputFormat,
+}
+
+/// `plan` options.
+#[derive(Debug, Args)]
+pub struct PlanArgs {
+    /// Shared options.
+    #[command(flatten)]
+    pub opts: AdviseOptions,
+    /// The report file (.html or .md); written atomically.
+    #[arg(long, short, value_name = "FILE")]
+    pub output: PathBuf,
+    /// Report format (default from the file extension).
+    #[arg(long, value_parser = ["html", "md", "markdown"])]
+    pub report_format: Option<String>,
+    /// Add a date line to the report (otherwise output is byte-for-byte reproducible).
+    #[arg(long)]
+    pub date: Option<String>,
 }
 
 /// `describe` options.

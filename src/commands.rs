@@ -169,6 +169,94 @@ pub fn resolve_all(kb: &Kb, queries: &[String]) -> Result<(Vec<Analyte>, Vec<Unr
     Ok((found, missing))
 }
 
+/// Parse `LxID` (mm), e.g. `150x4.6`.
+pub fn parse_column(text: &str) -> Result<(f64, f64)> {
+    let t = text.to_ascii_lowercase().replace(' ', "");
+    let (l, d) = t.split_once(['x', '×']).ok_or_else(|| {
+        anyhow::anyhow!("column `{text}`: expected LENGTHxID in mm, e.g. 150x4.6")
+    })?;
+    let l: f64 = l
+        .trim_end_matches("mm")
+        .parse()
+        .map_err(|_| anyhow::anyhow!("column `{text}`: length `{l}` is not a number"))?;
+    let d: f64 = d
+        .trim_end_matches("mm")
+        .parse()
+        .map_err(|_| anyhow::anyhow!("column `{text}`: inner diameter `{d}` is not a number"))?;
+    if !(l > 0.0 && l.is_finite() && d > 0.0 && d.is_finite()) {
+        bail!("column `{text}`: length and inner diameter must be positive");
+    }
+    Ok((l, d))
+}
+
+fn advise_report(
+    cli: &Cli,
+    o: &crate::cli::AdviseOptions,
+) -> Result<(phasewise::report::advice::AdviceReport, bool)> {
+    use phasewise::advisor::{AdviseRequest, Detector, advise, profile::AnalyteProfile};
+    // cheap checks first, before the knowledge base is opened
+    let detector = Detector::parse(&o.detector).map_err(|e| anyhow::anyhow!(e))?;
+    let column_mm = o.column.as_deref().map(parse_column).transpose()?;
+    for (name, v) in [("--particle", o.particle), ("--flow", o.flow)] {
+        if let Some(v) = v
+            && !(v > 0.0 && v.is_finite())
+        {
+            bail!("{name} {v}: must be a positive number");
+        }
+    }
+    if !(o.dwell >= 0.0 && o.dwell.is_finite()) {
+        bail!("--dwell {}: must be zero or positive", o.dwell);
+    }
+    if !(0.0..=1.0).contains(&o.risk) {
+        bail!("--risk {}: must be between 0 and 1", o.risk);
+    }
+    let mut modes = Vec::new();
+    for m in &o.modes {
+        modes.push(phasewise::phase::PhaseMode::parse(m.trim()).ok_or_else(|| {
+            anyhow::anyhow!(
+                "unknown mode `{m}`; use gc, rp, hilic, ic-anion, ic-cation or ion-exclusion"
+            )
+        })?);
+    }
+    let phases_available = match &o.phases_available {
+        Some(p) => std::fs::read_to_string(p)
+            .with_context(|| format!("reading {}", p.display()))?
+            .lines()
+            .map(|l| l.split('#').next().unwrap_or("").trim().to_string())
+            .filter(|l| !l.is_empty())
+            .collect(),
+        None => Vec::new(),
+    };
+    let queries = read_analytes(&o.input)?;
+    let kb = open_kb(cli)?;
+    let (found, missing) = resolve_all(&kb, &queries)?;
+    let partial = !missing.is_empty();
+    let profiles: Vec<AnalyteProfile> = found.into_iter().map(AnalyteProfile::new).collect();
+    if profiles.is_empty() {
+        bail!(
+            "none of the analytes resolved: {}",
+            missing
+                .iter()
+                .map(|u| format!("`{}` ({})", u.query, u.reason))
+                .collect::<Vec<_>>()
+                .join(", ")
+        );
+    }
+    let req = AdviseRequest {
+        detector,
+        column_mm,
+        particle_um: o.particle,
+        flow_ml_min: o.flow,
+        dwell_ml: o.dwell,
+        modes,
+        phases_available,
+        alternatives: o.alternatives.max(1),
+        risk_threshold: o.risk,
+    };
+    let report = advise(&profiles, missing, &req)?;
+    Ok((report, partial))
+}
+
 /// Run a parsed command line.
 pub fn run(cli: Cli) -> Result<ExitCode> {
     match &cli.command {
@@ -179,6 +267,53 @@ pub fn run(cli: Cli) -> Result<ExitCode> {
             let partial = !missing.is_empty();
             let report = LookupReport::new(found, missing);
             write_out(&report.render(format_of(args.format)))?;
+            Ok(if partial {
+                ExitCode::from(EXIT_PARTIAL)
+            } else {
+                ExitCode::SUCCESS
+            })
+        }
+        Command::Advise(args) => {
+            let (report, partial) = advise_report(&cli, &args.opts)?;
+            let text = match args.format {
+                OutputFormat::Json => format!("{}\n", serde_json::to_string_pretty(&report)?),
+                _ => report.render_table(),
+            };
+            write_out(&text)?;
+            Ok(if partial {
+                ExitCode::from(EXIT_PARTIAL)
+            } else {
+                ExitCode::SUCCESS
+            })
+        }
+        Command::Plan(args) => {
+            // fail before any work when the report cannot be written
+            phasewise::report::plan::check_writable(&args.output)?;
+            let html = match args.report_format.as_deref() {
+                Some("html") => true,
+                Some(_) => false,
+                None => match args.output.extension().and_then(|e| e.to_str()) {
+                    Some("html") | Some("htm") => true,
+                    Some("md") | Some("markdown") => false,
+                    other => bail!(
+                        "cannot tell the report format from the extension {:?} of {}; use .html or .md, or --report-format",
+                        other.unwrap_or(""),
+                        args.output.display()
+                    ),
+                },
+            };
+            let (report, partial) = advise_report(&cli, &args.opts)?;
+            let opts = phasewise::report::plan::PlanOptions {
+                title: "Method development plan".to_string(),
+                date: args.date.clone(),
+            };
+            let text = if html {
+                phasewise::report::plan::render_html(&report, &opts)
+            } else {
+                phasewise::report::plan::render_markdown(&report, &opts)
+            };
+            phasewise::report::plan::write_atomically(&args.output, &text)?;
+            eprintln!("wrote {}", args.output.display());
             Ok(if partial {
                 ExitCode::from(EXIT_PARTIAL)
             } else {

@@ -6,6 +6,7 @@
 //! is a thin layer over this API: the library never prints and never exits.
 #![deny(missing_docs)]
 
+pub mod advisor;
 pub mod kb;
 pub mod measured;
 pub mod model;

@@ -279,3 +279,254 @@ pub struct Caution {
     /// The note.
     pub text: String,
 }
+
+impl AdviceReport {
+    /// Render as aligned text tables (the default output of `advise`).
+    pub fn render_table(&self) -> String {
+        use super::num;
+        use super::table::{printable, render};
+        let mut out = String::new();
+        out.push_str("Modes for the whole list (score 0-1, analytes fitting)\n");
+        let rows: Vec<Vec<String>> = self
+            .mode_scores
+            .iter()
+            .map(|m| {
+                vec![
+                    m.mode.clone(),
+                    num(m.score, 2),
+                    format!("{} of {}", m.fitting, self.analytes.len()),
+                ]
+            })
+            .collect();
+        out.push_str(&render(&["mode", "score", "analytes fitting"], &rows));
+        out.push('\n');
+        for (i, r) in self.recommendations.iter().enumerate() {
+            let label = if i == 0 {
+                "Recommendation"
+            } else {
+                "Alternative"
+            };
+            out.push_str(&format!(
+                "\n{label} {}: {} on {} [{}], score {}\n",
+                r.rank,
+                r.mode,
+                r.phase.name,
+                r.phase.id,
+                num(r.score, 2)
+            ));
+            if i > 0 {
+                continue;
+            }
+            out.push_str(&conditions_text(&r.conditions));
+            out.push_str(&predictions_table(r));
+            for reason in &r.reasons {
+                out.push_str(&format!(
+                    "  - [{}] {}\n",
+                    reason.source,
+                    printable(&reason.text)
+                ));
+            }
+            for e in &r.excluded {
+                out.push_str(&format!(
+                    "  ! {} does not fit {}: {}{}\n",
+                    printable(&e.analyte),
+                    r.mode,
+                    e.reason,
+                    e.better_mode
+                        .as_ref()
+                        .map(|m| format!("; try {m}"))
+                        .unwrap_or_default()
+                ));
+            }
+        }
+        if let Some(b) = &self.backup {
+            let r = &b.recommendation;
+            out.push_str(&format!(
+                "\nOrthogonal back-up: {} on {} [{}], score {} ({})\n",
+                r.mode,
+                r.phase.name,
+                r.phase.id,
+                num(r.score, 2),
+                b.why
+            ));
+            for c in &b.changes {
+                out.push_str(&format!(
+                    "  {} / {}: resolution {} -> {}\n",
+                    printable(&c.a),
+                    printable(&c.b),
+                    num(c.resolution_first, 2),
+                    num(c.resolution_backup, 2)
+                ));
+            }
+        }
+        if !self.unresolved.is_empty() {
+            out.push_str("\nUnresolved (not advised on)\n");
+            for u in &self.unresolved {
+                let s: Vec<&str> = u.suggestions.iter().map(|s| s.compound.as_str()).collect();
+                out.push_str(&format!(
+                    "  {}: {}{}\n",
+                    printable(&u.query),
+                    u.reason,
+                    if s.is_empty() {
+                        String::new()
+                    } else {
+                        format!("; did you mean: {}", s.join(", "))
+                    }
+                ));
+            }
+        }
+        if !self.warnings.is_empty() {
+            out.push_str("\nWarnings\n");
+            for w in &self.warnings {
+                out.push_str(&format!("  - {}\n", printable(w)));
+            }
+        }
+        out.push_str("\nCautions\n");
+        for c in &self.cautions {
+            out.push_str(&format!("  - [{}] {}\n", c.topic, c.text));
+        }
+        out
+    }
+}
+
+fn conditions_text(c: &Conditions) -> String {
+    use super::num;
+    let mut s = String::new();
+    let col = if c.program_unit == "°C" {
+        format!(
+            "{} m x {} mm, film {} µm",
+            num(c.column_length_mm / 1000.0, 1),
+            num(c.column_id_mm, 2),
+            num(c.film_um.unwrap_or(0.0), 2)
+        )
+    } else {
+        format!(
+            "{} x {} mm, {} µm particles",
+            num(c.column_length_mm, 0),
+            num(c.column_id_mm, 1),
+            num(c.particle_um.unwrap_or(0.0), 1)
+        )
+    };
+    s.push_str(&format!("  column: {col}\n"));
+    if let Some(a) = &c.mobile_phase_a {
+        s.push_str(&format!("  mobile phase A: {a}\n"));
+    }
+    if let Some(b) = &c.mobile_phase_b {
+        s.push_str(&format!("  mobile phase B: {b}\n"));
+    }
+    if let Some(p) = &c.buffer_preparation {
+        s.push_str(&format!("  preparation: {p}\n"));
+    }
+    let prog: Vec<String> = c
+        .program
+        .iter()
+        .map(|p| {
+            format!(
+                "{} min {} {}",
+                num(p.time_min, 1),
+                num(p.value, 1),
+                c.program_unit
+            )
+        })
+        .collect();
+    s.push_str(&format!("  program: {}\n", prog.join(" -> ")));
+    if let Some(f) = c.flow_ml_min {
+        s.push_str(&format!("  flow: {} mL/min\n", num(f, 3)));
+    }
+    if let Some(t) = c.temperature_c {
+        s.push_str(&format!("  column temperature: {} °C\n", num(t, 0)));
+    }
+    if let Some(g) = &c.carrier_gas {
+        s.push_str(&format!(
+            "  carrier: {g}, {} cm/s\n",
+            num(c.linear_velocity_cm_s.unwrap_or(0.0), 0)
+        ));
+    }
+    if let Some(i) = &c.inlet {
+        s.push_str(&format!("  inlet: {i}\n"));
+    }
+    if let Some(d) = &c.derivatisation {
+        s.push_str(&format!("  derivatisation: {d}\n"));
+    }
+    if let Some(x) = &c.suppression {
+        s.push_str(&format!("  suppression: {x}\n"));
+    }
+    s.push_str(&format!(
+        "  injection: {}\n  detection: {}\n",
+        c.injection, c.detection
+    ));
+    s.push_str(&format!(
+        "  dead time {} min, estimated plate number {}, run time {} min{}\n",
+        num(c.dead_time_min, 2),
+        num(c.plate_number, 0),
+        num(c.run_time_min, 1),
+        c.pressure_bar
+            .map(|p| format!(", estimated back pressure {} bar", num(p, 0)))
+            .unwrap_or_default()
+    ));
+    s
+}
+
+fn predictions_table(r: &Recommendation) -> String {
+    use super::num;
+    let rows: Vec<Vec<String>> = r
+        .predictions
+        .iter()
+        .map(|p| {
+            vec![
+                p.analyte.clone(),
+                num(p.retention_time_min, 2),
+                format!(
+                    "{}-{}",
+                    num(p.interval_low_min, 2),
+                    num(p.interval_high_min, 2)
+                ),
+                num(p.retention_factor, 2),
+                num(p.peak_width_half_min, 3),
+                p.retention_index.map_or("-".into(), |ri| num(ri, 0)),
+                p.path.clone(),
+            ]
+        })
+        .collect();
+    let mut s = super::table::render(
+        &[
+            "analyte",
+            "tR (min)",
+            "interval (min)",
+            "k",
+            "w½ (min)",
+            "RI",
+            "predicted by",
+        ],
+        &rows,
+    );
+    s.push('\n');
+    if !r.coelutions.is_empty() {
+        let rows: Vec<Vec<String>> = r
+            .coelutions
+            .iter()
+            .map(|c| {
+                vec![
+                    c.a.clone(),
+                    c.b.clone(),
+                    num(c.probability, 2),
+                    num(c.resolution, 2),
+                    c.note.clone().unwrap_or_default(),
+                ]
+            })
+            .collect();
+        s.push_str("Co-elution risks\n");
+        s.push_str(&super::table::render(
+            &[
+                "analyte a",
+                "analyte b",
+                "probability",
+                "resolution",
+                "note",
+            ],
+            &rows,
+        ));
+        s.push('\n');
+    }
+    s
+}

@@ -1,0 +1,315 @@
+//! Gas-chromatography candidates: retention indices from boiling point and structure on each
+//! phase (McReynolds-type constants), an oven program from the predicted index range, times
+//! through the n-alkane ladder, co-elution from the index uncertainty.
+
+use super::profile::AnalyteProfile;
+use super::{AdviseRequest, Detector, coelution, finish_predictions, phase_ref, separation_score};
+use crate::model::gc::{GcColumn, alkane_ladder, predict_retention_index, suggest_oven_program};
+use crate::phase::{Catalogue, StationaryPhase};
+use crate::report::advice::{Conditions, PredictionRow, ProgramStep, Reason, Recommendation};
+use crate::structure::volatility::GcVerdict;
+
+/// Two analytes closer than this in retention index are taken as co-eluting (the GC model's
+/// resolvable difference).
+const DELTA_RI: f64 = 5.0;
+
+fn normal_cdf(x: f64) -> f64 {
+    // Abramowitz & Stegun 7.1.26 approximation of erf (error below 1.5e-7)
+    let t = 1.0 / (1.0 + 0.327_591_1 * x.abs() / std::f64::consts::SQRT_2);
+    let y = 1.0
+        - (((((1.061_405_429 * t - 1.453_152_027) * t) + 1.421_413_741) * t - 0.284_496_736) * t
+            + 0.254_829_592)
+            * t
+            * (-(x * x) / 2.0).exp();
+    if x >= 0.0 {
+        0.5 * (1.0 + y)
+    } else {
+        0.5 * (1.0 - y)
+    }
+}
+
+/// Probability that two analytes predicted `delta` index units apart with 1σ errors s1, s2
+/// are in truth within [`DELTA_RI`]; errors of similar analytes are partly shared (the same
+/// boiling-point and group biases), taken here as correlation 0.75 (assumption, documented).
+pub fn coelution_probability_ri(delta: f64, s1: f64, s2: f64) -> f64 {
+    let sd = (s1 * s1 + s2 * s2 - 2.0 * 0.75 * s1 * s2).max(1.0).sqrt();
+    let d = delta.abs();
+    (normal_cdf((DELTA_RI - d) / sd) - normal_cdf((-DELTA_RI - d) / sd)).clamp(0.0, 1.0)
+}
+
+/// Build the candidate for one GC phase.
+///
+/// # Errors
+/// A reason when the phase cannot be evaluated.
+pub fn candidate(
+    profiles: &[AnalyteProfile],
+    phase: &StationaryPhase,
+    req: &AdviseRequest,
+    _catalogue: &Catalogue,
+) -> Result<Recommendation, String> {
+    let gases = profiles
+        .iter()
+        .all(|p| p.tb_k.is_some_and(|(t, _)| t < 250.0));
+    if phase.id().starts_with("gc-plot") && !gases {
+        return Err("porous-layer phases are for permanent gases and very light analytes".into());
+    }
+    let mut ris = Vec::new();
+    let mut not_predicted = Vec::new();
+    for p in profiles {
+        if p.gc_verdict() == Some(GcVerdict::Unsuitable) || p.permanently_charged() {
+            not_predicted.push(format!("{}: not suitable for GC", p.name()));
+            continue;
+        }
+        let Some(a) = p.gc_analyte() else {
+            not_predicted.push(format!("{}: no boiling point", p.name()));
+            continue;
+        };
+        match predict_retention_index(&a, phase) {
+            Ok(ri) => ris.push((p, ri)),
+            Err(e) => not_predicted.push(format!("{}: {e}", p.name())),
+        }
+    }
+    if ris.is_empty() {
+        return Err(format!(
+            "no analyte could be predicted ({})",
+            not_predicted.join("; ")
+        ));
+    }
+    let volatile = profiles
+        .iter()
+        .all(|p| p.tb_k.is_some_and(|(t, _)| t < 420.0));
+    // thicker film for volatile analytes (common practice, no source)
+    let film = if volatile {
+        1.4
+    } else {
+        phase.gc().map_or(0.25, |g| g.typical_film_um())
+    };
+    let column = GcColumn::new(30.0, if volatile { 0.32 } else { 0.25 }, film, 35.0)
+        .map_err(|e| e.to_string())?;
+    let ri_min = ris
+        .iter()
+        .map(|r| r.1.retention_index)
+        .fold(f64::INFINITY, f64::min);
+    let ri_max = ris
+        .iter()
+        .map(|r| r.1.retention_index)
+        .fold(f64::NEG_INFINITY, f64::max);
+    let oven = suggest_oven_program(ri_min, ri_max, phase, &column).map_err(|e| e.to_string())?;
+    let ladder = alkane_ladder(phase, &column, &oven.program).map_err(|e| e.to_string())?;
+    // plate number of an open tube: N ≈ L / h with h ≈ column diameter (Golay optimum, rule of
+    // thumb)
+    let n_plates = 30.0e3 / column.inner_diameter_mm();
+    let mut preds = Vec::new();
+    let mut sig = Vec::new();
+    for (p, ri) in &ris {
+        let Ok(t) = ladder.predict_time(ri.clone()) else {
+            not_predicted.push(format!("{}: outside the alkane ladder", p.name()));
+            continue;
+        };
+        let w_half = 2.355 * t.retention_time_min.max(0.5) / n_plates.sqrt() * 3.0;
+        preds.push(PredictionRow {
+            analyte: p.name().to_string(),
+            retention_time_min: t.retention_time_min,
+            interval_low_min: t.low_95_min,
+            interval_high_min: t.high_95_min,
+            interval_coverage: 0.95,
+            retention_factor: 0.0,
+            peak_width_half_min: w_half,
+            path: "retention-index".into(),
+            retention_index: Some(ri.retention_index),
+        });
+        sig.push((p.name().to_string(), ri.retention_index, ri.sigma_ri));
+    }
+    if preds.is_empty() {
+        return Err(format!(
+            "no analyte elutes within the oven program ({})",
+            not_predicted.join("; ")
+        ));
+    }
+    let t0 = ladder.retention_time_min(0.0).unwrap_or(1.0).max(0.1);
+    for p in &mut preds {
+        p.retention_factor = ((p.retention_time_min - t0) / t0).max(0.0);
+    }
+    let mut coelutions = Vec::new();
+    for i in 0..sig.len() {
+        for j in i + 1..sig.len() {
+            let prob = coelution_probability_ri(sig[i].1 - sig[j].1, sig[i].2, sig[j].2);
+            if prob > 0.01 {
+                let (a, b) = if sig[i].1 <= sig[j].1 { (i, j) } else { (j, i) };
+                let pa = preds.iter().find(|p| p.analyte == sig[a].0).cloned();
+                let pb = preds.iter().find(|p| p.analyte == sig[b].0).cloned();
+                if let (Some(pa), Some(pb)) = (pa, pb) {
+                    let note = (sig[a].1 - sig[b].1).abs().lt(&DELTA_RI).then(|| {
+                        format!(
+                            "predicted retention indices {:.0} and {:.0} on this phase",
+                            sig[a].1, sig[b].1
+                        )
+                    });
+                    coelutions.push(coelution(&pa, &pb, prob, note));
+                }
+            }
+        }
+    }
+    let hydrogen_ok = false;
+    let carrier = if hydrogen_ok { "hydrogen" } else { "helium" };
+    let inlet = if volatile {
+        "static headspace (volatile analytes in a non-volatile matrix), split 10:1".to_string()
+    } else {
+        "split 20:1 at 250 °C (splitless for trace levels)".to_string()
+    };
+    let deriv: Vec<String> = profiles
+        .iter()
+        .filter(|p| p.gc_verdict() == Some(GcVerdict::SuitableAfterDerivatisation))
+        .map(|p| {
+            let how: Vec<String> =
+                p.gc.iter()
+                    .flat_map(|g| {
+                        g.flags.iter().filter_map(|f| {
+                            f.derivatisation.map(|d| format!("{d:?}").to_lowercase())
+                        })
+                    })
+                    .collect();
+            format!(
+                "{}: {}",
+                p.name(),
+                if how.is_empty() {
+                    "derivatise".to_string()
+                } else {
+                    how.join(", ")
+                }
+            )
+        })
+        .collect();
+    let prog = &oven.program;
+    let ramp_end = prog.initial_hold_min() + prog.ramp_time_min();
+    let program = vec![
+        ProgramStep {
+            time_min: 0.0,
+            value: prog.initial_c(),
+        },
+        ProgramStep {
+            time_min: prog.initial_hold_min(),
+            value: prog.initial_c(),
+        },
+        ProgramStep {
+            time_min: ramp_end,
+            value: prog.final_c(),
+        },
+        ProgramStep {
+            time_min: prog.total_time_min(),
+            value: prog.final_c(),
+        },
+    ];
+    let detection = match req.detector {
+        Detector::Ecd => "electron capture (halogenated analytes)".to_string(),
+        Detector::Ms => "mass spectrometry (electron ionisation, scan 35-350 m/z)".to_string(),
+        _ => "flame ionisation, 280 °C".to_string(),
+    };
+    let conditions = Conditions {
+        column_length_mm: 30_000.0,
+        column_id_mm: column.inner_diameter_mm(),
+        particle_um: None,
+        film_um: Some(film),
+        mobile_phase_a: None,
+        mobile_phase_b: None,
+        modifier: None,
+        ph: None,
+        buffer: None,
+        buffer_preparation: None,
+        program,
+        program_unit: "°C".into(),
+        flow_ml_min: None,
+        temperature_c: None,
+        carrier_gas: Some(format!("{carrier}, constant flow")),
+        linear_velocity_cm_s: Some(35.0),
+        inlet: Some(inlet),
+        derivatisation: (!deriv.is_empty()).then(|| deriv.join("; ")),
+        suppression: None,
+        injection: "1 µL liquid injection, or the headspace vial's equilibrated gas phase".into(),
+        detection,
+        dead_time_min: t0,
+        plate_number: n_plates,
+        run_time_min: prog.total_time_min(),
+        pressure_bar: None,
+    };
+    let mut rec = Recommendation {
+        rank: 0,
+        mode: "gc".into(),
+        phase: phase_ref(phase),
+        score: 0.0,
+        conditions,
+        predictions: preds,
+        coelutions,
+        reasons: Vec::new(),
+        excluded: Vec::new(),
+        critical_resolution: None,
+        critical_pair: None,
+    };
+    finish_predictions(&mut rec);
+    let (sep, sep_reason) = separation_score(&rec);
+    let mut reasons = vec![Reason {
+        source: "model:gc-retention-index".into(),
+        text: "retention indices from boiling point and functional groups with the phase's McReynolds-type constants, times through the n-alkane ladder (docs/phases.md)".into(),
+        weight: None,
+    }];
+    reasons.extend(oven.reasons.iter().map(|r| Reason {
+        source: "rule:oven-program".into(),
+        text: r.clone(),
+        weight: None,
+    }));
+    if !not_predicted.is_empty() {
+        reasons.push(Reason {
+            source: "model:gc-retention-index".into(),
+            text: format!("not predicted: {}", not_predicted.join("; ")),
+            weight: None,
+        });
+    }
+    let rules = rules(profiles, phase);
+    let rule_sum: f64 = rules.iter().filter_map(|r| r.weight).sum();
+    reasons.push(sep_reason);
+    reasons.extend(rules);
+    rec.reasons = reasons;
+    rec.score = (0.6 * sep + 0.4 * (0.5 + rule_sum)).clamp(0.0, 1.0);
+    Ok(rec)
+}
+
+/// GC phase rules (common practice, no source).
+fn rules(profiles: &[AnalyteProfile], phase: &StationaryPhase) -> Vec<Reason> {
+    let n = profiles.len().max(1) as f64;
+    let polar = profiles
+        .iter()
+        .filter(|p| {
+            p.gc_analyte()
+                .is_some_and(|a| a.n_hydroxyl + a.n_carboxylic_acid + a.n_amine > 0)
+        })
+        .count() as f64
+        / n;
+    let acids = profiles
+        .iter()
+        .filter(|p| p.gc_analyte().is_some_and(|a| a.n_carboxylic_acid > 0))
+        .count();
+    let volatile = profiles
+        .iter()
+        .all(|p| p.tb_k.is_some_and(|(t, _)| t < 420.0));
+    let gases = profiles
+        .iter()
+        .all(|p| p.tb_k.is_some_and(|(t, _)| t < 250.0));
+    let mut out = Vec::new();
+    let mut rule = |s: &str, t: String, w: f64| {
+        out.push(Reason {
+            source: s.into(),
+            text: t,
+            weight: Some(w),
+        })
+    };
+    match phase.id() {
+        "gc-5-phenyl" => rule("rule:gc-general-purpose", "5 % phenyl is the usual general-purpose first GC column".into(), 0.1),
+        "gc-dimethyl" => rule("rule:gc-boiling-point-order", "100 % dimethylpolysiloxane separates mainly by boiling point".into(), 0.06),
+        "gc-6-cyanopropylphenyl" => rule("rule:gc-volatile-solvent-screen", "6 % cyanopropylphenyl with a thick film is the usual phase for volatile solvent screens".into(), if volatile { 0.15 } else { 0.0 }),
+        "gc-wax" => rule("rule:gc-polar-analytes", format!("{:.0} % of analytes carry OH/NH/acid groups: polyethylene glycol retains and shapes them better", polar * 100.0), if polar > 0.25 { 0.12 } else { 0.0 }),
+        "gc-wax-acid" => rule("rule:gc-free-acids", "free carboxylic acids tail less on acid-modified polyethylene glycol".into(), if acids > 0 { 0.15 } else { -0.05 }),
+        id if id.starts_with("gc-plot") => rule("rule:gc-porous-layer", "porous-layer phases are for permanent gases and very light analytes".into(), if gases { 0.3 } else { -0.3 }),
+        _ => {}
+    }
+    out
+}

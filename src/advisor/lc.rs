@@ -1,0 +1,561 @@
+//! Reversed-phase and HILIC candidates: pH and buffer choice, gradient from the column
+//! geometry, retention predicted by the LC regression model, chemistry rules per phase.
+
+use std::sync::OnceLock;
+
+use super::profile::AnalyteProfile;
+use super::{
+    AdviseRequest, Detector, coelution, finish_predictions, phase_ref, retention_window_reason,
+    separation_score,
+};
+use crate::model::features::AnalyteFeatures;
+use crate::model::regression::{self, Additive, GradientPoint, LcSystem, Mode, Model, Modifier};
+use crate::model::theory;
+use crate::phase::{Catalogue, PhaseMode, StationaryPhase};
+use crate::report::advice::{Conditions, PredictionRow, ProgramStep, Reason, Recommendation};
+use crate::structure::ionisable::SiteKind;
+
+fn model() -> Result<&'static Model, String> {
+    static M: OnceLock<Result<Model, String>> = OnceLock::new();
+    M.get_or_init(|| Model::load_builtin().map_err(|e| e.to_string()))
+        .as_ref()
+        .map_err(Clone::clone)
+}
+
+/// pH values tried, with the buffer (catalogue id) that serves each; common practice.
+const PH_CHOICES: &[(f64, &str, &str)] = &[
+    (2.7, "formic-acid", "0.1 % (v/v) formic acid in water"),
+    (
+        3.8,
+        "ammonium-formate-acid",
+        "10 mM ammonium formate, adjusted to pH 3.8 with formic acid",
+    ),
+    (
+        4.8,
+        "ammonium-acetate-acid",
+        "10 mM ammonium acetate, adjusted to pH 4.8 with acetic acid",
+    ),
+    (
+        6.8,
+        "ammonium-bicarbonate-1",
+        "10 mM ammonium bicarbonate, adjusted to pH 6.8 with formic acid",
+    ),
+    (
+        10.0,
+        "ammonium-bicarbonate-2",
+        "10 mM ammonium bicarbonate, adjusted to pH 10 with ammonia",
+    ),
+];
+
+/// UV-only alternative at low pH (phosphate is not volatile).
+const PHOSPHATE: (f64, &str, &str) = (
+    2.5,
+    "phosphate-1",
+    "20 mM potassium phosphate, adjusted to pH 2.5 with phosphoric acid",
+);
+
+fn additive_for(buffer: &str) -> Additive {
+    match buffer {
+        "formic-acid" => Additive::FormicAcid,
+        b if b.starts_with("ammonium-formate") => Additive::AmmoniumFormate,
+        b if b.starts_with("ammonium-acetate") => Additive::AmmoniumAcetate,
+        b if b.starts_with("ammonium-bicarbonate") => Additive::AmmoniumCarbonate,
+        _ => Additive::Other,
+    }
+}
+
+fn model_class(phase: &StationaryPhase) -> regression::ChemClass {
+    use crate::phase::ChemClass as P;
+    use regression::ChemClass as R;
+    match phase.chem_class() {
+        Some(P::C18) => R::C18,
+        Some(P::C8) => R::C8,
+        Some(P::Cyano) => R::Cyano,
+        Some(P::Phenyl) => R::Phenyl,
+        Some(P::Pentafluorophenyl) => R::Pentafluorophenyl,
+        Some(P::PorousGraphiticCarbon) => R::PorousGraphiticCarbon,
+        Some(P::BareSilica) => R::BareSilica,
+        Some(P::Amide) => R::Amide,
+        Some(P::Zwitterionic) => R::Zwitterionic,
+        _ => R::Unknown,
+    }
+}
+
+/// Choose the aqueous pH: inside the phase's range, at least 2 units from the analytes' pKa
+/// where possible, keeping analytes retained (RP) — common practice, no source. Returns
+/// (pH, buffer id, preparation, reasons).
+pub fn choose_ph(
+    profiles: &[AnalyteProfile],
+    phase: &StationaryPhase,
+    mode: PhaseMode,
+    detector: Detector,
+    catalogue: &Catalogue,
+) -> (f64, &'static str, &'static str, Vec<Reason>) {
+    let lo = phase.ph_min().unwrap_or(2.0);
+    let hi = phase.ph_max().unwrap_or(8.0);
+    let mut options: Vec<(f64, &str, &str)> = PH_CHOICES.to_vec();
+    if !detector.needs_volatile() {
+        options.push(PHOSPHATE);
+    }
+    type Choice = (f64, &'static str, &'static str);
+    let mut best: Option<(f64, Choice, f64, f64)> = None;
+    for &(ph, buf, prep) in &options {
+        if ph < lo || ph > hi {
+            continue;
+        }
+        if let Ok(b) = catalogue.buffer(buf) {
+            if let Detector::Uv(nm) = detector
+                && b.uv_cutoff_nm() > nm - 5.0
+            {
+                continue;
+            }
+            if detector.needs_volatile() && !b.volatile() {
+                continue;
+            }
+        }
+        let mut near = 0.0;
+        let mut retention = 0.0;
+        for p in profiles {
+            for (pka, _) in p.pkas() {
+                let d = (ph - pka).abs();
+                if d < 2.0 {
+                    near += 2.0 - d;
+                }
+            }
+            // retention lost by ionisation, relative to the best pH in 2-8
+            if mode == PhaseMode::Rp
+                && let (Some(d), Some(best)) = (p.log_d(ph), p.max_log_d(2.0, 8.0))
+            {
+                retention += 0.3 * (best - d).max(0.0) + if d < 0.0 { -0.3 * d } else { 0.0 };
+            }
+        }
+        // low pH is the usual first try on silica phases (common practice, no source)
+        let pref = if ph > 7.0 {
+            0.8
+        } else if ph > 3.0 {
+            0.2
+        } else {
+            0.0
+        };
+        let cost = near + retention + pref + if buf == "phosphate-1" { 0.3 } else { 0.0 };
+        if best.is_none_or(|b| cost < b.0) {
+            best = Some((cost, (ph, buf, prep), near, retention));
+        }
+    }
+    let Some((_, (ph, buf, prep), near, retention)) = best else {
+        return (
+            3.0,
+            "formic-acid",
+            "0.1 % (v/v) formic acid in water",
+            vec![],
+        );
+    };
+    let reasons = vec![Reason {
+        source: "rule:ph-two-units-from-pka".into(),
+        text: format!(
+            "pH {ph:.1} inside the phase's range {lo:.0}-{hi:.0}; sum of pKa proximity penalties {near:.1} and retention-loss penalty {retention:.1} is the lowest of the buffers tried (keep pH at least 2 units from analyte pKa where possible; common practice, no source)"
+        ),
+        weight: None,
+    }];
+    (ph, buf, prep, reasons)
+}
+
+/// Default LC geometry (common analytical choice): 150 × 4.6 mm, 3.5 µm, 1.0 mL/min; for a
+/// 2.1 mm column 0.3 mL/min, for 3.0 mm 0.6 mL/min unless a flow is given.
+fn geometry(req: &AdviseRequest) -> (f64, f64, f64, f64) {
+    let (l, id) = req.column_mm.unwrap_or((150.0, 4.6));
+    let dp = req.particle_um.unwrap_or(3.5);
+    let flow = req
+        .flow_ml_min
+        .unwrap_or(1.0 * (id / 4.6).powi(2))
+        .max(0.01);
+    (l, id, dp, flow)
+}
+
+/// Build the candidate for one LC phase.
+///
+/// # Errors
+/// A reason when the phase cannot be evaluated (no analyte could be predicted).
+pub fn candidate(
+    profiles: &[AnalyteProfile],
+    phase: &StationaryPhase,
+    mode: PhaseMode,
+    req: &AdviseRequest,
+    catalogue: &Catalogue,
+) -> Result<Recommendation, String> {
+    let model = model()?;
+    let (l, id, dp, flow) = geometry(req);
+    let vm = theory::column_dead_volume_ml(l, id).map_err(|e| e.to_string())?;
+    let t0 = vm / flow;
+    let n_plates = theory::estimated_plate_number(l, dp).map_err(|e| e.to_string())?;
+    let (ph, buffer, prep, mut reasons) = choose_ph(profiles, phase, mode, req.detector, catalogue);
+    // methanol strengthens pi-pi selectivity on phenyl-type phases (common practice, no source)
+    let pi_phase = phase.id().contains("phenyl") || phase.id().contains("pfp");
+    let (modifier, modifier_id) = if pi_phase && mode == PhaseMode::Rp {
+        (Modifier::Methanol, "methanol")
+    } else {
+        (Modifier::Acetonitrile, "acetonitrile")
+    };
+    // gradient time for a gradient retention factor k* ≈ 5 (Snyder & Dolan 2007: k* = tG F /
+    // (1.15 Vm Δφ S)), with S from the median molar mass (S ≈ 0.25 M^0.5, rule of thumb)
+    let mut masses: Vec<f64> = profiles.iter().filter_map(|p| p.molar_mass_g_mol).collect();
+    masses.sort_by(f64::total_cmp);
+    let m_med = masses.get(masses.len() / 2).copied().unwrap_or(250.0);
+    let s = theory::estimated_s_from_molar_mass(m_med).unwrap_or(4.0);
+    let (start, end) = if mode == PhaseMode::Rp {
+        (5.0, 95.0)
+    } else {
+        (95.0, 50.0)
+    };
+    let dphi = f64::abs(end - start) / 100.0;
+    let k_star = 5.0;
+    let tg = (k_star * 1.15 * vm * dphi * s / flow)
+        .clamp(5.0, 60.0)
+        .round();
+    let program = vec![
+        GradientPoint {
+            time_min: 0.0,
+            organic_pct: start,
+        },
+        GradientPoint {
+            time_min: tg,
+            organic_pct: end,
+        },
+        GradientPoint {
+            time_min: tg + 3.0,
+            organic_pct: end,
+        },
+    ];
+    let dwell_min = req.dwell_ml / flow;
+    let sys = LcSystem {
+        mode: if mode == PhaseMode::Rp {
+            Mode::ReversedPhase
+        } else {
+            Mode::Hilic
+        },
+        chem_class: model_class(phase),
+        modifier,
+        ph: Some(ph),
+        additive: additive_for(buffer),
+        gradient: program.clone(),
+        t0_min: t0,
+        dwell_min,
+        flow_ml_min: flow,
+        temperature_c: Some(35.0),
+    };
+    // band width in gradient elution: 4σ = 4 t0 (1 + k*) / √N (Snyder & Dolan 2007, k* = gradient
+    // retention factor), so w½ = 2.355 σ
+    let w_half = 2.355 * t0 * (1.0 + k_star) / n_plates.sqrt();
+    let mut preds = Vec::new();
+    let mut raw = Vec::new();
+    let mut not_predicted = Vec::new();
+    for p in profiles {
+        let Some(smiles) = p.analyte.smiles.as_deref() else {
+            not_predicted.push(format!("{}: no structure", p.name()));
+            continue;
+        };
+        let feats = match AnalyteFeatures::from_smiles(smiles, p.analyte.inchikey.as_deref()) {
+            Ok(f) => f,
+            Err(e) => {
+                not_predicted.push(format!("{}: {e}", p.name()));
+                continue;
+            }
+        };
+        match model.predict(&feats, &sys) {
+            Ok(pr) => {
+                let k = ((pr.rt_min - t0 - dwell_min) / t0).max(0.0);
+                preds.push(PredictionRow {
+                    analyte: p.name().to_string(),
+                    retention_time_min: pr.rt_min,
+                    interval_low_min: pr.interval_min.0,
+                    interval_high_min: pr.interval_min.1,
+                    interval_coverage: 0.9,
+                    retention_factor: k,
+                    peak_width_half_min: w_half,
+                    path: pr.path.label().to_string(),
+                    retention_index: None,
+                });
+                raw.push(pr);
+            }
+            Err(e) => not_predicted.push(format!("{}: {e}", p.name())),
+        }
+    }
+    if preds.is_empty() {
+        return Err(format!(
+            "no analyte could be predicted ({})",
+            not_predicted.join("; ")
+        ));
+    }
+    // co-elution probabilities of every pair (close pairs matter; listed later if above the risk)
+    let mut coelutions = Vec::new();
+    let wb = w_half * 4.0 / 2.355;
+    for i in 0..preds.len() {
+        for j in i + 1..preds.len() {
+            let (a, b) = if preds[i].retention_time_min <= preds[j].retention_time_min {
+                (i, j)
+            } else {
+                (j, i)
+            };
+            if (preds[b].retention_time_min - preds[a].retention_time_min)
+                > 3.0 * (preds[a].interval_high_min - preds[a].interval_low_min).max(wb)
+            {
+                continue;
+            }
+            if let Ok(prob) = regression::coelution_probability(&raw[a], &raw[b], wb) {
+                coelutions.push(coelution(
+                    &preds[a],
+                    &preds[b],
+                    prob,
+                    isomer_note(profiles, &preds[a].analyte, &preds[b].analyte),
+                ));
+            }
+        }
+    }
+    let run_time = tg + 3.0;
+    let pressure = theory::pressure_estimate(&theory::PressureInput {
+        flow_ml_min: flow,
+        column_length_mm: l,
+        inner_diameter_mm: id,
+        particle_size_um: dp,
+        viscosity_mpa_s: if modifier_id == "methanol" { 1.6 } else { 1.0 },
+    })
+    .ok()
+    .map(|p| p.pressure_bar);
+    let solvent_b = catalogue
+        .solvent(modifier_id)
+        .map(|s| s.name().to_string())
+        .unwrap_or_else(|_| modifier_id.to_string());
+    let (mp_a, mp_b) = if mode == PhaseMode::Rp {
+        (
+            format!("water with {prep}"),
+            format!("{solvent_b} (optionally with the same additive)"),
+        )
+    } else {
+        (
+            format!("water with {prep} (in HILIC water is the strong solvent)"),
+            format!("{solvent_b} with 5 % of the aqueous buffer"),
+        )
+    };
+    let conditions = Conditions {
+        column_length_mm: l,
+        column_id_mm: id,
+        particle_um: Some(dp),
+        film_um: None,
+        mobile_phase_a: Some(mp_a),
+        mobile_phase_b: Some(mp_b),
+        modifier: Some(modifier_id.to_string()),
+        ph: Some(ph),
+        buffer: Some(buffer.to_string()),
+        buffer_preparation: Some(format!(
+            "{prep}; measure the pH of the aqueous part before adding organic solvent"
+        )),
+        program: program
+            .iter()
+            .map(|g| ProgramStep {
+                time_min: g.time_min,
+                value: g.organic_pct,
+            })
+            .collect(),
+        program_unit: "% organic".into(),
+        flow_ml_min: Some(flow),
+        temperature_c: Some(35.0),
+        carrier_gas: None,
+        linear_velocity_cm_s: None,
+        inlet: None,
+        derivatisation: None,
+        suppression: None,
+        injection: format!(
+            "about {:.0} µL (≤ 1 % of the column volume {:.2} mL) in a solvent no stronger than the starting mobile phase",
+            (vm * 10.0).clamp(1.0, 20.0),
+            vm
+        ),
+        detection: req.detector.describe(),
+        dead_time_min: t0,
+        plate_number: n_plates,
+        run_time_min: run_time,
+        pressure_bar: pressure,
+    };
+    let mut rec = Recommendation {
+        rank: 0,
+        mode: mode.as_str().to_string(),
+        phase: phase_ref(phase),
+        score: 0.0,
+        conditions,
+        predictions: preds,
+        coelutions,
+        reasons: Vec::new(),
+        excluded: Vec::new(),
+        critical_resolution: None,
+        critical_pair: None,
+    };
+    finish_predictions(&mut rec);
+    let (sep, sep_reason) = separation_score(&rec);
+    let window = retention_window_reason(&rec);
+    let rules = rules(profiles, phase, mode, ph);
+    let rule_sum: f64 = rules.iter().filter_map(|r| r.weight).sum();
+    let score =
+        (0.5 * sep + 0.2 * window.weight.unwrap_or(0.0) + 0.3 * (0.5 + rule_sum)).clamp(0.0, 1.0);
+    reasons.push(Reason {
+        source: "model:lc-regression".into(),
+        text: format!(
+            "retention predicted by the LC regression model (ridge on structure descriptors and system features, trained on RepoRT; docs/model.md) for {} of {} analytes",
+            rec.predictions.len(),
+            profiles.len()
+        ),
+        weight: None,
+    });
+    if !not_predicted.is_empty() {
+        reasons.push(Reason {
+            source: "model:lc-regression".into(),
+            text: format!("not predicted: {}", not_predicted.join("; ")),
+            weight: None,
+        });
+    }
+    reasons.push(sep_reason);
+    reasons.push(window);
+    reasons.extend(rules);
+    rec.reasons = reasons;
+    rec.score = score;
+    Ok(rec)
+}
+
+/// A note for pairs that are isomers (same formula): positional isomers are the classic
+/// difficult pairs.
+fn isomer_note(profiles: &[AnalyteProfile], a: &str, b: &str) -> Option<String> {
+    let f = |n: &str| {
+        profiles
+            .iter()
+            .find(|p| p.name() == n)
+            .and_then(|p| p.analyte.formula.clone())
+    };
+    match (f(a), f(b)) {
+        (Some(x), Some(y)) if x == y => Some(format!(
+            "isomers ({x}): selectivity comes from shape and polarity, not size"
+        )),
+        _ => None,
+    }
+}
+
+/// Chemistry rules for one phase (common practice, no source unless stated). Weights are
+/// added to a neutral 0.5.
+pub fn rules(
+    profiles: &[AnalyteProfile],
+    phase: &StationaryPhase,
+    mode: PhaseMode,
+    ph: f64,
+) -> Vec<Reason> {
+    let id = phase.id();
+    let n = profiles.len().max(1) as f64;
+    let mut out = Vec::new();
+    let mut rule = |source: &str, text: String, w: f64| {
+        out.push(Reason {
+            source: source.into(),
+            text,
+            weight: Some(w),
+        });
+    };
+    if mode == PhaseMode::Rp {
+        let pi_rich = profiles.iter().filter(|p| p.aromatic_rings() >= 2).count() as f64 / n;
+        let halo = profiles
+            .iter()
+            .filter(|p| p.halogens() > 0 && p.aromatic_rings() > 0)
+            .count();
+        let formulas: Vec<Option<String>> =
+            profiles.iter().map(|p| p.analyte.formula.clone()).collect();
+        let isomers = formulas
+            .iter()
+            .enumerate()
+            .any(|(i, f)| f.is_some() && formulas[i + 1..].contains(f));
+        let bases = profiles
+            .iter()
+            .filter(|p| {
+                p.sites.iter().any(|s| {
+                    s.kind == SiteKind::Base && s.pka.is_some_and(|k| k > ph + 1.0 && k > 7.0)
+                })
+            })
+            .count();
+        let polar = profiles
+            .iter()
+            .filter(|p| p.max_log_d(2.0, 8.0).is_some_and(|d| d < 0.0))
+            .count() as f64
+            / n;
+        match id {
+            "rp-c18" => rule("rule:general-purpose-first-choice", "C18 is the usual first column for a new reversed-phase method".into(), 0.12),
+            "rp-c8" => rule("rule:less-hydrophobic-than-c18", "C8 shortens retention of very hydrophobic analytes".into(), if profiles.iter().any(|p| p.log_p.is_some_and(|l| l.0 > 5.0)) { 0.08 } else { 0.0 }),
+            "rp-c4" => rule("rule:wide-pore-for-large-molecules", "C4 suits proteins and very hydrophobic large molecules".into(), -0.1),
+            "rp-cyano" => rule("rule:cyano-weak-retention", "cyano phases retain weakly in reversed phase; chosen mainly for selectivity changes".into(), -0.05),
+            "rp-mixed-mode-c18-scx" => rule("rule:mixed-mode-for-bases", "mixed-mode C18/cation exchange retains protonated bases".into(), if bases > 0 { 0.05 } else { -0.1 }),
+            _ => {}
+        }
+        if id.contains("phenyl") || id.contains("pfp") {
+            rule(
+                "rule:pi-rich-analytes",
+                format!(
+                    "{:.0} % of analytes have two or more aromatic rings: phenyl-type phases add pi-pi selectivity",
+                    pi_rich * 100.0
+                ),
+                if pi_rich >= 0.3 { 0.12 } else { 0.0 },
+            );
+        }
+        if id == "rp-pfp" && (halo > 0 || isomers) {
+            rule("rule:halogenated-or-positional-isomers", "halogenated aromatics or positional isomers: pentafluorophenyl adds dipole and shape selectivity".into(), 0.12);
+        }
+        if id == "rp-biphenyl" && isomers {
+            rule(
+                "rule:shape-selectivity",
+                "isomers present: biphenyl adds shape selectivity".into(),
+                0.05,
+            );
+        }
+        if bases > 0 {
+            let w = match id {
+                "rp-polar-embedded" | "rp-c18-hybrid" => 0.1,
+                "rp-c18" | "rp-c8" => -0.03,
+                _ => 0.0,
+            };
+            rule(
+                "rule:bases-on-silanols",
+                format!(
+                    "{bases} protonated base(s) at pH {ph:.1} can tail on residual silanols; polar-embedded and hybrid phases reduce tailing"
+                ),
+                w,
+            );
+        }
+        if polar > 0.0 {
+            let w = match id {
+                "rp-c18-aq" | "rp-pgc" => 0.12 * polar / 0.3_f64.max(polar),
+                "rp-c18" | "rp-c8" => -0.05,
+                _ => 0.0,
+            };
+            rule(
+                "rule:very-polar-neutrals",
+                format!(
+                    "{:.0} % of analytes have logD below 0: aqueous-compatible C18 (near 100 % water) or porous graphitic carbon retain them better",
+                    polar * 100.0
+                ),
+                w,
+            );
+        }
+    } else {
+        let sugars = profiles
+            .iter()
+            .filter(|p| {
+                p.estimate
+                    .as_ref()
+                    .is_some_and(|e| e.descriptors.hbond_donors >= 4)
+            })
+            .count();
+        let charged = profiles
+            .iter()
+            .filter(|p| p.sites.iter().any(|s| s.pka.is_some()))
+            .count();
+        match id {
+            "hilic-amide" => rule("rule:hilic-amide-general", "amide HILIC phases are robust general choices, good for sugars and neutral polar analytes".into(), if sugars > 0 { 0.15 } else { 0.08 }),
+            "hilic-zwitterionic" => rule("rule:hilic-zwitterionic-for-ions", "zwitterionic phases retain charged polar analytes with weak electrostatic effects".into(), if charged > 0 { 0.12 } else { 0.05 }),
+            "hilic-silica" => rule("rule:hilic-silica-bases", "bare silica retains bases strongly by cation exchange with silanols".into(), 0.0),
+            "hilic-diol" => rule("rule:hilic-diol-neutral", "diol phases are mild, neutral HILIC phases".into(), 0.02),
+            _ => {}
+        }
+    }
+    out
+}

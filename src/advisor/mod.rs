@@ -1,0 +1,586 @@
+//! The advisor: from analyte profiles to a ranked, justified recommendation of separation mode,
+//! stationary phase and starting conditions, with predicted retention, co-elution risks, an
+//! orthogonal back-up and safety cautions.
+//!
+//! Flow: score every mode for every analyte ([`modes`]); for each viable mode, set starting
+//! conditions and predict every analyte on every candidate phase ([`lc`], [`gc`], [`ic`]);
+//! score each phase from the predicted separation (critical resolution, co-elution
+//! probabilities) and the chemistry rules; rank; pick the back-up that best separates the
+//! first choice's risky pairs. Every score carries its reasons, each naming its rule
+//! (`rule:...`, common practice unless a source is given) or model (`model:...`).
+
+pub mod gc;
+pub mod ic;
+pub mod lc;
+pub mod modes;
+pub mod profile;
+
+use serde::{Deserialize, Serialize};
+
+use crate::kb::resolve::Unresolved;
+use crate::phase::{Catalogue, PhaseMode};
+use crate::report::SCHEMA_VERSION;
+use crate::report::advice::{
+    AdviceReport, AnalyteSummary, Backup, Caution, Coelution, IonisationSummary, PairChange,
+    PhaseRef, PredictionRow, Reason, Recommendation,
+};
+use profile::AnalyteProfile;
+
+/// Detectors the advisor knows.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+pub enum Detector {
+    /// UV absorbance at a wavelength, nm.
+    Uv(f64),
+    /// Mass spectrometry (volatile buffers only).
+    Ms,
+    /// Fluorescence.
+    Fluorescence,
+    /// Evaporative light scattering or charged aerosol (volatile buffers only).
+    Elsd,
+    /// GC flame ionisation.
+    Fid,
+    /// GC electron capture.
+    Ecd,
+    /// Conductivity (IC).
+    Conductivity,
+}
+
+impl Detector {
+    /// Parse `uv`, `uv:254`, `ms`, `fluorescence`, `elsd`, `fid`, `ecd`, `conductivity`.
+    ///
+    /// # Errors
+    /// A message naming the value.
+    pub fn parse(s: &str) -> Result<Detector, String> {
+        let l = s.trim().to_ascii_lowercase();
+        if let Some(w) = l.strip_prefix("uv:").or_else(|| l.strip_prefix("uv")) {
+            if w.is_empty() {
+                return Ok(Detector::Uv(220.0));
+            }
+            return match w.trim_end_matches("nm").parse::<f64>() {
+                Ok(nm) if (185.0..=800.0).contains(&nm) => Ok(Detector::Uv(nm)),
+                _ => Err(format!(
+                    "detector `{s}`: UV wavelength must be 185-800 nm, e.g. uv:254"
+                )),
+            };
+        }
+        Ok(match l.as_str() {
+            "ms" => Detector::Ms,
+            "fluorescence" | "fld" => Detector::Fluorescence,
+            "elsd" | "cad" => Detector::Elsd,
+            "fid" => Detector::Fid,
+            "ecd" => Detector::Ecd,
+            "conductivity" => Detector::Conductivity,
+            _ => {
+                return Err(format!(
+                    "unknown detector `{s}`; use uv[:nm], ms, fluorescence, elsd, fid, ecd or conductivity"
+                ));
+            }
+        })
+    }
+
+    /// Whether the detector needs a volatile mobile phase.
+    pub fn needs_volatile(self) -> bool {
+        matches!(self, Detector::Ms | Detector::Elsd)
+    }
+
+    /// A short description.
+    pub fn describe(self) -> String {
+        match self {
+            Detector::Uv(nm) => format!("UV absorbance at {nm:.0} nm"),
+            Detector::Ms => "mass spectrometry (electrospray; volatile buffer)".into(),
+            Detector::Fluorescence => {
+                "fluorescence (set excitation/emission for the analytes)".into()
+            }
+            Detector::Elsd => "evaporative light scattering (volatile buffer)".into(),
+            Detector::Fid => "flame ionisation".into(),
+            Detector::Ecd => "electron capture (halogenated analytes)".into(),
+            Detector::Conductivity => "suppressed conductivity".into(),
+        }
+    }
+}
+
+/// What the user asked for.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct AdviseRequest {
+    /// LC detector (GC uses FID unless ECD or MS is asked for).
+    pub detector: Detector,
+    /// LC column length and inner diameter, mm.
+    pub column_mm: Option<(f64, f64)>,
+    /// LC particle size, µm.
+    pub particle_um: Option<f64>,
+    /// LC flow, mL/min.
+    pub flow_ml_min: Option<f64>,
+    /// Dwell volume, mL.
+    pub dwell_ml: f64,
+    /// Modes to consider (all when empty).
+    pub modes: Vec<PhaseMode>,
+    /// Phases the lab has (all when empty).
+    pub phases_available: Vec<String>,
+    /// Number of recommendations listed (the first included).
+    pub alternatives: usize,
+    /// Co-elution probability above which a pair is listed.
+    pub risk_threshold: f64,
+}
+
+impl Default for AdviseRequest {
+    fn default() -> Self {
+        AdviseRequest {
+            detector: Detector::Uv(220.0),
+            column_mm: None,
+            particle_um: None,
+            flow_ml_min: None,
+            dwell_ml: 0.0,
+            modes: Vec::new(),
+            phases_available: Vec::new(),
+            alternatives: 3,
+            risk_threshold: 0.2,
+        }
+    }
+}
+
+/// Advisor errors.
+#[derive(Debug, thiserror::Error)]
+pub enum AdviseError {
+    /// Nothing to advise on.
+    #[error("no resolved analytes to advise on")]
+    NoAnalytes,
+    /// The phase catalogue failed to load or a restriction was invalid.
+    #[error(transparent)]
+    Phase(#[from] crate::phase::PhaseError),
+    /// A bad request value.
+    #[error("{0}")]
+    BadRequest(String),
+}
+
+/// One candidate (mode, phase) with its predictions, before ranking.
+#[derive(Debug, Clone)]
+pub struct Candidate {
+    /// The recommendation (rank filled in later).
+    pub rec: Recommendation,
+    /// Score of the mode for the list.
+    pub mode_score: f64,
+}
+
+/// Give advice for a list of analyte profiles.
+///
+/// # Errors
+/// [`AdviseError`] when there are no analytes, the catalogue is broken or the lab's phase list
+/// names unknown phases.
+pub fn advise(
+    profiles: &[AnalyteProfile],
+    unresolved: Vec<Unresolved>,
+    req: &AdviseRequest,
+) -> Result<AdviceReport, AdviseError> {
+    if profiles.is_empty() {
+        return Err(AdviseError::NoAnalytes);
+    }
+    let builtin = Catalogue::builtin()?;
+    let restricted;
+    let catalogue: &Catalogue = if req.phases_available.is_empty() {
+        builtin
+    } else {
+        restricted = builtin.restrict(&req.phases_available)?;
+        &restricted
+    };
+    let mut warnings: Vec<String> = Vec::new();
+    for p in profiles {
+        for n in &p.notes {
+            warnings.push(format!("{}: {n}", p.name()));
+        }
+        if p.analyte.smiles.is_none() {
+            warnings.push(format!(
+                "{}: no structure known; structure-based estimates and retention predictions are missing",
+                p.name()
+            ));
+        }
+    }
+    let mode_scores = modes::score_modes(profiles, &req.modes);
+    let mut candidates: Vec<Candidate> = Vec::new();
+    for ms in &mode_scores {
+        if ms.score < 0.3 && !candidates.is_empty() {
+            continue;
+        }
+        let Some(mode) = PhaseMode::parse(&ms.mode) else {
+            continue;
+        };
+        let phases: Vec<_> = catalogue.phases_by_mode(mode).collect();
+        for phase in phases {
+            let made = match mode {
+                PhaseMode::Rp | PhaseMode::Hilic => {
+                    lc::candidate(profiles, phase, mode, req, catalogue)
+                }
+                PhaseMode::Gc => gc::candidate(profiles, phase, req, catalogue),
+                PhaseMode::IcAnion | PhaseMode::IcCation => {
+                    ic::candidate(profiles, phase, mode, catalogue)
+                }
+                _ => Err("no retention model for this mode yet".to_string()),
+            };
+            match made {
+                Ok(mut rec) => {
+                    rec.excluded = modes::excluded(profiles, &ms.mode, &mode_scores);
+                    candidates.push(Candidate {
+                        rec,
+                        mode_score: ms.score,
+                    });
+                }
+                Err(why) => {
+                    if mode_scores.first().is_some_and(|m| m.mode == ms.mode)
+                        && !phase.id().starts_with("gc-plot")
+                    {
+                        let short: String = why.chars().take(240).collect();
+                        warnings.push(format!("{} not evaluated: {short}", phase.id()));
+                    }
+                }
+            }
+        }
+    }
+    if candidates.is_empty() {
+        return Err(AdviseError::BadRequest(
+            "no stationary phase could be evaluated for these analytes (check --modes and --phases-available)"
+                .into(),
+        ));
+    }
+    // Rank: the mode's fit for the whole list first, then the phase's own score.
+    candidates.sort_by(|a, b| {
+        let sa = 0.6 * a.mode_score + 0.4 * a.rec.score;
+        let sb = 0.6 * b.mode_score + 0.4 * b.rec.score;
+        sb.total_cmp(&sa)
+            .then_with(|| a.rec.phase.id.cmp(&b.rec.phase.id))
+    });
+    for (i, c) in candidates.iter_mut().enumerate() {
+        c.rec.rank = i as u32 + 1;
+    }
+    let backup = choose_backup(&candidates, req.risk_threshold);
+    let first_mode = candidates[0].rec.mode.clone();
+    let first_ph = candidates[0].rec.conditions.ph;
+    let mut recommendations: Vec<Recommendation> = candidates
+        .iter()
+        .take(req.alternatives.max(1))
+        .map(|c| c.rec.clone())
+        .collect();
+    for r in &mut recommendations {
+        r.coelutions.retain(|c| c.probability >= req.risk_threshold);
+    }
+    let cautions = cautions(&recommendations[0], backup.as_ref(), catalogue);
+    let analytes = profiles
+        .iter()
+        .map(|p| summary(p, first_ph, &first_mode))
+        .collect();
+    Ok(AdviceReport {
+        schema_version: SCHEMA_VERSION,
+        phasewise_version: env!("CARGO_PKG_VERSION").to_string(),
+        analytes,
+        unresolved,
+        recommendations,
+        backup,
+        mode_scores,
+        warnings,
+        cautions,
+    })
+}
+
+fn summary(p: &AnalyteProfile, ph: Option<f64>, mode: &str) -> AnalyteSummary {
+    let mut properties = p.analyte.properties.clone();
+    let mut ionisation = None;
+    if let (Some(ph), true) = (ph, mode == "rp" || mode == "hilic") {
+        if let Some(d) = p.log_d(ph) {
+            properties.push(crate::property::Property {
+                property: format!("logd_ph{ph:.1}"),
+                value: d,
+                unit: String::new(),
+                kind: crate::property::PropertyKind::Estimated,
+                source: "logD = logP + log10(fraction neutral), independent sites (Henderson-Hasselbalch)".into(),
+                licence: crate::property::estimate::LICENCE_COMPUTED.into(),
+                detail: String::new(),
+                origin: crate::property::Origin::Structure,
+            });
+        }
+        if let Ok(prof) = crate::property::ionisation::profile(&p.sites, ph) {
+            ionisation = Some(IonisationSummary {
+                ph,
+                net_charge_e: prof.mean_net_charge,
+                fraction_neutral: prof.fraction_neutral,
+                charge_state: format!("{:?}", prof.charge_state),
+                log_d: p.log_d(ph),
+                near_pka: p.pkas().iter().any(|(k, _)| (k - ph).abs() < 1.5),
+            });
+        }
+    }
+    let (gc_suitability, gc_reasons) = match &p.gc {
+        Some(g) => (
+            match g.verdict {
+                crate::structure::volatility::GcVerdict::Suitable => "suitable",
+                crate::structure::volatility::GcVerdict::SuitableAfterDerivatisation => {
+                    "suitable after derivatisation"
+                }
+                crate::structure::volatility::GcVerdict::Unsuitable => "unsuitable",
+            }
+            .to_string(),
+            g.flags.iter().map(|f| f.reason.clone()).collect(),
+        ),
+        None => (
+            "unknown".to_string(),
+            vec!["no structure to assess".to_string()],
+        ),
+    };
+    AnalyteSummary {
+        query: p.analyte.query.clone(),
+        name: p.analyte.name.clone(),
+        inchikey: p.analyte.inchikey.clone(),
+        smiles: p.analyte.smiles.clone(),
+        properties,
+        ionisation,
+        gc_suitability,
+        gc_reasons,
+    }
+}
+
+/// Resolution of the pair (a, b) in a recommendation, from its predictions.
+pub fn pair_resolution(rec: &Recommendation, a: &str, b: &str) -> Option<f64> {
+    let pa = rec.predictions.iter().find(|p| p.analyte == a)?;
+    let pb = rec.predictions.iter().find(|p| p.analyte == b)?;
+    Some(resolution(pa, pb))
+}
+
+/// Rs = 1.18 Δt / (w½,1 + w½,2) (half-height form; Snyder, Kirkland & Dolan 2010).
+pub fn resolution(a: &PredictionRow, b: &PredictionRow) -> f64 {
+    let w = a.peak_width_half_min + b.peak_width_half_min;
+    if w <= 0.0 {
+        return 0.0;
+    }
+    1.18 * (b.retention_time_min - a.retention_time_min).abs() / w
+}
+
+/// Sort predictions by time and compute the adjacent-pair critical resolution.
+pub fn finish_predictions(rec: &mut Recommendation) {
+    rec.predictions.sort_by(|a, b| {
+        a.retention_time_min
+            .total_cmp(&b.retention_time_min)
+            .then_with(|| a.analyte.cmp(&b.analyte))
+    });
+    let mut best: Option<(f64, String, String)> = None;
+    for w in rec.predictions.windows(2) {
+        let rs = resolution(&w[0], &w[1]);
+        if best.as_ref().is_none_or(|b| rs < b.0) {
+            best = Some((rs, w[0].analyte.clone(), w[1].analyte.clone()));
+        }
+    }
+    if let Some((rs, a, b)) = best {
+        rec.critical_resolution = Some(rs);
+        rec.critical_pair = Some((a, b));
+    }
+    rec.coelutions.sort_by(|x, y| {
+        y.probability
+            .total_cmp(&x.probability)
+            .then_with(|| x.a.cmp(&y.a))
+    });
+}
+
+/// The separation part of a phase score (0–1): critical resolution (full marks at Rs ≥ 2) and
+/// the mean co-elution probability of the listed pairs.
+pub fn separation_score(rec: &Recommendation) -> (f64, Reason) {
+    let rs = rec.critical_resolution.unwrap_or(3.0);
+    let rs_part = (rs / 2.0).clamp(0.0, 1.0);
+    let risky: Vec<f64> = rec
+        .coelutions
+        .iter()
+        .map(|c| c.probability)
+        .filter(|p| *p > 0.2)
+        .collect();
+    let penalty = (risky.iter().sum::<f64>() / rec.predictions.len().max(1) as f64).min(1.0);
+    let s = (0.7 * rs_part + 0.3 * (1.0 - penalty)).clamp(0.0, 1.0);
+    let text = match &rec.critical_pair {
+        Some((a, b)) => format!(
+            "predicted critical pair {a} / {b} at resolution {rs:.2}; {} pair(s) with co-elution probability above 0.2",
+            risky.len()
+        ),
+        None => "a single analyte: no critical pair".to_string(),
+    };
+    (
+        s,
+        Reason {
+            source: "model:predicted-separation".into(),
+            text,
+            weight: Some(s),
+        },
+    )
+}
+
+/// Build a [`PhaseRef`].
+pub fn phase_ref(p: &crate::phase::StationaryPhase) -> PhaseRef {
+    PhaseRef {
+        id: p.id().to_string(),
+        name: p.name().to_string(),
+        chemistry: p.chemistry().to_string(),
+    }
+}
+
+/// Build a co-elution entry if the probability is worth listing.
+pub fn coelution(
+    a: &PredictionRow,
+    b: &PredictionRow,
+    probability: f64,
+    note: Option<String>,
+) -> Coelution {
+    Coelution {
+        a: a.analyte.clone(),
+        b: b.analyte.clone(),
+        probability,
+        resolution: resolution(a, b),
+        note,
+    }
+}
+
+fn choose_backup(cands: &[Candidate], risk: f64) -> Option<Backup> {
+    let first = &cands.first()?.rec;
+    let risky: Vec<(String, String)> = first
+        .coelutions
+        .iter()
+        .filter(|c| c.probability >= risk)
+        .map(|c| (c.a.clone(), c.b.clone()))
+        .chain(first.critical_pair.clone())
+        .collect();
+    let mut best: Option<(f64, &Candidate)> = None;
+    for c in cands.iter().skip(1) {
+        if c.rec.phase.id == first.phase.id {
+            continue;
+        }
+        // orthogonality: a different mode, or a different chemistry within the mode
+        let same_family = c.rec.mode == first.mode
+            && c.rec.phase.name.split_whitespace().last()
+                == first.phase.name.split_whitespace().last();
+        let gain: f64 = risky
+            .iter()
+            .filter_map(|(a, b)| {
+                let r1 = pair_resolution(first, a, b)?;
+                let r2 = pair_resolution(&c.rec, a, b)?;
+                Some(r2.min(3.0) - r1.min(3.0))
+            })
+            .sum();
+        let value =
+            gain + 0.5 * c.rec.score + 0.3 * c.mode_score - if same_family { 0.3 } else { 0.0 };
+        if best.is_none_or(|b| value > b.0) {
+            best = Some((value, c));
+        }
+    }
+    let (_, c) = best?;
+    let changes = risky
+        .iter()
+        .filter_map(|(a, b)| {
+            Some(PairChange {
+                a: a.clone(),
+                b: b.clone(),
+                resolution_first: pair_resolution(first, a, b)?,
+                resolution_backup: pair_resolution(&c.rec, a, b)?,
+            })
+        })
+        .collect();
+    let mut rec = c.rec.clone();
+    rec.rank = 0;
+    let why = if rec.mode != first.mode {
+        format!(
+            "a different separation mode ({} instead of {}) changes the retention mechanism",
+            rec.mode, first.mode
+        )
+    } else {
+        format!(
+            "a different stationary-phase chemistry ({}) changes selectivity while keeping the mode",
+            rec.phase.name
+        )
+    };
+    Some(Backup {
+        recommendation: rec,
+        changes,
+        why,
+    })
+}
+
+fn cautions(
+    first: &Recommendation,
+    backup: Option<&Backup>,
+    catalogue: &Catalogue,
+) -> Vec<Caution> {
+    let mut out = Vec::new();
+    let mut add = |topic: &str, text: String| {
+        if !out.iter().any(|c: &Caution| c.text == text) {
+            out.push(Caution {
+                topic: topic.to_string(),
+                text,
+            });
+        }
+    };
+    for rec in std::iter::once(first).chain(backup.map(|b| &b.recommendation)) {
+        let c = &rec.conditions;
+        if let Some(m) = &c.modifier
+            && let Ok(s) = catalogue.solvent(m)
+        {
+            add("solvent", format!("{}: {}", s.name(), s.hazards()));
+        }
+        if let Some(p) = c.pressure_bar {
+            if p > 400.0 {
+                add(
+                    "pressure",
+                    format!(
+                        "estimated back pressure {p:.0} bar exceeds 400 bar: use an instrument and column rated for it, or lower the flow"
+                    ),
+                );
+            } else {
+                add(
+                    "pressure",
+                    "check the estimated back pressure against the column's and the instrument's pressure limits before the first run".into(),
+                );
+            }
+        }
+        if let Some(ph) = c.ph {
+            if ph > 8.0 && !rec.phase.id.contains("hybrid") && !rec.phase.id.contains("pgc") {
+                add(
+                    "ph",
+                    format!("pH {ph:.1} dissolves ordinary silica: use only phases rated for it"),
+                );
+            }
+            add(
+                "ph",
+                "keep the mobile-phase pH inside the column's stated range; silica-based phases dissolve above about pH 8 and lose bonded phase below about pH 2".into(),
+            );
+        }
+        if let Some(g) = &c.carrier_gas {
+            if g.contains("hydrogen") {
+                add("gas", "hydrogen carrier gas is flammable: use a leak-checked system with hydrogen sensor or shut-off, and follow the lab's gas-safety procedure".into());
+            }
+            add("gas", "secure gas cylinders, use proper regulators and check for leaks after every column change".into());
+        }
+        if rec.mode.starts_with("ic") {
+            add("solvent", "hydroxide and acid eluents are corrosive: wear eye protection; follow the suppressor's instructions".into());
+        }
+    }
+    add(
+        "general",
+        "these are starting points to verify by experiment; the lab's SOPs, local regulations and licensed practice take precedence".into(),
+    );
+    out
+}
+
+/// Common practice, no source: a peak whose apparent retention factor is between 1 and 10
+/// (isocratic) or that elutes inside the gradient is well placed.
+pub fn retention_window_reason(rec: &Recommendation) -> Reason {
+    let n = rec.predictions.len().max(1);
+    let t0 = rec.conditions.dead_time_min;
+    let early = rec
+        .predictions
+        .iter()
+        .filter(|p| p.retention_time_min < 2.0 * t0)
+        .count();
+    let late = rec
+        .predictions
+        .iter()
+        .filter(|p| p.retention_time_min > rec.conditions.run_time_min)
+        .count();
+    let frac_ok = (n - early - late) as f64 / n as f64;
+    Reason {
+        source: "rule:retention-window".into(),
+        text: format!(
+            "{early} analyte(s) predicted to elute within twice the dead time and {late} after the run; the rest are well retained (common practice, no source)"
+        ),
+        weight: Some(frac_ok),
+    }
+}

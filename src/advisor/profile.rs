@@ -1,0 +1,415 @@
+//! An analyte as the advisor sees it: the knowledge-base record plus what the structure engine
+//! adds (descriptors, ionisable sites with experimental pKa winning over typical values,
+//! boiling point, GC verdict, functional-group counts for the GC retention index).
+
+use crate::model::gc::{GcAnalyte, RingSubstitution};
+use crate::property::estimate::{StructureEstimate, estimate};
+use crate::property::ionisation;
+use crate::property::{Analyte, Origin, Property, PropertyKind};
+use crate::structure::graph::{BondOrder, MolGraph};
+use crate::structure::ionisable::{AcidBase, IonisableSite, SiteKind, apply_experimental};
+use crate::structure::volatility::{GcAssessment, GcVerdict, assess_gc};
+
+/// The advisor's view of one analyte.
+#[derive(Debug, Clone)]
+pub struct AnalyteProfile {
+    /// The resolved analyte, with estimated properties appended when it came from structure.
+    pub analyte: Analyte,
+    /// Structure-based estimates (when a SMILES string is known and parses).
+    pub estimate: Option<StructureEstimate>,
+    /// Ionisable sites, with experimental pKa values applied.
+    pub sites: Vec<IonisableSite>,
+    /// Best logP value and whether it is experimental.
+    pub log_p: Option<(f64, PropertyKind)>,
+    /// Best normal boiling point, K, and whether it is experimental.
+    pub tb_k: Option<(f64, PropertyKind)>,
+    /// GC suitability.
+    pub gc: Option<GcAssessment>,
+    /// Net formal charge of the structure.
+    pub formal_charge: i32,
+    /// True for an ion without carbon (nitrate, sodium, ...) or a small ion such as acetate.
+    pub inorganic_ion: bool,
+    /// Molar mass, g/mol.
+    pub molar_mass_g_mol: Option<f64>,
+    /// Things the advisor should say about this analyte.
+    pub notes: Vec<String>,
+}
+
+impl AnalyteProfile {
+    /// Build the profile of a resolved analyte.
+    pub fn new(mut analyte: Analyte) -> AnalyteProfile {
+        let mut notes = Vec::new();
+        let est = analyte.smiles.as_deref().and_then(|s| match estimate(s) {
+            Ok(e) => Some(e),
+            Err(err) => {
+                notes.push(format!(
+                    "structure could not be read ({err}); structure-based estimates are missing"
+                ));
+                None
+            }
+        });
+        if let Some(e) = &est {
+            if let Some(n) = &e.note {
+                notes.push(n.clone());
+            }
+            // Analytes known only from structure get the estimates as properties.
+            if analyte.origin == Origin::Structure {
+                for v in e.values() {
+                    analyte.properties.push(Property {
+                        property: v.property.to_string(),
+                        value: v.value,
+                        unit: v.unit.to_string(),
+                        kind: PropertyKind::Estimated,
+                        source: v.method.to_string(),
+                        licence: crate::property::estimate::LICENCE_COMPUTED.to_string(),
+                        detail: v.detail,
+                        origin: Origin::Structure,
+                    });
+                }
+                analyte.formula = Some(e.descriptors.molecular_formula.clone());
+                analyte.molar_mass_g_mol = e.descriptors.molar_mass_g_mol;
+                analyte.sort_properties();
+            }
+        }
+        let experimental_pka: Vec<(f64, Option<AcidBase>)> = analyte
+            .all("pka")
+            .filter(|p| p.kind == PropertyKind::Experimental)
+            .map(|p| {
+                let t = match p.detail_value("type") {
+                    Some("acidic") => Some(AcidBase::Acid),
+                    Some("basic") => Some(AcidBase::Base),
+                    _ => None,
+                };
+                (p.value, t)
+            })
+            .collect();
+        let mut sites = est.as_ref().map(|e| e.sites.clone()).unwrap_or_default();
+        if !experimental_pka.is_empty()
+            && !sites.is_empty()
+            && let Ok(m) = apply_experimental(&sites, &experimental_pka)
+        {
+            sites = m.sites;
+        }
+        let log_p = analyte.best("logp").map(|p| (p.value, p.kind));
+        let tb_k = analyte.best("boiling_point").map(|p| (p.value, p.kind));
+        let exp_tb = tb_k
+            .filter(|(_, k)| *k == PropertyKind::Experimental)
+            .map(|(v, _)| v);
+        let gc = est.as_ref().and_then(|e| assess_gc(&e.graph, exp_tb).ok());
+        let formal_charge = est.as_ref().map_or(0, |e| e.descriptors.formal_charge);
+        let carbon = est
+            .as_ref()
+            .is_some_and(|e| e.graph.atoms.iter().any(|a| a.atomic_number == 6));
+        let molar_mass_g_mol = analyte
+            .molar_mass_g_mol
+            .or_else(|| est.as_ref().and_then(|e| e.descriptors.molar_mass_g_mol));
+        let inorganic_ion =
+            formal_charge != 0 && (!carbon || molar_mass_g_mol.is_some_and(|m| m < 90.0));
+        AnalyteProfile {
+            analyte,
+            estimate: est,
+            sites,
+            log_p,
+            tb_k,
+            gc,
+            formal_charge,
+            inorganic_ion,
+            molar_mass_g_mol,
+            notes,
+        }
+    }
+
+    /// Display name.
+    pub fn name(&self) -> &str {
+        &self.analyte.name
+    }
+
+    /// logD at a pH (estimated from logP and the ionisable sites; logP when no site).
+    pub fn log_d(&self, ph: f64) -> Option<f64> {
+        let (lp, _) = self.log_p?;
+        if self
+            .sites
+            .iter()
+            .any(|s| matches!(s.kind, SiteKind::PermanentAnion | SiteKind::PermanentCation))
+        {
+            return Some(lp - 4.0);
+        }
+        ionisation::log_d(lp, &self.sites, ph).ok().or(Some(lp))
+    }
+
+    /// The largest logD over a pH range (the best retention reversed phase can give).
+    pub fn max_log_d(&self, ph_lo: f64, ph_hi: f64) -> Option<f64> {
+        let mut best: Option<f64> = None;
+        let mut ph = ph_lo;
+        while ph <= ph_hi + 1e-9 {
+            if let Some(d) = self.log_d(ph) {
+                best = Some(best.map_or(d, |b: f64| b.max(d)));
+            }
+            ph += 0.5;
+        }
+        best
+    }
+
+    /// pKa values of acid and base sites.
+    pub fn pkas(&self) -> Vec<(f64, SiteKind)> {
+        self.sites
+            .iter()
+            .filter_map(|s| s.pka.map(|p| (p, s.kind)))
+            .collect()
+    }
+
+    /// Whether a base with pKa above `threshold` is present (tails on silanols when protonated).
+    pub fn strong_base(&self, threshold: f64) -> bool {
+        self.sites
+            .iter()
+            .any(|s| s.kind == SiteKind::Base && s.pka.is_some_and(|p| p > threshold))
+    }
+
+    /// Whether an acid site is present.
+    pub fn has_acid(&self) -> bool {
+        self.sites.iter().any(|s| s.kind == SiteKind::Acid)
+    }
+
+    /// Whether a permanent charge is present.
+    pub fn permanently_charged(&self) -> bool {
+        self.inorganic_ion
+            || self
+                .sites
+                .iter()
+                .any(|s| matches!(s.kind, SiteKind::PermanentAnion | SiteKind::PermanentCation))
+    }
+
+    /// GC verdict (unsuitable when unknown and not volatile).
+    pub fn gc_verdict(&self) -> Option<GcVerdict> {
+        self.gc.as_ref().map(|g| g.verdict)
+    }
+
+    /// Number of aromatic rings.
+    pub fn aromatic_rings(&self) -> u32 {
+        self.estimate
+            .as_ref()
+            .map_or(0, |e| e.descriptors.aromatic_ring_count)
+    }
+
+    /// Number of halogen atoms.
+    pub fn halogens(&self) -> u32 {
+        self.estimate.as_ref().map_or(0, |e| {
+            e.graph
+                .atoms
+                .iter()
+                .filter(|a| matches!(a.atomic_number, 9 | 17 | 35 | 53))
+                .count() as u32
+        })
+    }
+
+    /// The GC retention-index input, when a boiling point is known.
+    pub fn gc_analyte(&self) -> Option<GcAnalyte> {
+        let (tb, kind) = self.tb_k?;
+        let e = self.estimate.as_ref();
+        let counts = e.map(|e| group_counts(&e.graph)).unwrap_or_default();
+        let typical_error = match kind {
+            PropertyKind::Experimental => 1.0,
+            PropertyKind::Estimated => 20.0,
+        };
+        Some(GcAnalyte {
+            tb_k: tb,
+            tb_sigma_k: typical_error,
+            molar_mass_g_mol: self.molar_mass_g_mol.unwrap_or(100.0),
+            n_aromatic_rings: self.aromatic_rings(),
+            n_hydroxyl: counts.hydroxyl,
+            n_carboxylic_acid: counts.carboxylic_acid,
+            n_carbonyl: counts.carbonyl,
+            n_ether: counts.ether,
+            n_ester: counts.ester,
+            n_nitrile: counts.nitrile,
+            n_nitro: counts.nitro,
+            n_halogen: self.halogens(),
+            n_amine: counts.amine,
+            n_pyridine_like: counts.pyridine_like,
+            ring_substitution: e.map_or(RingSubstitution::NotApplicable, |e| {
+                ring_substitution(&e.graph)
+            }),
+            is_n_alkane_carbon_count: e.and_then(|e| n_alkane(&e.graph)),
+        })
+    }
+}
+
+/// Functional-group counts used by the GC retention-index model.
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
+pub struct GroupCounts {
+    /// O-H on carbon (alcohols, phenols), not acids.
+    pub hydroxyl: u32,
+    /// C(=O)OH.
+    pub carboxylic_acid: u32,
+    /// Ketone and aldehyde C=O.
+    pub carbonyl: u32,
+    /// C-O-C, not esters.
+    pub ether: u32,
+    /// C(=O)O-C.
+    pub ester: u32,
+    /// C#N.
+    pub nitrile: u32,
+    /// N(=O)=O.
+    pub nitro: u32,
+    /// sp3 N with H or C only (not amides).
+    pub amine: u32,
+    /// Aromatic N without H.
+    pub pyridine_like: u32,
+}
+
+fn order(g: &MolGraph, b: usize) -> BondOrder {
+    g.bonds[b].order
+}
+
+/// Count functional groups on the graph (simple patterns; common practice, no source).
+pub fn group_counts(g: &MolGraph) -> GroupCounts {
+    let mut c = GroupCounts::default();
+    let z = |i: usize| g.atoms[i].atomic_number;
+    for (i, a) in g.atoms.iter().enumerate() {
+        let nb = &g.neighbours[i];
+        match a.atomic_number {
+            8 if !a.aromatic => {
+                let carbons: Vec<(usize, usize)> =
+                    nb.iter().copied().filter(|&(n, _)| z(n) == 6).collect();
+                let single = nb.iter().all(|&(_, b)| order(g, b) == BondOrder::Single);
+                if !single {
+                    continue;
+                }
+                // is a neighbouring carbon a carbonyl carbon?
+                let acyl = |cidx: usize| {
+                    g.neighbours[cidx]
+                        .iter()
+                        .any(|&(n, b)| n != i && z(n) == 8 && order(g, b) == BondOrder::Double)
+                };
+                if a.hydrogens >= 1 && carbons.len() == 1 {
+                    if acyl(carbons[0].0) {
+                        c.carboxylic_acid += 1;
+                    } else {
+                        c.hydroxyl += 1;
+                    }
+                } else if carbons.len() == 2 {
+                    if carbons.iter().any(|&(ci, _)| acyl(ci)) {
+                        c.ester += 1;
+                    } else {
+                        c.ether += 1;
+                    }
+                }
+            }
+            6 => {
+                for &(n, b) in nb {
+                    if z(n) == 8 && order(g, b) == BondOrder::Double {
+                        let other_hetero = nb.iter().any(|&(m, _)| m != n && matches!(z(m), 7 | 8));
+                        if !other_hetero {
+                            c.carbonyl += 1;
+                        }
+                    }
+                    if z(n) == 7 && order(g, b) == BondOrder::Triple {
+                        c.nitrile += 1;
+                    }
+                }
+            }
+            7 => {
+                let oxygens = nb.iter().filter(|&&(n, _)| z(n) == 8).count();
+                if oxygens == 2 && a.formal_charge == 1 {
+                    c.nitro += 1;
+                } else if a.aromatic && a.hydrogens == 0 && nb.len() == 2 {
+                    c.pyridine_like += 1;
+                } else if !a.aromatic
+                    && nb.iter().all(|&(_, b)| order(g, b) == BondOrder::Single)
+                    && nb.iter().all(|&(n, _)| {
+                        z(n) == 6
+                            && !g.neighbours[n].iter().any(|&(m, b)| {
+                                matches!(z(m), 8 | 16) && order(g, b) == BondOrder::Double
+                            })
+                    })
+                {
+                    c.amine += 1;
+                }
+            }
+            _ => {}
+        }
+    }
+    c
+}
+
+/// Substitution pattern of a disubstituted benzene ring (ortho/meta/para), for the GC model.
+pub fn ring_substitution(g: &MolGraph) -> RingSubstitution {
+    for ring in &g.rings {
+        if ring.len() != 6
+            || !ring
+                .iter()
+                .all(|&i| g.atoms[i].aromatic && g.atoms[i].atomic_number == 6)
+        {
+            continue;
+        }
+        let substituted: Vec<usize> = ring
+            .iter()
+            .copied()
+            .filter(|&i| g.neighbours[i].iter().any(|&(n, _)| !ring.contains(&n)))
+            .collect();
+        if substituted.len() == 2 {
+            let (x, y) = (substituted[0], substituted[1]);
+            let ring_nb = |i: usize| -> Vec<usize> {
+                g.neighbours[i]
+                    .iter()
+                    .map(|&(n, _)| n)
+                    .filter(|n| ring.contains(n))
+                    .collect()
+            };
+            return if ring_nb(x).contains(&y) {
+                RingSubstitution::Ortho
+            } else if ring_nb(x).iter().any(|n| ring_nb(y).contains(n)) {
+                RingSubstitution::Meta
+            } else {
+                RingSubstitution::Para
+            };
+        }
+    }
+    RingSubstitution::NotApplicable
+}
+
+/// Carbon count of an unbranched n-alkane (RI = 100·n by definition), else `None`.
+fn n_alkane(g: &MolGraph) -> Option<u32> {
+    if g.atoms.is_empty() || !g.rings.is_empty() {
+        return None;
+    }
+    let all_c = g
+        .atoms
+        .iter()
+        .all(|a| a.atomic_number == 6 && !a.aromatic && a.formal_charge == 0);
+    let single = g.bonds.iter().all(|b| b.order == BondOrder::Single);
+    let unbranched = g.neighbours.iter().all(|n| n.len() <= 2);
+    (all_c && single && unbranched).then_some(g.atoms.len() as u32)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::structure::parse_smiles;
+
+    #[test]
+    fn xylenes_get_their_substitution_pattern() {
+        let sub = |s: &str| ring_substitution(&parse_smiles(s).unwrap().graph);
+        assert_eq!(sub("Cc1ccccc1C"), RingSubstitution::Ortho);
+        assert_eq!(sub("Cc1cccc(C)c1"), RingSubstitution::Meta);
+        assert_eq!(sub("Cc1ccc(C)cc1"), RingSubstitution::Para);
+        assert_eq!(sub("Cc1ccccc1"), RingSubstitution::NotApplicable);
+    }
+
+    #[test]
+    fn functional_groups_are_counted() {
+        let c = |s: &str| group_counts(&parse_smiles(s).unwrap().graph);
+        assert_eq!(c("CCO").hydroxyl, 1);
+        assert_eq!(c("CC(=O)O").carboxylic_acid, 1);
+        assert_eq!(c("CC(=O)OCC").ester, 1);
+        assert_eq!(c("CCOCC").ether, 1);
+        assert_eq!(c("CC(C)=O").carbonyl, 1);
+        assert_eq!(c("CC#N").nitrile, 1);
+        assert_eq!(c("c1ccncc1").pyridine_like, 1);
+        assert_eq!(c("CCN").amine, 1);
+        assert_eq!(c("CC(N)=O").amine, 0);
+        assert_eq!(c("c1ccccc1[N+](=O)[O-]").nitro, 1);
+        assert_eq!(n_alkane(&parse_smiles("CCCCCC").unwrap().graph), Some(6));
+        assert_eq!(n_alkane(&parse_smiles("CC(C)C").unwrap().graph), None);
+    }
+}

@@ -431,6 +431,20 @@ pub fn coelution(
     }
 }
 
+/// Selectivity family of a phase id: phases of one family are not orthogonal to each other
+/// (common practice, no source).
+fn family(id: &str) -> &str {
+    if id.contains("phenyl") || id.contains("pfp") {
+        "aromatic"
+    } else if id.contains("c18") || id.contains("c8") || id.contains("c4") || id.contains("polar-embedded") {
+        "alkyl"
+    } else if id.starts_with("gc-") && (id.contains("dimethyl") || id.contains("-5-phenyl")) {
+        "gc-non-polar"
+    } else {
+        id
+    }
+}
+
 fn choose_backup(cands: &[Candidate], risk: f64) -> Option<Backup> {
     let first = &cands.first()?.rec;
     let risky: Vec<(String, String)> = first
@@ -446,9 +460,7 @@ fn choose_backup(cands: &[Candidate], risk: f64) -> Option<Backup> {
             continue;
         }
         // orthogonality: a different mode, or a different chemistry within the mode
-        let same_family = c.rec.mode == first.mode
-            && c.rec.phase.name.split_whitespace().last()
-                == first.phase.name.split_whitespace().last();
+        let same_family = c.rec.mode == first.mode && family(&c.rec.phase.id) == family(&first.phase.id);
         let gain: f64 = risky
             .iter()
             .filter_map(|(a, b)| {

@@ -51,6 +51,18 @@ pub enum Command {
     /// Build, inspect and extend the knowledge base.
     #[command(subcommand)]
     Kb(KbCommand),
+    /// System suitability of one measured run from its peak table.
+    #[command(after_help = crate::run_measured::SUITABILITY_HELP)]
+    Suitability(crate::run_measured::SuitabilityArgs),
+    /// Fit log kw and S from two or more scouting gradients, then optimise the gradient.
+    #[command(after_help = crate::run_measured::SCOUT_HELP)]
+    Scout(crate::run_measured::ScoutArgs),
+    /// Scale a gradient method to another column geometry and particle size.
+    #[command(after_help = crate::run_measured::TRANSFER_HELP)]
+    Transfer(crate::run_measured::TransferArgs),
+    /// Train and evaluate the LC retention model.
+    #[command(subcommand, after_help = crate::run_measured::MODEL_HELP)]
+    Model(crate::run_measured::ModelCommand),
 }
 
 /// Where analytes come from.

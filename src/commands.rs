@@ -169,26 +169,6 @@ pub fn resolve_all(kb: &Kb, queries: &[String]) -> Result<(Vec<Analyte>, Vec<Unr
     Ok((found, missing))
 }
 
-/// Parse `LxID` (mm), e.g. `150x4.6`.
-pub fn parse_column(text: &str) -> Result<(f64, f64)> {
-    let t = text.to_ascii_lowercase().replace(' ', "");
-    let (l, d) = t.split_once(['x', '×']).ok_or_else(|| {
-        anyhow::anyhow!("column `{text}`: expected LENGTHxID in mm, e.g. 150x4.6")
-    })?;
-    let l: f64 = l
-        .trim_end_matches("mm")
-        .parse()
-        .map_err(|_| anyhow::anyhow!("column `{text}`: length `{l}` is not a number"))?;
-    let d: f64 = d
-        .trim_end_matches("mm")
-        .parse()
-        .map_err(|_| anyhow::anyhow!("column `{text}`: inner diameter `{d}` is not a number"))?;
-    if !(l > 0.0 && l.is_finite() && d > 0.0 && d.is_finite()) {
-        bail!("column `{text}`: length and inner diameter must be positive");
-    }
-    Ok((l, d))
-}
-
 fn advise_report(
     cli: &Cli,
     o: &crate::cli::AdviseOptions,
@@ -196,7 +176,12 @@ fn advise_report(
     use phasewise::advisor::{AdviseRequest, Detector, advise, profile::AnalyteProfile};
     // cheap checks first, before the knowledge base is opened
     let detector = Detector::parse(&o.detector).map_err(|e| anyhow::anyhow!(e))?;
-    let column_mm = o.column.as_deref().map(parse_column).transpose()?;
+    let column_mm = o
+        .column
+        .as_deref()
+        .map(crate::run_measured::parse_column)
+        .transpose()?
+        .map(|c| (c.length_mm, c.inner_diameter_mm));
     for (name, v) in [("--particle", o.particle), ("--flow", o.flow)] {
         if let Some(v) = v
             && !(v > 0.0 && v.is_finite())
@@ -341,6 +326,10 @@ pub fn run(cli: Cli) -> Result<ExitCode> {
             })
         }
         Command::Kb(k) => run_kb(&cli, k),
+        Command::Suitability(a) => crate::run_measured::run_suitability(a),
+        Command::Scout(a) => crate::run_measured::run_scout(a),
+        Command::Transfer(a) => crate::run_measured::run_transfer(a),
+        Command::Model(m) => crate::run_measured::run_model(m),
     }
 }
 

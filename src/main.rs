@@ -4,6 +4,7 @@
 
 mod cli;
 mod commands;
+mod run_measured;
 
 use std::io::Write;
 use std::process::ExitCode;

@@ -357,7 +357,7 @@ fn bad_advise_options_name_the_value() {
     for (args, want) in [
         (vec!["--detector", "uv:50"], "uv:50"),
         (vec!["--column", "150y4.6"], "150y4.6"),
-        (vec!["--column", "0x4.6"], "positive"),
+        (vec!["--column", "0x4.6"], "greater than zero"),
         (vec!["--modes", "lc"], "lc"),
         (vec!["--risk", "2"], "2"),
     ] {

@@ -29,7 +29,7 @@ fn normal_cdf(x: f64) -> f64 {
 }
 
 /// Probability that two analytes predicted `delta` index units apart with 1σ errors s1, s2
-/// are in truth within [`DELTA_RI`]; errors of similar analytes are partly shared (the same
+/// are in truth within `DELTA_RI` (5 index units); errors of similar analytes are partly shared (the same
 /// boiling-point and group biases), taken here as correlation 0.75 (assumption, documented).
 pub fn coelution_probability_ri(delta: f64, s1: f64, s2: f64) -> f64 {
     let sd = (s1 * s1 + s2 * s2 - 2.0 * 0.75 * s1 * s2).max(1.0).sqrt();

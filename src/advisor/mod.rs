@@ -436,7 +436,11 @@ pub fn coelution(
 fn family(id: &str) -> &str {
     if id.contains("phenyl") || id.contains("pfp") {
         "aromatic"
-    } else if id.contains("c18") || id.contains("c8") || id.contains("c4") || id.contains("polar-embedded") {
+    } else if id.contains("c18")
+        || id.contains("c8")
+        || id.contains("c4")
+        || id.contains("polar-embedded")
+    {
         "alkyl"
     } else if id.starts_with("gc-") && (id.contains("dimethyl") || id.contains("-5-phenyl")) {
         "gc-non-polar"
@@ -460,7 +464,8 @@ fn choose_backup(cands: &[Candidate], risk: f64) -> Option<Backup> {
             continue;
         }
         // orthogonality: a different mode, or a different chemistry within the mode
-        let same_family = c.rec.mode == first.mode && family(&c.rec.phase.id) == family(&first.phase.id);
+        let same_family =
+            c.rec.mode == first.mode && family(&c.rec.phase.id) == family(&first.phase.id);
         let gain: f64 = risky
             .iter()
             .filter_map(|(a, b)| {

@@ -873,7 +873,7 @@ pub fn run_evaluation(
 }
 
 impl EvalReport {
-    /// Markdown table of medians [IQR] per mode and method, plus calibration bins.
+    /// Markdown table of medians (interquartile range) per mode and method, plus calibration bins.
     pub fn to_markdown(&self) -> String {
         let mut s = String::new();
         s.push_str(&format!(

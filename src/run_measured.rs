@@ -1,0 +1,1440 @@
+//! Command-line layer for measured runs (`suitability`, `scout`, `transfer`) and for the LC
+//! retention model (`model train`, `model eval`): the clap argument types, the handlers that
+//! turn them into library requests, and the renderers of the results. All chromatography lives
+//! in `phasewise::measured` and `phasewise::model`; this module only parses, checks cheap
+//! things first (argument shapes, writable output directories), calls the library, prints and
+//! picks the exit code.
+//!
+//! Also here, shared by every command that takes a column: the `LxID` geometry parser
+//! ([`parse_column`]).
+//!
+//! Exit codes used by these commands: 0 all well; 1 (`suitability` only) the table was read and
+//! evaluated but at least one check failed; 2 bad input or usage (the message names the file,
+//! line, column or value).
+
+use std::fmt;
+use std::io::{Read, Write};
+use std::path::{Path, PathBuf};
+use std::process::ExitCode;
+use std::str::FromStr;
+
+use anyhow::{Context, Result, bail};
+use clap::{Args, Subcommand, ValueEnum};
+use serde::Serialize;
+
+use phasewise::measured::DeadTimeInput;
+use phasewise::measured::optimise::{
+    OptimiseReport, OptimiseRequest, PlateSource, Prediction, Range, optimise, render_window_svg,
+};
+use phasewise::measured::peaks::PeakTable;
+use phasewise::measured::scout::{FitFlag, ScoutFit, ScoutRequest, ScoutRun, fit};
+use phasewise::measured::suitability::{
+    Criterion, Outcome, SuitabilityReport, SuitabilityRequest, SuitabilityTargets, evaluate,
+};
+use phasewise::measured::transfer::{ColumnGeometry, TransferReport, TransferRequest, transfer};
+use phasewise::model::eval::{EvalReport, evaluate_with};
+use phasewise::model::features::PhasewiseDescriptors;
+use phasewise::model::gradient::GradientProgram;
+use phasewise::model::memory::MemoryTable;
+use phasewise::model::regression::{DEFAULT_PENALTIES, TrainingData, train_with};
+use phasewise::report::table::render;
+
+use crate::commands::EXIT_PARTIAL;
+
+// ---------------------------------------------------------------------------------------------
+// Help texts (referred to from cli.rs so that the hook lines there stay short).
+
+/// `suitability` help footer.
+pub const SUITABILITY_HELP: &str = "\
+Exit status: 0 when every check passes, 1 when any check fails, 2 on bad input.
+Checks that lack data (e.g. no tailing column) are listed as not evaluated; they do not fail.
+
+Example:
+  phasewise suitability run-07.csv --t0 1.02 --length-mm 150 --critical 'impurity A,main'
+  phasewise suitability run-07.csv --column 150x4.6 --flow 1.0 --format json";
+
+/// `scout` help footer.
+pub const SCOUT_HELP: &str = "\
+The gradient programs are `time:%organic` points, one program per run, separated by `;`,
+in the order of the run files. Recommendations are starting points: verify them by a run.
+
+Example:
+  phasewise scout fast.csv slow.csv --gradients '0:5,10:95;0:5,30:95' \\
+      --column 150x4.6 --flow 1.0 --dwell 0.8 --window-svg window.svg";
+
+/// `transfer` help footer.
+pub const TRANSFER_HELP: &str = "\
+Check the predicted pressure against the column's and the system's limits before running.
+
+Example:
+  phasewise transfer --from 150x4.6 --from-particle 5 --to 100x2.1 --to-particle 1.8 \\
+      --flow 1.0 --gradient '0:5,20:95' --dwell-from 1.0 --dwell-to 0.2 --injection 10";
+
+/// `model` help footer.
+pub const MODEL_HELP: &str = "Example:\n  phasewise model eval --format markdown";
+
+const MODEL_TRAIN_HELP: &str = "\
+Without --systems/--retention the tables are read from ../shared/data/retention/ when they
+exist there. Same tables and seed give byte-identical output files.
+
+Example:
+  phasewise model train --systems systems.tsv --retention retention.tsv --seed 42";
+
+const MODEL_EVAL_HELP: &str = "\
+Example:
+  phasewise model eval --systems systems.tsv --retention retention.tsv --folds 5 --format json";
+
+/// Where `model train`/`model eval` look for the tables when no path is given (relative to the
+/// working directory; the layout of the project's shared data folder).
+const SHARED_RETENTION_DIR: &str = "../shared/data/retention";
+
+/// Plate number assumed by `scout` when neither `--plates` nor `--particle` is given (common
+/// practice, no source: a typical value for a 150 mm column of 5 µm particles).
+const DEFAULT_PLATES: f64 = 10_000.0;
+
+// ---------------------------------------------------------------------------------------------
+// Column geometry `LxID`.
+
+/// A column's length and inner diameter, both in mm, as written `150x4.6`.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub(crate) struct ColumnSize {
+    /// Length, mm.
+    pub(crate) length_mm: f64,
+    /// Inner diameter, mm.
+    pub(crate) inner_diameter_mm: f64,
+}
+
+/// Why a column text could not be read.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+pub(crate) enum ColumnSpecError {
+    /// Not two numbers around an `x`.
+    #[error(
+        "column `{text}` is not LENGTHxID in mm: write length and inner diameter around an `x`, e.g. `150x4.6`"
+    )]
+    Malformed {
+        /// The text given.
+        text: String,
+    },
+    /// One part is not a number.
+    #[error("column `{text}`: {part} `{value}` is not a number (write e.g. `150x4.6`, in mm)")]
+    BadNumber {
+        /// The text given.
+        text: String,
+        /// `length` or `inner diameter`.
+        part: &'static str,
+        /// The offending part.
+        value: String,
+    },
+    /// One part is zero, negative or not finite.
+    #[error("column `{text}`: {part} {value} mm must be a finite number greater than zero")]
+    NotPositive {
+        /// The text given.
+        text: String,
+        /// `length` or `inner diameter`.
+        part: &'static str,
+        /// The value.
+        value: f64,
+    },
+}
+
+/// Parses `LxID` in mm: `150x4.6`, `150 x 4.6`, `150X4.6`, `150×4.6`, optionally followed by
+/// `mm`.
+pub(crate) fn parse_column(text: &str) -> Result<ColumnSize, ColumnSpecError> {
+    let t = text.trim();
+    let t = t.strip_suffix("mm").unwrap_or(t).trim_end();
+    let parts: Vec<&str> = t.split(['x', 'X', '×']).collect();
+    if parts.len() != 2 {
+        return Err(ColumnSpecError::Malformed { text: text.into() });
+    }
+    let number = |part: &'static str, s: &str| -> Result<f64, ColumnSpecError> {
+        let s = s.trim();
+        if s.is_empty() {
+            return Err(ColumnSpecError::Malformed { text: text.into() });
+        }
+        let v: f64 = s.parse().map_err(|_| ColumnSpecError::BadNumber {
+            text: text.into(),
+            part,
+            value: s.into(),
+        })?;
+        if v.is_finite() && v > 0.0 {
+            Ok(v)
+        } else {
+            Err(ColumnSpecError::NotPositive {
+                text: text.into(),
+                part,
+                value: v,
+            })
+        }
+    };
+    Ok(ColumnSize {
+        length_mm: number("length", parts[0])?,
+        inner_diameter_mm: number("inner diameter", parts[1])?,
+    })
+}
+
+impl FromStr for ColumnSize {
+    type Err = ColumnSpecError;
+    fn from_str(s: &str) -> Result<Self, Self::Err> {
+        parse_column(s)
+    }
+}
+
+impl fmt::Display for ColumnSize {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        write!(f, "{} mm × {} mm", self.length_mm, self.inner_diameter_mm)
+    }
+}
+
+fn column_arg(s: &str) -> Result<ColumnSize, String> {
+    parse_column(s).map_err(|e| e.to_string())
+}
+
+/// Two peak names `A,B`.
+fn pair_arg(s: &str) -> Result<[String; 2], String> {
+    let mut it = s.splitn(2, ',').map(str::trim);
+    match (it.next(), it.next()) {
+        (Some(a), Some(b)) if !a.is_empty() && !b.is_empty() => Ok([a.into(), b.into()]),
+        _ => Err(format!(
+            "`{s}` is not a pair of peak names: write `first,second`"
+        )),
+    }
+}
+
+/// A closed range `MIN,MAX`.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub(crate) struct NumberRange {
+    min: f64,
+    max: f64,
+}
+
+fn range_arg(s: &str) -> Result<NumberRange, String> {
+    let parts: Vec<&str> = s.split(',').map(str::trim).collect();
+    if parts.len() != 2 {
+        return Err(format!(
+            "`{s}` is not a range: write `MIN,MAX`, e.g. `5,60`"
+        ));
+    }
+    let num = |p: &str| -> Result<f64, String> {
+        p.parse::<f64>()
+            .ok()
+            .filter(|v| v.is_finite())
+            .ok_or_else(|| format!("`{p}` in range `{s}` is not a finite number"))
+    };
+    let (min, max) = (num(parts[0])?, num(parts[1])?);
+    if min > max {
+        return Err(format!(
+            "range `{s}`: the lower end {min} is above the upper end {max}"
+        ));
+    }
+    Ok(NumberRange { min, max })
+}
+
+// ---------------------------------------------------------------------------------------------
+// Shared helpers.
+
+fn read_text(path: &Path) -> Result<String> {
+    if path.as_os_str() == "-" {
+        let mut s = String::new();
+        std::io::stdin()
+            .read_to_string(&mut s)
+            .context("reading stdin")?;
+        return Ok(s);
+    }
+    std::fs::read_to_string(path).with_context(|| format!("reading {}", path.display()))
+}
+
+fn read_peaks(path: &Path) -> Result<PeakTable> {
+    let text = read_text(path)?;
+    PeakTable::parse(&text).with_context(|| format!("peak table {}", path.display()))
+}
+
+fn write_out(s: &str) -> Result<()> {
+    let mut out = std::io::stdout().lock();
+    out.write_all(s.as_bytes())?;
+    out.flush()?;
+    Ok(())
+}
+
+fn directory_of(path: &Path) -> PathBuf {
+    match path.parent() {
+        Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
+        _ => PathBuf::from("."),
+    }
+}
+
+fn file_name_of(path: &Path) -> Result<String> {
+    path.file_name()
+        .map(|n| n.to_string_lossy().into_owned())
+        .with_context(|| format!("output path `{}` does not name a file", path.display()))
+}
+
+/// Fails early when `path` cannot be written: its directory must exist and accept a new file.
+fn check_writable(path: &Path) -> Result<()> {
+    let dir = directory_of(path);
+    let name = file_name_of(path)?;
+    if !dir.is_dir() {
+        bail!(
+            "cannot write {}: directory {} does not exist",
+            path.display(),
+            dir.display()
+        );
+    }
+    let probe = dir.join(format!(".{name}.probe-{}", std::process::id()));
+    std::fs::OpenOptions::new()
+        .write(true)
+        .create_new(true)
+        .open(&probe)
+        .with_context(|| {
+            format!(
+                "cannot write {}: directory {} is not writable",
+                path.display(),
+                dir.display()
+            )
+        })?;
+    // The probe is ours; failing to remove it is harmless.
+    let _ = std::fs::remove_file(&probe);
+    Ok(())
+}
+
+/// Writes a file in one step: a temporary file in the same directory, then a rename, so a
+/// reader never sees half a file.
+fn write_atomic(path: &Path, bytes: &[u8]) -> Result<()> {
+    let dir = directory_of(path);
+    let name = file_name_of(path)?;
+    let tmp = dir.join(format!(".{name}.tmp-{}", std::process::id()));
+    let result = std::fs::write(&tmp, bytes)
+        .and_then(|()| std::fs::rename(&tmp, path))
+        .with_context(|| format!("writing {}", path.display()));
+    if result.is_err() {
+        let _ = std::fs::remove_file(&tmp);
+    }
+    result
+}
+
+fn dead_time_input(
+    t0: Option<f64>,
+    column: Option<ColumnSize>,
+    flow: Option<f64>,
+) -> Result<DeadTimeInput> {
+    match (t0, column, flow) {
+        (Some(t), None, _) => Ok(DeadTimeInput::Given { dead_time_min: t }),
+        (None, Some(c), Some(f)) => Ok(DeadTimeInput::FromColumn {
+            column_length_mm: c.length_mm,
+            inner_diameter_mm: c.inner_diameter_mm,
+            flow_ml_min: f,
+        }),
+        (None, Some(_), None) => bail!("--column needs --flow (mL/min) to estimate t0"),
+        (Some(_), Some(_), _) => bail!("give either --t0 or --column with --flow, not both"),
+        (None, None, _) => {
+            bail!("the dead time is needed: give --t0 MIN, or --column LxID with --flow ML_MIN")
+        }
+    }
+}
+
+/// Formats an optional number with `d` decimals; a dash when absent or not finite.
+fn num(v: Option<f64>, d: usize) -> String {
+    match v {
+        Some(x) if x.is_finite() => format!("{x:.d$}"),
+        _ => "–".into(),
+    }
+}
+
+/// The snake_case label serde gives a unit enum variant.
+fn label<T: Serialize>(t: &T) -> String {
+    match serde_json::to_value(t) {
+        Ok(serde_json::Value::String(s)) => s,
+        Ok(v) => v.to_string(),
+        Err(_) => "?".into(),
+    }
+}
+
+fn csv_field(s: &str) -> String {
+    if s.contains([',', '"', '\n', '\r']) {
+        format!("\"{}\"", s.replace('"', "\"\""))
+    } else {
+        s.to_string()
+    }
+}
+
+fn csv_block(title: &str, header: &[&str], rows: &[Vec<String>]) -> String {
+    let mut s = format!("# {title}\n");
+    s.push_str(
+        &header
+            .iter()
+            .map(|h| csv_field(h))
+            .collect::<Vec<_>>()
+            .join(","),
+    );
+    s.push('\n');
+    for r in rows {
+        s.push_str(&r.iter().map(|c| csv_field(c)).collect::<Vec<_>>().join(","));
+        s.push('\n');
+    }
+    s
+}
+
+fn json_line<T: Serialize>(v: &T) -> Result<String> {
+    Ok(format!("{}\n", serde_json::to_string_pretty(v)?))
+}
+
+// ---------------------------------------------------------------------------------------------
+// suitability
+
+/// Output formats of `suitability`.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum SuitabilityFormat {
+    /// Aligned tables.
+    Table,
+    /// JSON: the report with `schema_version`.
+    Json,
+    /// Comma-separated blocks (peaks, pairs, checks), each after a `# title` line.
+    Csv,
+}
+
+/// `suitability` options.
+#[derive(Debug, Args)]
+pub struct SuitabilityArgs {
+    /// Peak table (CSV or TSV with a header line; `-` reads stdin). Times in minutes.
+    #[arg(value_name = "PEAKS")]
+    pub peaks: PathBuf,
+    /// Dead time t0, min (e.g. from an unretained marker).
+    #[arg(long, value_name = "MIN", conflicts_with = "column")]
+    pub t0: Option<f64>,
+    /// Column as LENGTHxID in mm (e.g. `150x4.6`): t0 is estimated with Vm ≈ 0.5·L·dc².
+    #[arg(long, value_name = "LxID", value_parser = column_arg, requires = "flow")]
+    pub column: Option<ColumnSize>,
+    /// Flow rate, mL/min (with --column).
+    #[arg(long, value_name = "ML_MIN", requires = "column")]
+    pub flow: Option<f64>,
+    /// Column length, mm, for the plate height (default: the length in --column).
+    #[arg(long, value_name = "L")]
+    pub length_mm: Option<f64>,
+    /// Check resolution only for this pair of peaks, `first,second`.
+    #[arg(long, value_name = "A,B", value_parser = pair_arg)]
+    pub critical: Option<[String; 2]>,
+    /// Minimum resolution Rs.
+    #[arg(long, value_name = "RS", default_value_t = 1.5)]
+    pub min_resolution: f64,
+    /// Acceptable retention-factor range, `MIN,MAX`.
+    #[arg(long, value_name = "MIN,MAX", value_parser = range_arg, default_value = "1,10")]
+    pub k_range: NumberRange,
+    /// Highest acceptable USP tailing.
+    #[arg(long, value_name = "T", default_value_t = 2.0)]
+    pub max_tailing: f64,
+    /// Minimum plate number (none by default).
+    #[arg(long, value_name = "N")]
+    pub min_plates: Option<f64>,
+    /// Leave a peak out (e.g. the t0 marker); repeatable.
+    #[arg(long, value_name = "NAME")]
+    pub exclude: Vec<String>,
+    /// Output format.
+    #[arg(long, short, value_enum, default_value_t = SuitabilityFormat::Table)]
+    pub format: SuitabilityFormat,
+}
+
+/// JSON output of `suitability` (schema version 1: the library report plus the file name).
+#[derive(Serialize)]
+struct SuitabilityJson<'a> {
+    schema_version: u32,
+    peak_table: String,
+    #[serde(flatten)]
+    report: &'a SuitabilityReport,
+}
+
+/// Runs `phasewise suitability`.
+pub fn run_suitability(a: &SuitabilityArgs) -> Result<ExitCode> {
+    let dead_time = dead_time_input(a.t0, a.column, a.flow)?;
+    let peaks = read_peaks(&a.peaks)?;
+    let req = SuitabilityRequest {
+        peaks,
+        dead_time,
+        column_length_mm: a.length_mm.or(a.column.map(|c| c.length_mm)),
+        exclude: a.exclude.clone(),
+        targets: SuitabilityTargets {
+            min_resolution: a.min_resolution,
+            critical_pair: a.critical.clone(),
+            min_retention_factor: a.k_range.min,
+            max_retention_factor: a.k_range.max,
+            max_tailing: a.max_tailing,
+            min_plates: a.min_plates,
+        },
+    };
+    let report = evaluate(&req).with_context(|| format!("evaluating {}", a.peaks.display()))?;
+    let text = match a.format {
+        SuitabilityFormat::Json => json_line(&SuitabilityJson {
+            schema_version: 1,
+            peak_table: a.peaks.display().to_string(),
+            report: &report,
+        })?,
+        SuitabilityFormat::Table => suitability_table(&report),
+        SuitabilityFormat::Csv => suitability_csv(&report),
+    };
+    write_out(&text)?;
+    Ok(if report.passed {
+        ExitCode::SUCCESS
+    } else {
+        ExitCode::from(EXIT_PARTIAL)
+    })
+}
+
+const PEAK_HEADER: [&str; 9] = [
+    "peak",
+    "tR (min)",
+    "k (–)",
+    "N half-height (–)",
+    "N base (–)",
+    "H (µm)",
+    "USP tailing (–)",
+    "asymmetry (–)",
+    "area (%)",
+];
+const PAIR_HEADER: [&str; 5] = [
+    "first",
+    "second",
+    "selectivity α (–)",
+    "resolution Rs (–)",
+    "Rs from",
+];
+const CHECK_HEADER: [&str; 6] = [
+    "check",
+    "subject",
+    "value (–)",
+    "limit (–)",
+    "result",
+    "limit source",
+];
+
+fn criterion_text(c: Criterion) -> &'static str {
+    match c {
+        Criterion::MinResolution => "Rs ≥ limit",
+        Criterion::MinRetentionFactor => "k ≥ limit",
+        Criterion::MaxRetentionFactor => "k ≤ limit",
+        Criterion::MaxTailing => "tailing ≤ limit",
+        Criterion::MinPlates => "N ≥ limit",
+    }
+}
+
+fn outcome_text(o: Outcome) -> &'static str {
+    match o {
+        Outcome::Pass => "pass",
+        Outcome::Fail => "FAIL",
+        Outcome::NotEvaluated => "not evaluated",
+    }
+}
+
+fn suitability_rows(r: &SuitabilityReport) -> [Vec<Vec<String>>; 3] {
+    let peaks = r
+        .peaks
+        .iter()
+        .map(|p| {
+            vec![
+                p.name.clone(),
+                num(Some(p.retention_time_min), 3),
+                num(Some(p.retention_factor), 3),
+                num(p.plates_half_height, 0),
+                num(p.plates_base, 0),
+                num(p.plate_height_um, 2),
+                num(p.usp_tailing, 2),
+                num(p.asymmetry, 2),
+                num(p.area_pct, 2),
+            ]
+        })
+        .collect();
+    let pairs = r
+        .pairs
+        .iter()
+        .map(|p| {
+            vec![
+                p.first.clone(),
+                p.second.clone(),
+                num(p.selectivity, 3),
+                num(Some(p.resolution), 2),
+                label(&p.resolution_basis),
+            ]
+        })
+        .collect();
+    let checks = r
+        .checks
+        .iter()
+        .map(|c| {
+            vec![
+                criterion_text(c.criterion).into(),
+                c.subject.clone(),
+                num(c.value, 2),
+                num(Some(c.limit), 2),
+                outcome_text(c.outcome).into(),
+                c.limit_source.clone(),
+            ]
+        })
+        .collect();
+    [peaks, pairs, checks]
+}
+
+fn suitability_table(r: &SuitabilityReport) -> String {
+    let [peaks, pairs, checks] = suitability_rows(r);
+    let mut s = format!(
+        "Dead time t0 = {:.3} min ({})\n\nPeaks, in retention order ((–) = dimensionless):\n",
+        r.dead_time_min, r.dead_time_source
+    );
+    s.push_str(&render(&PEAK_HEADER, &peaks));
+    s.push_str("\n\nAdjacent pairs:\n");
+    if pairs.is_empty() {
+        s.push_str("(one peak only: no pairs)\n");
+    } else {
+        s.push_str(&render(&PAIR_HEADER, &pairs));
+        s.push('\n');
+    }
+    s.push_str("\nChecks:\n");
+    s.push_str(&render(&CHECK_HEADER, &checks));
+    let failed = r
+        .checks
+        .iter()
+        .filter(|c| c.outcome == Outcome::Fail)
+        .count();
+    s.push_str(&format!(
+        "\n\nResult: {} ({} checks, {} failed, {} not evaluated)\n",
+        if r.passed { "PASS" } else { "FAIL" },
+        r.checks.len(),
+        failed,
+        r.not_evaluated
+    ));
+    for n in &r.notes {
+        s.push_str(&format!("note: {n}\n"));
+    }
+    s.push_str(
+        "note: limits are starting points; the validated method, the lab's SOPs and the \
+         applicable pharmacopoeial chapter take precedence.\n",
+    );
+    s
+}
+
+fn suitability_csv(r: &SuitabilityReport) -> String {
+    let [peaks, pairs, checks] = suitability_rows(r);
+    let mut s = csv_block("peaks", &PEAK_HEADER, &peaks);
+    s.push('\n');
+    s.push_str(&csv_block("pairs", &PAIR_HEADER, &pairs));
+    s.push('\n');
+    s.push_str(&csv_block("checks", &CHECK_HEADER, &checks));
+    s
+}
+
+// ---------------------------------------------------------------------------------------------
+// scout
+
+/// Output formats of `scout` and `transfer`.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum ReportFormat {
+    /// Aligned tables.
+    Table,
+    /// JSON with `schema_version`.
+    Json,
+}
+
+/// `scout` options.
+#[derive(Debug, Args)]
+pub struct ScoutArgs {
+    /// Peak tables of the scouting runs (same sample and flow, different gradients), 2 or more.
+    #[arg(value_name = "RUN", num_args = 2.., required = true)]
+    pub runs: Vec<PathBuf>,
+    /// Gradient programs, one per run in the same order, separated by `;`:
+    /// `0:5,10:95;0:5,30:95` (time min : % organic).
+    #[arg(long, value_name = "PROGRAMS")]
+    pub gradients: String,
+    /// Dead time t0, min.
+    #[arg(long, value_name = "MIN", conflicts_with = "column")]
+    pub t0: Option<f64>,
+    /// Column as LENGTHxID in mm (e.g. `150x4.6`): t0 is estimated with Vm ≈ 0.5·L·dc².
+    #[arg(long, value_name = "LxID", value_parser = column_arg, requires = "flow")]
+    pub column: Option<ColumnSize>,
+    /// Flow rate, mL/min (needed with --column, and with --t0 when --dwell is not zero).
+    #[arg(long, value_name = "ML_MIN")]
+    pub flow: Option<f64>,
+    /// Dwell (gradient delay) volume, mL.
+    #[arg(long, value_name = "ML", default_value_t = 0.0)]
+    pub dwell: f64,
+    /// Allowed gradient time, `MIN,MAX` in min.
+    #[arg(long, value_name = "MIN,MAX", value_parser = range_arg, default_value = "5,60")]
+    pub tg_range: NumberRange,
+    /// Allowed initial composition, `MIN,MAX` in % organic.
+    #[arg(long, value_name = "MIN,MAX", value_parser = range_arg, default_value = "5,40")]
+    pub start_range: NumberRange,
+    /// Allowed final composition, `MIN,MAX` in % organic.
+    #[arg(long, value_name = "MIN,MAX", value_parser = range_arg, default_value = "60,95")]
+    pub end_range: NumberRange,
+    /// Latest allowed elution of the last peak, min.
+    #[arg(long, value_name = "MIN", default_value_t = 60.0)]
+    pub max_run_time: f64,
+    /// Optimise only this pair's resolution, `first,second`; repeatable.
+    #[arg(long, value_name = "A,B", value_parser = pair_arg)]
+    pub critical: Vec<[String; 2]>,
+    /// Plate number for predicted widths (default: from --particle and the column length, else
+    /// 10 000 assumed).
+    #[arg(long, value_name = "N", conflicts_with = "particle")]
+    pub plates: Option<f64>,
+    /// Particle size, µm: estimate N = L/(2.5·dp) from it and the --column length.
+    #[arg(long, value_name = "UM", requires = "column")]
+    pub particle: Option<f64>,
+    /// Resolution target drawn in the window diagram.
+    #[arg(long, value_name = "RS", default_value_t = 1.5)]
+    pub target_resolution: f64,
+    /// Also try a two-segment gradient.
+    #[arg(long)]
+    pub two_segment: bool,
+    /// Write the window diagram (smallest Rs versus gradient time) as SVG.
+    #[arg(long, value_name = "FILE")]
+    pub window_svg: Option<PathBuf>,
+    /// Write the window diagram data as TSV.
+    #[arg(long, value_name = "FILE")]
+    pub window_data: Option<PathBuf>,
+    /// Output format.
+    #[arg(long, short, value_enum, default_value_t = ReportFormat::Table)]
+    pub format: ReportFormat,
+}
+
+/// JSON output of `scout` (schema version 1).
+#[derive(Serialize)]
+struct ScoutJson<'a> {
+    schema_version: u32,
+    /// Where the plate number for widths came from.
+    plates_source: String,
+    fit: &'a ScoutFit,
+    optimisation: &'a OptimiseReport,
+}
+
+fn split_programs(spec: &str, runs: usize) -> Result<Vec<GradientProgram>> {
+    let parts: Vec<&str> = spec.split(';').map(str::trim).collect();
+    if parts.len() != runs {
+        bail!(
+            "--gradients gives {} program(s) (`{spec}`) for {runs} run files; give one per run, separated by `;`",
+            parts.len()
+        );
+    }
+    parts
+        .iter()
+        .enumerate()
+        .map(|(i, p)| {
+            GradientProgram::parse(p)
+                .with_context(|| format!("gradient program {} `{p}` in --gradients", i + 1))
+        })
+        .collect()
+}
+
+/// Runs `phasewise scout`.
+pub fn run_scout(a: &ScoutArgs) -> Result<ExitCode> {
+    let dead_time = dead_time_input(a.t0, a.column, a.flow)?;
+    let programs = split_programs(&a.gradients, a.runs.len())?;
+    for out in a.window_svg.iter().chain(a.window_data.iter()) {
+        check_writable(out)?;
+    }
+    let (plates, plates_source) = match (a.plates, a.particle, a.column) {
+        (Some(n), _, _) => (PlateSource::Given { plates: n }, format!("given: {n}")),
+        (None, Some(dp), Some(c)) => (
+            PlateSource::Estimated {
+                column_length_mm: c.length_mm,
+                particle_size_um: dp,
+            },
+            format!(
+                "estimated N = L/(2.5·dp) for L = {} mm, dp = {dp} µm",
+                c.length_mm
+            ),
+        ),
+        _ => (
+            PlateSource::Given {
+                plates: DEFAULT_PLATES,
+            },
+            format!(
+                "assumed {DEFAULT_PLATES} (common practice, no source); give --plates or --particle"
+            ),
+        ),
+    };
+    let mut runs = Vec::new();
+    for (path, program) in a.runs.iter().zip(programs) {
+        runs.push(ScoutRun {
+            name: path.file_name().map_or_else(
+                || path.display().to_string(),
+                |n| n.to_string_lossy().into(),
+            ),
+            program,
+            peaks: read_peaks(path)?,
+        });
+    }
+    let fitted = fit(&ScoutRequest {
+        runs,
+        dead_time,
+        dwell_volume_ml: a.dwell,
+        flow_ml_min: a.flow,
+    })
+    .context("fitting log kw and S to the scouting runs")?;
+    let req = OptimiseRequest {
+        analytes: OptimiseRequest::analytes_from_fit(&fitted),
+        dead_time_min: fitted.dead_time_min,
+        dwell_time_min: fitted.dwell_time_min,
+        plates,
+        gradient_time_min: Range {
+            min: a.tg_range.min,
+            max: a.tg_range.max,
+        },
+        initial_pct: Range {
+            min: a.start_range.min,
+            max: a.start_range.max,
+        },
+        final_pct: Range {
+            min: a.end_range.min,
+            max: a.end_range.max,
+        },
+        max_run_time_min: a.max_run_time,
+        critical_pairs: a.critical.clone(),
+        two_segment: a.two_segment,
+        target_resolution: a.target_resolution,
+        gradient_time_steps: 25,
+        composition_step_pct: 5.0,
+    };
+    let report = optimise(&req).context("optimising the gradient")?;
+    let text = match a.format {
+        ReportFormat::Json => json_line(&ScoutJson {
+            schema_version: 1,
+            plates_source: plates_source.clone(),
+            fit: &fitted,
+            optimisation: &report,
+        })?,
+        ReportFormat::Table => scout_table(&fitted, &report, &plates_source),
+    };
+    if let Some(p) = &a.window_svg {
+        write_atomic(p, render_window_svg(&report.window).as_bytes())?;
+    }
+    if let Some(p) = &a.window_data {
+        write_atomic(p, window_tsv(&report).as_bytes())?;
+    }
+    write_out(&text)?;
+    Ok(ExitCode::SUCCESS)
+}
+
+fn flag_text(f: &FitFlag) -> String {
+    match f {
+        FitFlag::SOutsideRange { s } => format!("S {s:.2} outside 1–60"),
+        FitFlag::ElutedBeforeGradient { run } => format!("eluted before the gradient in {run}"),
+        FitFlag::ElutedAfterGradient { run } => format!("eluted after the gradient in {run}"),
+        FitFlag::LargeResidual { rms_min } => format!("large residual {rms_min:.3} min"),
+        FitFlag::IllConditioned {
+            s_relative_uncertainty,
+        } => format!(
+            "ill-conditioned (σS/S = {:.0} %)",
+            100.0 * s_relative_uncertainty
+        ),
+        FitFlag::NotConverged => "not converged".into(),
+    }
+}
+
+fn prediction_table(p: &Prediction) -> String {
+    let peaks: Vec<Vec<String>> = p
+        .peaks
+        .iter()
+        .map(|k| {
+            vec![
+                k.name.clone(),
+                num(Some(k.retention_time_min), 2),
+                num(k.retention_time_uncertainty_min, 2),
+                num(Some(k.width_base_min), 3),
+                num(Some(k.organic_at_elution_pct), 1),
+                label(&k.phase),
+            ]
+        })
+        .collect();
+    let pairs: Vec<Vec<String>> = p
+        .pairs
+        .iter()
+        .map(|q| {
+            let critical = q.first == p.critical_pair[0] && q.second == p.critical_pair[1];
+            vec![
+                q.first.clone(),
+                q.second.clone(),
+                num(Some(q.resolution), 2),
+                if critical {
+                    "critical".into()
+                } else {
+                    String::new()
+                },
+            ]
+        })
+        .collect();
+    let mut s = format!(
+        "program {} (time min : % organic); last peak at {:.2} min; smallest Rs {:.2} ({} / {})\n",
+        p.program.to_spec(),
+        p.run_time_min,
+        p.min_resolution,
+        p.critical_pair[0],
+        p.critical_pair[1]
+    );
+    s.push_str(&render(
+        &[
+            "analyte",
+            "predicted tR (min)",
+            "±1σ tR (min)",
+            "base width (min)",
+            "organic at elution (%)",
+            "elutes",
+        ],
+        &peaks,
+    ));
+    s.push('\n');
+    s.push_str(&render(
+        &["first", "second", "predicted Rs (–)", ""],
+        &pairs,
+    ));
+    s.push('\n');
+    s
+}
+
+fn scout_table(f: &ScoutFit, r: &OptimiseReport, plates_source: &str) -> String {
+    let rows: Vec<Vec<String>> = f
+        .analytes
+        .iter()
+        .map(|a| {
+            vec![
+                a.name.clone(),
+                num(Some(a.log_kw), 3),
+                num(Some(a.log_kw_uncertainty), 3),
+                num(Some(a.s), 3),
+                num(Some(a.s_uncertainty), 3),
+                num(Some(a.rms_residual_min), 4),
+                a.flags.iter().map(flag_text).collect::<Vec<_>>().join("; "),
+            ]
+        })
+        .collect();
+    let mut s = format!(
+        "Scouting fit over {} runs ({}); t0 = {:.3} min, dwell time = {:.3} min\n",
+        f.runs.len(),
+        f.runs.join(", "),
+        f.dead_time_min,
+        f.dwell_time_min
+    );
+    s.push_str(&render(
+        &[
+            "analyte",
+            "log kw (–)",
+            "±1σ log kw (–)",
+            "S (–)",
+            "±1σ S (–)",
+            "RMS residual (min)",
+            "flags",
+        ],
+        &rows,
+    ));
+    s.push_str(&format!(
+        "\n\nOptimum: initial {:.1} %, final {:.1} % organic over {:.2} min; plate number {:.0} ({plates_source}); {} conditions evaluated\n",
+        r.initial_pct, r.final_pct, r.gradient_time_min, r.plates_used, r.evaluated_conditions
+    ));
+    if let Some(k) = &r.knee {
+        s.push_str(&format!(
+            "two-segment knee at {:.2} min, {:.1} % organic\n",
+            k.time_min, k.organic_pct
+        ));
+    }
+    s.push_str(&format!(
+        "target Rs {:.2}: {}\n",
+        r.window.target_resolution,
+        if r.meets_target { "met" } else { "NOT met" }
+    ));
+    s.push_str(&prediction_table(&r.optimum));
+    if let Some(p) = &r.rounded {
+        s.push_str("\nRounded program, predicted again:\n");
+        s.push_str(&prediction_table(p));
+    }
+    for n in &r.notes {
+        s.push_str(&format!("note: {n}\n"));
+    }
+    s.push_str(
+        "note: predictions from a two-parameter retention model; verify the conditions by a run.\n",
+    );
+    s
+}
+
+fn window_tsv(r: &OptimiseReport) -> String {
+    let w = &r.window;
+    let mut s = format!(
+        "# window diagram at {} % → {} % organic; target Rs {}; optimum tG {} min\n",
+        w.initial_pct, w.final_pct, w.target_resolution, w.optimum_gradient_time_min
+    );
+    s.push_str(
+        "gradient_time_min\tmin_resolution\tcritical_first\tcritical_second\trun_time_min\twithin_run_time\n",
+    );
+    for p in &w.points {
+        s.push_str(&format!(
+            "{}\t{}\t{}\t{}\t{}\t{}\n",
+            p.gradient_time_min,
+            p.min_resolution,
+            p.critical_pair[0],
+            p.critical_pair[1],
+            p.run_time_min,
+            p.within_run_time
+        ));
+    }
+    s
+}
+
+// ---------------------------------------------------------------------------------------------
+// transfer
+
+/// `transfer` options.
+#[derive(Debug, Args)]
+pub struct TransferArgs {
+    /// Column of the existing method, LENGTHxID in mm.
+    #[arg(long, value_name = "LxID", value_parser = column_arg)]
+    pub from: ColumnSize,
+    /// Particle size of the existing column, µm.
+    #[arg(long, value_name = "UM")]
+    pub from_particle: f64,
+    /// Target column, LENGTHxID in mm.
+    #[arg(long, value_name = "LxID", value_parser = column_arg)]
+    pub to: ColumnSize,
+    /// Particle size of the target column, µm.
+    #[arg(long, value_name = "UM")]
+    pub to_particle: f64,
+    /// Flow of the existing method, mL/min.
+    #[arg(long, value_name = "ML_MIN")]
+    pub flow: f64,
+    /// Gradient program of the existing method, `time:%organic,...`.
+    #[arg(long, value_name = "PROGRAM")]
+    pub gradient: String,
+    /// Dwell volume of the existing system, mL.
+    #[arg(long, value_name = "ML", requires = "dwell_to")]
+    pub dwell_from: Option<f64>,
+    /// Dwell volume of the target system, mL.
+    #[arg(long, value_name = "ML", requires = "dwell_from")]
+    pub dwell_to: Option<f64>,
+    /// Injection volume of the existing method, µL.
+    #[arg(long, value_name = "UL")]
+    pub injection: Option<f64>,
+    /// Run time of the existing method, min (default: end of the program).
+    #[arg(long, value_name = "MIN")]
+    pub run_time: Option<f64>,
+    /// Also scale the flow by dp1/dp2 (same reduced velocity) instead of the same linear velocity.
+    #[arg(long)]
+    pub scale_flow_for_particle: bool,
+    /// Output format.
+    #[arg(long, short, value_enum, default_value_t = ReportFormat::Table)]
+    pub format: ReportFormat,
+}
+
+/// JSON output of `transfer` (schema version 1).
+#[derive(Serialize)]
+struct TransferJson<'a> {
+    schema_version: u32,
+    original: ColumnGeometry,
+    target: ColumnGeometry,
+    original_flow_ml_min: f64,
+    original_program: String,
+    #[serde(flatten)]
+    report: &'a TransferReport,
+    regulatory_note: &'static str,
+}
+
+const REGULATORY_NOTE: &str = "General pharmacopoeial chromatography chapters allow limited \
+adjustments of a validated method (column dimensions, particle size, flow, gradient times) in \
+general terms; whether this transfer is an allowed adjustment or a method change is decided by \
+the applicable chapter and the lab's procedures.";
+
+/// Runs `phasewise transfer`.
+pub fn run_transfer(a: &TransferArgs) -> Result<ExitCode> {
+    let program = GradientProgram::parse(&a.gradient)
+        .with_context(|| format!("--gradient `{}`", a.gradient))?;
+    let original = ColumnGeometry {
+        column_length_mm: a.from.length_mm,
+        inner_diameter_mm: a.from.inner_diameter_mm,
+        particle_size_um: a.from_particle,
+    };
+    let target = ColumnGeometry {
+        column_length_mm: a.to.length_mm,
+        inner_diameter_mm: a.to.inner_diameter_mm,
+        particle_size_um: a.to_particle,
+    };
+    let req = TransferRequest {
+        original,
+        target,
+        flow_ml_min: a.flow,
+        adjust_flow_for_particle_size: a.scale_flow_for_particle,
+        program: program.clone(),
+        injection_volume_ul: a.injection,
+        dwell_volume_original_ml: a.dwell_from.unwrap_or(0.0),
+        dwell_volume_target_ml: a.dwell_to.unwrap_or(0.0),
+        run_time_min: a.run_time,
+    };
+    let r = transfer(&req).context("scaling the method")?;
+    let text = match a.format {
+        ReportFormat::Json => json_line(&TransferJson {
+            schema_version: 1,
+            original,
+            target,
+            original_flow_ml_min: a.flow,
+            original_program: program.to_spec(),
+            report: &r,
+            regulatory_note: REGULATORY_NOTE,
+        })?,
+        ReportFormat::Table => transfer_table(a, &program, &r),
+    };
+    write_out(&text)?;
+    Ok(ExitCode::SUCCESS)
+}
+
+fn transfer_table(a: &TransferArgs, program: &GradientProgram, r: &TransferReport) -> String {
+    let v = |x: f64, d: usize| num(Some(x), d);
+    let rows = vec![
+        vec![
+            "column (mm)".into(),
+            format!("{}x{}", a.from.length_mm, a.from.inner_diameter_mm),
+            format!("{}x{}", a.to.length_mm, a.to.inner_diameter_mm),
+        ],
+        vec![
+            "particle size (µm)".into(),
+            a.from_particle.to_string(),
+            a.to_particle.to_string(),
+        ],
+        vec!["flow (mL/min)".into(), v(a.flow, 3), v(r.flow_ml_min, 3)],
+        vec![
+            "column dead volume Vm (mL)".into(),
+            v(r.dead_volume_original_ml, 3),
+            v(r.dead_volume_target_ml, 3),
+        ],
+        vec![
+            "injection volume (µL)".into(),
+            num(a.injection, 2),
+            num(r.injection_volume_ul, 2),
+        ],
+        vec![
+            "dwell volume (mL)".into(),
+            v(a.dwell_from.unwrap_or(0.0), 3),
+            v(a.dwell_to.unwrap_or(0.0), 3),
+        ],
+        vec![
+            "run time (min)".into(),
+            v(r.run_time_original_min, 2),
+            v(r.run_time_target_min, 2),
+        ],
+    ];
+    let mut s = render(&["quantity", "original", "target"], &rows);
+    s.push_str("\n\nTarget gradient program:\n");
+    let prog_rows: Vec<Vec<String>> = r
+        .program
+        .points()
+        .iter()
+        .map(|p| vec![v(p.time_min, 2), v(p.organic_pct, 1)])
+        .collect();
+    s.push_str(&render(&["time (min)", "organic (%)"], &prog_rows));
+    s.push_str(&format!("\n\nOriginal program: {}\n", program.to_spec()));
+    s.push_str(&format!(
+        "time scale factor (Vm2/Vm1)(F1/F2) = {:.4}; linear velocity ratio = {:.3}\n\
+         dwell correction: initial hold {:.2} min, injection delay {:.2} min\n\
+         expected plate number ratio N2/N1 = {:.3}; pressure ratio ΔP2/ΔP1 = {:.2}\n\
+         program delivers {:.1} column volumes\n",
+        r.time_scale_factor,
+        r.linear_velocity_ratio,
+        r.dwell_hold_min,
+        r.injection_delay_min,
+        r.plate_number_ratio,
+        r.pressure_ratio,
+        r.program_column_volumes
+    ));
+    for n in &r.notes {
+        s.push_str(&format!("note: {n}\n"));
+    }
+    // the library's notes usually carry the regulatory caveat already; never print it twice
+    if !r.notes.iter().any(|n| n.contains("pharmacopoeial")) {
+        s.push_str(&format!("note: {REGULATORY_NOTE}\n"));
+    }
+    s
+}
+
+// ---------------------------------------------------------------------------------------------
+// model
+
+/// Retention-model commands.
+#[derive(Debug, Subcommand)]
+pub enum ModelCommand {
+    /// Train the LC retention model and the retention memory from the open retention tables.
+    #[command(after_help = MODEL_TRAIN_HELP)]
+    Train(ModelTrainArgs),
+    /// Leave-whole-systems-out cross-validation of the model against a logP baseline.
+    #[command(after_help = MODEL_EVAL_HELP)]
+    Eval(ModelEvalArgs),
+}
+
+/// Where the training tables are.
+#[derive(Debug, Args)]
+pub struct TablePaths {
+    /// Systems table (TSV, plain or .gz).
+    #[arg(long, value_name = "PATH")]
+    pub systems: Option<PathBuf>,
+    /// Retention table (TSV, plain or .gz).
+    #[arg(long, value_name = "PATH")]
+    pub retention: Option<PathBuf>,
+}
+
+/// `model train` options.
+#[derive(Debug, Args)]
+pub struct ModelTrainArgs {
+    /// Input tables.
+    #[command(flatten)]
+    pub tables: TablePaths,
+    /// Random seed (fold assignment and subsampling).
+    #[arg(long, default_value_t = 42)]
+    pub seed: u64,
+    /// Model file to write.
+    #[arg(long, value_name = "PATH", default_value = "data/lc_model.json.gz")]
+    pub output: PathBuf,
+    /// Retention memory file to write.
+    #[arg(
+        long,
+        value_name = "PATH",
+        default_value = "data/retention_memory.tsv.gz"
+    )]
+    pub memory_output: PathBuf,
+}
+
+/// Output formats of `model eval`.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum EvalFormat {
+    /// Aligned table of medians and quartiles.
+    Table,
+    /// The full report as JSON.
+    Json,
+    /// Markdown (as in docs/model.md).
+    Markdown,
+}
+
+/// `model eval` options.
+#[derive(Debug, Args)]
+pub struct ModelEvalArgs {
+    /// Input tables.
+    #[command(flatten)]
+    pub tables: TablePaths,
+    /// Number of folds over systems.
+    #[arg(long, default_value_t = 5)]
+    pub folds: usize,
+    /// Random seed.
+    #[arg(long, default_value_t = 42)]
+    pub seed: u64,
+    /// Output format.
+    #[arg(long, short, value_enum, default_value_t = EvalFormat::Table)]
+    pub format: EvalFormat,
+}
+
+fn table_path(given: Option<&PathBuf>, flag: &str, file: &str) -> Result<PathBuf> {
+    if let Some(p) = given {
+        return Ok(p.clone());
+    }
+    let shared = Path::new(SHARED_RETENTION_DIR).join(file);
+    if shared.is_file() {
+        Ok(shared)
+    } else {
+        bail!(
+            "no {flag} given and {} does not exist here; pass {flag} PATH",
+            shared.display()
+        )
+    }
+}
+
+fn load_tables(t: &TablePaths) -> Result<TrainingData> {
+    let systems = table_path(t.systems.as_ref(), "--systems", "systems.tsv")?;
+    let retention = table_path(t.retention.as_ref(), "--retention", "retention.tsv")?;
+    eprintln!(
+        "loading {} and {} (descriptors from structure)…",
+        systems.display(),
+        retention.display()
+    );
+    let data =
+        TrainingData::load(&systems, &retention, &PhasewiseDescriptors).with_context(|| {
+            format!(
+                "loading the retention tables {} and {}",
+                systems.display(),
+                retention.display()
+            )
+        })?;
+    eprintln!(
+        "loaded {} rows over {} systems ({} analytes); skipped {:?}",
+        data.rows.len(),
+        data.systems.len(),
+        data.analytes.len(),
+        data.skipped
+    );
+    Ok(data)
+}
+
+/// Runs `phasewise model …`.
+pub fn run_model(c: &ModelCommand) -> Result<ExitCode> {
+    match c {
+        ModelCommand::Train(a) => run_model_train(a),
+        ModelCommand::Eval(a) => run_model_eval(a),
+    }
+}
+
+fn run_model_train(a: &ModelTrainArgs) -> Result<ExitCode> {
+    if a.output == a.memory_output {
+        bail!(
+            "--output and --memory-output are both {}; give two files",
+            a.output.display()
+        );
+    }
+    check_writable(&a.output)?;
+    check_writable(&a.memory_output)?;
+    let data = load_tables(&a.tables)?;
+    eprintln!(
+        "training (seed {}; cross-validated calibration, then a fit on all rows)…",
+        a.seed
+    );
+    let model = train_with(&data, a.seed, DEFAULT_PENALTIES).context("training the model")?;
+    let bytes = model.to_gz_bytes().context("encoding the model")?;
+    let memory = MemoryTable::from_training(&data)
+        .to_gz_bytes()
+        .context("encoding the retention memory")?;
+    write_atomic(&a.output, &bytes)?;
+    write_atomic(&a.memory_output, &memory)?;
+    eprintln!(
+        "wrote {} ({} B) and {} ({} B)",
+        a.output.display(),
+        bytes.len(),
+        a.memory_output.display(),
+        memory.len()
+    );
+    Ok(ExitCode::SUCCESS)
+}
+
+fn run_model_eval(a: &ModelEvalArgs) -> Result<ExitCode> {
+    if a.folds < 2 {
+        bail!("--folds {} is too few: use 2 or more", a.folds);
+    }
+    let data = load_tables(&a.tables)?;
+    if a.folds > data.systems.len() {
+        bail!(
+            "--folds {} is more than the {} systems in the tables; use at most {}",
+            a.folds,
+            data.systems.len(),
+            data.systems.len()
+        );
+    }
+    eprintln!(
+        "evaluating: {} folds over systems, seed {}…",
+        a.folds, a.seed
+    );
+    let report = evaluate_with(&data, a.seed, a.folds, DEFAULT_PENALTIES)
+        .context("cross-validating the model")?;
+    let text = match a.format {
+        EvalFormat::Json => json_line(&report)?,
+        EvalFormat::Markdown => format!("{}\n", report.to_markdown()),
+        EvalFormat::Table => eval_table(&report),
+    };
+    write_out(&text)?;
+    Ok(ExitCode::SUCCESS)
+}
+
+fn eval_table(r: &EvalReport) -> String {
+    let rows: Vec<Vec<String>> = r
+        .summary
+        .iter()
+        .map(|(k, m)| {
+            let mut parts: Vec<String> = k.splitn(3, '/').map(str::to_string).collect();
+            parts.resize(3, String::new());
+            parts.extend([
+                num(Some(m.median), 3),
+                num(Some(m.q25), 3),
+                num(Some(m.q75), 3),
+            ]);
+            parts
+        })
+        .collect();
+    let mut s = format!(
+        "Leave-whole-systems-out cross-validation: {} folds, seed {}, {} held-out systems; baseline descriptor `{}`\n",
+        r.folds,
+        r.seed,
+        r.systems.len(),
+        r.baseline_descriptor
+    );
+    s.push_str(&render(
+        &["mode", "method", "metric", "median", "25th pct", "75th pct"],
+        &rows,
+    ));
+    s.push_str(
+        "\nmetrics: spearman (–), order_accuracy (fraction), mae_min (min), mae_pct_gradient (%), coelution_auc (–)\n",
+    );
+    s
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use proptest::prelude::*;
+
+    #[test]
+    fn column_sizes_read_with_and_without_spaces() {
+        let a = parse_column("150x4.6").unwrap();
+        assert_eq!(a.length_mm, 150.0);
+        assert_eq!(a.inner_diameter_mm, 4.6);
+        assert_eq!(parse_column(" 150 x 4.6 ").unwrap(), a);
+        assert_eq!(parse_column("150X4.6 mm").unwrap(), a);
+        assert_eq!(parse_column("150×4.6").unwrap(), a);
+    }
+
+    #[test]
+    fn malformed_columns_are_rejected_naming_the_text() {
+        for bad in ["150", "150x", "x4.6", "150x4.6x2", "", "150*4.6"] {
+            let e = parse_column(bad).unwrap_err();
+            assert!(matches!(e, ColumnSpecError::Malformed { .. }), "{bad}: {e}");
+        }
+        let e = parse_column("15o x 4.6").unwrap_err();
+        assert!(e.to_string().contains("`15o`"), "{e}");
+        assert!(e.to_string().contains("length"), "{e}");
+    }
+
+    #[test]
+    fn non_positive_columns_are_rejected() {
+        let e = parse_column("150x0").unwrap_err();
+        assert!(matches!(e, ColumnSpecError::NotPositive { value, .. } if value == 0.0));
+        assert!(e.to_string().contains("inner diameter"), "{e}");
+        assert!(parse_column("-150x4.6").is_err());
+        assert!(parse_column("infx4.6").is_err());
+        assert!(parse_column("NaNx4.6").is_err());
+    }
+
+    #[test]
+    fn ranges_and_pairs_parse() {
+        assert_eq!(
+            range_arg("5, 60").unwrap(),
+            NumberRange {
+                min: 5.0,
+                max: 60.0
+            }
+        );
+        assert!(range_arg("60,5").unwrap_err().contains("above"));
+        assert!(range_arg("5").is_err());
+        assert!(range_arg("5,x").unwrap_err().contains("`x`"));
+        assert_eq!(
+            pair_arg("a, b").unwrap(),
+            ["a".to_string(), "b".to_string()]
+        );
+        assert!(pair_arg("a").is_err());
+        assert!(pair_arg(",b").is_err());
+    }
+
+    proptest! {
+        #[test]
+        fn any_positive_pair_round_trips(l in 1e-3f64..1e4, d in 1e-3f64..1e3, spaced: bool) {
+            let text = if spaced { format!("{l} x {d}") } else { format!("{l}x{d}") };
+            let c = parse_column(&text).unwrap();
+            prop_assert_eq!(c.length_mm, l);
+            prop_assert_eq!(c.inner_diameter_mm, d);
+        }
+
+        #[test]
+        fn arbitrary_text_never_panics(s in "\\PC{0,20}") {
+            if let Ok(c) = parse_column(&s) {
+                prop_assert!(c.length_mm > 0.0 && c.inner_diameter_mm > 0.0);
+                prop_assert!(c.length_mm.is_finite() && c.inner_diameter_mm.is_finite());
+            }
+        }
+
+        #[test]
+        fn non_positive_length_is_an_error(l in -1e4f64..=0.0, d in 1e-3f64..1e3) {
+            let text = format!("{l}x{d}");
+            prop_assert!(parse_column(&text).is_err());
+        }
+    }
+}

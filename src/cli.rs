@@ -37,6 +37,11 @@ pub enum Command {
         after_help = "Example:\n  phasewise advise caffeine theobromine theophylline paraxanthine --detector uv:273\n  phasewise advise --input panel.txt --detector ms --format json"
     )]
     Advise(AdviseArgs),
+    /// Predict LC retention of analytes under given conditions (reversed phase or HILIC).
+    #[command(
+        after_help = "Example:\n  phasewise predict caffeine theophylline --mode rp --phase rp-c18 --gradient '0:5,20:95' \\\n      --ph 2.7 --modifier acetonitrile --column 150x4.6 --flow 1.0"
+    )]
+    Predict(PredictArgs),
     /// Write a reviewable method-development plan (HTML or Markdown) for a list of analytes.
     #[command(
         after_help = "Example:\n  phasewise plan toluene ethylbenzene p-xylene m-xylene o-xylene --output plan.html"
@@ -130,6 +135,53 @@ pub struct AdviseArgs {
     #[command(flatten)]
     pub opts: AdviseOptions,
     /// Output format (table or json).
+    #[arg(long, short, value_enum, default_value_t = OutputFormat::Table)]
+    pub format: OutputFormat,
+}
+
+/// `predict` options.
+#[derive(Debug, Args)]
+pub struct PredictArgs {
+    /// Analytes.
+    #[command(flatten)]
+    pub input: AnalyteInput,
+    /// Mode: rp or hilic.
+    #[arg(long)]
+    pub mode: String,
+    /// Stationary-phase id (see docs/phases.md), e.g. rp-c18.
+    #[arg(long)]
+    pub phase: String,
+    /// Gradient as `time:%organic` pairs in minutes and percent, e.g. `0:5,20:95,23:95`.
+    #[arg(long)]
+    pub gradient: String,
+    /// Organic modifier: acetonitrile or methanol.
+    #[arg(long)]
+    pub modifier: Option<String>,
+    /// Aqueous pH (must be inside the phase's range).
+    #[arg(long)]
+    pub ph: Option<f64>,
+    /// Dead time, min (or give --column and --flow).
+    #[arg(long, value_name = "MIN")]
+    pub t0: Option<f64>,
+    /// Column as LENGTHxID in mm, e.g. 150x4.6.
+    #[arg(long, value_name = "LxID")]
+    pub column: Option<String>,
+    /// Flow, mL/min.
+    #[arg(long, value_name = "ML_MIN")]
+    pub flow: Option<f64>,
+    /// Particle size, µm.
+    #[arg(long, value_name = "UM")]
+    pub particle: Option<f64>,
+    /// Dwell volume, mL.
+    #[arg(long, value_name = "ML", default_value_t = 0.0)]
+    pub dwell: f64,
+    /// Column temperature, °C.
+    #[arg(long, value_name = "C")]
+    pub temperature: Option<f64>,
+    /// Flag pairs whose co-elution probability is at least this (0-1).
+    #[arg(long, default_value_t = 0.2)]
+    pub risk: f64,
+    /// Output format.
     #[arg(long, short, value_enum, default_value_t = OutputFormat::Table)]
     pub format: OutputFormat,
 }

@@ -173,6 +173,15 @@ fn advise_report(
     cli: &Cli,
     o: &crate::cli::AdviseOptions,
 ) -> Result<(phasewise::report::advice::AdviceReport, bool)> {
+    advise_report_with(cli, o, None, None)
+}
+
+fn advise_report_with(
+    cli: &Cli,
+    o: &crate::cli::AdviseOptions,
+    fixed: Option<phasewise::advisor::FixedLc>,
+    phases_override: Option<Vec<String>>,
+) -> Result<(phasewise::report::advice::AdviceReport, bool)> {
     use phasewise::advisor::{AdviseRequest, Detector, advise, profile::AnalyteProfile};
     // cheap checks first, before the knowledge base is opened
     let detector = Detector::parse(&o.detector).map_err(|e| anyhow::anyhow!(e))?;
@@ -212,6 +221,7 @@ fn advise_report(
             .collect(),
         None => Vec::new(),
     };
+    let phases_available = phases_override.unwrap_or(phases_available);
     let queries = read_analytes(&o.input)?;
     let kb = open_kb(cli)?;
     let (found, missing) = resolve_all(&kb, &queries)?;
@@ -237,6 +247,7 @@ fn advise_report(
         phases_available,
         alternatives: o.alternatives.max(1),
         risk_threshold: o.risk,
+        fixed,
     };
     let report = advise(&profiles, missing, &req)?;
     Ok((report, partial))
@@ -305,6 +316,7 @@ pub fn run(cli: Cli) -> Result<ExitCode> {
                 ExitCode::SUCCESS
             })
         }
+        Command::Predict(args) => run_predict(&cli, args),
         Command::Describe(args) => {
             let input = AnalyteInput {
                 analytes: args.smiles.clone(),
@@ -495,4 +507,184 @@ fn stats_table(s: &phasewise::kb::stats::KbStats) -> String {
     ));
     out.push('\n');
     out
+}
+
+fn run_predict(cli: &Cli, a: &crate::cli::PredictArgs) -> Result<ExitCode> {
+    use phasewise::phase::{Catalogue, PhaseMode};
+    let mode = PhaseMode::parse(&a.mode)
+        .ok_or_else(|| anyhow::anyhow!("unknown mode `{}`; predict takes rp or hilic", a.mode))?;
+    if !matches!(mode, PhaseMode::Rp | PhaseMode::Hilic) {
+        bail!(
+            "predict supports the LC modes rp and hilic; for `{}` use `phasewise advise --modes {}`",
+            a.mode,
+            a.mode
+        );
+    }
+    let catalogue = Catalogue::builtin()?;
+    let phase = catalogue.phase(&a.phase)?;
+    if phase.mode() != mode {
+        bail!(
+            "phase `{}` is a {} phase, not {}",
+            a.phase,
+            phase.mode().as_str(),
+            mode.as_str()
+        );
+    }
+    if let Some(ph) = a.ph {
+        let (lo, hi) = (
+            phase.ph_min().unwrap_or(0.0),
+            phase.ph_max().unwrap_or(14.0),
+        );
+        if !(lo..=hi).contains(&ph) {
+            bail!(
+                "--ph {ph} is outside the range {lo}-{hi} of phase `{}`",
+                a.phase
+            );
+        }
+    }
+    if let Some(m) = &a.modifier
+        && m != "acetonitrile"
+        && m != "methanol"
+    {
+        bail!("--modifier `{m}`: use acetonitrile or methanol");
+    }
+    let program = phasewise::model::gradient::GradientProgram::parse(&a.gradient)?;
+    if let Some(t0) = a.t0 {
+        if !(t0 > 0.0 && t0.is_finite()) {
+            bail!("--t0 {t0}: must be a positive number of minutes");
+        }
+    } else if a.flow.is_none() {
+        bail!(
+            "give the dead time with --t0 MIN, or the column with --column LxID and --flow ML_MIN"
+        );
+    }
+    let fixed = phasewise::advisor::FixedLc {
+        gradient: program
+            .points()
+            .iter()
+            .map(|p| (p.time_min, p.organic_pct))
+            .collect(),
+        ph: a.ph,
+        modifier: a.modifier.clone(),
+        t0_min: a.t0,
+        temperature_c: a.temperature,
+    };
+    let opts = crate::cli::AdviseOptions {
+        input: AnalyteInput {
+            analytes: a.input.analytes.clone(),
+            input: a.input.input.clone(),
+        },
+        detector: "uv:220".into(),
+        column: a.column.clone(),
+        particle: a.particle,
+        flow: a.flow,
+        dwell: a.dwell,
+        modes: vec![mode.as_str().to_string()],
+        phases_available: None,
+        alternatives: 1,
+        risk: a.risk,
+    };
+    let (mut report, partial) =
+        advise_report_with(cli, &opts, Some(fixed), Some(vec![a.phase.clone()]))?;
+    let Some(rec) = report.recommendations.first().cloned() else {
+        bail!("no prediction could be made");
+    };
+    report.recommendations = vec![rec.clone()];
+    let text = match a.format {
+        OutputFormat::Json => format!(
+            "{}\n",
+            serde_json::to_string_pretty(&serde_json::json!({
+                "schema_version": phasewise::report::SCHEMA_VERSION,
+                "mode": rec.mode,
+                "phase": rec.phase,
+                "conditions": rec.conditions,
+                "predictions": rec.predictions,
+                "coelutions": rec.coelutions,
+                "unresolved": report.unresolved,
+                "warnings": report.warnings,
+            }))?
+        ),
+        OutputFormat::Table => {
+            let mut t = format!("{} on {} [{}]\n", rec.mode, rec.phase.name, rec.phase.id);
+            let rows: Vec<Vec<String>> = rec
+                .predictions
+                .iter()
+                .map(|p| {
+                    vec![
+                        p.analyte.clone(),
+                        phasewise::report::num(p.retention_time_min, 2),
+                        format!(
+                            "{}-{}",
+                            phasewise::report::num(p.interval_low_min, 2),
+                            phasewise::report::num(p.interval_high_min, 2)
+                        ),
+                        phasewise::report::num(p.retention_factor, 2),
+                        p.path.clone(),
+                    ]
+                })
+                .collect();
+            t.push_str(&phasewise::report::table::render(
+                &[
+                    "analyte",
+                    "tR (min)",
+                    "90 % interval (min)",
+                    "k",
+                    "predicted by",
+                ],
+                &rows,
+            ));
+            t.push('\n');
+            for c in &rec.coelutions {
+                t.push_str(&format!(
+                    "flagged pair: {} / {}: co-elution probability {}, resolution {}\n",
+                    c.a,
+                    c.b,
+                    phasewise::report::num(c.probability, 2),
+                    phasewise::report::num(c.resolution, 2)
+                ));
+            }
+            for u in &report.unresolved {
+                t.push_str(&format!("unresolved: {} ({})\n", u.query, u.reason));
+            }
+            for w in &report.warnings {
+                t.push_str(&format!("warning: {w}\n"));
+            }
+            t
+        }
+        OutputFormat::Csv | OutputFormat::Tsv => {
+            let d = if a.format == OutputFormat::Csv {
+                ','
+            } else {
+                '\t'
+            };
+            let mut t = [
+                "analyte",
+                "retention_time_min",
+                "interval_low_min",
+                "interval_high_min",
+                "retention_factor",
+                "path",
+            ]
+            .join(&d.to_string());
+            t.push('\n');
+            for p in &rec.predictions {
+                t.push_str(&format!(
+                    "{}{d}{}{d}{}{d}{}{d}{}{d}{}\n",
+                    phasewise::report::csv_cell(&p.analyte, d),
+                    p.retention_time_min,
+                    p.interval_low_min,
+                    p.interval_high_min,
+                    p.retention_factor,
+                    p.path
+                ));
+            }
+            t
+        }
+    };
+    write_out(&text)?;
+    Ok(if partial {
+        ExitCode::from(EXIT_PARTIAL)
+    } else {
+        ExitCode::SUCCESS
+    })
 }

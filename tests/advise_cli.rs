@@ -420,3 +420,171 @@ fn plan_writes_one_self_contained_html_file_and_refuses_a_missing_directory_befo
         std::fs::read(&again).unwrap()
     );
 }
+
+#[test]
+fn predict_gives_retention_with_intervals_and_the_path_for_given_lc_conditions() {
+    let ctx = Ctx::new();
+    let out = ctx.run(&[
+        "predict",
+        "caffeine",
+        "theophylline",
+        "--mode",
+        "rp",
+        "--phase",
+        "rp-c18",
+        "--gradient",
+        "0:5,20:95",
+        "--ph",
+        "2.7",
+        "--column",
+        "150x4.6",
+        "--flow",
+        "1.0",
+        "--format",
+        "json",
+    ]);
+    assert!(out.status.success(), "{}", stderr(&out));
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let preds = v["predictions"].as_array().unwrap();
+    assert_eq!(preds.len(), 2);
+    for p in preds {
+        let t = p["retention_time_min"].as_f64().unwrap();
+        assert!(
+            p["interval_low_min"].as_f64().unwrap() <= t
+                && t <= p["interval_high_min"].as_f64().unwrap()
+        );
+        assert!(["memory", "descriptor"].contains(&p["path"].as_str().unwrap()));
+    }
+    // a longer gradient moves every analyte later (LSS gradient theory, Snyder & Dolan 2007)
+    let out2 = ctx.run(&[
+        "predict",
+        "caffeine",
+        "theophylline",
+        "--mode",
+        "rp",
+        "--phase",
+        "rp-c18",
+        "--gradient",
+        "0:5,40:95",
+        "--ph",
+        "2.7",
+        "--column",
+        "150x4.6",
+        "--flow",
+        "1.0",
+        "--format",
+        "json",
+    ]);
+    let v2: serde_json::Value = serde_json::from_slice(&out2.stdout).unwrap();
+    for (a, b) in preds.iter().zip(v2["predictions"].as_array().unwrap()) {
+        assert_eq!(a["analyte"], b["analyte"]);
+        assert!(
+            b["retention_time_min"].as_f64().unwrap() > a["retention_time_min"].as_f64().unwrap()
+        );
+    }
+}
+
+#[test]
+fn predict_rejects_bad_conditions_naming_the_value() {
+    let ctx = Ctx::new();
+    for (args, want) in [
+        (
+            vec![
+                "--mode",
+                "rp",
+                "--phase",
+                "hilic-amide",
+                "--gradient",
+                "0:5,20:95",
+                "--flow",
+                "1",
+            ],
+            "hilic-amide",
+        ),
+        (
+            vec![
+                "--mode",
+                "rp",
+                "--phase",
+                "rp-c18",
+                "--gradient",
+                "0:5,20:95,10:50",
+                "--flow",
+                "1",
+            ],
+            "10:50",
+        ),
+        (
+            vec![
+                "--mode",
+                "rp",
+                "--phase",
+                "rp-c18",
+                "--gradient",
+                "0:5,20:150",
+                "--flow",
+                "1",
+            ],
+            "150",
+        ),
+        (
+            vec![
+                "--mode",
+                "rp",
+                "--phase",
+                "rp-c18",
+                "--gradient",
+                "0:5,20:95",
+                "--ph",
+                "13",
+                "--flow",
+                "1",
+            ],
+            "13",
+        ),
+        (
+            vec![
+                "--mode",
+                "rp",
+                "--phase",
+                "rp-c18",
+                "--gradient",
+                "0:5,20:95",
+                "--flow=-1",
+            ],
+            "-1",
+        ),
+        (
+            vec![
+                "--mode",
+                "gc",
+                "--phase",
+                "gc-wax",
+                "--gradient",
+                "0:5,20:95",
+                "--flow",
+                "1",
+            ],
+            "advise",
+        ),
+        (
+            vec![
+                "--mode",
+                "rp",
+                "--phase",
+                "rp-c81",
+                "--gradient",
+                "0:5,20:95",
+                "--flow",
+                "1",
+            ],
+            "rp-c81",
+        ),
+    ] {
+        let mut a = vec!["predict", "caffeine"];
+        a.extend(args.iter());
+        let out = ctx.run(&a);
+        assert_eq!(out.status.code(), Some(2), "{a:?}");
+        assert!(stderr(&out).contains(want), "{a:?}: {}", stderr(&out));
+    }
+}

@@ -186,15 +186,36 @@ pub fn candidate(
     let model = model()?;
     let (l, id, dp, flow) = geometry(req);
     let vm = theory::column_dead_volume_ml(l, id).map_err(|e| e.to_string())?;
-    let t0 = vm / flow;
+    let fixed = req.fixed.as_ref();
+    let t0 = fixed.and_then(|f| f.t0_min).unwrap_or(vm / flow);
     let n_plates = theory::estimated_plate_number(l, dp).map_err(|e| e.to_string())?;
-    let (ph, buffer, prep, mut reasons) = choose_ph(profiles, phase, mode, req.detector, catalogue);
+    let (mut ph, buffer, prep, mut reasons) =
+        choose_ph(profiles, phase, mode, req.detector, catalogue);
+    if let Some(user_ph) = fixed.and_then(|f| f.ph) {
+        let (lo, hi) = (
+            phase.ph_min().unwrap_or(0.0),
+            phase.ph_max().unwrap_or(14.0),
+        );
+        if !(lo..=hi).contains(&user_ph) {
+            return Err(format!(
+                "pH {user_ph} is outside the range {lo}-{hi} of phase {}",
+                phase.id()
+            ));
+        }
+        ph = user_ph;
+        reasons = vec![Reason {
+            source: "user".into(),
+            text: format!("pH {ph} given by the user"),
+            weight: None,
+        }];
+    }
     // methanol strengthens pi-pi selectivity on phenyl-type phases (common practice, no source)
     let pi_phase = phase.id().contains("phenyl") || phase.id().contains("pfp");
-    let (modifier, modifier_id) = if pi_phase && mode == PhaseMode::Rp {
-        (Modifier::Methanol, "methanol")
-    } else {
-        (Modifier::Acetonitrile, "acetonitrile")
+    let (modifier, modifier_id) = match fixed.and_then(|f| f.modifier.as_deref()) {
+        Some("methanol") => (Modifier::Methanol, "methanol"),
+        Some(_) => (Modifier::Acetonitrile, "acetonitrile"),
+        None if pi_phase && mode == PhaseMode::Rp => (Modifier::Methanol, "methanol"),
+        None => (Modifier::Acetonitrile, "acetonitrile"),
     };
     // gradient time for a gradient retention factor k* ≈ 5 (Snyder & Dolan 2007: k* = tG F /
     // (1.15 Vm Δφ S)), with S from the median molar mass (S ≈ 0.25 M^0.5, rule of thumb)
@@ -212,20 +233,30 @@ pub fn candidate(
     let tg = (k_star * 1.15 * vm * dphi * s / flow)
         .clamp(5.0, 60.0)
         .round();
-    let program = vec![
-        GradientPoint {
-            time_min: 0.0,
-            organic_pct: start,
-        },
-        GradientPoint {
-            time_min: tg,
-            organic_pct: end,
-        },
-        GradientPoint {
-            time_min: tg + 3.0,
-            organic_pct: end,
-        },
-    ];
+    let program: Vec<GradientPoint> = match fixed {
+        Some(f) => f
+            .gradient
+            .iter()
+            .map(|&(t, pct)| GradientPoint {
+                time_min: t,
+                organic_pct: pct,
+            })
+            .collect(),
+        None => vec![
+            GradientPoint {
+                time_min: 0.0,
+                organic_pct: start,
+            },
+            GradientPoint {
+                time_min: tg,
+                organic_pct: end,
+            },
+            GradientPoint {
+                time_min: tg + 3.0,
+                organic_pct: end,
+            },
+        ],
+    };
     let dwell_min = req.dwell_ml / flow;
     let sys = LcSystem {
         mode: if mode == PhaseMode::Rp {
@@ -241,7 +272,7 @@ pub fn candidate(
         t0_min: t0,
         dwell_min,
         flow_ml_min: flow,
-        temperature_c: Some(35.0),
+        temperature_c: Some(fixed.and_then(|f| f.temperature_c).unwrap_or(35.0)),
     };
     // band width in gradient elution: 4σ = 4 t0 (1 + k*) / √N (Snyder & Dolan 2007, k* = gradient
     // retention factor), so w½ = 2.355 σ
@@ -311,7 +342,7 @@ pub fn candidate(
             }
         }
     }
-    let run_time = tg + 3.0;
+    let run_time = program.last().map_or(tg + 3.0, |p| p.time_min);
     let pressure = theory::pressure_estimate(&theory::PressureInput {
         flow_ml_min: flow,
         column_length_mm: l,

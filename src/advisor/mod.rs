@@ -120,6 +120,23 @@ pub struct AdviseRequest {
     pub alternatives: usize,
     /// Co-elution probability above which a pair is listed.
     pub risk_threshold: f64,
+    /// Fixed LC conditions (for `predict`): when set, they replace the advisor's choices.
+    pub fixed: Option<FixedLc>,
+}
+
+/// LC conditions given by the user instead of chosen by the advisor.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct FixedLc {
+    /// Gradient program as (time min, % organic) points, validated.
+    pub gradient: Vec<(f64, f64)>,
+    /// Aqueous pH, if given (else the advisor's choice).
+    pub ph: Option<f64>,
+    /// Modifier id (`acetonitrile` or `methanol`), if given.
+    pub modifier: Option<String>,
+    /// Dead time, min, if given (else from the column geometry and flow).
+    pub t0_min: Option<f64>,
+    /// Column temperature, °C.
+    pub temperature_c: Option<f64>,
 }
 
 impl Default for AdviseRequest {
@@ -134,6 +151,7 @@ impl Default for AdviseRequest {
             phases_available: Vec::new(),
             alternatives: 3,
             risk_threshold: 0.2,
+            fixed: None,
         }
     }
 }

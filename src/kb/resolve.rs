@@ -99,19 +99,17 @@ fn find(conn: &Connection, q: &Query) -> rusqlite::Result<Option<(CompoundRow, &
             if norm.is_empty() {
                 return Ok(None);
             }
-            let hit: Option<(i64, i64)> = conn
-                .prepare_cached(
-                    "SELECT n.compound_id, n.rank FROM name n JOIN compound c ON c.id = n.compound_id
-                     WHERE n.norm = ?1 ORDER BY n.rank, c.cid IS NULL, c.cid, c.id LIMIT 1",
-                )?
-                .query_row([&norm], |r| Ok((r.get(0)?, r.get(1)?)))
-                .optional()?;
-            match hit {
-                Some((id, rank)) => {
-                    by("id = ?1", &id)?.map(|r| (r, if rank == 0 { "name" } else { "synonym" }))
-                }
-                None => None,
-            }
+            // one statement: the best-ranked name and its compound
+            conn.prepare_cached(
+                "SELECT c.id, c.inchikey, c.preferred_name, c.smiles, c.formula, c.molar_mass_g_mol, c.cid, c.cas, n.rank
+                 FROM name n JOIN compound c ON c.id = n.compound_id
+                 WHERE n.norm = ?1 ORDER BY n.rank, c.cid IS NULL, c.cid, c.id LIMIT 1",
+            )?
+            .query_row([&norm], |r| {
+                let rank: i64 = r.get(8)?;
+                Ok((compound_from_row(r)?, if rank == 0 { "name" } else { "synonym" }))
+            })
+            .optional()?
         }
     })
 }

@@ -22,6 +22,26 @@ fn model() -> Result<&'static Model, String> {
         .map_err(Clone::clone)
 }
 
+/// Analyte features are the same on every candidate phase: compute them once per structure.
+fn features(smiles: &str, inchikey: Option<&str>) -> Result<AnalyteFeatures, String> {
+    use std::collections::HashMap;
+    use std::sync::Mutex;
+    static CACHE: OnceLock<Mutex<HashMap<(String, Option<String>), Result<AnalyteFeatures, String>>>> =
+        OnceLock::new();
+    let key = (smiles.to_string(), inchikey.map(str::to_string));
+    let cache = CACHE.get_or_init(|| Mutex::new(HashMap::new()));
+    if let Ok(c) = cache.lock()
+        && let Some(hit) = c.get(&key)
+    {
+        return hit.clone();
+    }
+    let made = AnalyteFeatures::from_smiles(smiles, inchikey).map_err(|e| e.to_string());
+    if let Ok(mut c) = cache.lock() {
+        c.insert(key, made.clone());
+    }
+    made
+}
+
 /// pH values tried, with the buffer (catalogue id) that serves each; common practice.
 const PH_CHOICES: &[(f64, &str, &str)] = &[
     (2.7, "formic-acid", "0.1 % (v/v) formic acid in water"),
@@ -285,7 +305,7 @@ pub fn candidate(
             not_predicted.push(format!("{}: no structure", p.name()));
             continue;
         };
-        let feats = match AnalyteFeatures::from_smiles(smiles, p.analyte.inchikey.as_deref()) {
+        let feats = match features(smiles, p.analyte.inchikey.as_deref()) {
             Ok(f) => f,
             Err(e) => {
                 not_predicted.push(format!("{}: {e}", p.name()));

@@ -26,8 +26,8 @@ fn model() -> Result<&'static Model, String> {
 fn features(smiles: &str, inchikey: Option<&str>) -> Result<AnalyteFeatures, String> {
     use std::collections::HashMap;
     use std::sync::Mutex;
-    static CACHE: OnceLock<Mutex<HashMap<(String, Option<String>), Result<AnalyteFeatures, String>>>> =
-        OnceLock::new();
+    type Cache = Mutex<HashMap<(String, Option<String>), Result<AnalyteFeatures, String>>>;
+    static CACHE: OnceLock<Cache> = OnceLock::new();
     let key = (smiles.to_string(), inchikey.map(str::to_string));
     let cache = CACHE.get_or_init(|| Mutex::new(HashMap::new()));
     if let Ok(c) = cache.lock()

@@ -4,9 +4,19 @@ use std::path::PathBuf;
 
 use clap::{Args, Parser, Subcommand, ValueEnum};
 
+/// `--version` in full: the program, the seed data and the model it carries.
+const LONG_VERSION: &str = concat!(
+    env!("CARGO_PKG_VERSION"),
+    "\nknowledge-base seed data: ",
+    env!("PHASEWISE_SEED_HASH"),
+    " (data/kb: PubChem identifiers via chemicals 1.5.2 (MIT), Wikidata (CC0), pKa (CC BY 4.0))",
+    "\nLC retention model: data/lc_model.json.gz and data/retention_memory.tsv.gz (RepoRT, CC BY-SA 4.0)",
+    "\nphase catalogue: data/phases.tsv and companions (see docs/phases.md)"
+);
+
 /// Chromatographic method-development advice from a list of analytes.
 #[derive(Debug, Parser)]
-#[command(name = "phasewise", version, about, long_about = None)]
+#[command(name = "phasewise", version, long_version = LONG_VERSION, about, long_about = None)]
 pub struct Cli {
     /// Shipped knowledge base file (built on first use if missing).
     #[arg(long, global = true, env = "PHASEWISE_KB", value_name = "PATH")]

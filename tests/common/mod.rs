@@ -51,49 +51,36 @@ impl Ctx {
 
     /// A command with both databases set.
     pub fn cmd(&self) -> Command {
-        let mut c = Command::cargo_bin("phasewise").expect("binary");
-        c.env_remove("PHASEWISE_KB")
-            .env_remove("PHASEWISE_USER_KB")
-            .arg("--kb")
-            .arg(shipped_kb())
-            .arg("--user-kb")
-            .arg(self.user_kb());
-        c
+        self.cmd_with(shipped_kb(), &self.user_kb())
     }
 
     /// A command with another shipped base and this context's overlay.
     pub fn cmd_with_kb(&self, kb: &Path) -> Command {
-        let mut c = Command::cargo_bin("phasewise").expect("binary");
+        self.cmd_with(kb, &self.user_kb())
+    }
+
+    /// A command with the shared shipped base and another overlay.
+    pub fn cmd_with_user_kb(&self, user: &Path) -> Command {
+        self.cmd_with(shipped_kb(), user)
+    }
+
+    fn cmd_with(&self, kb: &Path, user: &Path) -> Command {
+        Command::from_std(self.std_cmd(kb, user))
+    }
+
+    /// A plain `std::process::Command` with both databases set (for spawning).
+    pub fn spawnable(&self) -> std::process::Command {
+        self.std_cmd(shipped_kb(), &self.user_kb())
+    }
+
+    fn std_cmd(&self, kb: &Path, user: &Path) -> std::process::Command {
+        let mut c = std::process::Command::new(assert_cmd::cargo::cargo_bin("phasewise"));
         c.env_remove("PHASEWISE_KB")
             .env_remove("PHASEWISE_USER_KB")
             .arg("--kb")
             .arg(kb)
             .arg("--user-kb")
-            .arg(self.user_kb());
-        c
-    }
-
-    /// A command with the shared shipped base and another overlay.
-    pub fn cmd_with_user_kb(&self, user: &Path) -> Command {
-        let mut c = Command::cargo_bin("phasewise").expect("binary");
-        c.env_remove("PHASEWISE_KB")
-            .env_remove("PHASEWISE_USER_KB")
-            .arg("--kb")
-            .arg(shipped_kb())
-            .arg("--user-kb")
             .arg(user);
-        c
-    }
-
-    /// A plain `std::process::Command` with both databases set (for spawning).
-    pub fn spawnable(&self) -> std::process::Command {
-        let mut c = std::process::Command::new(assert_cmd::cargo::cargo_bin("phasewise"));
-        c.env_remove("PHASEWISE_KB")
-            .env_remove("PHASEWISE_USER_KB")
-            .arg("--kb")
-            .arg(shipped_kb())
-            .arg("--user-kb")
-            .arg(self.user_kb());
         c
     }
 

@@ -78,6 +78,32 @@ pub enum Command {
     /// Train and evaluate the LC retention model.
     #[command(subcommand, after_help = crate::run_measured::MODEL_HELP)]
     Model(crate::run_measured::ModelCommand),
+    /// Write a shell completion script to stdout.
+    #[command(
+        after_help = "Example:\n  phasewise completions bash > ~/.local/share/bash-completion/completions/phasewise\n  phasewise completions zsh > ~/.zfunc/_phasewise"
+    )]
+    Completions(CompletionsArgs),
+    /// Write manual pages (roff), one per command, into a directory.
+    #[command(
+        after_help = "Example:\n  phasewise manpages --output-dir ~/.local/share/man/man1 && man phasewise-advise"
+    )]
+    Manpages(ManpagesArgs),
+}
+
+/// `completions` options.
+#[derive(Debug, Args)]
+pub struct CompletionsArgs {
+    /// Shell to write the script for.
+    #[arg(value_enum)]
+    pub shell: clap_complete::Shell,
+}
+
+/// `manpages` options.
+#[derive(Debug, Args)]
+pub struct ManpagesArgs {
+    /// Directory to write `phasewise.1` and `phasewise-<command>.1` into (created if missing).
+    #[arg(long, value_name = "DIR")]
+    pub output_dir: PathBuf,
 }
 
 /// Where analytes come from.
@@ -87,7 +113,8 @@ pub struct AnalyteInput {
     /// SMILES (`smiles:CCO` forces a SMILES reading).
     #[arg(value_name = "ANALYTE")]
     pub analytes: Vec<String>,
-    /// Read analytes from a file, one per line (`#` starts a comment); `-` reads stdin.
+    /// Read analytes from a file: one per line (`#` at the start of a line marks a comment), or
+    /// a tab-separated table with a `name` and/or `smiles` header; `-` reads stdin.
     #[arg(long, short, value_name = "FILE")]
     pub input: Option<PathBuf>,
 }

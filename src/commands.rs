@@ -5,8 +5,10 @@ use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 
 use anyhow::{Context, Result, bail};
+use clap::CommandFactory;
 use indicatif::{ProgressBar, ProgressStyle};
 
+use phasewise::kb::identifier::{ListEntry, parse_analyte_list};
 use phasewise::kb::resolve::{Resolution, Unresolved};
 use phasewise::kb::user::{NewCompound, parse_property};
 use phasewise::kb::{BuildPolicy, Kb, KbError, KbPaths, build};
@@ -103,56 +105,119 @@ fn write_out(s: &str) -> Result<()> {
     Ok(())
 }
 
-/// Read the analyte list: arguments, then `--input FILE` (or `-`), then stdin when nothing
-/// else was given and stdin is not a terminal.
-pub fn read_analytes(input: &AnalyteInput) -> Result<Vec<String>> {
-    let mut out: Vec<String> = input.analytes.clone();
-    let from_text = |text: &str, out: &mut Vec<String>| {
-        for line in text.lines() {
-            let l = line.trim();
-            if !l.is_empty() && !l.starts_with('#') {
-                out.push(l.to_string());
-            }
-        }
+/// The text behind `--input FILE` (or `-`), or stdin when nothing else was given and stdin is
+/// not a terminal; `None` when there is none.
+fn read_input_text(input: &AnalyteInput) -> Result<Option<String>> {
+    let from_stdin = || -> Result<Option<String>> {
+        let mut s = String::new();
+        std::io::stdin()
+            .read_to_string(&mut s)
+            .context("reading analytes from stdin")?;
+        Ok(Some(s))
     };
     match &input.input {
-        Some(p) if p.as_os_str() == "-" => {
-            let mut s = String::new();
-            std::io::stdin()
-                .read_to_string(&mut s)
-                .context("reading analytes from stdin")?;
-            from_text(&s, &mut out);
-        }
+        Some(p) if p.as_os_str() == "-" => from_stdin(),
         Some(p) => {
-            let s = std::fs::read_to_string(p)
-                .with_context(|| format!("reading analyte list {}", p.display()))?;
-            from_text(&s, &mut out);
+            Ok(Some(std::fs::read_to_string(p).with_context(|| {
+                format!("reading analyte list {}", p.display())
+            })?))
         }
-        None if out.is_empty() && !std::io::stdin().is_terminal() => {
-            let mut s = String::new();
-            std::io::stdin()
-                .read_to_string(&mut s)
-                .context("reading analytes from stdin")?;
-            from_text(&s, &mut out);
+        None if input.analytes.is_empty() && !std::io::stdin().is_terminal() => from_stdin(),
+        None => Ok(None),
+    }
+}
+
+const NO_ANALYTES: &str =
+    "no analytes given: name them as arguments, with --input FILE, or on stdin";
+
+/// Render one roff page per command (`phasewise.1`, `phasewise-advise.1`, `phasewise-kb-add.1`,
+/// …), all in memory first, then write each atomically; returns how many were written.
+fn write_manpages(dir: &Path) -> Result<usize> {
+    fn collect(cmd: &clap::Command, out: &mut Vec<(String, Vec<u8>)>) -> Result<()> {
+        // after `build()`, a subcommand's display name is `phasewise-<command>`
+        let man = clap_mangen::Man::new(cmd.clone());
+        let mut bytes = Vec::new();
+        man.render(&mut bytes)
+            .with_context(|| format!("rendering the manual page {}", man.get_filename()))?;
+        out.push((man.get_filename(), bytes));
+        for sub in cmd.get_subcommands().filter(|s| !s.is_hide_set()) {
+            collect(sub, out)?;
         }
-        None => {}
+        Ok(())
+    }
+    std::fs::create_dir_all(dir)
+        .with_context(|| format!("creating the directory {}", dir.display()))?;
+    let mut cmd = Cli::command().disable_help_subcommand(true);
+    cmd.build();
+    let mut pages = Vec::new();
+    collect(&cmd, &mut pages)?;
+    for (file, bytes) in &pages {
+        phasewise::report::plan::write_atomically(&dir.join(file), bytes)?;
+    }
+    Ok(pages.len())
+}
+
+/// Read the analyte list: arguments, then `--input FILE` (or `-`), then stdin when nothing
+/// else was given and stdin is not a terminal. A file may be a plain list or a tab-separated
+/// table with `name`/`smiles` columns ([`parse_analyte_list`]).
+pub fn read_analytes(input: &AnalyteInput) -> Result<Vec<ListEntry>> {
+    let mut out: Vec<ListEntry> = input
+        .analytes
+        .iter()
+        .map(|q| ListEntry {
+            query: q.clone(),
+            label: None,
+            line: 0,
+        })
+        .collect();
+    if let Some(text) = read_input_text(input)? {
+        let what = match &input.input {
+            Some(p) if p.as_os_str() != "-" => p.display().to_string(),
+            _ => "stdin".to_string(),
+        };
+        out.extend(parse_analyte_list(&text).with_context(|| format!("reading {what}"))?);
     }
     if out.is_empty() {
-        bail!("no analytes given: name them as arguments, with --input FILE, or on stdin");
+        bail!(NO_ANALYTES);
     }
     Ok(out)
 }
 
-/// Resolve every query; structure-only SMILES become analytes with no stored properties.
-pub fn resolve_all(kb: &Kb, queries: &[String]) -> Result<(Vec<Analyte>, Vec<Unresolved>)> {
+/// Read plain lines (for `describe`, whose lines are `SMILES[<TAB>name]`): arguments, then the
+/// file or stdin; blank lines and `#` comment lines skipped.
+fn read_lines(input: &AnalyteInput) -> Result<Vec<String>> {
+    let mut out = input.analytes.clone();
+    if let Some(text) = read_input_text(input)? {
+        let text = text.strip_prefix('\u{feff}').unwrap_or(&text);
+        out.extend(
+            text.lines()
+                .map(str::trim)
+                .filter(|l| !l.is_empty() && !l.starts_with('#'))
+                .map(str::to_string),
+        );
+    }
+    if out.is_empty() {
+        bail!(NO_ANALYTES);
+    }
+    Ok(out)
+}
+
+/// Resolve every entry; structure-only SMILES become analytes with no stored properties
+/// (named by the list's `name` cell when it has one).
+pub fn resolve_all(kb: &Kb, entries: &[ListEntry]) -> Result<(Vec<Analyte>, Vec<Unresolved>)> {
     let mut found = Vec::new();
     let mut missing = Vec::new();
-    for q in queries {
-        match kb.resolve(q)? {
-            Resolution::Found(a) => found.push(*a),
+    for e in entries {
+        match kb.resolve(&e.query)? {
+            Resolution::Found(mut a) => {
+                if let Some(l) = &e.label {
+                    a.query = l.clone();
+                }
+                found.push(*a);
+            }
             Resolution::StructureOnly { query, smiles } => found.push(Analyte {
-                query: query.trim().to_string(),
-                name: smiles.clone(),
+                query: e.label.clone().unwrap_or_else(|| query.trim().to_string()),
+                name: e.label.clone().unwrap_or_else(|| smiles.clone()),
                 inchikey: None,
                 smiles: Some(smiles),
                 formula: None,
@@ -163,7 +228,12 @@ pub fn resolve_all(kb: &Kb, queries: &[String]) -> Result<(Vec<Analyte>, Vec<Unr
                 matched_by: "smiles (not in knowledge base)".into(),
                 properties: Vec::new(),
             }),
-            Resolution::Unresolved(u) => missing.push(u),
+            Resolution::Unresolved(mut u) => {
+                if let Some(l) = &e.label {
+                    u.query = format!("{l} ({})", u.query);
+                }
+                missing.push(u)
+            }
         }
     }
     Ok((found, missing))
@@ -322,7 +392,7 @@ pub fn run(cli: Cli) -> Result<ExitCode> {
                 analytes: args.smiles.clone(),
                 input: args.input.clone(),
             };
-            let lines = read_analytes(&input)?;
+            let lines = read_lines(&input)?;
             let report = phasewise::report::describe::DescribeReport::from_inputs(&lines);
             write_out(&report.render(format_of(args.format)))?;
             if report.molecules.is_empty() {
@@ -342,6 +412,21 @@ pub fn run(cli: Cli) -> Result<ExitCode> {
         Command::Scout(a) => crate::run_measured::run_scout(a),
         Command::Transfer(a) => crate::run_measured::run_transfer(a),
         Command::Model(m) => crate::run_measured::run_model(m),
+        Command::Completions(a) => {
+            let mut out = Vec::new();
+            clap_complete::generate(a.shell, &mut Cli::command(), "phasewise", &mut out);
+            write_out(&String::from_utf8_lossy(&out))?;
+            Ok(ExitCode::SUCCESS)
+        }
+        Command::Manpages(a) => {
+            let written = write_manpages(&a.output_dir)?;
+            eprintln!(
+                "wrote {} manual pages to {}",
+                written,
+                a.output_dir.display()
+            );
+            Ok(ExitCode::SUCCESS)
+        }
     }
 }
 

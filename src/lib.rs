@@ -5,6 +5,12 @@
 //! lacks from the SMILES string; the report layer renders results. The command-line program
 //! is a thin layer over this API: the library never prints and never exits.
 #![deny(missing_docs)]
+// No `unwrap`/`expect`/`panic!` outside tests: user input must never crash the program; every
+// failure becomes an error value naming the bad input (enforced by clippy in `.ci/run`).
+#![cfg_attr(
+    not(test),
+    deny(clippy::unwrap_used, clippy::expect_used, clippy::panic)
+)]
 
 pub mod advisor;
 pub mod kb;

@@ -1,6 +1,11 @@
 //! The phasewise command-line program: parse arguments, call the library, print, and map the
 //! outcome to an exit code. Exit codes: 0 success; 1 partial (some analytes unresolved);
 //! 2 bad input or usage; 3 knowledge-base trouble (missing, damaged, newer schema, locked).
+// No `unwrap`/`expect`/`panic!` outside tests (see src/lib.rs).
+#![cfg_attr(
+    not(test),
+    deny(clippy::unwrap_used, clippy::expect_used, clippy::panic)
+)]
 
 mod cli;
 mod commands;

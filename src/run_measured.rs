@@ -37,6 +37,7 @@ use phasewise::model::features::PhasewiseDescriptors;
 use phasewise::model::gradient::GradientProgram;
 use phasewise::model::memory::MemoryTable;
 use phasewise::model::regression::{DEFAULT_PENALTIES, TrainingData, train_with};
+use phasewise::report::plan::{check_writable, write_atomically};
 use phasewise::report::table::render;
 
 use crate::commands::EXIT_PARTIAL;
@@ -253,62 +254,6 @@ fn write_out(s: &str) -> Result<()> {
     out.write_all(s.as_bytes())?;
     out.flush()?;
     Ok(())
-}
-
-fn directory_of(path: &Path) -> PathBuf {
-    match path.parent() {
-        Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
-        _ => PathBuf::from("."),
-    }
-}
-
-fn file_name_of(path: &Path) -> Result<String> {
-    path.file_name()
-        .map(|n| n.to_string_lossy().into_owned())
-        .with_context(|| format!("output path `{}` does not name a file", path.display()))
-}
-
-/// Fails early when `path` cannot be written: its directory must exist and accept a new file.
-fn check_writable(path: &Path) -> Result<()> {
-    let dir = directory_of(path);
-    let name = file_name_of(path)?;
-    if !dir.is_dir() {
-        bail!(
-            "cannot write {}: directory {} does not exist",
-            path.display(),
-            dir.display()
-        );
-    }
-    let probe = dir.join(format!(".{name}.probe-{}", std::process::id()));
-    std::fs::OpenOptions::new()
-        .write(true)
-        .create_new(true)
-        .open(&probe)
-        .with_context(|| {
-            format!(
-                "cannot write {}: directory {} is not writable",
-                path.display(),
-                dir.display()
-            )
-        })?;
-    // The probe is ours; failing to remove it is harmless.
-    let _ = std::fs::remove_file(&probe);
-    Ok(())
-}
-
-/// Writes a file in one step: a temporary file in the same directory, then a rename, so a
-/// reader never sees half a file.
-fn write_atomic(path: &Path, bytes: &[u8]) -> Result<()> {
-    let dir = directory_of(path);
-    let name = file_name_of(path)?;
-    let tmp = dir.join(format!(".{name}.tmp-{}", std::process::id()));
-    let result = std::fs::write(&tmp, bytes)
-        .and_then(|()| std::fs::rename(&tmp, path))
-        .with_context(|| format!("writing {}", path.display()));
-    if result.is_err() {
-        let _ = std::fs::remove_file(&tmp);
-    }
-    result
 }
 
 fn dead_time_input(
@@ -800,10 +745,10 @@ pub fn run_scout(a: &ScoutArgs) -> Result<ExitCode> {
         ReportFormat::Table => scout_table(&fitted, &report, &plates_source),
     };
     if let Some(p) = &a.window_svg {
-        write_atomic(p, render_window_svg(&report.window).as_bytes())?;
+        write_atomically(p, render_window_svg(&report.window))?;
     }
     if let Some(p) = &a.window_data {
-        write_atomic(p, window_tsv(&report).as_bytes())?;
+        write_atomically(p, window_tsv(&report))?;
     }
     write_out(&text)?;
     Ok(ExitCode::SUCCESS)
@@ -1286,8 +1231,8 @@ fn run_model_train(a: &ModelTrainArgs) -> Result<ExitCode> {
     let memory = MemoryTable::from_training(&data)
         .to_gz_bytes()
         .context("encoding the retention memory")?;
-    write_atomic(&a.output, &bytes)?;
-    write_atomic(&a.memory_output, &memory)?;
+    write_atomically(&a.output, &bytes)?;
+    write_atomically(&a.memory_output, &memory)?;
     eprintln!(
         "wrote {} ({} B) and {} ({} B)",
         a.output.display(),

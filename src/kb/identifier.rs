@@ -19,6 +19,103 @@ pub enum Query {
     Name(String),
 }
 
+/// One analyte from a list: what to look up and, from a table with both a `name` and a
+/// `smiles` column, the name to show for it.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct ListEntry {
+    /// The query to resolve (the SMILES cell when the table has one, else the name).
+    pub query: String,
+    /// The name given beside a SMILES, shown when the structure is not in the knowledge base.
+    pub label: Option<String>,
+    /// 1-based line number in the list.
+    pub line: usize,
+}
+
+/// Split an analyte list into entries. Two forms:
+/// - plain: one query (name, synonym, CAS, InChIKey, CID or SMILES) per line;
+/// - a tab-separated table whose header names a `name` and/or a `smiles` column (other
+///   columns are ignored); a row's SMILES is looked up when present, else its name.
+///
+/// Blank lines and lines whose first non-blank character is `#` are skipped; white space
+/// around cells and a leading UTF-8 byte-order mark are removed. No in-line comments: `#` is a
+/// triple bond in SMILES.
+///
+/// # Errors
+/// [`KbError::BadInput`] naming the line: a tab in a plain list (a table needs its header), or
+/// a table row with neither a name nor a SMILES.
+pub fn parse_analyte_list(text: &str) -> Result<Vec<ListEntry>, KbError> {
+    let text = text.strip_prefix('\u{feff}').unwrap_or(text);
+    let mut lines = text
+        .lines()
+        .enumerate()
+        .map(|(i, l)| (i + 1, l.trim_end_matches(['\r', '\n'])))
+        .filter(|(_, l)| {
+            let t = l.trim();
+            !t.is_empty() && !t.starts_with('#')
+        })
+        .peekable();
+    let header: Option<(Option<usize>, Option<usize>)> = lines.peek().and_then(|(_, l)| {
+        let cols: Vec<String> = l
+            .split('\t')
+            .map(|c| c.trim().to_ascii_lowercase())
+            .collect();
+        let name = cols.iter().position(|c| c == "name");
+        let smiles = cols.iter().position(|c| c == "smiles");
+        (l.contains('\t') && (name.is_some() || smiles.is_some())).then_some((name, smiles))
+    });
+    let mut out = Vec::new();
+    match header {
+        None => {
+            for (line, l) in lines {
+                let l = l.trim();
+                if l.contains('\t') {
+                    return Err(KbError::BadInput(format!(
+                        "analyte list line {line} (`{}`) has a tab: one analyte per line, or a \
+                         tab-separated table whose first line names a `name` and/or `smiles` column",
+                        l.escape_default()
+                    )));
+                }
+                out.push(ListEntry {
+                    query: l.to_string(),
+                    label: None,
+                    line,
+                });
+            }
+        }
+        Some((name_col, smiles_col)) => {
+            lines.next();
+            for (line, l) in lines {
+                let cells: Vec<&str> = l.split('\t').map(str::trim).collect();
+                let cell = |c: Option<usize>| {
+                    c.and_then(|i| cells.get(i).copied())
+                        .filter(|s| !s.is_empty())
+                };
+                let (name, smiles) = (cell(name_col), cell(smiles_col));
+                let entry = match (name, smiles) {
+                    (n, Some(s)) => ListEntry {
+                        query: s.to_string(),
+                        label: n.map(str::to_string),
+                        line,
+                    },
+                    (Some(n), None) => ListEntry {
+                        query: n.to_string(),
+                        label: None,
+                        line,
+                    },
+                    (None, None) => {
+                        return Err(KbError::BadInput(format!(
+                            "analyte table line {line} (`{}`) has neither a name nor a SMILES",
+                            l.escape_default()
+                        )));
+                    }
+                };
+                out.push(entry);
+            }
+        }
+    }
+    Ok(out)
+}
+
 /// Classify a query. Malformed identifiers that were clearly meant as one (a CAS-shaped string
 /// with a wrong check digit, `inchikey:` with the wrong shape) are errors, never silently
 /// treated as names.
@@ -219,7 +316,59 @@ mod tests {
         );
     }
 
+    #[test]
+    fn analyte_lists_skip_comments_blanks_and_bom() {
+        let text = "\u{feff}caffeine\r\n\n  # a comment\n  C#N  \n\t\ntheobromine";
+        let q: Vec<String> = parse_analyte_list(text)
+            .unwrap()
+            .into_iter()
+            .map(|e| e.query)
+            .collect();
+        assert_eq!(q, ["caffeine", "C#N", "theobromine"]);
+        assert!(
+            parse_analyte_list("# only a comment\n\n")
+                .unwrap()
+                .is_empty()
+        );
+    }
+
+    #[test]
+    fn analyte_tables_take_the_smiles_and_keep_the_name() {
+        let text = "name\tsmiles\tnote\ninvented-a\tCCO\tx\nwater\t\n\tCCN\n";
+        let e = parse_analyte_list(text).unwrap();
+        assert_eq!(e.len(), 3);
+        assert_eq!(
+            (e[0].query.as_str(), e[0].label.as_deref(), e[0].line),
+            ("CCO", Some("invented-a"), 2)
+        );
+        assert_eq!(
+            (e[1].query.as_str(), e[1].label.as_deref()),
+            ("water", None)
+        );
+        assert_eq!((e[2].query.as_str(), e[2].label.as_deref()), ("CCN", None));
+        // a row with neither cell, and a tab in a plain list, name their line
+        let err = parse_analyte_list("name\tsmiles\tnote\n\t\tfoo\n")
+            .unwrap_err()
+            .to_string();
+        assert!(err.contains("line 2"), "{err}");
+        let err = parse_analyte_list("caffeine\nCCO\tethanol\n")
+            .unwrap_err()
+            .to_string();
+        assert!(err.contains("line 2"), "{err}");
+    }
+
     proptest::proptest! {
+        #[test]
+        fn analyte_list_lines_are_trimmed_and_non_empty(s in "\\PC{0,200}") {
+            if let Ok(entries) = parse_analyte_list(&s) {
+                for e in entries {
+                    proptest::prop_assert!(!e.query.is_empty());
+                    proptest::prop_assert_eq!(e.query.trim(), e.query.as_str());
+                    proptest::prop_assert!(e.line >= 1);
+                }
+            }
+        }
+
         #[test]
         fn classify_never_panics(s in "\\PC{0,60}") {
             let _ = classify(&s);

@@ -175,7 +175,7 @@ pub fn check_writable(path: &Path) -> Result<(), PlanError> {
 /// # Errors
 ///
 /// Any error of [`check_writable`], or [`PlanError::Write`] when writing or renaming fails.
-pub fn write_atomically(path: &Path, contents: &str) -> Result<(), PlanError> {
+pub fn write_atomically(path: &Path, contents: impl AsRef<[u8]>) -> Result<(), PlanError> {
     check_writable(path)?;
     let dir = parent_dir(path)?;
     let tmp = temp_name(&dir, path, "part");
@@ -184,7 +184,7 @@ pub fn write_atomically(path: &Path, contents: &str) -> Result<(), PlanError> {
             .write(true)
             .create_new(true)
             .open(&tmp)?;
-        f.write_all(contents.as_bytes())?;
+        f.write_all(contents.as_ref())?;
         f.sync_all()?;
         drop(f);
         std::fs::rename(&tmp, path)

@@ -299,6 +299,8 @@ pub fn candidate(
     let w_half = 2.355 * t0 * (1.0 + k_star) / n_plates.sqrt();
     let mut preds = Vec::new();
     let mut raw = Vec::new();
+    // molecular formula of each predicted analyte (for the isomer note), in `preds` order
+    let mut formulas: Vec<Option<&str>> = Vec::new();
     let mut not_predicted = Vec::new();
     for p in profiles {
         let Some(smiles) = p.analyte.smiles.as_deref() else {
@@ -327,6 +329,7 @@ pub fn candidate(
                     retention_index: None,
                 });
                 raw.push(pr);
+                formulas.push(p.analyte.formula.as_deref());
             }
             Err(e) => not_predicted.push(format!("{}: {e}", p.name())),
         }
@@ -337,7 +340,11 @@ pub fn candidate(
             not_predicted.join("; ")
         ));
     }
-    // co-elution probabilities of every pair (close pairs matter; listed later if above the risk)
+    // co-elution probabilities of every pair (close pairs matter). Only pairs that something
+    // downstream reads are kept: the report lists those at or above the risk threshold, the
+    // separation score counts those above 0.2 (`separation_score`). With hundreds of analytes
+    // the others would be most of the work and none of the result.
+    let floor = req.risk_threshold.clamp(0.0, 0.2);
     let mut coelutions = Vec::new();
     let wb = w_half * 4.0 / 2.355;
     for i in 0..preds.len() {
@@ -352,12 +359,14 @@ pub fn candidate(
             {
                 continue;
             }
-            if let Ok(prob) = regression::coelution_probability(&raw[a], &raw[b], wb) {
+            if let Ok(prob) = regression::coelution_probability(&raw[a], &raw[b], wb)
+                && prob >= floor
+            {
                 coelutions.push(coelution(
                     &preds[a],
                     &preds[b],
                     prob,
-                    isomer_note(profiles, &preds[a].analyte, &preds[b].analyte),
+                    isomer_note(formulas[a], formulas[b]),
                 ));
             }
         }
@@ -472,14 +481,8 @@ pub fn candidate(
 
 /// A note for pairs that are isomers (same formula): positional isomers are the classic
 /// difficult pairs.
-fn isomer_note(profiles: &[AnalyteProfile], a: &str, b: &str) -> Option<String> {
-    let f = |n: &str| {
-        profiles
-            .iter()
-            .find(|p| p.name() == n)
-            .and_then(|p| p.analyte.formula.clone())
-    };
-    match (f(a), f(b)) {
+fn isomer_note(a: Option<&str>, b: Option<&str>) -> Option<String> {
+    match (a, b) {
         (Some(x), Some(y)) if x == y => Some(format!(
             "isomers ({x}): selectivity comes from shape and polarity, not size"
         )),

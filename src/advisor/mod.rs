@@ -268,7 +268,13 @@ pub fn advise(
     for (i, c) in candidates.iter_mut().enumerate() {
         c.rec.rank = i as u32 + 1;
     }
-    let backup = choose_backup(&candidates, req.risk_threshold);
+    let mut backup = choose_backup(&candidates, req.risk_threshold);
+    if let Some(b) = &mut backup {
+        // the back-up lists its risky pairs by the same threshold as the recommendations
+        b.recommendation
+            .coelutions
+            .retain(|c| c.probability >= req.risk_threshold);
+    }
     let first_mode = candidates[0].rec.mode.clone();
     let first_ph = candidates[0].rec.conditions.ph;
     let mut recommendations: Vec<Recommendation> = candidates

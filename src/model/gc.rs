@@ -837,6 +837,21 @@ pub fn alkane_ladder(
     column: &GcColumn,
     program: &OvenProgram,
 ) -> Result<AlkaneLadder, GcError> {
+    alkane_ladder_with_steps(phase, column, program, LADDER_STEPS_PER_HOLDUP)
+}
+
+/// Integration steps per hold-up time for the ladder. The midpoint rule on the smooth
+/// integrand 1/(t_M (1 + k(T(t)))) with linear interpolation of the crossing keeps the
+/// elution times within 0.05 % of t_M of a 20-times finer integration (checked by the test
+/// `ladder_step_is_converged`); 400 steps, used before, cost 4 times as much for no visible change.
+const LADDER_STEPS_PER_HOLDUP: f64 = 100.0;
+
+fn alkane_ladder_with_steps(
+    phase: &StationaryPhase,
+    column: &GcColumn,
+    program: &OvenProgram,
+    steps_per_holdup: f64,
+) -> Result<AlkaneLadder, GcError> {
     let constants = gc_constants(phase)?;
     if program.final_c() > phase.t_max_c() {
         return Err(GcError::AbovePhaseLimit {
@@ -861,8 +876,7 @@ pub fn alkane_ladder(
     let mut position = vec![0.0_f64; boiling.len()];
     let mut points = Vec::new();
     let total = program.total_time_min();
-    // Step: 1/400 of the hold-up time keeps the interpolated times well below 0.1 % of t_M in error.
-    let dt = holdup / 400.0;
+    let dt = holdup / steps_per_holdup;
     let mut eluted = vec![false; boiling.len()];
     let mut first_pending = 0usize;
     let mut time = 0.0;

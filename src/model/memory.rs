@@ -17,9 +17,7 @@ use std::io::Read;
 
 use serde::{Deserialize, Serialize};
 
-use super::regression::{
-    Additive, ChemClass, LcSystem, Mode, ModelError, Modifier, parse_program, parse_tsv,
-};
+use super::regression::{Additive, ChemClass, LcSystem, Mode, ModelError, Modifier, parse_program};
 
 /// How a source system relates to the target system.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Serialize, Deserialize)]
@@ -219,30 +217,36 @@ impl MemoryTable {
     /// # Errors
     /// `ModelError::BadRow` naming the line.
     pub fn from_tsv(text: &str, label: &str) -> Result<Self, ModelError> {
+        // Read straight from the text (no per-cell allocation): the table has ~15,000 analyte
+        // records and is read on every advise/predict run.
         let mut t = MemoryTable::default();
-        let (first, rows) = parse_tsv(text);
-        let _ = first;
-        for (i, r) in rows.iter().enumerate() {
-            let line = i + 2;
+        for (i, l) in text.lines().enumerate().skip(1) {
+            let line = i + 1;
+            if l.trim().is_empty() {
+                continue;
+            }
             let bad = |reason: String| ModelError::BadRow {
                 path: label.to_owned(),
                 line,
                 reason,
             };
-            let f = |j: usize| r.get(j).map(String::as_str).unwrap_or("");
-            let num = |j: usize| -> Result<f64, ModelError> {
-                f(j).parse()
-                    .map_err(|_| bad(format!("not a number: {:?}", f(j))))
-            };
-            let opt = |j: usize| -> Result<Option<f64>, ModelError> {
-                if f(j).is_empty() {
-                    Ok(None)
-                } else {
-                    num(j).map(Some)
-                }
-            };
-            match f(0) {
+            let mut cells = l.split('\t');
+            let kind = cells.next().unwrap_or("");
+            match kind {
                 "system" => {
+                    let r: Vec<&str> = l.split('\t').collect();
+                    let f = |j: usize| r.get(j).copied().unwrap_or("");
+                    let num = |j: usize| -> Result<f64, ModelError> {
+                        f(j).parse()
+                            .map_err(|_| bad(format!("not a number: {:?}", f(j))))
+                    };
+                    let opt = |j: usize| -> Result<Option<f64>, ModelError> {
+                        if f(j).is_empty() {
+                            Ok(None)
+                        } else {
+                            num(j).map(Some)
+                        }
+                    };
                     let mode = match f(2) {
                         "RP" => Mode::ReversedPhase,
                         "HILIC" => Mode::Hilic,
@@ -265,20 +269,25 @@ impl MemoryTable {
                     t.systems.insert(f(1).to_owned(), sys);
                 }
                 "analyte" => {
-                    let mut list = Vec::new();
-                    for item in f(2).split(',') {
-                        let parts: Vec<&str> = item.split(':').collect();
-                        let [id, psi, rt] = parts[..] else {
+                    let key = cells.next().unwrap_or("");
+                    let items = cells.next().unwrap_or("");
+                    let mut list =
+                        Vec::with_capacity(items.bytes().filter(|&b| b == b',').count() + 1);
+                    for item in items.split(',') {
+                        let mut parts = item.split(':');
+                        let (Some(id), Some(psi), Some(rt), None) =
+                            (parts.next(), parts.next(), parts.next(), parts.next())
+                        else {
                             return Err(bad(format!("entry {item:?}")));
                         };
                         let psi: f64 = psi.parse().map_err(|_| bad(format!("psi {psi:?}")))?;
                         let rt: f64 = rt.parse().map_err(|_| bad(format!("rt {rt:?}")))?;
-                        if !t.systems.contains_key(id) {
+                        let Some((id, _)) = t.systems.get_key_value(id) else {
                             return Err(bad(format!("unknown system {id:?}")));
-                        }
-                        list.push((id.to_owned(), psi, rt));
+                        };
+                        list.push((id.clone(), psi, rt));
                     }
-                    t.entries.insert(f(1).to_owned(), list);
+                    t.entries.insert(key.to_owned(), list);
                 }
                 other if other.starts_with('#') => {}
                 other => return Err(bad(format!("record kind {other:?}"))),

@@ -435,3 +435,30 @@ fn times_outside_the_ladder_are_errors() {
         Err(GcError::OutsideLadder { .. })
     ));
 }
+
+#[test]
+fn ladder_step_is_converged() {
+    // Self-consistency: the production step against a 20-times finer integration, on a
+    // non-polar and a polar phase and a short and a long program.
+    let column = standard_column();
+    for id in ["gc-dimethyl", "gc-wax"] {
+        for final_c in [200.0, 240.0] {
+            let p = program(final_c);
+            let coarse = alkane_ladder(phase(id), &column, &p).unwrap();
+            let fine =
+                alkane_ladder_with_steps(phase(id), &column, &p, 20.0 * LADDER_STEPS_PER_HOLDUP)
+                    .unwrap();
+            assert_eq!(coarse.points().len(), fine.points().len(), "{id} {final_c}");
+            for (a, b) in coarse.points().iter().zip(fine.points()) {
+                let err = (a.retention_time_min - b.retention_time_min).abs();
+                assert!(
+                    err < 5e-4 * column.holdup_time_min(),
+                    "{id} C{}: {} vs {} min",
+                    a.carbon_number,
+                    a.retention_time_min,
+                    b.retention_time_min
+                );
+            }
+        }
+    }
+}

@@ -126,6 +126,28 @@ pub struct MemoryTable {
     pub systems: BTreeMap<String, LcSystem>,
     /// InChIKey → (system id, psi_k1, measured rt in min), sorted by system id.
     pub entries: BTreeMap<String, Vec<(String, f64, f64)>>,
+    /// Analyte records not parsed yet (the bundled table: read per analyte on demand, since a
+    /// run needs a handful of its ~15,000 records). Consulted after `entries`.
+    lazy: Option<LazyAnalytes>,
+}
+
+/// The `analyte` records of a table as text, with an index sorted by InChIKey.
+#[derive(Debug, Clone, PartialEq, Default)]
+struct LazyAnalytes {
+    text: String,
+    /// (key start, key end, items end) byte offsets into `text`, sorted by key.
+    index: Vec<(usize, usize, usize)>,
+}
+
+impl LazyAnalytes {
+    fn items(&self, inchikey: &str) -> Option<&str> {
+        let i = self
+            .index
+            .binary_search_by(|&(a, b, _)| self.text[a..b].cmp(inchikey))
+            .ok()?;
+        let (_, b, c) = self.index[i];
+        self.text.get(b + 1..c)
+    }
 }
 
 /// Licence header of the memory table.
@@ -153,6 +175,38 @@ fn additive_code(a: Additive) -> &'static str {
     }
 }
 
+fn gunzip(bytes: &[u8], label: &str) -> Result<String, ModelError> {
+    let mut s = String::new();
+    flate2::read::GzDecoder::new(bytes)
+        .read_to_string(&mut s)
+        .map_err(|e| ModelError::Io {
+            path: label.to_owned(),
+            reason: e.to_string(),
+        })?;
+    Ok(s)
+}
+
+/// One `system` record of the TSV form.
+fn system_line(id: &str, s: &LcSystem) -> String {
+    let g: Vec<String> = s
+        .gradient
+        .iter()
+        .map(|p| format!("{}:{}", p.time_min, p.organic_pct))
+        .collect();
+    format!(
+        "system\t{id}\t{}\t{}\t{}\t{}\t{}\t{}\t{}\t{}\t{}\n",
+        s.mode.label(),
+        s.chem_class.name(),
+        modifier_code(s.modifier),
+        fmt_opt(s.ph),
+        additive_code(s.additive),
+        s.t0_min,
+        s.flow_ml_min,
+        fmt_opt(s.temperature_c),
+        g.join(";")
+    )
+}
+
 fn fmt_opt(v: Option<f64>) -> String {
     v.map_or_else(String::new, |x| format!("{x}"))
 }
@@ -163,16 +217,66 @@ impl MemoryTable {
         &'a self,
         inchikey: &str,
     ) -> impl Iterator<Item = (&'a str, &'a LcSystem, f64)> + 'a {
-        self.entries
+        let eager = self
+            .entries
             .get(inchikey)
             .into_iter()
             .flatten()
-            .filter_map(|(id, psi, _)| self.systems.get(id).map(|s| (id.as_str(), s, *psi)))
+            .filter_map(|(id, psi, _)| {
+                self.systems
+                    .get_key_value(id)
+                    .map(|(k, s)| (k.as_str(), s, *psi))
+            });
+        // lazy records were checked when the table was built and by the test
+        // `bundled_table_parses_completely`; an item that does not parse is skipped
+        let lazy = self
+            .lazy
+            .as_ref()
+            .and_then(|l| l.items(inchikey))
+            .into_iter()
+            .flat_map(|items| items.split(','))
+            .filter_map(|item| {
+                let mut parts = item.split(':');
+                let (id, psi) = (parts.next()?, parts.next()?.parse::<f64>().ok()?);
+                self.systems
+                    .get_key_value(id)
+                    .map(|(k, s)| (k.as_str(), s, psi))
+            });
+        eager.chain(lazy)
     }
 
     /// Number of analytes.
     pub fn n_analytes(&self) -> usize {
-        self.entries.len()
+        match &self.lazy {
+            None => self.entries.len(),
+            Some(l) => {
+                let extra = self.entries.keys().filter(|k| l.items(k).is_none()).count();
+                l.index.len() + extra
+            }
+        }
+    }
+
+    /// The table with every record parsed (a lazily read table materialised).
+    ///
+    /// # Errors
+    /// `ModelError::BadRow` for a record that does not parse.
+    pub fn materialised(&self) -> Result<MemoryTable, ModelError> {
+        let Some(l) = &self.lazy else {
+            return Ok(self.clone());
+        };
+        let mut text = String::from("# header\n");
+        for (id, s) in &self.systems {
+            text.push_str(&system_line(id, s));
+        }
+        text.push_str(&l.text);
+        let mut t = MemoryTable::from_tsv(&text, "lazily read memory table")?;
+        for (k, v) in &self.entries {
+            t.entries
+                .entry(k.clone())
+                .or_default()
+                .extend(v.iter().cloned());
+        }
+        Ok(t)
     }
 
     /// Writes the table as TSV text: `system` records then `analyte` records
@@ -184,25 +288,16 @@ impl MemoryTable {
         out.push_str("# system\tid\tmode\tchem_class\tmodifier\tph\tadditive\tt0_min\tflow_ml_min\ttemperature_c\tgradient_org\n");
         out.push_str("# analyte\tinchikey\tsystem_id:psi_k1:rt_min,...\n");
         for (id, s) in &self.systems {
-            let g: Vec<String> = s
-                .gradient
-                .iter()
-                .map(|p| format!("{}:{}", p.time_min, p.organic_pct))
-                .collect();
-            out.push_str(&format!(
-                "system\t{id}\t{}\t{}\t{}\t{}\t{}\t{}\t{}\t{}\t{}\n",
-                s.mode.label(),
-                s.chem_class.name(),
-                modifier_code(s.modifier),
-                fmt_opt(s.ph),
-                additive_code(s.additive),
-                s.t0_min,
-                s.flow_ml_min,
-                fmt_opt(s.temperature_c),
-                g.join(";")
-            ));
+            out.push_str(&system_line(id, s));
         }
-        for (key, list) in &self.entries {
+        let materialised;
+        let entries = if self.lazy.is_some() {
+            materialised = self.materialised().map(|t| t.entries).unwrap_or_default();
+            &materialised
+        } else {
+            &self.entries
+        };
+        for (key, list) in entries {
             let items: Vec<String> = list
                 .iter()
                 .map(|(id, psi, rt)| format!("{id}:{psi:.4}:{rt:.3}"))
@@ -296,19 +391,68 @@ impl MemoryTable {
         Ok(t)
     }
 
+    /// Reads the TSV text written by `to_tsv`, parsing the `system` records and indexing the
+    /// `analyte` records, which are parsed when an analyte is asked for. The records must be
+    /// sorted by InChIKey (as `to_tsv` writes them).
+    ///
+    /// # Errors
+    /// `ModelError::BadRow` naming the line: a bad system record, an analyte record without
+    /// its fields, or records out of order.
+    pub fn from_tsv_lazy(text: &str, label: &str) -> Result<Self, ModelError> {
+        let split = text
+            .match_indices("\nanalyte\t")
+            .next()
+            .map_or(text.len(), |(i, _)| i + 1);
+        let mut t = MemoryTable::from_tsv(&text[..split], label)?;
+        let head_lines = text[..split].lines().count();
+        let body = text[split..].to_string();
+        let mut index = Vec::new();
+        let mut pos = 0;
+        for (n, line) in body.split_inclusive('\n').enumerate() {
+            let bad = |reason: String| ModelError::BadRow {
+                path: label.to_owned(),
+                line: head_lines + n + 1,
+                reason,
+            };
+            let content = line.trim_end_matches(['\n', '\r']);
+            let start = pos;
+            pos += line.len();
+            if content.trim().is_empty() || content.starts_with('#') {
+                continue;
+            }
+            let rest = content
+                .strip_prefix("analyte\t")
+                .ok_or_else(|| bad("expected an analyte record after the first one".into()))?;
+            let key_len = rest
+                .find('\t')
+                .ok_or_else(|| bad("analyte record without entries".into()))?;
+            let key_start = start + "analyte\t".len();
+            let entry = (key_start, key_start + key_len, start + content.len());
+            if let Some(&(a, b, _)) = index.last()
+                && body[a..b] >= body[entry.0..entry.1]
+            {
+                return Err(bad("analyte records are not sorted by InChIKey".into()));
+            }
+            index.push(entry);
+        }
+        t.lazy = Some(LazyAnalytes { text: body, index });
+        Ok(t)
+    }
+
     /// Reads a gzip-compressed table.
     ///
     /// # Errors
     /// `ModelError::Io` or `BadRow`.
     pub fn from_gz_bytes(bytes: &[u8], label: &str) -> Result<Self, ModelError> {
-        let mut s = String::new();
-        flate2::read::GzDecoder::new(bytes)
-            .read_to_string(&mut s)
-            .map_err(|e| ModelError::Io {
-                path: label.to_owned(),
-                reason: e.to_string(),
-            })?;
-        Self::from_tsv(&s, label)
+        Self::from_tsv(&gunzip(bytes, label)?, label)
+    }
+
+    /// Reads a gzip-compressed table lazily ([`MemoryTable::from_tsv_lazy`]).
+    ///
+    /// # Errors
+    /// `ModelError::Io` or `BadRow`.
+    pub fn from_gz_bytes_lazy(bytes: &[u8], label: &str) -> Result<Self, ModelError> {
+        Self::from_tsv_lazy(&gunzip(bytes, label)?, label)
     }
 
     /// Gzip-compressed TSV bytes (deterministic).
@@ -396,5 +540,42 @@ mod tests {
         );
         let bad = text.replace("\tRP\t", "\tGC\t");
         assert!(MemoryTable::from_tsv(&bad, "x").is_err());
+    }
+
+    #[test]
+    fn bundled_table_parses_completely() {
+        // every record of the shipped table parses, and the lazy reader gives the same
+        // measurements as the eager one for every analyte
+        let bytes = include_bytes!("../../data/retention_memory.tsv.gz");
+        let eager = MemoryTable::from_gz_bytes(bytes, "bundled").unwrap();
+        let lazy = MemoryTable::from_gz_bytes_lazy(bytes, "bundled").unwrap();
+        assert!(eager.n_analytes() > 10_000, "{}", eager.n_analytes());
+        assert_eq!(lazy.n_analytes(), eager.n_analytes());
+        for key in eager.entries.keys() {
+            let a: Vec<_> = eager.measurements(key).collect();
+            let b: Vec<_> = lazy.measurements(key).collect();
+            assert_eq!(a, b, "{key}");
+        }
+        assert_eq!(lazy.materialised().unwrap(), eager);
+        assert_eq!(lazy.to_tsv(), eager.to_tsv());
+        assert_eq!(lazy.measurements("NOT-A-KEY").count(), 0);
+    }
+
+    #[test]
+    fn lazy_reader_rejects_unsorted_and_broken_records() {
+        let head = "# x\nsystem\ts1\tRP\tC18\tacn\t3\tformic\t1\t0.5\t30\t0:5;10:95\n";
+        let ok = format!("{head}analyte\tAAA\ts1:0.3:4.0\nanalyte\tBBB\ts1:0.4:5.0\n");
+        let t = MemoryTable::from_tsv_lazy(&ok, "t").unwrap();
+        assert_eq!(
+            t.measurements("BBB").map(|m| m.2).collect::<Vec<_>>(),
+            [0.4]
+        );
+        let unsorted = format!("{head}analyte\tBBB\ts1:0.3:4.0\nanalyte\tAAA\ts1:0.4:5.0\n");
+        let e = MemoryTable::from_tsv_lazy(&unsorted, "t")
+            .unwrap_err()
+            .to_string();
+        assert!(e.contains("sorted") && e.contains('4'), "{e}");
+        let broken = format!("{head}analyte\tAAA\ts1:0.3:4.0\nsystem\ts2\n");
+        assert!(MemoryTable::from_tsv_lazy(&broken, "t").is_err());
     }
 }

@@ -1043,7 +1043,7 @@ impl Model {
     /// `ModelError::Io` if the bundled files are corrupt.
     pub fn load_builtin() -> Result<Self, ModelError> {
         let mut m = Self::from_gz_bytes(BUILTIN_MODEL, "builtin lc_model.json.gz")?;
-        m.memory = Some(MemoryTable::from_gz_bytes(
+        m.memory = Some(MemoryTable::from_gz_bytes_lazy(
             BUILTIN_MEMORY,
             "builtin retention_memory.tsv.gz",
         )?);

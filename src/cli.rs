@@ -52,6 +52,12 @@ pub enum Command {
         after_help = "Example:\n  phasewise predict caffeine theophylline --mode rp --phase rp-c18 --gradient '0:5,20:95' \\\n      --ph 2.7 --modifier acetonitrile --column 150x4.6 --flow 1.0"
     )]
     Predict(PredictArgs),
+    /// List the stationary phases of the catalogue: id, mode, generic name, pH range,
+    /// maximum temperature and interactions (the ids `--phases-available` and `--phase` take).
+    #[command(
+        after_help = "Example:\n  phasewise phases --mode gc\n  phasewise phases --format json > phases.json\n\nA --phases-available file lists one of these ids per line (`#` starts a comment)."
+    )]
+    Phases(PhasesArgs),
     /// Write a reviewable method-development plan (HTML or Markdown) for a list of analytes.
     #[command(
         after_help = "Example:\n  phasewise plan toluene ethylbenzene p-xylene m-xylene o-xylene --output plan.html"
@@ -171,7 +177,8 @@ pub struct AdviseArgs {
     /// Shared options.
     #[command(flatten)]
     pub opts: AdviseOptions,
-    /// Output format (table or json).
+    /// Output format: table, json (the full report), or csv/tsv (one row per predicted analyte
+    /// of each listed recommendation and of the back-up; columns in docs/json-schema.md).
     #[arg(long, short, value_enum, default_value_t = OutputFormat::Table)]
     pub format: OutputFormat,
 }
@@ -221,6 +228,26 @@ pub struct PredictArgs {
     /// Output format.
     #[arg(long, short, value_enum, default_value_t = OutputFormat::Table)]
     pub format: OutputFormat,
+}
+
+/// `phases` options.
+#[derive(Debug, Args)]
+pub struct PhasesArgs {
+    /// Only phases of this mode: rp, hilic, gc, ic-anion, ic-cation or ion-exclusion.
+    #[arg(long)]
+    pub mode: Option<String>,
+    /// Output format.
+    #[arg(long, short, value_enum, default_value_t = ListFormat::Table)]
+    pub format: ListFormat,
+}
+
+/// Output formats of listing commands.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum ListFormat {
+    /// Aligned table.
+    Table,
+    /// JSON (schema in docs/json-schema.md).
+    Json,
 }
 
 /// `plan` options.

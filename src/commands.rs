@@ -252,6 +252,16 @@ fn advise_report_with(
     fixed: Option<phasewise::advisor::FixedLc>,
     phases_override: Option<Vec<String>>,
 ) -> Result<(phasewise::report::advice::AdviceReport, bool)> {
+    advise_report_fixed(cli, o, fixed, None, phases_override)
+}
+
+fn advise_report_fixed(
+    cli: &Cli,
+    o: &crate::cli::AdviseOptions,
+    fixed: Option<phasewise::advisor::FixedLc>,
+    fixed_gc: Option<phasewise::advisor::FixedGc>,
+    phases_override: Option<Vec<String>>,
+) -> Result<(phasewise::report::advice::AdviceReport, bool)> {
     use phasewise::advisor::{AdviseRequest, Detector, advise, profile::AnalyteProfile};
     // cheap checks first, before the knowledge base is opened
     let detector = Detector::parse(&o.detector).map_err(|e| anyhow::anyhow!(e))?;
@@ -282,13 +292,23 @@ fn advise_report_with(
             )
         })?);
     }
-    let phases_available = match &o.phases_available {
-        Some(p) => std::fs::read_to_string(p)
-            .with_context(|| format!("reading {}", p.display()))?
-            .lines()
-            .map(|l| l.split('#').next().unwrap_or("").trim().to_string())
-            .filter(|l| !l.is_empty())
-            .collect(),
+    let phases_available: Vec<String> = match &o.phases_available {
+        Some(p) => {
+            let ids: Vec<String> = std::fs::read_to_string(p)
+                .with_context(|| format!("reading {}", p.display()))?
+                .lines()
+                .map(|l| l.split('#').next().unwrap_or("").trim().to_string())
+                .filter(|l| !l.is_empty())
+                .collect();
+            // an empty list would otherwise mean "no restriction", the opposite of the intent
+            if ids.is_empty() {
+                bail!(
+                    "--phases-available {}: the file lists no phase id (only blank or comment lines); put one id per line (`phasewise phases` lists them)",
+                    p.display()
+                );
+            }
+            ids
+        }
         None => Vec::new(),
     };
     let phases_available = phases_override.unwrap_or(phases_available);
@@ -318,6 +338,7 @@ fn advise_report_with(
         alternatives: o.alternatives.max(1),
         risk_threshold: o.risk,
         fixed,
+        fixed_gc,
     };
     let report = advise(&profiles, missing, &req)?;
     Ok((report, partial))
@@ -343,7 +364,9 @@ pub fn run(cli: Cli) -> Result<ExitCode> {
             let (report, partial) = advise_report(&cli, &args.opts)?;
             let text = match args.format {
                 OutputFormat::Json => format!("{}\n", serde_json::to_string_pretty(&report)?),
-                _ => report.render_table(),
+                OutputFormat::Table => report.render_table(),
+                OutputFormat::Csv => report.render_delimited(','),
+                OutputFormat::Tsv => report.render_delimited('\t'),
             };
             write_out(&text)?;
             Ok(if partial {
@@ -387,6 +410,25 @@ pub fn run(cli: Cli) -> Result<ExitCode> {
             })
         }
         Command::Predict(args) => run_predict(&cli, args),
+        Command::Phases(args) => {
+            let mode = match &args.mode {
+                Some(m) => Some(phasewise::phase::PhaseMode::parse(m.trim()).ok_or_else(|| {
+                    anyhow::anyhow!(
+                        "unknown mode `{m}`; use rp, hilic, gc, ic-anion, ic-cation or ion-exclusion"
+                    )
+                })?),
+                None => None,
+            };
+            let report = phasewise::report::phases::PhasesReport::new(
+                phasewise::phase::Catalogue::builtin()?,
+                mode,
+            );
+            write_out(&match args.format {
+                crate::cli::ListFormat::Table => report.render_table(),
+                crate::cli::ListFormat::Json => report.render_json()?,
+            })?;
+            Ok(ExitCode::SUCCESS)
+        }
         Command::Describe(args) => {
             let input = AnalyteInput {
                 analytes: args.smiles.clone(),
@@ -627,6 +669,15 @@ fn run_predict(cli: &Cli, a: &crate::cli::PredictArgs) -> Result<ExitCode> {
             );
         }
     }
+    if let Some(t) = a.temperature
+        && !(t.is_finite() && (5.0..=phase.t_max_c()).contains(&t))
+    {
+        bail!(
+            "--temperature {t}: must be between 5 °C and the maximum {} °C of phase `{}`",
+            phase.t_max_c(),
+            a.phase
+        );
+    }
     if let Some(m) = &a.modifier
         && m != "acetonitrile"
         && m != "methanol"
@@ -675,6 +726,13 @@ fn run_predict(cli: &Cli, a: &crate::cli::PredictArgs) -> Result<ExitCode> {
         bail!("no prediction could be made");
     };
     report.recommendations = vec![rec.clone()];
+    // what the user's conditions implied (buffer for the pH, flow from t0)
+    let notes: Vec<String> = rec
+        .reasons
+        .iter()
+        .filter(|r| r.source == "user")
+        .map(|r| r.text.clone())
+        .collect();
     let text = match a.format {
         OutputFormat::Json => format!(
             "{}\n",
@@ -685,6 +743,7 @@ fn run_predict(cli: &Cli, a: &crate::cli::PredictArgs) -> Result<ExitCode> {
                 "conditions": rec.conditions,
                 "predictions": rec.predictions,
                 "coelutions": rec.coelutions,
+                "notes": notes,
                 "unresolved": report.unresolved,
                 "warnings": report.warnings,
             }))?
@@ -727,6 +786,9 @@ fn run_predict(cli: &Cli, a: &crate::cli::PredictArgs) -> Result<ExitCode> {
                     phasewise::report::num(c.probability, 2),
                     phasewise::report::num(c.resolution, 2)
                 ));
+            }
+            for n in &notes {
+                t.push_str(&format!("note: {n}\n"));
             }
             for u in &report.unresolved {
                 t.push_str(&format!("unresolved: {} ({})\n", u.query, u.reason));

@@ -565,7 +565,8 @@ fn predict_rejects_bad_conditions_naming_the_value() {
                 "--flow",
                 "1",
             ],
-            "advise",
+            // GC predictions take an oven program, not a gradient (issue #4)
+            "--oven",
         ),
         (
             vec![
@@ -980,4 +981,151 @@ fn reasons_rules_hilic_program_and_cautions_are_stated_once_and_in_their_units()
             .all(|l| l.contains("not scored")),
         "{t}"
     );
+}
+
+#[test]
+fn predict_gc_gives_retention_index_time_and_flagged_pairs_under_a_given_oven_program() {
+    let ctx = Ctx::new();
+    let xylenes = [
+        "toluene",
+        "ethylbenzene",
+        "p-xylene",
+        "m-xylene",
+        "o-xylene",
+    ];
+    let run = |extra: &[&str]| {
+        let mut args = vec!["predict", "--mode", "gc", "--format", "json"];
+        args.extend_from_slice(extra);
+        args.extend_from_slice(&xylenes);
+        let out = ctx.run(&args);
+        assert!(out.status.success(), "{args:?}: {}", stderr(&out));
+        serde_json::from_slice::<serde_json::Value>(&out.stdout).unwrap()
+    };
+    let v = run(&[
+        "--phase",
+        "gc-5-phenyl",
+        "--oven",
+        "40:2,10:250:5",
+        "--column",
+        "30x0.25x0.25",
+    ]);
+    let c = &v["conditions"];
+    assert_eq!(c["column_id_mm"].as_f64(), Some(0.25));
+    assert_eq!(c["film_um"].as_f64(), Some(0.25));
+    // the program reported is the one given: 40 °C, 2 min hold, 10 °C/min to 250 °C, 5 min
+    let prog: Vec<(f64, f64)> = c["program"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|p| {
+            (
+                p["time_min"].as_f64().unwrap(),
+                p["value"].as_f64().unwrap(),
+            )
+        })
+        .collect();
+    assert_eq!(
+        prog,
+        vec![(0.0, 40.0), (2.0, 40.0), (23.0, 250.0), (28.0, 250.0)]
+    );
+    let preds = v["predictions"].as_array().unwrap();
+    assert_eq!(preds.len(), 5);
+    for p in preds {
+        assert!(p["retention_index"].as_f64().is_some(), "{p}");
+        assert_eq!(p["path"], "retention-index");
+    }
+    // on a low-polarity phase m- and p-xylene are the classic co-eluting pair (common practice)
+    assert!(
+        v["coelutions"].as_array().unwrap().iter().any(|x| {
+            let (a, b) = (x["a"].as_str().unwrap(), x["b"].as_str().unwrap());
+            (a == "p-xylene" && b == "m-xylene") || (a == "m-xylene" && b == "p-xylene")
+        }),
+        "{}",
+        v["coelutions"]
+    );
+    // a faster ramp elutes every analyte earlier (temperature-programmed GC)
+    let fast = run(&[
+        "--phase",
+        "gc-5-phenyl",
+        "--oven",
+        "40:2,20:250:5",
+        "--column",
+        "30x0.25x0.25",
+    ]);
+    for p in fast["predictions"].as_array().unwrap() {
+        let slow = preds.iter().find(|q| q["analyte"] == p["analyte"]).unwrap();
+        assert!(
+            p["retention_time_min"].as_f64() < slow["retention_time_min"].as_f64(),
+            "{p}"
+        );
+    }
+    // bad GC input names the value
+    for (extra, want) in [
+        (vec!["--oven", "40:2,10:x:5"], "`x`"),
+        (vec!["--oven", "40:2,10:400:5"], "400"),
+        (vec!["--column", "30x0.25"], "30x0.25"),
+        (vec!["--ph", "3"], "--ph"),
+    ] {
+        let mut a = vec!["predict", "toluene", "--mode", "gc", "--phase", "gc-wax"];
+        a.extend(extra.iter());
+        let out = ctx.run(&a);
+        assert_eq!(out.status.code(), Some(2), "{a:?}");
+        assert!(stderr(&out).contains(want), "{a:?}: {}", stderr(&out));
+    }
+}
+
+#[test]
+fn predict_ic_gives_the_elution_order_and_relative_retention() {
+    let ctx = Ctx::new();
+    let (v, code) = ctx.json(&[
+        "predict",
+        "--mode",
+        "ic-anion",
+        "--phase",
+        "ic-anion-hydroxide",
+        "--format",
+        "json",
+        "sulfate",
+        "chloride",
+        "fluoride",
+        "nitrate",
+    ]);
+    assert_eq!(code, 0);
+    let order: Vec<&str> = v["predictions"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|p| p["analyte"].as_str().unwrap())
+        .collect();
+    // fluoride first, chloride before nitrate (common practice, no source)
+    assert_eq!(order[0], "fluoride");
+    let pos = |n: &str| order.iter().position(|x| *x == n).unwrap();
+    assert!(pos("chloride") < pos("nitrate"));
+    assert!(
+        v["warnings"].as_array().unwrap().is_empty(),
+        "{}",
+        v["warnings"]
+    );
+    let out = ctx.run(&[
+        "predict",
+        "--mode",
+        "ic-anion",
+        "--phase",
+        "ic-anion-hydroxide",
+        "chloride",
+        "nitrate",
+    ]);
+    assert!(common::stdout(&out).contains("relative retention"));
+    let out = ctx.run(&[
+        "predict",
+        "chloride",
+        "--mode",
+        "ic-anion",
+        "--phase",
+        "ic-anion-hydroxide",
+        "--gradient",
+        "0:5,20:95",
+    ]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(stderr(&out).contains("--gradient"));
 }

@@ -10,7 +10,7 @@ use crate::report::advice::{Conditions, PredictionRow, ProgramStep, Reason, Reco
 
 /// Retention factor assumed for the reference ion of the ion table (assumption: the tables'
 /// reference ion elutes at k ≈ 3 at the reference eluent concentration; from memory).
-const K_REFERENCE: f64 = 3.0;
+pub const K_REFERENCE: f64 = 3.0;
 
 /// Build the candidate for one IC phase.
 ///

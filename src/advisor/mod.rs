@@ -124,6 +124,8 @@ pub struct AdviseRequest {
     pub fixed: Option<FixedLc>,
     /// Fixed GC column and oven program (for `predict --mode gc`).
     pub fixed_gc: Option<FixedGc>,
+    /// No back-up wanted (`predict`: one phase under given conditions).
+    pub no_backup: bool,
 }
 
 /// GC conditions given by the user instead of chosen by the advisor.
@@ -164,6 +166,7 @@ impl Default for AdviseRequest {
             risk_threshold: 0.2,
             fixed: None,
             fixed_gc: None,
+            no_backup: false,
         }
     }
 }
@@ -289,14 +292,17 @@ pub fn advise(
     for (i, c) in candidates.iter_mut().enumerate() {
         c.rec.rank = i as u32 + 1;
     }
-    let backup = choose_backup(
-        &candidates,
-        req.risk_threshold,
-        &mode_scores,
-        profiles.len(),
-    );
-    // `predict` (fixed conditions on one phase) asks for no back-up
-    if backup.is_none() && req.fixed.is_none() && req.fixed_gc.is_none() {
+    let backup = if req.no_backup {
+        None
+    } else {
+        choose_backup(
+            &candidates,
+            req.risk_threshold,
+            &mode_scores,
+            profiles.len(),
+        )
+    };
+    if backup.is_none() && !req.no_backup {
         warnings.push(no_backup_reason(&candidates[0].rec));
     }
     let first_mode = candidates[0].rec.mode.clone();

@@ -47,11 +47,19 @@ pub enum Command {
         after_help = "Example:\n  phasewise advise caffeine theobromine theophylline paraxanthine --detector uv:273\n  phasewise advise --input panel.txt --detector ms --format json"
     )]
     Advise(AdviseArgs),
-    /// Predict LC retention of analytes under given conditions (reversed phase or HILIC).
+    /// Predict retention of analytes under given conditions: LC (reversed phase or HILIC), GC
+    /// (retention index and time under an oven program) or IC (elution order and relative
+    /// retention).
     #[command(
-        after_help = "Example:\n  phasewise predict caffeine theophylline --mode rp --phase rp-c18 --gradient '0:5,20:95' \\\n      --ph 2.7 --modifier acetonitrile --column 150x4.6 --flow 1.0"
+        after_help = "Example:\n  phasewise predict caffeine theophylline --mode rp --phase rp-c18 --gradient '0:5,20:95' \\\n      --ph 2.7 --modifier acetonitrile --column 150x4.6 --flow 1.0\n  phasewise predict toluene p-xylene m-xylene --mode gc --phase gc-wax --oven '40:2,10:200:5' --column 30x0.25x0.25\n  phasewise predict chloride nitrate sulfate --mode ic-anion --phase ic-anion-hydroxide\n\nOven program (--oven): INITIAL_C:HOLD_MIN,RAMP_C_PER_MIN:FINAL_C:HOLD_MIN, e.g. 40:2,10:250:5\n(40 °C for 2 min, 10 °C/min to 250 °C, 5 min); INITIAL_C:HOLD_MIN alone is isothermal."
     )]
     Predict(PredictArgs),
+    /// List the stationary phases of the catalogue: id, mode, generic name, pH range,
+    /// maximum temperature and interactions (the ids `--phases-available` and `--phase` take).
+    #[command(
+        after_help = "Example:\n  phasewise phases --mode gc\n  phasewise phases --format json > phases.json\n\nA --phases-available file lists one of these ids per line (`#` starts a comment)."
+    )]
+    Phases(PhasesArgs),
     /// Write a reviewable method-development plan (HTML or Markdown) for a list of analytes.
     #[command(
         after_help = "Example:\n  phasewise plan toluene ethylbenzene p-xylene m-xylene o-xylene --output plan.html"
@@ -171,7 +179,8 @@ pub struct AdviseArgs {
     /// Shared options.
     #[command(flatten)]
     pub opts: AdviseOptions,
-    /// Output format (table or json).
+    /// Output format: table, json (the full report), or csv/tsv (one row per predicted analyte
+    /// of each listed recommendation and of the back-up; columns in docs/json-schema.md).
     #[arg(long, short, value_enum, default_value_t = OutputFormat::Table)]
     pub format: OutputFormat,
 }
@@ -182,15 +191,20 @@ pub struct PredictArgs {
     /// Analytes.
     #[command(flatten)]
     pub input: AnalyteInput,
-    /// Mode: rp or hilic.
+    /// Mode: rp, hilic, gc, ic-anion or ic-cation.
     #[arg(long)]
     pub mode: String,
-    /// Stationary-phase id (see docs/phases.md), e.g. rp-c18.
+    /// Stationary-phase id (`phasewise phases` lists them), e.g. rp-c18.
     #[arg(long)]
     pub phase: String,
-    /// Gradient as `time:%organic` pairs in minutes and percent, e.g. `0:5,20:95,23:95`.
+    /// LC gradient as `time:%organic` pairs in minutes and percent, e.g. `0:5,20:95,23:95`
+    /// (required for rp and hilic).
     #[arg(long)]
-    pub gradient: String,
+    pub gradient: Option<String>,
+    /// GC oven program `INITIAL_C:HOLD_MIN,RAMP_C_PER_MIN:FINAL_C:HOLD_MIN`, e.g. `40:2,10:250:5`
+    /// (default: the advisor's program for the analytes).
+    #[arg(long, value_name = "PROGRAM")]
+    pub oven: Option<String>,
     /// Organic modifier: acetonitrile or methanol.
     #[arg(long)]
     pub modifier: Option<String>,
@@ -200,8 +214,9 @@ pub struct PredictArgs {
     /// Dead time, min (or give --column and --flow).
     #[arg(long, value_name = "MIN")]
     pub t0: Option<f64>,
-    /// Column as LENGTHxID in mm, e.g. 150x4.6.
-    #[arg(long, value_name = "LxID")]
+    /// Column: LC `LENGTHxID` in mm, e.g. 150x4.6; GC `LENGTH_MxID_MMxFILM_UM`, e.g.
+    /// 30x0.25x0.25 (carrier 35 cm/s helium; default: the advisor's column).
+    #[arg(long, value_name = "COLUMN")]
     pub column: Option<String>,
     /// Flow, mL/min.
     #[arg(long, value_name = "ML_MIN")]
@@ -221,6 +236,26 @@ pub struct PredictArgs {
     /// Output format.
     #[arg(long, short, value_enum, default_value_t = OutputFormat::Table)]
     pub format: OutputFormat,
+}
+
+/// `phases` options.
+#[derive(Debug, Args)]
+pub struct PhasesArgs {
+    /// Only phases of this mode: rp, hilic, gc, ic-anion, ic-cation or ion-exclusion.
+    #[arg(long)]
+    pub mode: Option<String>,
+    /// Output format.
+    #[arg(long, short, value_enum, default_value_t = ListFormat::Table)]
+    pub format: ListFormat,
+}
+
+/// Output formats of listing commands.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum ListFormat {
+    /// Aligned table.
+    Table,
+    /// JSON (schema in docs/json-schema.md).
+    Json,
 }
 
 /// `plan` options.

@@ -252,6 +252,16 @@ fn advise_report_with(
     fixed: Option<phasewise::advisor::FixedLc>,
     phases_override: Option<Vec<String>>,
 ) -> Result<(phasewise::report::advice::AdviceReport, bool)> {
+    advise_report_fixed(cli, o, fixed, None, phases_override)
+}
+
+fn advise_report_fixed(
+    cli: &Cli,
+    o: &crate::cli::AdviseOptions,
+    fixed: Option<phasewise::advisor::FixedLc>,
+    fixed_gc: Option<phasewise::advisor::FixedGc>,
+    phases_override: Option<Vec<String>>,
+) -> Result<(phasewise::report::advice::AdviceReport, bool)> {
     use phasewise::advisor::{AdviseRequest, Detector, advise, profile::AnalyteProfile};
     // cheap checks first, before the knowledge base is opened
     let detector = Detector::parse(&o.detector).map_err(|e| anyhow::anyhow!(e))?;
@@ -282,15 +292,27 @@ fn advise_report_with(
             )
         })?);
     }
-    let phases_available = match &o.phases_available {
-        Some(p) => std::fs::read_to_string(p)
-            .with_context(|| format!("reading {}", p.display()))?
-            .lines()
-            .map(|l| l.split('#').next().unwrap_or("").trim().to_string())
-            .filter(|l| !l.is_empty())
-            .collect(),
+    let phases_available: Vec<String> = match &o.phases_available {
+        Some(p) => {
+            let ids: Vec<String> = std::fs::read_to_string(p)
+                .with_context(|| format!("reading {}", p.display()))?
+                .lines()
+                .map(|l| l.split('#').next().unwrap_or("").trim().to_string())
+                .filter(|l| !l.is_empty())
+                .collect();
+            // an empty list would otherwise mean "no restriction", the opposite of the intent
+            if ids.is_empty() {
+                bail!(
+                    "--phases-available {}: the file lists no phase id (only blank or comment lines); put one id per line (`phasewise phases` lists them)",
+                    p.display()
+                );
+            }
+            ids
+        }
         None => Vec::new(),
     };
+    // `predict` names its one phase: it wants no back-up
+    let predicting = phases_override.is_some();
     let phases_available = phases_override.unwrap_or(phases_available);
     let queries = read_analytes(&o.input)?;
     let kb = open_kb(cli)?;
@@ -317,7 +339,9 @@ fn advise_report_with(
         phases_available,
         alternatives: o.alternatives.max(1),
         risk_threshold: o.risk,
+        no_backup: predicting,
         fixed,
+        fixed_gc,
     };
     let report = advise(&profiles, missing, &req)?;
     Ok((report, partial))
@@ -343,7 +367,9 @@ pub fn run(cli: Cli) -> Result<ExitCode> {
             let (report, partial) = advise_report(&cli, &args.opts)?;
             let text = match args.format {
                 OutputFormat::Json => format!("{}\n", serde_json::to_string_pretty(&report)?),
-                _ => report.render_table(),
+                OutputFormat::Table => report.render_table(),
+                OutputFormat::Csv => report.render_delimited(','),
+                OutputFormat::Tsv => report.render_delimited('\t'),
             };
             write_out(&text)?;
             Ok(if partial {
@@ -387,6 +413,25 @@ pub fn run(cli: Cli) -> Result<ExitCode> {
             })
         }
         Command::Predict(args) => run_predict(&cli, args),
+        Command::Phases(args) => {
+            let mode = match &args.mode {
+                Some(m) => Some(phasewise::phase::PhaseMode::parse(m.trim()).ok_or_else(|| {
+                    anyhow::anyhow!(
+                        "unknown mode `{m}`; use rp, hilic, gc, ic-anion, ic-cation or ion-exclusion"
+                    )
+                })?),
+                None => None,
+            };
+            let report = phasewise::report::phases::PhasesReport::new(
+                phasewise::phase::Catalogue::builtin()?,
+                mode,
+            );
+            write_out(&match args.format {
+                crate::cli::ListFormat::Table => report.render_table(),
+                crate::cli::ListFormat::Json => report.render_json()?,
+            })?;
+            Ok(ExitCode::SUCCESS)
+        }
         Command::Describe(args) => {
             let input = AnalyteInput {
                 analytes: args.smiles.clone(),
@@ -594,14 +639,30 @@ fn stats_table(s: &phasewise::kb::stats::KbStats) -> String {
     out
 }
 
+/// Parse a GC column `LENGTH_MxID_MMxFILM_UM`, e.g. `30x0.25x0.25`, at `velocity` cm/s.
+fn parse_gc_column(text: &str, velocity_cm_s: f64) -> Result<phasewise::model::gc::GcColumn> {
+    let parts: Vec<&str> = text.split(['x', 'X', '×']).map(str::trim).collect();
+    let nums: Option<Vec<f64>> = parts.iter().map(|p| p.parse::<f64>().ok()).collect();
+    match nums.as_deref() {
+        Some(&[l, id, film]) => phasewise::model::gc::GcColumn::new(l, id, film, velocity_cm_s)
+            .map_err(|e| anyhow::anyhow!("--column {text}: {e}")),
+        _ => bail!(
+            "--column {text}: a GC column is LENGTH_MxID_MMxFILM_UM, e.g. 30x0.25x0.25 (30 m x 0.25 mm, 0.25 µm film)"
+        ),
+    }
+}
+
 fn run_predict(cli: &Cli, a: &crate::cli::PredictArgs) -> Result<ExitCode> {
     use phasewise::phase::{Catalogue, PhaseMode};
-    let mode = PhaseMode::parse(&a.mode)
-        .ok_or_else(|| anyhow::anyhow!("unknown mode `{}`; predict takes rp or hilic", a.mode))?;
-    if !matches!(mode, PhaseMode::Rp | PhaseMode::Hilic) {
+    let mode = PhaseMode::parse(&a.mode).ok_or_else(|| {
+        anyhow::anyhow!(
+            "unknown mode `{}`; predict takes rp, hilic, gc, ic-anion or ic-cation",
+            a.mode
+        )
+    })?;
+    if mode == PhaseMode::IonExclusion {
         bail!(
-            "predict supports the LC modes rp and hilic; for `{}` use `phasewise advise --modes {}`",
-            a.mode,
+            "predict has no retention model for `{}`; it takes rp, hilic, gc, ic-anion or ic-cation",
             a.mode
         );
     }
@@ -615,66 +676,110 @@ fn run_predict(cli: &Cli, a: &crate::cli::PredictArgs) -> Result<ExitCode> {
             mode.as_str()
         );
     }
-    if let Some(ph) = a.ph {
-        let (lo, hi) = (
-            phase.ph_min().unwrap_or(0.0),
-            phase.ph_max().unwrap_or(14.0),
-        );
-        if !(lo..=hi).contains(&ph) {
+    let lc = matches!(mode, PhaseMode::Rp | PhaseMode::Hilic);
+    // options that belong to another mode are refused rather than ignored
+    let lc_only = [
+        ("--gradient", a.gradient.is_some()),
+        ("--ph", a.ph.is_some()),
+        ("--modifier", a.modifier.is_some()),
+        ("--t0", a.t0.is_some()),
+        ("--flow", a.flow.is_some()),
+        ("--particle", a.particle.is_some()),
+        ("--dwell", a.dwell != 0.0),
+        ("--temperature", a.temperature.is_some()),
+    ];
+    if !lc {
+        if let Some((name, _)) = lc_only.iter().find(|(_, given)| *given) {
             bail!(
-                "--ph {ph} is outside the range {lo}-{hi} of phase `{}`",
-                a.phase
+                "{name} is an LC option; for {} give {}",
+                mode.as_str(),
+                if mode == PhaseMode::Gc {
+                    "--oven and --column LENGTH_MxID_MMxFILM_UM"
+                } else {
+                    "only the analytes, --phase and --risk"
+                }
             );
         }
-    }
-    if let Some(m) = &a.modifier
-        && m != "acetonitrile"
-        && m != "methanol"
-    {
-        bail!("--modifier `{m}`: use acetonitrile or methanol");
-    }
-    let program = phasewise::model::gradient::GradientProgram::parse(&a.gradient)?;
-    if let Some(t0) = a.t0 {
-        if !(t0 > 0.0 && t0.is_finite()) {
-            bail!("--t0 {t0}: must be a positive number of minutes");
+        if mode != PhaseMode::Gc && a.column.is_some() {
+            bail!(
+                "--column is not used for {}: the IC column is fixed (250 x 4 mm)",
+                mode.as_str()
+            );
         }
-    } else if a.flow.is_none() {
+    } else if a.oven.is_some() {
         bail!(
-            "give the dead time with --t0 MIN, or the column with --column LxID and --flow ML_MIN"
+            "--oven is a GC option; for {} give --gradient",
+            mode.as_str()
         );
     }
-    let fixed = phasewise::advisor::FixedLc {
-        gradient: program
-            .points()
-            .iter()
-            .map(|p| (p.time_min, p.organic_pct))
-            .collect(),
-        ph: a.ph,
-        modifier: a.modifier.clone(),
-        t0_min: a.t0,
-        temperature_c: a.temperature,
-    };
-    let opts = crate::cli::AdviseOptions {
+    let mut opts = crate::cli::AdviseOptions {
         input: AnalyteInput {
             analytes: a.input.analytes.clone(),
             input: a.input.input.clone(),
         },
-        detector: "uv:220".into(),
-        column: a.column.clone(),
-        particle: a.particle,
-        flow: a.flow,
-        dwell: a.dwell,
+        detector: if lc {
+            "uv:220"
+        } else if mode == PhaseMode::Gc {
+            "fid"
+        } else {
+            "conductivity"
+        }
+        .into(),
+        column: None,
+        particle: None,
+        flow: None,
+        dwell: 0.0,
         modes: vec![mode.as_str().to_string()],
         phases_available: None,
         alternatives: 1,
         risk: a.risk,
     };
+    let (fixed, fixed_gc) = if lc {
+        (Some(predict_lc_conditions(a, phase)?), None)
+    } else if mode == PhaseMode::Gc {
+        let oven = match &a.oven {
+            Some(spec) => {
+                let p = phasewise::model::gc::OvenProgram::parse(spec)?;
+                if p.final_c() > phase.t_max_c() {
+                    bail!(
+                        "--oven {spec}: final temperature {} °C is above the maximum {} °C of phase `{}`",
+                        p.final_c(),
+                        phase.t_max_c(),
+                        a.phase
+                    );
+                }
+                Some(p)
+            }
+            None => None,
+        };
+        let column = a
+            .column
+            .as_deref()
+            .map(|c| parse_gc_column(c, 35.0))
+            .transpose()?;
+        (None, Some(phasewise::advisor::FixedGc { column, oven }))
+    } else {
+        (None, None)
+    };
+    if lc {
+        opts.column = a.column.clone();
+        opts.particle = a.particle;
+        opts.flow = a.flow;
+        opts.dwell = a.dwell;
+    }
     let (mut report, partial) =
-        advise_report_with(cli, &opts, Some(fixed), Some(vec![a.phase.clone()]))?;
+        advise_report_fixed(cli, &opts, fixed, fixed_gc, Some(vec![a.phase.clone()]))?;
     let Some(rec) = report.recommendations.first().cloned() else {
         bail!("no prediction could be made");
     };
     report.recommendations = vec![rec.clone()];
+    // what the user's conditions implied (buffer for the pH, flow from t0)
+    let notes: Vec<String> = rec
+        .reasons
+        .iter()
+        .filter(|r| r.source == "user")
+        .map(|r| r.text.clone())
+        .collect();
     let text = match a.format {
         OutputFormat::Json => format!(
             "{}\n",
@@ -685,39 +790,84 @@ fn run_predict(cli: &Cli, a: &crate::cli::PredictArgs) -> Result<ExitCode> {
                 "conditions": rec.conditions,
                 "predictions": rec.predictions,
                 "coelutions": rec.coelutions,
+                "notes": notes,
                 "unresolved": report.unresolved,
                 "warnings": report.warnings,
             }))?
         ),
         OutputFormat::Table => {
+            use phasewise::report::num;
             let mut t = format!("{} on {} [{}]\n", rec.mode, rec.phase.name, rec.phase.id);
+            let c = &rec.conditions;
+            if !lc {
+                // GC and IC: the column and program used (the advisor's unless given)
+                let steps: Vec<String> = c
+                    .program
+                    .iter()
+                    .map(|p| format!("{} min {}", num(p.time_min, 1), num(p.value, 1)))
+                    .collect();
+                t.push_str(&format!(
+                    "column {}{}; dead time {} min; program ({}): {}\n",
+                    if mode == PhaseMode::Gc {
+                        format!(
+                            "{} m x {} mm",
+                            num(c.column_length_mm / 1000.0, 1),
+                            num(c.column_id_mm, 2)
+                        )
+                    } else {
+                        format!(
+                            "{} x {} mm",
+                            num(c.column_length_mm, 0),
+                            num(c.column_id_mm, 2)
+                        )
+                    },
+                    c.film_um
+                        .map(|f| format!(", film {} µm", num(f, 2)))
+                        .unwrap_or_default(),
+                    num(c.dead_time_min, 2),
+                    c.program_unit,
+                    steps.join(" -> ")
+                ));
+            }
+            let coverage = rec.predictions.first().map_or(0.9, |p| p.interval_coverage);
+            let interval_head = format!("{:.0} % interval (min)", coverage * 100.0);
+            let extra_head = match mode {
+                PhaseMode::Gc => Some("RI"),
+                PhaseMode::IcAnion | PhaseMode::IcCation => Some("relative retention"),
+                _ => None,
+            };
             let rows: Vec<Vec<String>> = rec
                 .predictions
                 .iter()
                 .map(|p| {
-                    vec![
+                    let mut row = vec![
                         p.analyte.clone(),
-                        phasewise::report::num(p.retention_time_min, 2),
+                        num(p.retention_time_min, 2),
                         format!(
                             "{}-{}",
-                            phasewise::report::num(p.interval_low_min, 2),
-                            phasewise::report::num(p.interval_high_min, 2)
+                            num(p.interval_low_min, 2),
+                            num(p.interval_high_min, 2)
                         ),
-                        phasewise::report::num(p.retention_factor, 2),
-                        p.path.clone(),
-                    ]
+                        num(p.retention_factor, 2),
+                    ];
+                    match mode {
+                        PhaseMode::Gc => {
+                            row.push(p.retention_index.map_or("-".into(), |ri| num(ri, 0)))
+                        }
+                        PhaseMode::IcAnion | PhaseMode::IcCation => row.push(num(
+                            p.retention_factor / phasewise::advisor::ic::K_REFERENCE,
+                            2,
+                        )),
+                        _ => {}
+                    }
+                    row.push(p.path.clone());
+                    row
                 })
                 .collect();
-            t.push_str(&phasewise::report::table::render(
-                &[
-                    "analyte",
-                    "tR (min)",
-                    "90 % interval (min)",
-                    "k",
-                    "predicted by",
-                ],
-                &rows,
-            ));
+            let mut head = vec!["analyte", "tR (min)", interval_head.as_str(), "k"];
+            head.extend(extra_head);
+            head.push("predicted by");
+            t.push_str(&phasewise::report::table::render(&head, &rows));
             t.push('\n');
             for c in &rec.coelutions {
                 t.push_str(&format!(
@@ -727,6 +877,9 @@ fn run_predict(cli: &Cli, a: &crate::cli::PredictArgs) -> Result<ExitCode> {
                     phasewise::report::num(c.probability, 2),
                     phasewise::report::num(c.resolution, 2)
                 ));
+            }
+            for n in &notes {
+                t.push_str(&format!("note: {n}\n"));
             }
             for u in &report.unresolved {
                 t.push_str(&format!("unresolved: {} ({})\n", u.query, u.reason));
@@ -771,5 +924,63 @@ fn run_predict(cli: &Cli, a: &crate::cli::PredictArgs) -> Result<ExitCode> {
         ExitCode::from(EXIT_PARTIAL)
     } else {
         ExitCode::SUCCESS
+    })
+}
+
+/// The fixed LC conditions of `predict --mode rp|hilic`, checked.
+fn predict_lc_conditions(
+    a: &crate::cli::PredictArgs,
+    phase: &phasewise::phase::StationaryPhase,
+) -> Result<phasewise::advisor::FixedLc> {
+    let Some(gradient) = a.gradient.as_deref() else {
+        bail!("give the gradient with --gradient, e.g. --gradient '0:5,20:95'");
+    };
+    if let Some(ph) = a.ph {
+        let (lo, hi) = (
+            phase.ph_min().unwrap_or(0.0),
+            phase.ph_max().unwrap_or(14.0),
+        );
+        if !(lo..=hi).contains(&ph) {
+            bail!(
+                "--ph {ph} is outside the range {lo}-{hi} of phase `{}`",
+                a.phase
+            );
+        }
+    }
+    if let Some(t) = a.temperature
+        && !(t.is_finite() && (5.0..=phase.t_max_c()).contains(&t))
+    {
+        bail!(
+            "--temperature {t}: must be between 5 °C and the maximum {} °C of phase `{}`",
+            phase.t_max_c(),
+            a.phase
+        );
+    }
+    if let Some(m) = &a.modifier
+        && m != "acetonitrile"
+        && m != "methanol"
+    {
+        bail!("--modifier `{m}`: use acetonitrile or methanol");
+    }
+    let program = phasewise::model::gradient::GradientProgram::parse(gradient)?;
+    if let Some(t0) = a.t0 {
+        if !(t0 > 0.0 && t0.is_finite()) {
+            bail!("--t0 {t0}: must be a positive number of minutes");
+        }
+    } else if a.flow.is_none() {
+        bail!(
+            "give the dead time with --t0 MIN, or the column with --column LxID and --flow ML_MIN"
+        );
+    }
+    Ok(phasewise::advisor::FixedLc {
+        gradient: program
+            .points()
+            .iter()
+            .map(|p| (p.time_min, p.organic_pct))
+            .collect(),
+        ph: a.ph,
+        modifier: a.modifier.clone(),
+        t0_min: a.t0,
+        temperature_c: a.temperature,
     })
 }

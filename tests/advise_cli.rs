@@ -565,7 +565,8 @@ fn predict_rejects_bad_conditions_naming_the_value() {
                 "--flow",
                 "1",
             ],
-            "advise",
+            // GC predictions take an oven program, not a gradient (issue #4)
+            "--oven",
         ),
         (
             vec![
@@ -587,4 +588,544 @@ fn predict_rejects_bad_conditions_naming_the_value() {
         assert_eq!(out.status.code(), Some(2), "{a:?}");
         assert!(stderr(&out).contains(want), "{a:?}: {}", stderr(&out));
     }
+}
+
+fn predict_json(ctx: &Ctx, extra: &[&str]) -> serde_json::Value {
+    let mut args = vec![
+        "predict",
+        "caffeine",
+        "theophylline",
+        "--mode",
+        "rp",
+        "--phase",
+        "rp-c18",
+        "--gradient",
+        "0:5,20:95",
+        "--format",
+        "json",
+    ];
+    args.extend_from_slice(extra);
+    let out = ctx.run(&args);
+    assert!(out.status.success(), "{args:?}: {}", stderr(&out));
+    serde_json::from_slice(&out.stdout).unwrap()
+}
+
+#[test]
+fn predict_uses_a_buffer_chosen_for_the_given_ph() {
+    let ctx = Ctx::new();
+    let catalogue = phasewise::phase::Catalogue::builtin().unwrap();
+    for ph in ["2.7", "3.2", "4.5", "6.8"] {
+        let v = predict_json(&ctx, &["--ph", ph, "--column", "150x4.6", "--flow", "1.0"]);
+        let c = &v["conditions"];
+        let buffer = c["buffer"].as_str().unwrap();
+        let a = c["mobile_phase_a"].as_str().unwrap();
+        let ph_f: f64 = ph.parse().unwrap();
+        assert_eq!(c["ph"].as_f64(), Some(ph_f));
+        if buffer == "formic-acid" {
+            // 0.1 % formic acid sets pH about 2.7 by itself (common practice)
+            assert!((ph_f - 2.7).abs() < 0.2, "pH {ph}: {a}");
+        } else {
+            // buffering range pKa ± 1 (common practice, no source)
+            let pka = catalogue.buffer(buffer).unwrap().pka_25c();
+            assert!((pka - ph_f).abs() <= 1.0, "pH {ph}: {buffer} (pKa {pka})");
+            assert!(a.contains(&format!("pH {ph}")), "pH {ph}: {a}");
+        }
+    }
+    // at pH 2.7 the advisor's pH 6.8 buffer (ammonium bicarbonate) must not appear
+    let v = predict_json(
+        &ctx,
+        &["--ph", "2.7", "--column", "150x4.6", "--flow", "1.0"],
+    );
+    assert!(
+        !v["conditions"]["mobile_phase_a"]
+            .as_str()
+            .unwrap()
+            .contains("bicarbonate")
+    );
+}
+
+#[test]
+fn predict_reports_the_temperature_flow_and_column_it_used() {
+    let ctx = Ctx::new();
+    // --t0 alone: the flow is the one that gives t0 on the (default) column, F = Vm / t0
+    let v = predict_json(
+        &ctx,
+        &["--t0", "1.2", "--temperature", "50", "--dwell", "0.5"],
+    );
+    let c = &v["conditions"];
+    assert_eq!(c["temperature_c"].as_f64(), Some(50.0));
+    assert_eq!(c["dead_time_min"].as_f64(), Some(1.2));
+    let vm = phasewise::model::theory::column_dead_volume_ml(
+        c["column_length_mm"].as_f64().unwrap(),
+        c["column_id_mm"].as_f64().unwrap(),
+    )
+    .unwrap();
+    let flow = c["flow_ml_min"].as_f64().unwrap();
+    assert!((flow * 1.2 - vm).abs() < 1e-9, "flow {flow}, Vm {vm}");
+    assert!(
+        v["notes"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .any(|n| n.as_str().unwrap().contains("Vm / t0")),
+        "{}",
+        v["notes"]
+    );
+    // given column and flow are reported as given
+    let v = predict_json(
+        &ctx,
+        &[
+            "--column",
+            "100x2.1",
+            "--flow",
+            "0.3",
+            "--temperature",
+            "40",
+        ],
+    );
+    let c = &v["conditions"];
+    assert_eq!(c["temperature_c"].as_f64(), Some(40.0));
+    assert_eq!(c["flow_ml_min"].as_f64(), Some(0.3));
+    assert_eq!(c["column_id_mm"].as_f64(), Some(2.1));
+    // a temperature above the phase's limit is refused, naming the value
+    let out = ctx.run(&[
+        "predict",
+        "caffeine",
+        "--mode",
+        "rp",
+        "--phase",
+        "rp-c18",
+        "--gradient",
+        "0:5,20:95",
+        "--t0",
+        "1",
+        "--temperature",
+        "120",
+    ]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(stderr(&out).contains("120"), "{}", stderr(&out));
+}
+
+#[test]
+fn predict_json_carries_the_memory_source_systems() {
+    let ctx = Ctx::new();
+    let v = predict_json(
+        &ctx,
+        &["--ph", "2.7", "--column", "150x4.6", "--flow", "1.0"],
+    );
+    for p in v["predictions"].as_array().unwrap() {
+        let ids = p["source_systems"].as_array().unwrap();
+        // docs/model.md: memory predictions name the systems they came from
+        if p["path"] == "memory" {
+            assert!(!ids.is_empty(), "{p}");
+        } else {
+            assert!(ids.is_empty(), "{p}");
+        }
+    }
+}
+
+const SOLVENTS: [&str; 7] = [
+    "methanol",
+    "ethanol",
+    "acetone",
+    "dichloromethane",
+    "hexane",
+    "toluene",
+    "ethyl acetate",
+];
+
+#[test]
+fn gc_dead_time_is_column_length_over_carrier_velocity() {
+    let ctx = Ctx::new();
+    let (r, _) = advise(&ctx, &SOLVENTS, &[]);
+    let c = &first(&r).conditions;
+    // t_M = L / u (definition; SKD 2010 ch. 2): 30 m at 35 cm/s = 85.7 s = 1.43 min
+    let want = c.column_length_mm / 10.0 / c.linear_velocity_cm_s.unwrap() / 60.0;
+    assert!((want - 1.4286).abs() < 1e-3, "{want}");
+    assert!((c.dead_time_min - want).abs() < 1e-9, "{}", c.dead_time_min);
+    for p in &first(&r).predictions {
+        let k = (p.retention_time_min - want) / want;
+        assert!(
+            (p.retention_factor - k.max(0.0)).abs() < 1e-9,
+            "{}",
+            p.analyte
+        );
+    }
+}
+
+#[test]
+fn the_residual_solvent_screen_gets_a_polyethylene_glycol_back_up() {
+    let ctx = Ctx::new();
+    let (r, _) = advise(&ctx, &SOLVENTS, &[]);
+    let first_id = first(&r).phase.id.clone();
+    assert!(
+        ["gc-dimethyl", "gc-5-phenyl", "gc-6-cyanopropylphenyl"].contains(&first_id.as_str()),
+        "{first_id}"
+    );
+    // common practice: a low-polarity polysiloxane paired with a polyethylene glycol phase
+    let b = &r.backup.as_ref().expect("a back-up").recommendation;
+    assert_eq!(b.mode, "gc");
+    assert!(b.phase.id.starts_with("gc-wax"), "back-up {}", b.phase.id);
+}
+
+#[test]
+fn ic_conditions_match_the_eluent_and_the_back_up_is_a_mode_the_anions_fit() {
+    let ctx = Ctx::new();
+    let (r, _) = advise(
+        &ctx,
+        &[
+            "fluoride", "chloride", "nitrite", "bromide", "nitrate", "sulfate",
+        ],
+        &[],
+    );
+    let recs = r
+        .recommendations
+        .iter()
+        .chain(r.backup.iter().map(|b| &b.recommendation));
+    for rec in recs.filter(|x| x.mode.starts_with("ic")) {
+        let c = &rec.conditions;
+        let a = c.mobile_phase_a.as_deref().unwrap();
+        let prep = c.buffer_preparation.as_deref().unwrap();
+        if a.contains("carbonate") {
+            assert!(c.program.iter().all(|s| s.value == 3.5), "{:?}", c.program);
+            assert!(c.program_unit.contains("carbonate"), "{}", c.program_unit);
+            assert!(!prep.contains("hydroxide"), "{prep}");
+        } else if a.contains("hydroxide") {
+            assert!(c.program_unit.contains("hydroxide"), "{}", c.program_unit);
+        }
+        assert!(!c.program_unit.contains("mM eluent"));
+        // the isocratic program lasts the run
+        assert_eq!(c.program.last().unwrap().time_min, c.run_time_min);
+    }
+    // none of the anions fits HILIC, so the back-up is another anion exchanger (or none)
+    if let Some(b) = &r.backup {
+        assert_eq!(
+            b.recommendation.mode, "ic-anion",
+            "{}",
+            b.recommendation.phase.id
+        );
+    } else {
+        assert!(
+            r.warnings
+                .iter()
+                .any(|w| w.contains("no orthogonal back-up"))
+        );
+    }
+    assert!(
+        !r.cautions
+            .iter()
+            .any(|c| c.text.contains("cetonitrile") || c.topic == "ph"),
+        "{:?}",
+        r.cautions
+    );
+}
+
+#[test]
+fn the_mode_table_and_the_ranking_use_the_same_score() {
+    let ctx = Ctx::new();
+    for panel in [
+        &["caffeine"][..],
+        &["glucose", "fructose", "sucrose", "lactose"][..],
+        &SOLVENTS[..],
+    ] {
+        let (r, _) = advise(&ctx, panel, &[]);
+        // the first recommendation is in the top-scoring mode of the table
+        assert_eq!(first(&r).mode, r.mode_scores[0].mode, "{panel:?}");
+        for w in r.mode_scores.windows(2) {
+            assert!(w[0].score >= w[1].score, "{panel:?}: {:?}", r.mode_scores);
+        }
+        for m in &r.mode_scores {
+            let pref = m.preference.as_ref().and_then(|p| p.weight).unwrap_or(0.0);
+            assert!((m.score - (m.fit + pref).min(1.0)).abs() < 1e-12, "{m:?}");
+        }
+    }
+    // caffeine: a neutral, moderately polar drug goes to reversed phase first (common practice)
+    let (r, _) = advise(&ctx, &["caffeine"], &[]);
+    assert_eq!(first(&r).mode, "rp");
+    let rp = r.mode_scores.iter().find(|m| m.mode == "rp").unwrap();
+    assert_eq!(
+        rp.preference.as_ref().map(|p| p.source.as_str()),
+        Some("rule:usual-first-mode")
+    );
+}
+
+#[test]
+fn a_phases_file_with_only_comments_is_an_error_naming_the_file() {
+    let ctx = Ctx::new();
+    let f = ctx.path("empty-cabinet.txt");
+    std::fs::write(&f, "# invented lab: nothing yet\n\n").unwrap();
+    let out = ctx.run(&[
+        "advise",
+        "ibuprofen",
+        "--phases-available",
+        f.to_str().unwrap(),
+    ]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(
+        stderr(&out).contains("empty-cabinet.txt"),
+        "{}",
+        stderr(&out)
+    );
+    // an unknown id points at the command that lists the known ones
+    std::fs::write(&f, "rp-c81\n").unwrap();
+    let out = ctx.run(&[
+        "advise",
+        "ibuprofen",
+        "--phases-available",
+        f.to_str().unwrap(),
+    ]);
+    assert!(
+        stderr(&out).contains("phasewise phases"),
+        "{}",
+        stderr(&out)
+    );
+}
+
+#[test]
+fn phases_lists_the_catalogue_as_a_table_or_json() {
+    let ctx = Ctx::new();
+    let (v, code) = ctx.json(&["phases", "--mode", "gc", "--format", "json"]);
+    assert_eq!(code, 0);
+    let phases = v["phases"].as_array().unwrap();
+    assert!(phases.iter().any(|p| p["id"] == "gc-wax"));
+    for p in phases {
+        assert_eq!(p["mode"], "gc");
+        assert!(p["max_temperature_c"].as_f64().unwrap() > 0.0);
+        assert!(p["interactions"].is_array() && p["name"].is_string());
+    }
+    let out = ctx.run(&["phases"]);
+    assert!(out.status.success());
+    let t = common::stdout(&out);
+    assert!(t.contains("rp-c18") && t.contains("hilic-amide") && t.contains("pH range"));
+    let out = ctx.run(&["phases", "--mode", "lc"]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(stderr(&out).contains("lc"));
+}
+
+#[test]
+fn advise_writes_one_delimited_row_per_predicted_analyte() {
+    let ctx = Ctx::new();
+    let (r, _) = advise(&ctx, &SOLVENTS, &[]);
+    let want: usize = r
+        .recommendations
+        .iter()
+        .chain(r.backup.iter().map(|b| &b.recommendation))
+        .map(|x| x.predictions.len())
+        .sum();
+    for (fmt, d) in [("tsv", '\t'), ("csv", ',')] {
+        let mut args = vec!["advise", "--format", fmt];
+        args.extend_from_slice(&SOLVENTS);
+        let out = ctx.run(&args);
+        assert!(out.status.success(), "{}", stderr(&out));
+        let text = common::stdout(&out);
+        let lines: Vec<&str> = text.lines().collect();
+        assert_eq!(
+            lines[0].split(d).collect::<Vec<_>>(),
+            phasewise::report::advice::DELIMITED_COLUMNS
+        );
+        assert_eq!(lines.len(), want + 1, "{fmt}: {text}");
+        assert!(lines[1].starts_with(&format!("recommendation{d}1{d}gc{d}")));
+        assert!(lines.iter().any(|l| l.contains("ethyl acetate")));
+    }
+}
+
+#[test]
+fn reasons_rules_hilic_program_and_cautions_are_stated_once_and_in_their_units() {
+    let ctx = Ctx::new();
+    let (r, _) = advise(&ctx, &["glucose", "fructose", "sucrose", "lactose"], &[]);
+    let rec = first(&r);
+    assert_eq!(rec.mode, "hilic");
+    // eluent B is acetonitrile with 5 % aqueous buffer: the program is given in % B
+    assert!(rec.conditions.program_unit.starts_with("% B"));
+    assert!(
+        rec.conditions
+            .mobile_phase_b
+            .as_deref()
+            .unwrap()
+            .contains("95:5")
+    );
+    assert!(
+        rec.conditions.program[0].value > 99.0,
+        "{:?}",
+        rec.conditions.program
+    );
+    for panel in [
+        &SOLVENTS[..],
+        &["ibuprofen", "naproxen"][..],
+        &["caffeine"][..],
+    ] {
+        let (r, _) = advise(&ctx, panel, &[]);
+        for x in r
+            .recommendations
+            .iter()
+            .chain(r.backup.iter().map(|b| &b.recommendation))
+        {
+            if let Some(a) = &x.conditions.mobile_phase_a {
+                assert!(
+                    !(a.starts_with("water with") && a.contains("in water")),
+                    "{a}"
+                );
+            }
+        }
+        assert!(r.cautions.iter().filter(|c| c.topic == "pressure").count() <= 1);
+    }
+    // the table shows each rule's weight, and a weight of 0 as not scored
+    let mut args = vec!["advise"];
+    args.extend_from_slice(&["ibuprofen", "naproxen", "amitriptyline"]);
+    let t = common::stdout(&ctx.run(&args));
+    assert!(t.contains(", weight +"), "{t}");
+    // the basic drug makes `rule:bases-on-silanols` apply, with weight 0 on some phases
+    assert!(
+        t.lines()
+            .filter(|l| l.contains(", weight 0"))
+            .all(|l| l.contains("not scored")),
+        "{t}"
+    );
+}
+
+#[test]
+fn predict_gc_gives_retention_index_time_and_flagged_pairs_under_a_given_oven_program() {
+    let ctx = Ctx::new();
+    let xylenes = [
+        "toluene",
+        "ethylbenzene",
+        "p-xylene",
+        "m-xylene",
+        "o-xylene",
+    ];
+    let run = |extra: &[&str]| {
+        let mut args = vec!["predict", "--mode", "gc", "--format", "json"];
+        args.extend_from_slice(extra);
+        args.extend_from_slice(&xylenes);
+        let out = ctx.run(&args);
+        assert!(out.status.success(), "{args:?}: {}", stderr(&out));
+        serde_json::from_slice::<serde_json::Value>(&out.stdout).unwrap()
+    };
+    let v = run(&[
+        "--phase",
+        "gc-5-phenyl",
+        "--oven",
+        "40:2,10:250:5",
+        "--column",
+        "30x0.25x0.25",
+    ]);
+    let c = &v["conditions"];
+    assert_eq!(c["column_id_mm"].as_f64(), Some(0.25));
+    assert_eq!(c["film_um"].as_f64(), Some(0.25));
+    // the program reported is the one given: 40 °C, 2 min hold, 10 °C/min to 250 °C, 5 min
+    let prog: Vec<(f64, f64)> = c["program"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|p| {
+            (
+                p["time_min"].as_f64().unwrap(),
+                p["value"].as_f64().unwrap(),
+            )
+        })
+        .collect();
+    assert_eq!(
+        prog,
+        vec![(0.0, 40.0), (2.0, 40.0), (23.0, 250.0), (28.0, 250.0)]
+    );
+    let preds = v["predictions"].as_array().unwrap();
+    assert_eq!(preds.len(), 5);
+    for p in preds {
+        assert!(p["retention_index"].as_f64().is_some(), "{p}");
+        assert_eq!(p["path"], "retention-index");
+    }
+    // on a low-polarity phase m- and p-xylene are the classic co-eluting pair (common practice)
+    assert!(
+        v["coelutions"].as_array().unwrap().iter().any(|x| {
+            let (a, b) = (x["a"].as_str().unwrap(), x["b"].as_str().unwrap());
+            (a == "p-xylene" && b == "m-xylene") || (a == "m-xylene" && b == "p-xylene")
+        }),
+        "{}",
+        v["coelutions"]
+    );
+    // a faster ramp elutes every analyte earlier (temperature-programmed GC)
+    let fast = run(&[
+        "--phase",
+        "gc-5-phenyl",
+        "--oven",
+        "40:2,20:250:5",
+        "--column",
+        "30x0.25x0.25",
+    ]);
+    for p in fast["predictions"].as_array().unwrap() {
+        let slow = preds.iter().find(|q| q["analyte"] == p["analyte"]).unwrap();
+        assert!(
+            p["retention_time_min"].as_f64() < slow["retention_time_min"].as_f64(),
+            "{p}"
+        );
+    }
+    // bad GC input names the value
+    for (extra, want) in [
+        (vec!["--oven", "40:2,10:x:5"], "`x`"),
+        (vec!["--oven", "40:2,10:400:5"], "400"),
+        (vec!["--column", "30x0.25"], "30x0.25"),
+        (vec!["--ph", "3"], "--ph"),
+    ] {
+        let mut a = vec!["predict", "toluene", "--mode", "gc", "--phase", "gc-wax"];
+        a.extend(extra.iter());
+        let out = ctx.run(&a);
+        assert_eq!(out.status.code(), Some(2), "{a:?}");
+        assert!(stderr(&out).contains(want), "{a:?}: {}", stderr(&out));
+    }
+}
+
+#[test]
+fn predict_ic_gives_the_elution_order_and_relative_retention() {
+    let ctx = Ctx::new();
+    let (v, code) = ctx.json(&[
+        "predict",
+        "--mode",
+        "ic-anion",
+        "--phase",
+        "ic-anion-hydroxide",
+        "--format",
+        "json",
+        "sulfate",
+        "chloride",
+        "fluoride",
+        "nitrate",
+    ]);
+    assert_eq!(code, 0);
+    let order: Vec<&str> = v["predictions"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|p| p["analyte"].as_str().unwrap())
+        .collect();
+    // fluoride first, chloride before nitrate (common practice, no source)
+    assert_eq!(order[0], "fluoride");
+    let pos = |n: &str| order.iter().position(|x| *x == n).unwrap();
+    assert!(pos("chloride") < pos("nitrate"));
+    assert!(
+        v["warnings"].as_array().unwrap().is_empty(),
+        "{}",
+        v["warnings"]
+    );
+    let out = ctx.run(&[
+        "predict",
+        "--mode",
+        "ic-anion",
+        "--phase",
+        "ic-anion-hydroxide",
+        "chloride",
+        "nitrate",
+    ]);
+    assert!(common::stdout(&out).contains("relative retention"));
+    let out = ctx.run(&[
+        "predict",
+        "chloride",
+        "--mode",
+        "ic-anion",
+        "--phase",
+        "ic-anion-hydroxide",
+        "--gradient",
+        "0:5,20:95",
+    ]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(stderr(&out).contains("--gradient"));
 }

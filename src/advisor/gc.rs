@@ -4,7 +4,9 @@
 
 use super::profile::AnalyteProfile;
 use super::{AdviseRequest, Detector, coelution, finish_predictions, phase_ref, separation_score};
-use crate::model::gc::{GcColumn, alkane_ladder, predict_retention_index, suggest_oven_program};
+use crate::model::gc::{
+    GcColumn, OvenSuggestion, alkane_ladder, predict_retention_index, suggest_oven_program,
+};
 use crate::phase::{Catalogue, StationaryPhase};
 use crate::report::advice::{Conditions, PredictionRow, ProgramStep, Reason, Recommendation};
 use crate::structure::volatility::GcVerdict;
@@ -12,6 +14,15 @@ use crate::structure::volatility::GcVerdict;
 /// Two analytes closer than this in retention index are taken as co-eluting (the GC model's
 /// resolvable difference).
 const DELTA_RI: f64 = 5.0;
+
+/// Factor on the ideal open-tube peak width (N = L/dc at the Golay optimum). No source: the
+/// project's own allowance for real columns run away from the optimum, injection band width
+/// and extra-column broadening; it is not calibrated against measured widths. It is kept
+/// because the GC phase ranking depends on it (without it every GC pair is predicted about 3
+/// times better resolved, and the xylene panel's first choice moves from a low-polarity
+/// polysiloxane to polyethylene glycol); docs/science.md § 9.4. Check it against the lab's
+/// own peak widths.
+const PEAK_WIDTH_ALLOWANCE: f64 = 3.0;
 
 fn normal_cdf(x: f64) -> f64 {
     // Abramowitz & Stegun 7.1.26 approximation of erf (error below 1.5e-7)
@@ -84,8 +95,13 @@ pub fn candidate(
     } else {
         phase.gc().map_or(0.25, |g| g.typical_film_um())
     };
-    let column = GcColumn::new(30.0, if volatile { 0.32 } else { 0.25 }, film, 35.0)
-        .map_err(|e| e.to_string())?;
+    let fixed = req.fixed_gc.as_ref();
+    let column = match fixed.and_then(|f| f.column) {
+        Some(c) => c,
+        None => GcColumn::new(30.0, if volatile { 0.32 } else { 0.25 }, film, 35.0)
+            .map_err(|e| e.to_string())?,
+    };
+    let film = column.film_um();
     let ri_min = ris
         .iter()
         .map(|r| r.1.retention_index)
@@ -94,7 +110,16 @@ pub fn candidate(
         .iter()
         .map(|r| r.1.retention_index)
         .fold(f64::NEG_INFINITY, f64::max);
-    let oven = suggest_oven_program(ri_min, ri_max, phase, &column).map_err(|e| e.to_string())?;
+    let oven = match fixed.and_then(|f| f.oven) {
+        Some(program) => OvenSuggestion {
+            program,
+            reasons: vec![format!(
+                "oven program {} given by the user",
+                program.to_spec()
+            )],
+        },
+        None => suggest_oven_program(ri_min, ri_max, phase, &column).map_err(|e| e.to_string())?,
+    };
     let ladder = alkane_ladder(phase, &column, &oven.program).map_err(|e| e.to_string())?;
     // plate number of an open tube: N ≈ L / h with h ≈ column diameter (Golay optimum, rule of
     // thumb)
@@ -106,7 +131,9 @@ pub fn candidate(
             not_predicted.push(format!("{}: outside the alkane ladder", p.name()));
             continue;
         };
-        let w_half = 2.355 * t.retention_time_min.max(0.5) / n_plates.sqrt() * 3.0;
+        // isothermal relation σ = tR / √N (Purnell; SKD 2010 ch. 2), w½ = 2.355 σ, widened by
+        // PEAK_WIDTH_ALLOWANCE (see there)
+        let w_half = 2.355 * t.retention_time_min.max(0.5) / n_plates.sqrt() * PEAK_WIDTH_ALLOWANCE;
         preds.push(PredictionRow {
             analyte: p.name().to_string(),
             retention_time_min: t.retention_time_min,
@@ -117,6 +144,7 @@ pub fn candidate(
             peak_width_half_min: w_half,
             path: "retention-index".into(),
             retention_index: Some(ri.retention_index),
+            source_systems: Vec::new(),
         });
         sig.push((p.name().to_string(), ri.retention_index, ri.sigma_ri));
     }
@@ -126,7 +154,9 @@ pub fn candidate(
             not_predicted.join("; ")
         ));
     }
-    let t0 = ladder.retention_time_min(0.0).unwrap_or(1.0).max(0.1);
+    // hold-up time t_M = L / u (30 m at 35 cm/s: 1.43 min); an index of 0 lies outside the
+    // alkane ladder, so it cannot be read from there
+    let t0 = column.holdup_time_min();
     for p in &mut preds {
         p.retention_factor = ((p.retention_time_min - t0) / t0).max(0.0);
     }
@@ -150,8 +180,10 @@ pub fn candidate(
             }
         }
     }
-    let hydrogen_ok = false;
-    let carrier = if hydrogen_ok { "hydrogen" } else { "helium" };
+    // helium only: the oven-program and alkane-ladder calibration (model::gc) assume helium at
+    // 35 cm/s; hydrogen (faster optimum, flammable) and nitrogen (slow optimum) are not modelled
+    // (docs/science.md)
+    let carrier = "helium";
     let inlet = if volatile {
         "static headspace (volatile analytes in a non-volatile matrix), split 10:1".to_string()
     } else {
@@ -206,7 +238,7 @@ pub fn candidate(
         _ => "flame ionisation, 280 °C".to_string(),
     };
     let conditions = Conditions {
-        column_length_mm: 30_000.0,
+        column_length_mm: column.length_m() * 1000.0,
         column_id_mm: column.inner_diameter_mm(),
         particle_um: None,
         film_um: Some(film),
@@ -221,7 +253,7 @@ pub fn candidate(
         flow_ml_min: None,
         temperature_c: None,
         carrier_gas: Some(format!("{carrier}, constant flow")),
-        linear_velocity_cm_s: Some(35.0),
+        linear_velocity_cm_s: Some(column.linear_velocity_cm_s()),
         inlet: Some(inlet),
         derivatisation: (!deriv.is_empty()).then(|| deriv.join("; ")),
         suppression: None,
@@ -295,6 +327,7 @@ fn rules(profiles: &[AnalyteProfile], phase: &StationaryPhase) -> Vec<Reason> {
         .iter()
         .all(|p| p.tb_k.is_some_and(|(t, _)| t < 250.0));
     let mut out = Vec::new();
+    // listed with their weight, 0 included (see `lc::rules`)
     let mut rule = |s: &str, t: String, w: f64| {
         out.push(Reason {
             source: s.into(),

@@ -10,7 +10,7 @@ use crate::report::advice::{Conditions, PredictionRow, ProgramStep, Reason, Reco
 
 /// Retention factor assumed for the reference ion of the ion table (assumption: the tables'
 /// reference ion elutes at k ≈ 3 at the reference eluent concentration; from memory).
-const K_REFERENCE: f64 = 3.0;
+pub const K_REFERENCE: f64 = 3.0;
 
 /// Build the candidate for one IC phase.
 ///
@@ -22,26 +22,36 @@ pub fn candidate(
     mode: PhaseMode,
     catalogue: &Catalogue,
 ) -> Result<Recommendation, String> {
-    let (eluent, conc, eluent_text, suppression) = match (mode, phase.id()) {
+    // (eluent id, eluent text, suppression, program value in mM, program unit, preparation);
+    // eluent strengths are common starting points (common practice, no source)
+    let (eluent, eluent_text, suppression, conc_mm, unit, preparation) = match (mode, phase.id()) {
         (PhaseMode::IcAnion, "ic-anion-carbonate") => (
             "carbonate-bicarbonate",
-            None,
             "3.5 mM sodium carbonate / 1.0 mM sodium bicarbonate, isocratic",
             "anion suppressor (electrolytic or chemical)",
+            3.5,
+            "mM sodium carbonate (with 1.0 mM sodium bicarbonate)",
+            "weigh sodium carbonate and sodium bicarbonate into high-purity water (18 MΩ·cm), filter (0.2 µm) and degas",
         ),
         (PhaseMode::IcAnion, _) => (
             "koh",
-            None,
             "potassium hydroxide, 20 mM isocratic (or a 10-40 mM gradient)",
             "anion suppressor (electrolytic)",
+            20.0,
+            "mM potassium hydroxide",
+            "prepare eluents from high-purity water (18 MΩ·cm) and degas; hydroxide eluents absorb CO2 from air (keep them under inert gas, or generate them electrolytically)",
         ),
         _ => (
             "msa",
-            None,
             "20 mM methanesulfonic acid, isocratic",
             "cation suppressor, or non-suppressed conductivity",
+            20.0,
+            "mM methanesulfonic acid",
+            "dilute methanesulfonic acid in high-purity water (18 MΩ·cm), filter (0.2 µm) and degas",
         ),
     };
+    // None: the ion table's reference concentration of this eluent
+    let conc: Option<f64> = None;
     let queries: Vec<String> = profiles.iter().map(|p| p.analyte.name.clone()).collect();
     let mut names: Vec<&str> = Vec::new();
     let mut owners: Vec<&AnalyteProfile> = Vec::new();
@@ -82,6 +92,7 @@ pub fn candidate(
             peak_width_half_min: 2.355 * t / n_plates.sqrt(),
             path: "ion-table".into(),
             retention_index: None,
+            source_systems: Vec::new(),
         });
     }
     let mut coelutions = Vec::new();
@@ -113,6 +124,12 @@ pub fn candidate(
         .filter(|p| !owners.iter().any(|o| o.name() == p.name()))
         .map(|p| p.name().to_string())
         .collect();
+    // isocratic: the program lasts the run, 3 min past the last predicted peak (at least 13 min)
+    let run_time = preds
+        .iter()
+        .map(|p| p.retention_time_min)
+        .fold(10.0, f64::max)
+        + 3.0;
     let conditions = Conditions {
         column_length_mm: l,
         column_id_mm: id,
@@ -123,9 +140,18 @@ pub fn candidate(
         modifier: None,
         ph: None,
         buffer: None,
-        buffer_preparation: Some("prepare eluents from high-purity water (18 MΩ·cm) and degas; hydroxide eluents absorb CO2 from air".into()),
-        program: vec![ProgramStep { time_min: 0.0, value: 20.0 }, ProgramStep { time_min: 20.0, value: 20.0 }],
-        program_unit: "mM eluent".into(),
+        buffer_preparation: Some(preparation.into()),
+        program: vec![
+            ProgramStep {
+                time_min: 0.0,
+                value: conc_mm,
+            },
+            ProgramStep {
+                time_min: run_time,
+                value: conc_mm,
+            },
+        ],
+        program_unit: unit.into(),
         flow_ml_min: Some(flow),
         temperature_c: Some(30.0),
         carrier_gas: None,
@@ -137,7 +163,7 @@ pub fn candidate(
         detection: "suppressed conductivity".into(),
         dead_time_min: t0,
         plate_number: n_plates,
-        run_time_min: preds.iter().map(|p| p.retention_time_min).fold(10.0, f64::max) + 3.0,
+        run_time_min: run_time,
         pressure_bar: None,
     };
     let mut rec = Recommendation {

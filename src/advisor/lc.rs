@@ -44,7 +44,7 @@ fn features(smiles: &str, inchikey: Option<&str>) -> Result<AnalyteFeatures, Str
 
 /// pH values tried, with the buffer (catalogue id) that serves each; common practice.
 const PH_CHOICES: &[(f64, &str, &str)] = &[
-    (2.7, "formic-acid", "0.1 % (v/v) formic acid in water"),
+    (2.7, "formic-acid", "0.1 % (v/v) formic acid"),
     (
         3.8,
         "ammonium-formate-acid",
@@ -163,12 +163,7 @@ pub fn choose_ph(
         }
     }
     let Some((_, (ph, buf, prep), near, retention)) = best else {
-        return (
-            3.0,
-            "formic-acid",
-            "0.1 % (v/v) formic acid in water",
-            vec![],
-        );
+        return (3.0, "formic-acid", "0.1 % (v/v) formic acid", vec![]);
     };
     let reasons = vec![Reason {
         source: "rule:ph-two-units-from-pka".into(),
@@ -180,8 +175,71 @@ pub fn choose_ph(
     (ph, buf, prep, reasons)
 }
 
-/// Default LC geometry (common analytical choice): 150 × 4.6 mm, 3.5 µm, 1.0 mL/min; for a
-/// 2.1 mm column 0.3 mL/min, for 3.0 mm 0.6 mL/min unless a flow is given.
+/// The natural pH of 0.1 % (v/v) formic acid in water, about 2.7 (common practice, from
+/// memory): within this distance of it the additive itself is used, without a buffer pair.
+const FORMIC_ACID_PH: (f64, f64) = (2.7, 0.15);
+
+/// Choose the buffer for a pH the user fixed (`predict --ph`): 0.1 % formic acid at its own
+/// pH (about 2.7), otherwise a buffer pair whose pKa lies within 1 unit of the pH (useful
+/// buffering range pKa ± 1; common practice, no source), volatile ones first and only volatile
+/// ones for MS or evaporative detectors, transparent at a UV wavelength, closest pKa first.
+/// Returns (buffer id, preparation text).
+///
+/// # Errors
+/// A message naming the pH when no buffer in the catalogue serves it.
+pub fn buffer_for_ph(
+    ph: f64,
+    detector: Detector,
+    catalogue: &Catalogue,
+) -> Result<(String, String), String> {
+    if (ph - FORMIC_ACID_PH.0).abs() <= FORMIC_ACID_PH.1 {
+        return Ok(("formic-acid".into(), "0.1 % (v/v) formic acid".into()));
+    }
+    let usable = |b: &&crate::phase::Buffer| {
+        let uv_ok = match detector {
+            Detector::Uv(nm) => b.uv_cutoff_nm() <= nm - 5.0,
+            _ => true,
+        };
+        uv_ok && (b.volatile() || !detector.needs_volatile())
+    };
+    let found: Vec<&crate::phase::Buffer> = catalogue
+        .buffers_for_ph(ph)
+        .into_iter()
+        .filter(usable)
+        .collect();
+    // volatile first (they also suit a later move to MS), then closest pKa (already sorted)
+    let Some(b) = found
+        .iter()
+        .find(|b| b.volatile())
+        .or_else(|| found.first())
+    else {
+        return Err(format!(
+            "no {}buffer in the catalogue has a pKa within 1 unit of pH {ph} (data/buffers.tsv); choose another pH",
+            if detector.needs_volatile() {
+                "volatile "
+            } else {
+                ""
+            }
+        ));
+    };
+    let salt = b.name().split(" (").next().unwrap_or(b.name());
+    let conc = b
+        .typical_conc_mm()
+        .map_or_else(String::new, |c| format!("{c:.0} mM "));
+    Ok((
+        b.id().to_string(),
+        format!(
+            "{conc}{salt}, adjusted to pH {ph} (buffer pair {}, pKa {:.2})",
+            b.species(),
+            b.pka_25c()
+        ),
+    ))
+}
+
+/// Default LC geometry (common analytical choice): 150 × 4.6 mm, 3.5 µm, 1.0 mL/min. For
+/// another inner diameter the default flow keeps the linear velocity of 1.0 mL/min on 4.6 mm
+/// (flow ∝ id², the usual geometric scaling; common practice, no source): about 0.21 mL/min for
+/// a 2.1 mm column and 0.43 mL/min for 3.0 mm, unless a flow is given.
 fn geometry(req: &AdviseRequest) -> (f64, f64, f64, f64) {
     let (l, id) = req.column_mm.unwrap_or((150.0, 4.6));
     let dp = req.particle_um.unwrap_or(3.5);
@@ -204,13 +262,21 @@ pub fn candidate(
     catalogue: &Catalogue,
 ) -> Result<Recommendation, String> {
     let model = model()?;
-    let (l, id, dp, flow) = geometry(req);
+    let (l, id, dp, mut flow) = geometry(req);
     let vm = theory::column_dead_volume_ml(l, id).map_err(|e| e.to_string())?;
     let fixed = req.fixed.as_ref();
     let t0 = fixed.and_then(|f| f.t0_min).unwrap_or(vm / flow);
+    // a dead time given without a flow: the flow that gives it on this column is F = Vm / t0
+    // (SKD 2010 ch. 2, definition of t0), so the reported flow and the dwell time agree with t0
+    let flow_from_t0 = req.flow_ml_min.is_none() && fixed.and_then(|f| f.t0_min).is_some();
+    if flow_from_t0 {
+        flow = vm / t0;
+    }
+    let temperature_c = fixed.and_then(|f| f.temperature_c).unwrap_or(35.0);
     let n_plates = theory::estimated_plate_number(l, dp).map_err(|e| e.to_string())?;
     let (mut ph, buffer, prep, mut reasons) =
         choose_ph(profiles, phase, mode, req.detector, catalogue);
+    let (mut buffer, mut prep) = (buffer.to_string(), prep.to_string());
     if let Some(user_ph) = fixed.and_then(|f| f.ph) {
         let (lo, hi) = (
             phase.ph_min().unwrap_or(0.0),
@@ -223,9 +289,19 @@ pub fn candidate(
             ));
         }
         ph = user_ph;
+        // the buffer must serve the user's pH, not the one the advisor would have chosen
+        (buffer, prep) = buffer_for_ph(ph, req.detector, catalogue)?;
         reasons = vec![Reason {
             source: "user".into(),
-            text: format!("pH {ph} given by the user"),
+            text: if buffer == "formic-acid" {
+                format!(
+                    "pH {ph} given by the user; 0.1 % formic acid chosen for it (it gives about pH 2.7 by itself; common practice, from memory)"
+                )
+            } else {
+                format!(
+                    "pH {ph} given by the user; buffer {buffer} chosen for it (pKa within 1 unit, common practice, no source)"
+                )
+            },
             weight: None,
         }];
     }
@@ -287,12 +363,12 @@ pub fn candidate(
         chem_class: model_class(phase),
         modifier,
         ph: Some(ph),
-        additive: additive_for(buffer),
+        additive: additive_for(&buffer),
         gradient: program.clone(),
         t0_min: t0,
         dwell_min,
         flow_ml_min: flow,
-        temperature_c: Some(fixed.and_then(|f| f.temperature_c).unwrap_or(35.0)),
+        temperature_c: Some(temperature_c),
     };
     // band width in gradient elution: 4σ = 4 t0 (1 + k*) / √N (Snyder & Dolan 2007, k* = gradient
     // retention factor), so w½ = 2.355 σ
@@ -327,6 +403,12 @@ pub fn candidate(
                     peak_width_half_min: w_half,
                     path: pr.path.label().to_string(),
                     retention_index: None,
+                    source_systems: match &pr.path {
+                        regression::PredictionPath::Memory { source_systems } => {
+                            source_systems.clone()
+                        }
+                        regression::PredictionPath::Descriptor => Vec::new(),
+                    },
                 });
                 raw.push(pr);
                 formulas.push(p.analyte.formula.as_deref());
@@ -385,16 +467,35 @@ pub fn candidate(
         .solvent(modifier_id)
         .map(|s| s.name().to_string())
         .unwrap_or_else(|_| modifier_id.to_string());
+    // HILIC eluent B carries 5 % of the aqueous buffer (constant ionic strength through the
+    // gradient; common practice, no source), so the advisor's program, computed in % organic
+    // for the model, is reported in % B: % B = % organic / 0.95. A program the user gave
+    // (`predict --gradient`) is in % organic and is reported as given.
+    const HILIC_B_ORGANIC: f64 = 0.95;
+    let hilic_b = mode == PhaseMode::Hilic && fixed.is_none();
     let (mp_a, mp_b) = if mode == PhaseMode::Rp {
         (
             format!("water with {prep}"),
             format!("{solvent_b} (optionally with the same additive)"),
         )
+    } else if hilic_b {
+        (
+            format!("water with {prep} (in HILIC water is the strong solvent)"),
+            format!("{solvent_b} / aqueous buffer A 95:5 (v/v)"),
+        )
     } else {
         (
             format!("water with {prep} (in HILIC water is the strong solvent)"),
-            format!("{solvent_b} with 5 % of the aqueous buffer"),
+            solvent_b.clone(),
         )
+    };
+    let (program_unit, b_per_organic) = if hilic_b {
+        (
+            format!("% B ({solvent_b} / buffer 95:5)"),
+            1.0 / HILIC_B_ORGANIC,
+        )
+    } else {
+        ("% organic".to_string(), 1.0)
     };
     let conditions = Conditions {
         column_length_mm: l,
@@ -405,7 +506,7 @@ pub fn candidate(
         mobile_phase_b: Some(mp_b),
         modifier: Some(modifier_id.to_string()),
         ph: Some(ph),
-        buffer: Some(buffer.to_string()),
+        buffer: Some(buffer.clone()),
         buffer_preparation: Some(format!(
             "{prep}; measure the pH of the aqueous part before adding organic solvent"
         )),
@@ -413,12 +514,12 @@ pub fn candidate(
             .iter()
             .map(|g| ProgramStep {
                 time_min: g.time_min,
-                value: g.organic_pct,
+                value: g.organic_pct * b_per_organic,
             })
             .collect(),
-        program_unit: "% organic".into(),
+        program_unit,
         flow_ml_min: Some(flow),
-        temperature_c: Some(35.0),
+        temperature_c: Some(temperature_c),
         carrier_gas: None,
         linear_velocity_cm_s: None,
         inlet: None,
@@ -464,6 +565,20 @@ pub fn candidate(
         ),
         weight: None,
     });
+    if flow_from_t0 {
+        reasons.push(Reason {
+            source: "user".into(),
+            text: format!(
+                "dead time {t0} min given without a flow: flow {flow:.3} mL/min = Vm / t0 on the {l:.0} x {id} mm column (Vm {vm:.2} mL); the dwell volume is converted with it{}",
+                if req.column_mm.is_none() {
+                    "; no column given, so the default 150 x 4.6 mm, 3.5 µm was assumed for the plate number"
+                } else {
+                    ""
+                }
+            ),
+            weight: None,
+        });
+    }
     if !not_predicted.is_empty() {
         reasons.push(Reason {
             source: "model:lc-regression".into(),
@@ -501,6 +616,8 @@ pub fn rules(
     let id = phase.id();
     let n = profiles.len().max(1) as f64;
     let mut out = Vec::new();
+    // every rule evaluated is listed with its weight; a weight of 0 is shown as "noted, not
+    // scored" so that it does not read as a supporting reason
     let mut rule = |source: &str, text: String, w: f64| {
         out.push(Reason {
             source: source.into(),
@@ -612,4 +729,61 @@ pub fn rules(
         }
     }
     out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn the_default_flow_keeps_the_linear_velocity_of_1_ml_min_on_4_6_mm() {
+        // F2 = F1 (d2 / d1)² (geometric scaling at constant linear velocity; common practice)
+        let flow = |id: f64| {
+            geometry(&AdviseRequest {
+                column_mm: Some((100.0, id)),
+                ..AdviseRequest::default()
+            })
+            .3
+        };
+        assert!((flow(4.6) - 1.0).abs() < 1e-12);
+        assert!((flow(2.1) - 0.2084).abs() < 1e-3, "{}", flow(2.1));
+        assert!((flow(3.0) - 0.4253).abs() < 1e-3, "{}", flow(3.0));
+    }
+
+    #[test]
+    fn a_fixed_ph_gets_a_buffer_with_a_pka_within_one_unit() {
+        let c = Catalogue::builtin().unwrap();
+        for ph in [2.7, 3.0, 3.8, 4.5, 5.5, 6.8, 7.5, 9.0, 10.0] {
+            for det in [Detector::Uv(220.0), Detector::Ms] {
+                let Ok((id, prep)) = buffer_for_ph(ph, det, c) else {
+                    continue;
+                };
+                if id == "formic-acid" {
+                    assert!(
+                        (ph - 2.7).abs() <= 0.15,
+                        "pH {ph}: formic acid only near 2.7"
+                    );
+                    continue;
+                }
+                let b = c.buffer(&id).unwrap();
+                assert!((b.pka_25c() - ph).abs() <= 1.0, "pH {ph}: {id}");
+                assert!(prep.contains(&format!("pH {ph}")), "{prep}");
+                if det.needs_volatile() {
+                    assert!(b.volatile(), "pH {ph}: {id} is not volatile");
+                }
+            }
+        }
+        // the buffers the advisor itself uses at its pH steps are found again
+        assert_eq!(
+            buffer_for_ph(6.8, Detector::Ms, c).unwrap().0,
+            "ammonium-bicarbonate-1"
+        );
+        assert_eq!(
+            buffer_for_ph(3.8, Detector::Ms, c).unwrap().0,
+            "ammonium-formate-acid"
+        );
+        // no volatile buffer has a pKa within 1 unit of pH 1.6: an error naming the pH
+        let e = buffer_for_ph(1.6, Detector::Ms, c).unwrap_err();
+        assert!(e.contains("1.6"), "{e}");
+    }
 }

@@ -122,6 +122,19 @@ pub struct AdviseRequest {
     pub risk_threshold: f64,
     /// Fixed LC conditions (for `predict`): when set, they replace the advisor's choices.
     pub fixed: Option<FixedLc>,
+    /// Fixed GC column and oven program (for `predict --mode gc`).
+    pub fixed_gc: Option<FixedGc>,
+    /// No back-up wanted (`predict`: one phase under given conditions).
+    pub no_backup: bool,
+}
+
+/// GC conditions given by the user instead of chosen by the advisor.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct FixedGc {
+    /// Column (length, inner diameter, film, carrier velocity); the advisor's choice if `None`.
+    pub column: Option<crate::model::gc::GcColumn>,
+    /// Oven program; the advisor's choice if `None`.
+    pub oven: Option<crate::model::gc::OvenProgram>,
 }
 
 /// LC conditions given by the user instead of chosen by the advisor.
@@ -152,6 +165,8 @@ impl Default for AdviseRequest {
             alternatives: 3,
             risk_threshold: 0.2,
             fixed: None,
+            fixed_gc: None,
+            no_backup: false,
         }
     }
 }
@@ -253,10 +268,19 @@ pub fn advise(
         }
     }
     if candidates.is_empty() {
-        return Err(AdviseError::BadRequest(
-            "no stationary phase could be evaluated for these analytes (check --modes and --phases-available)"
-                .into(),
-        ));
+        let why: Vec<&str> = warnings
+            .iter()
+            .filter(|w| w.contains(" not evaluated: "))
+            .map(String::as_str)
+            .collect();
+        return Err(AdviseError::BadRequest(format!(
+            "no stationary phase could be evaluated for these analytes (check --modes and --phases-available){}",
+            if why.is_empty() {
+                String::new()
+            } else {
+                format!(": {}", why.join("; "))
+            }
+        )));
     }
     // Rank: the mode's fit for the whole list first, then the phase's own score.
     candidates.sort_by(|a, b| {
@@ -268,12 +292,24 @@ pub fn advise(
     for (i, c) in candidates.iter_mut().enumerate() {
         c.rec.rank = i as u32 + 1;
     }
-    let mut backup = choose_backup(&candidates, req.risk_threshold);
+    let mut backup = if req.no_backup {
+        None
+    } else {
+        choose_backup(
+            &candidates,
+            req.risk_threshold,
+            &mode_scores,
+            profiles.len(),
+        )
+    };
     if let Some(b) = &mut backup {
         // the back-up lists its risky pairs by the same threshold as the recommendations
         b.recommendation
             .coelutions
             .retain(|c| c.probability >= req.risk_threshold);
+    }
+    if backup.is_none() && !req.no_backup {
+        warnings.push(no_backup_reason(&candidates[0].rec));
     }
     let first_mode = candidates[0].rec.mode.clone();
     let first_ph = candidates[0].rec.conditions.ph;
@@ -456,8 +492,18 @@ pub fn coelution(
 }
 
 /// Selectivity family of a phase id: phases of one family are not orthogonal to each other
-/// (common practice, no source).
-fn family(id: &str) -> &str {
+/// (common practice, no source). GC ids are tested first, so that `gc-5-phenyl` is a
+/// low-polarity polysiloxane, not an "aromatic" LC phase: 100 % dimethyl, 5 % phenyl and 6 %
+/// cyanopropylphenyl polysiloxanes are all low-polarity polysiloxanes, and the two
+/// polyethylene glycols are one family.
+pub fn family(id: &str) -> &str {
+    if let Some(gc) = id.strip_prefix("gc-") {
+        return match gc {
+            "dimethyl" | "5-phenyl" | "6-cyanopropylphenyl" => "gc-low-polarity-polysiloxane",
+            "wax" | "wax-acid" => "gc-polyethylene-glycol",
+            _ => id,
+        };
+    }
     if id.contains("phenyl") || id.contains("pfp") {
         "aromatic"
     } else if id.contains("c18")
@@ -466,15 +512,43 @@ fn family(id: &str) -> &str {
         || id.contains("polar-embedded")
     {
         "alkyl"
-    } else if id.starts_with("gc-") && (id.contains("dimethyl") || id.contains("-5-phenyl")) {
-        "gc-non-polar"
     } else {
         id
     }
 }
 
-fn choose_backup(cands: &[Candidate], risk: f64) -> Option<Backup> {
+/// A back-up in another mode must have a mode score at most this far below the first
+/// choice's (common practice, no source).
+const OTHER_MODE_MARGIN: f64 = 0.2;
+
+/// Why no back-up was chosen, when none was.
+fn no_backup_reason(first: &Recommendation) -> String {
+    format!(
+        "no orthogonal back-up: no other evaluated phase in a mode that at least half of the analytes fit (and that scores within 0.2 of the first choice's mode), and of another selectivity family than {} ({})",
+        first.phase.id,
+        family(&first.phase.id)
+    )
+}
+
+/// Pick the back-up: a candidate in a mode that at least half of the analytes fit (a back-up
+/// in a mode the analytes do not fit is no back-up) and whose mode score is within
+/// [`OTHER_MODE_MARGIN`] of the first choice's, of another selectivity family than the first
+/// choice when the mode is the same (common practice, no source), that best separates the
+/// first choice's risky pairs.
+fn choose_backup(
+    cands: &[Candidate],
+    risk: f64,
+    mode_scores: &[crate::report::advice::ModeScore],
+    n_analytes: usize,
+) -> Option<Backup> {
     let first = &cands.first()?.rec;
+    let first_mode_score = cands.first()?.mode_score;
+    let fits = |mode: &str| {
+        mode_scores
+            .iter()
+            .find(|m| m.mode == mode)
+            .is_some_and(|m| 2 * m.fitting >= n_analytes.max(1))
+    };
     let risky: Vec<(String, String)> = first
         .coelutions
         .iter()
@@ -484,12 +558,20 @@ fn choose_backup(cands: &[Candidate], risk: f64) -> Option<Backup> {
         .collect();
     let mut best: Option<(f64, &Candidate)> = None;
     for c in cands.iter().skip(1) {
-        if c.rec.phase.id == first.phase.id {
+        if c.rec.phase.id == first.phase.id || !fits(&c.rec.mode) {
             continue;
         }
-        // orthogonality: a different mode, or a different chemistry within the mode
-        let same_family =
-            c.rec.mode == first.mode && family(&c.rec.phase.id) == family(&first.phase.id);
+        // another mode only when the list fits it nearly as well as the first choice's mode;
+        // otherwise the back-up is a phase of another family in the same mode (for volatile
+        // analytes a second GC column of another polarity, not an LC method; common practice,
+        // no source)
+        if c.rec.mode != first.mode && c.mode_score < first_mode_score - OTHER_MODE_MARGIN {
+            continue;
+        }
+        // orthogonality: a different mode, or a different chemistry family within the mode
+        if c.rec.mode == first.mode && family(&c.rec.phase.id) == family(&first.phase.id) {
+            continue;
+        }
         let gain: f64 = risky
             .iter()
             .filter_map(|(a, b)| {
@@ -498,8 +580,7 @@ fn choose_backup(cands: &[Candidate], risk: f64) -> Option<Backup> {
                 Some(r2.min(3.0) - r1.min(3.0))
             })
             .sum();
-        let value =
-            gain + 0.5 * c.rec.score + 0.3 * c.mode_score - if same_family { 0.3 } else { 0.0 };
+        let value = gain + 0.5 * c.rec.score + 0.3 * c.mode_score;
         if best.is_none_or(|b| value > b.0) {
             best = Some((value, c));
         }
@@ -557,21 +638,6 @@ fn cautions(
         {
             add("solvent", format!("{}: {}", s.name(), s.hazards()));
         }
-        if let Some(p) = c.pressure_bar {
-            if p > 400.0 {
-                add(
-                    "pressure",
-                    format!(
-                        "estimated back pressure {p:.0} bar exceeds 400 bar: use an instrument and column rated for it, or lower the flow"
-                    ),
-                );
-            } else {
-                add(
-                    "pressure",
-                    "check the estimated back pressure against the column's and the instrument's pressure limits before the first run".into(),
-                );
-            }
-        }
         if let Some(ph) = c.ph {
             if ph > 8.0 && !rec.phase.id.contains("hybrid") && !rec.phase.id.contains("pgc") {
                 add(
@@ -591,8 +657,39 @@ fn cautions(
             add("gas", "secure gas cylinders, use proper regulators and check for leaks after every column change".into());
         }
         if rec.mode.starts_with("ic") {
-            add("solvent", "hydroxide and acid eluents are corrosive: wear eye protection; follow the suppressor's instructions".into());
+            let eluent = c.mobile_phase_a.as_deref().unwrap_or("");
+            let hazard = if eluent.contains("hydroxide") {
+                "hydroxide eluents are corrosive"
+            } else if eluent.contains("acid") {
+                "acid eluents are corrosive"
+            } else {
+                "carbonate eluents are alkaline irritants"
+            };
+            add(
+                "solvent",
+                format!("{hazard}: wear eye protection; follow the suppressor's instructions"),
+            );
         }
+    }
+    // one pressure caution, for the highest estimated pressure of the first choice and back-up
+    // (400 bar: a common limit of conventional LC instruments; common practice, no source)
+    let p_max = std::iter::once(first)
+        .chain(backup.map(|b| &b.recommendation))
+        .filter_map(|r| r.conditions.pressure_bar)
+        .fold(None, |m: Option<f64>, p| Some(m.map_or(p, |m| m.max(p))));
+    if let Some(p) = p_max {
+        add(
+            "pressure",
+            if p > 400.0 {
+                format!(
+                    "estimated back pressure {p:.0} bar exceeds 400 bar: use an instrument and column rated for it, or lower the flow"
+                )
+            } else {
+                format!(
+                    "estimated back pressure up to {p:.0} bar: check it against the column's and the instrument's pressure limits before the first run"
+                )
+            },
+        );
     }
     add(
         "general",
@@ -623,5 +720,21 @@ pub fn retention_window_reason(rec: &Recommendation) -> Reason {
             "{early} analyte(s) predicted to elute within twice the dead time and {late} after the run; the rest are well retained (common practice, no source)"
         ),
         weight: Some(frac_ok),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn low_polarity_polysiloxanes_are_one_gc_family_and_not_aromatic() {
+        assert_eq!(family("gc-5-phenyl"), family("gc-dimethyl"));
+        assert_eq!(family("gc-6-cyanopropylphenyl"), family("gc-dimethyl"));
+        assert_eq!(family("gc-wax"), family("gc-wax-acid"));
+        assert_ne!(family("gc-wax"), family("gc-5-phenyl"));
+        assert_ne!(family("gc-5-phenyl"), family("rp-phenyl-hexyl"));
+        assert_eq!(family("rp-phenyl-hexyl"), family("rp-pfp"));
+        assert_eq!(family("rp-c18"), family("rp-c8"));
     }
 }

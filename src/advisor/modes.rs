@@ -4,7 +4,7 @@
 
 use super::profile::AnalyteProfile;
 use crate::phase::PhaseMode;
-use crate::report::advice::{Excluded, ModeScore};
+use crate::report::advice::{Excluded, ModeScore, Reason};
 use crate::structure::volatility::GcVerdict;
 
 /// Analytes scoring below this in a mode are listed as not fitting it.
@@ -140,23 +140,43 @@ pub fn score_modes(profiles: &[AnalyteProfile], allowed: &[PhaseMode]) -> Vec<Mo
                     better_mode: best_mode(p, allowed).map(|m| m.as_str().to_string()),
                 })
                 .collect();
+            let preference = preference(m);
             ModeScore {
                 mode: m.as_str().to_string(),
-                score,
+                score: (score + preference.as_ref().and_then(|p| p.weight).unwrap_or(0.0)).min(1.0),
+                fit: score,
+                preference,
                 fitting: fits.iter().filter(|f| f.0 >= FIT_THRESHOLD).count(),
                 not_fitting,
             }
         })
         .collect();
-    // Reversed phase, then GC, are the usual first choices when modes fit about equally
-    // (common practice, no source): a small preference decides near-ties.
-    let pref = |m: &str| match m {
-        "rp" => 0.08,
-        "gc" => 0.04,
-        _ => 0.0,
-    };
-    out.sort_by(|a, b| (b.score + pref(&b.mode)).total_cmp(&(a.score + pref(&a.mode))));
+    // the score already holds the preference; a stable sort keeps MODES order on ties
+    out.sort_by(|a, b| b.score.total_cmp(&a.score));
     out
+}
+
+/// The preference for the usual first modes (common practice, no source): reversed phase is
+/// the usual first try for organic analytes that fit it, including neutral, moderately polar
+/// drugs such as caffeine that HILIC also retains, then GC for volatile ones. It is part of
+/// the mode score, shown in the mode table and stated as a reason.
+pub fn preference(mode: PhaseMode) -> Option<Reason> {
+    let (w, why) = match mode {
+        PhaseMode::Rp => (
+            0.08,
+            "reversed phase is the usual first mode when it fits: robust, well understood and the lab's default (common practice, no source)",
+        ),
+        PhaseMode::Gc => (
+            0.04,
+            "GC is the usual choice for volatile, thermally stable analytes when it fits (common practice, no source)",
+        ),
+        _ => return None,
+    };
+    Some(Reason {
+        source: "rule:usual-first-mode".into(),
+        text: format!("{}: +{w:.2} to the mean fit; {why}", mode.as_str()),
+        weight: Some(w),
+    })
 }
 
 /// The mode an analyte fits best.

@@ -10,6 +10,15 @@ use crate::structure::graph::{BondOrder, MolGraph};
 use crate::structure::ionisable::{AcidBase, IonisableSite, SiteKind, apply_experimental};
 use crate::structure::volatility::{GcAssessment, GcVerdict, assess_gc};
 
+/// Standard uncertainty taken for an experimental boiling point, K (handbook and database
+/// values; assumption, from memory).
+pub const EXPERIMENTAL_TB_SIGMA_K: f64 = 1.0;
+/// Uncertainty of a Joback estimate when its own `typical_error_k` is not at hand, K: the
+/// lowest value Joback's `typical_error_k` takes (`structure::joback`).
+pub const JOBACK_TB_SIGMA_FLOOR_K: f64 = 18.0;
+/// Source text of the boiling-point estimate the advisor uses.
+pub const TB_ESTIMATE_SOURCE: &str = "Joback & Reid group contributions (Chem. Eng. Commun. 1987) with the Stein & Brown (1994) correction, as used by every advisor decision";
+
 /// The advisor's view of one analyte.
 #[derive(Debug, Clone)]
 pub struct AnalyteProfile {
@@ -21,8 +30,14 @@ pub struct AnalyteProfile {
     pub sites: Vec<IonisableSite>,
     /// Best logP value and whether it is experimental.
     pub log_p: Option<(f64, PropertyKind)>,
-    /// Best normal boiling point, K, and whether it is experimental.
+    /// The one normal boiling point every decision uses (mode fit, GC verdict, retention
+    /// index), K, and whether it is experimental: the experimental value when one is stored,
+    /// else the structure engine's Joback estimate with the Stein & Brown correction (the
+    /// value the GC verdict uses), else a stored estimate.
     pub tb_k: Option<(f64, PropertyKind)>,
+    /// Standard uncertainty of `tb_k`, K: 1 K for an experimental value, Joback's
+    /// `typical_error_k` for the estimate (18 K and more; `structure::joback`).
+    pub tb_sigma_k: Option<f64>,
     /// GC suitability.
     pub gc: Option<GcAssessment>,
     /// Net formal charge of the structure.
@@ -91,11 +106,53 @@ impl AnalyteProfile {
             sites = m.sites;
         }
         let log_p = analyte.best("logp").map(|p| (p.value, p.kind));
-        let tb_k = analyte.best("boiling_point").map(|p| (p.value, p.kind));
-        let exp_tb = tb_k
-            .filter(|(_, k)| *k == PropertyKind::Experimental)
+        let stored_tb = analyte.best("boiling_point").map(|p| (p.value, p.kind));
+        // a value the lab stored itself (user overlay) is used as given, like an experimental one
+        let user_tb = analyte
+            .best("boiling_point")
+            .is_some_and(|p| p.origin == Origin::User);
+        let exp_tb = stored_tb
+            .filter(|(_, k)| *k == PropertyKind::Experimental || user_tb)
             .map(|(v, _)| v);
         let gc = est.as_ref().and_then(|e| assess_gc(&e.graph, exp_tb).ok());
+        // one boiling point and one uncertainty for every decision (docs/science.md §
+        // boiling point): experimental, else the GC assessment's corrected Joback estimate
+        let (tb_k, tb_sigma_k) = match (exp_tb, gc.as_ref().and_then(|g| g.tb_k)) {
+            (Some(t), _) => match stored_tb {
+                Some((_, PropertyKind::Estimated)) => (
+                    Some((t, PropertyKind::Estimated)),
+                    Some(JOBACK_TB_SIGMA_FLOOR_K),
+                ),
+                _ => (
+                    Some((t, PropertyKind::Experimental)),
+                    Some(EXPERIMENTAL_TB_SIGMA_K),
+                ),
+            },
+            (None, Some(t)) => (
+                Some((t, PropertyKind::Estimated)),
+                gc.as_ref()
+                    .and_then(|g| g.tb_error_k)
+                    .or(Some(JOBACK_TB_SIGMA_FLOOR_K)),
+            ),
+            (None, None) => (stored_tb, stored_tb.map(|_| JOBACK_TB_SIGMA_FLOOR_K)),
+        };
+        // the estimated boiling point shown in reports is the one used
+        if exp_tb.is_none()
+            && let Some((t, _)) = tb_k
+            && gc.as_ref().and_then(|g| g.tb_k).is_some()
+        {
+            for p in analyte.properties.iter_mut().filter(|p| {
+                p.property == "boiling_point"
+                    && p.kind == PropertyKind::Estimated
+                    && p.origin != Origin::User
+            }) {
+                if (p.value - t).abs() > 1e-9 {
+                    p.detail = format!("joback_sum_k={:.1}", p.value);
+                    p.value = t;
+                    p.source = TB_ESTIMATE_SOURCE.into();
+                }
+            }
+        }
         let formal_charge = est.as_ref().map_or(0, |e| e.descriptors.formal_charge);
         let carbon = est
             .as_ref()
@@ -111,6 +168,7 @@ impl AnalyteProfile {
             sites,
             log_p,
             tb_k,
+            tb_sigma_k,
             gc,
             formal_charge,
             inorganic_ion,
@@ -204,13 +262,10 @@ impl AnalyteProfile {
 
     /// The GC retention-index input, when a boiling point is known.
     pub fn gc_analyte(&self) -> Option<GcAnalyte> {
-        let (tb, kind) = self.tb_k?;
+        let (tb, _) = self.tb_k?;
         let e = self.estimate.as_ref();
         let counts = e.map(|e| group_counts(&e.graph)).unwrap_or_default();
-        let typical_error = match kind {
-            PropertyKind::Experimental => 1.0,
-            PropertyKind::Estimated => 20.0,
-        };
+        let typical_error = self.tb_sigma_k.unwrap_or(JOBACK_TB_SIGMA_FLOOR_K);
         Some(GcAnalyte {
             tb_k: tb,
             tb_sigma_k: typical_error,
@@ -386,6 +441,40 @@ fn n_alkane(g: &MolGraph) -> Option<u32> {
 mod tests {
     use super::*;
     use crate::structure::parse_smiles;
+
+    fn structure_only(smiles: &str) -> AnalyteProfile {
+        AnalyteProfile::new(Analyte {
+            query: "test".into(),
+            name: "test".into(),
+            inchikey: None,
+            smiles: Some(smiles.into()),
+            formula: None,
+            molar_mass_g_mol: None,
+            cid: None,
+            cas: None,
+            origin: Origin::Structure,
+            matched_by: "test".into(),
+            properties: Vec::new(),
+        })
+    }
+
+    #[test]
+    fn one_boiling_point_and_one_uncertainty_serve_every_decision() {
+        // caffeine: the raw Joback sum (about 640 K) and the corrected estimate differ by
+        // about 50 K, so a mix-up shows (Joback 1987; Stein & Brown 1994, from memory)
+        let p = structure_only("Cn1c(=O)c2c(ncn2C)n(C)c1=O");
+        let gc = p.gc.as_ref().expect("GC assessment");
+        let (tb, kind) = p.tb_k.expect("a boiling point");
+        assert_eq!(kind, PropertyKind::Estimated);
+        assert_eq!(Some(tb), gc.tb_k, "mode fit and GC verdict use one value");
+        let a = p.gc_analyte().expect("GC input");
+        assert_eq!(a.tb_k, tb, "retention index uses the same value");
+        assert_eq!(Some(a.tb_sigma_k), gc.tb_error_k, "one uncertainty");
+        assert_eq!(p.tb_sigma_k, gc.tb_error_k);
+        let shown = p.analyte.best("boiling_point").expect("shown");
+        assert_eq!(shown.value, tb, "the report shows the value used");
+        assert!(shown.detail.contains("joback_sum_k="));
+    }
 
     #[test]
     fn xylenes_get_their_substitution_pattern() {

@@ -69,6 +69,18 @@ pub enum GcError {
         /// What is expected.
         reason: &'static str,
     },
+    /// An oven-program text (`--oven`) could not be read.
+    #[error(
+        "oven program `{spec}`: `{token}` {reason}; write INITIAL_C:HOLD_MIN,RAMP_C_PER_MIN:FINAL_C:HOLD_MIN, e.g. 40:2,10:250:5 (or INITIAL_C:HOLD_MIN alone for an isothermal run)"
+    )]
+    BadOvenSpec {
+        /// The whole text.
+        spec: String,
+        /// The offending part.
+        token: String,
+        /// What is wrong.
+        reason: String,
+    },
     /// The program heats the column above the phase's limit.
     #[error(
         "oven final temperature {final_c} C exceeds the maximum {t_max_c} C of phase `{phase_id}`; lower the final temperature (bleed and phase damage above it)"
@@ -142,8 +154,8 @@ pub enum RingSubstitution {
 pub struct GcAnalyte {
     /// Normal boiling point.
     pub tb_k: f64,
-    /// Standard uncertainty of `tb_k` (about 0.5 K for handbook values, about 15 K for a
-    /// group-contribution estimate).
+    /// Standard uncertainty of `tb_k`: the advisor gives 1 K for an experimental value and
+    /// Joback's `typical_error_k` (18 K and more) for the group-contribution estimate.
     pub tb_sigma_k: f64,
     /// Molar mass.
     pub molar_mass_g_mol: f64,
@@ -528,6 +540,84 @@ fn check(
 }
 
 impl OvenProgram {
+    /// Parses `INITIAL_C:HOLD_MIN,RAMP_C_PER_MIN:FINAL_C:HOLD_MIN` (°C, min, °C/min), e.g.
+    /// `40:2,10:250:5`: 40 °C held 2 min, 10 °C/min to 250 °C, held 5 min. `INITIAL_C:HOLD_MIN`
+    /// alone is an isothermal run. Whitespace around numbers is ignored. The syntax is this
+    /// project's own.
+    ///
+    /// # Errors
+    /// [`GcError::BadOvenSpec`] naming the part that is not a number or has the wrong number of
+    /// fields; [`GcError::BadCondition`] for values outside [`OvenProgram::new`]'s ranges.
+    ///
+    /// # Examples
+    /// ```
+    /// use phasewise::model::gc::OvenProgram;
+    /// let p = OvenProgram::parse("40:2,10:250:5").unwrap();
+    /// assert_eq!((p.initial_c(), p.final_c(), p.total_time_min()), (40.0, 250.0, 28.0));
+    /// assert!(OvenProgram::parse("40:2,10:x:5").unwrap_err().to_string().contains("`x`"));
+    /// ```
+    pub fn parse(spec: &str) -> Result<Self, GcError> {
+        let bad = |token: &str, reason: &str| GcError::BadOvenSpec {
+            spec: spec.to_string(),
+            token: token.to_string(),
+            reason: reason.to_string(),
+        };
+        let numbers = |part: &str, want: usize| -> Result<Vec<f64>, GcError> {
+            let fields: Vec<&str> = part.split(':').map(str::trim).collect();
+            if fields.len() != want {
+                return Err(bad(
+                    part.trim(),
+                    &format!("has {} field(s), expected {want}", fields.len()),
+                ));
+            }
+            fields
+                .iter()
+                .map(|f| {
+                    f.parse::<f64>()
+                        .ok()
+                        .filter(|v| v.is_finite())
+                        .ok_or_else(|| bad(f, "is not a number"))
+                })
+                .collect()
+        };
+        let parts: Vec<&str> = spec.split(',').collect();
+        match parts.as_slice() {
+            [start] => {
+                let a = numbers(start, 2)?;
+                Self::new(a[0], a[1], 0.0, a[0], 0.0)
+            }
+            [start, ramp] => {
+                let a = numbers(start, 2)?;
+                let b = numbers(ramp, 3)?;
+                Self::new(a[0], a[1], b[0], b[1], b[2])
+            }
+            _ => Err(bad(
+                spec.trim(),
+                "has more than one ramp (one ramp is supported)",
+            )),
+        }
+    }
+
+    /// The program in [`OvenProgram::parse`]'s syntax.
+    pub fn to_spec(&self) -> String {
+        if self.final_c > self.initial_c {
+            format!(
+                "{}:{},{}:{}:{}",
+                self.initial_c,
+                self.initial_hold_min,
+                self.ramp_c_per_min,
+                self.final_c,
+                self.final_hold_min
+            )
+        } else {
+            format!(
+                "{}:{}",
+                self.initial_c,
+                self.initial_hold_min + self.final_hold_min
+            )
+        }
+    }
+
     /// Builds a program; `final_c == initial_c` is an isothermal run (the ramp is then ignored).
     ///
     /// # Errors

@@ -97,7 +97,7 @@ pub enum PhaseError {
         reason: String,
     },
     /// One or more ids are not in the catalogue.
-    #[error("unknown {kind} {}; list the known ones with the catalogue's ids", describe_unknown(.unknown))]
+    #[error("unknown {kind} {}; {}", describe_unknown(.unknown), list_hint(.kind))]
     UnknownIds {
         /// What was looked up (`phase`, `solvent`, ...).
         kind: &'static str,
@@ -116,6 +116,17 @@ pub struct UnknownId {
     pub id: String,
     /// Closest known ids, best first (may be empty).
     pub did_you_mean: Vec<String>,
+}
+
+/// Where the known ids of a kind are listed.
+fn list_hint(kind: &str) -> &'static str {
+    match kind {
+        "phase" => "`phasewise phases` lists the known phase ids",
+        "solvent" => "the known solvent ids are in data/solvents.tsv (docs/phases.md)",
+        "buffer" => "the known buffer ids are in data/buffers.tsv (docs/phases.md)",
+        "IC eluent" => "the known eluent ids are in data/ic_eluents.tsv (docs/phases.md)",
+        _ => "the known ids are in the catalogue's data files (docs/phases.md)",
+    }
 }
 
 fn describe_unknown(unknown: &[UnknownId]) -> String {

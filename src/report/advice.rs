@@ -77,8 +77,17 @@ pub struct IonisationSummary {
 pub struct ModeScore {
     /// Mode: `gc`, `rp`, `hilic`, `ic-anion`, `ic-cation`, `ion-exclusion`.
     pub mode: String,
-    /// Score 0–1 for the list as a whole (mean of the per-analyte fit).
+    /// Score 0–1 for the list as a whole: the mean per-analyte fit plus the stated
+    /// `preference` (capped at 1). Both the mode table and the ranking of recommendations use
+    /// this score.
     pub score: f64,
+    /// Mean per-analyte fit, 0–1 (before the preference).
+    #[serde(default)]
+    pub fit: f64,
+    /// The usual-first-choice preference added to `fit`, with its reason (`weight` is the
+    /// amount); `None` for modes without one.
+    #[serde(default)]
+    pub preference: Option<Reason>,
     /// Analytes that fit the mode.
     pub fitting: usize,
     /// Analytes that do not, with the reason.
@@ -150,7 +159,8 @@ pub struct Reason {
 pub struct ProgramStep {
     /// Time from injection, min.
     pub time_min: f64,
-    /// % organic (LC), eluent concentration in mM (IC), or oven temperature in °C (GC).
+    /// In the unit of [`Conditions::program_unit`]: % organic or % B (LC), eluent concentration
+    /// in mM (IC), or oven temperature in °C (GC).
     pub value: f64,
 }
 
@@ -177,9 +187,10 @@ pub struct Conditions {
     pub buffer: Option<String>,
     /// How to prepare the buffer.
     pub buffer_preparation: Option<String>,
-    /// Gradient (% organic), eluent or oven program.
+    /// Gradient, eluent or oven program (values in `program_unit`).
     pub program: Vec<ProgramStep>,
-    /// What `program` values are: `% organic`, `mM eluent`, `°C`.
+    /// What `program` values are: `% organic` (RP, and LC programs the user gave), `% B (...)`
+    /// with B's composition (the advisor's HILIC programs), `mM <eluent>` (IC), `°C` (GC).
     pub program_unit: String,
     /// Flow, mL/min (LC, IC) or carrier linear velocity in cm/s (GC, see `carrier_gas`).
     pub flow_ml_min: Option<f64>,
@@ -230,6 +241,10 @@ pub struct PredictionRow {
     pub path: String,
     /// Retention index (GC) where applicable.
     pub retention_index: Option<f64>,
+    /// For `memory` predictions, the ids of the source systems (RepoRT dataset ids) whose
+    /// measurements were projected onto this system; empty for every other path.
+    #[serde(default)]
+    pub source_systems: Vec<String>,
 }
 
 /// A pair at risk of co-eluting.
@@ -286,7 +301,9 @@ impl AdviceReport {
         use super::num;
         use super::table::{printable, render};
         let mut out = String::new();
-        out.push_str("Modes for the whole list (score 0-1, analytes fitting)\n");
+        out.push_str(
+            "Modes for the whole list (score 0-1 = mean fit + preference; ranks the recommendations)\n",
+        );
         let rows: Vec<Vec<String>> = self
             .mode_scores
             .iter()
@@ -294,12 +311,38 @@ impl AdviceReport {
                 vec![
                     m.mode.clone(),
                     num(m.score, 2),
+                    num(m.fit, 2),
+                    m.preference
+                        .as_ref()
+                        .and_then(|p| p.weight)
+                        .map_or("-".into(), |w| format!("{w:+.2}")),
                     format!("{} of {}", m.fitting, self.analytes.len()),
                 ]
             })
             .collect();
-        out.push_str(&render(&["mode", "score", "analytes fitting"], &rows));
+        out.push_str(&render(
+            &[
+                "mode",
+                "score",
+                "mean fit",
+                "preference",
+                "analytes fitting",
+            ],
+            &rows,
+        ));
         out.push('\n');
+        for p in self
+            .mode_scores
+            .iter()
+            .filter_map(|m| m.preference.as_ref())
+        {
+            out.push_str(&format!(
+                "  - [{}{}] {}\n",
+                p.source,
+                reason_weight(p),
+                printable(&p.text)
+            ));
+        }
         for (i, r) in self.recommendations.iter().enumerate() {
             let label = if i == 0 {
                 "Recommendation"
@@ -321,8 +364,9 @@ impl AdviceReport {
             out.push_str(&predictions_table(r));
             for reason in &r.reasons {
                 out.push_str(&format!(
-                    "  - [{}] {}\n",
+                    "  - [{}{}] {}\n",
                     reason.source,
+                    reason_weight(reason),
                     printable(&reason.text)
                 ));
             }
@@ -384,6 +428,73 @@ impl AdviceReport {
         out.push_str("\nCautions\n");
         for c in &self.cautions {
             out.push_str(&format!("  - [{}] {}\n", c.topic, c.text));
+        }
+        out
+    }
+}
+
+/// How a reason's weight is shown in the table: `, weight +0.12`; a rule of weight 0 is
+/// `, weight 0: noted, not scored` so that it does not read as a supporting reason.
+pub fn reason_weight(r: &Reason) -> String {
+    match r.weight {
+        Some(0.0) => ", weight 0: noted, not scored".into(),
+        Some(w) => format!(", weight {w:+.2}"),
+        None => String::new(),
+    }
+}
+
+/// Column names of [`AdviceReport::render_delimited`], in order.
+pub const DELIMITED_COLUMNS: [&str; 13] = [
+    "role",
+    "rank",
+    "mode",
+    "phase_id",
+    "analyte",
+    "retention_time_min",
+    "interval_low_min",
+    "interval_high_min",
+    "interval_coverage",
+    "retention_factor",
+    "peak_width_half_min",
+    "retention_index",
+    "path",
+];
+
+impl AdviceReport {
+    /// Render as CSV (`delim` ',') or TSV ('\t'): a header row, then one row per predicted
+    /// analyte of each listed recommendation (`role` `recommendation`, `rank` 1, 2, ...) and of
+    /// the back-up (`role` `backup`, `rank` 0), in elution order; an empty `retention_index`
+    /// cell where none applies. Numbers are written in full precision.
+    pub fn render_delimited(&self, delim: char) -> String {
+        use super::csv_cell;
+        let d = delim.to_string();
+        let mut out = DELIMITED_COLUMNS.join(&d);
+        out.push('\n');
+        let recs = self
+            .recommendations
+            .iter()
+            .map(|r| ("recommendation", r))
+            .chain(self.backup.iter().map(|b| ("backup", &b.recommendation)));
+        for (role, r) in recs {
+            for p in &r.predictions {
+                let cells = [
+                    role.to_string(),
+                    r.rank.to_string(),
+                    csv_cell(&r.mode, delim),
+                    csv_cell(&r.phase.id, delim),
+                    csv_cell(&p.analyte, delim),
+                    p.retention_time_min.to_string(),
+                    p.interval_low_min.to_string(),
+                    p.interval_high_min.to_string(),
+                    p.interval_coverage.to_string(),
+                    p.retention_factor.to_string(),
+                    p.peak_width_half_min.to_string(),
+                    p.retention_index.map_or(String::new(), |ri| ri.to_string()),
+                    csv_cell(&p.path, delim),
+                ];
+                out.push_str(&cells.join(&d));
+                out.push('\n');
+            }
         }
         out
     }
@@ -529,4 +640,22 @@ fn predictions_table(r: &Recommendation) -> String {
         s.push('\n');
     }
     s
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn rule_weights_are_shown_and_weight_0_reads_as_not_scored() {
+        let r = |w| Reason {
+            source: "rule:x".into(),
+            text: "t".into(),
+            weight: w,
+        };
+        assert_eq!(reason_weight(&r(Some(0.12))), ", weight +0.12");
+        assert_eq!(reason_weight(&r(Some(-0.05))), ", weight -0.05");
+        assert!(reason_weight(&r(Some(0.0))).contains("not scored"));
+        assert_eq!(reason_weight(&r(None)), "");
+    }
 }

@@ -8,6 +8,7 @@ pub mod advice;
 pub mod chromatogram;
 pub mod describe;
 pub mod lookup;
+pub mod phases;
 pub mod plan;
 pub mod table;
 

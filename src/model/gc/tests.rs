@@ -368,7 +368,40 @@ fn suggested_program_elutes_the_range_within_the_phase_limit() {
     assert!(suggest_oven_program(900.0, 800.0, phase("gc-dimethyl"), &column).is_err());
 }
 
+#[test]
+fn oven_texts_name_the_bad_part() {
+    for (text, want) in [
+        ("40:2,10:x:5", "`x`"),
+        ("40,10:250:5", "`40`"),
+        ("40:2,10:250", "`10:250`"),
+        ("40:2,10:250:5,5:300:1", "more than one ramp"),
+        ("", "``"),
+        ("40:2,0:250:5", "ramp_c_per_min"),
+        ("250:2,10:40:5", "final_c"),
+    ] {
+        let e = OvenProgram::parse(text).unwrap_err().to_string();
+        assert!(e.contains(want), "{text}: {e}");
+    }
+    let iso = OvenProgram::parse(" 120 : 15 ").unwrap();
+    assert_eq!(
+        (iso.initial_c(), iso.final_c(), iso.total_time_min()),
+        (120.0, 120.0, 15.0)
+    );
+}
+
 proptest! {
+    #[test]
+    fn oven_texts_round_trip(t0 in -50.0f64..200.0, h0 in 0.0f64..20.0, r in 0.5f64..50.0, dt in 1.0f64..200.0, h1 in 0.0f64..20.0) {
+        let p = OvenProgram::new(t0, h0, r, t0 + dt, h1).unwrap();
+        let back = OvenProgram::parse(&p.to_spec()).unwrap();
+        prop_assert_eq!(back, p);
+    }
+
+    #[test]
+    fn any_oven_text_parses_or_errs_without_panic(text in "[0-9:,. x-]{0,24}") {
+        let _ = OvenProgram::parse(&text);
+    }
+
     #[test]
     fn index_rises_with_boiling_point(tb in 250.0f64..700.0, extra in 0.5f64..50.0, hydroxyl in 0u32..3) {
         let low = GcAnalyte { n_hydroxyl: hydroxyl, ..analyte(tb, 100.0) };

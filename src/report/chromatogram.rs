@@ -108,6 +108,7 @@ pub fn render_svg(rec: &Recommendation, title: &str) -> String {
             dead_time_min: rec.conditions.dead_time_min,
             id: format!("{}-{}-{}", rec.rank, rec.mode, rec.phase.id),
             subtitle: format!("{} on {}", rec.mode, rec.phase.name),
+            hatch_legend: "pair at risk of co-elution (see Risks)".to_string(),
         },
         title,
     )
@@ -174,6 +175,7 @@ pub fn render_optimum_svg(
                 "optimised gradient {} (time min : % organic)",
                 prediction.program.to_spec()
             ),
+            hatch_legend: format!("pair below the target Rs {target_resolution}"),
         },
         title,
     )
@@ -195,6 +197,8 @@ pub struct ChromatogramData<'a> {
     pub id: String,
     /// Subtitle before "; predicted, not measured; equal response assumed".
     pub subtitle: String,
+    /// What hatching means in this image (after "! hatched: " in the legend).
+    pub hatch_legend: String,
 }
 
 /// Renders [`ChromatogramData`] as an SVG document titled `title` (see [`render_svg`]).
@@ -580,10 +584,11 @@ pub fn render_chromatogram_svg(data: &ChromatogramData, title: &str) -> String {
          <path d=\"M {a} {y2a} L {a} {y2b} M {a} {y2} L {b} {y2} M {b} {y2a} L {b} {y2b}\" fill=\"none\" stroke=\"#000\" stroke-dasharray=\"5 2\"/>\
          <text x=\"{t}\" y=\"{y2t}\">prediction interval{cov}</text>\
          <rect x=\"{c}\" y=\"{r0}\" width=\"28\" height=\"12\" fill=\"url(#{hatch_id})\" stroke=\"#000\"/>\
-         <text x=\"{ct}\" y=\"{y0t}\">! hatched: pair at risk of co-elution (see Risks)</text>\
+         <text x=\"{ct}\" y=\"{y0t}\">! hatched: {hatched}</text>\
          <line x1=\"{c}\" y1=\"{y1}\" x2=\"{c}\" y2=\"{y1b}\" stroke=\"#000\" stroke-dasharray=\"2 3\"/>\
          <text x=\"{ct}\" y=\"{y1t}\">t0: column dead time</text>\
          </g>",
+        hatched = escape_xml(&data.hatch_legend),
         a = f2(lx),
         b = f2(lx + 28.0),
         t = f2(lx + 36.0),
@@ -837,6 +842,44 @@ fn draw_detail(s: &mut String, peaks: &[Peak], w: &DetailWindow, left: f64, top:
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn an_optimum_is_drawn_with_its_program_and_pairs_below_target_hatched() {
+        use crate::measured::optimise::{PredictedPair, PredictedPeak};
+        use crate::model::gradient::{ElutionPhase, GradientProgram};
+        // Invented prediction: three peaks, the last pair below Rs 1.5.
+        let peak = |name: &str, t: f64| PredictedPeak {
+            name: name.to_string(),
+            retention_time_min: t,
+            width_base_min: 0.1,
+            organic_at_elution_pct: 50.0,
+            phase: ElutionPhase::DuringGradient,
+            retention_time_uncertainty_min: Some(0.02),
+        };
+        let pair = |a: &str, b: &str, rs: f64| PredictedPair {
+            first: a.to_string(),
+            second: b.to_string(),
+            resolution: rs,
+        };
+        let p = Prediction {
+            program: GradientProgram::parse("0:10,6.5:90").unwrap(),
+            peaks: vec![peak("inv-a", 2.0), peak("inv-b", 3.0), peak("inv-c", 3.12)],
+            pairs: vec![pair("inv-a", "inv-b", 10.0), pair("inv-b", "inv-c", 1.2)],
+            min_resolution: 1.2,
+            critical_pair: ["inv-b".into(), "inv-c".into()],
+            run_time_min: 3.12,
+            first_peak_retention_factor: 1.0,
+        };
+        let svg = render_optimum_svg(&p, 1.0, 1.5, "t");
+        assert!(svg.contains("optimised gradient 0:10,6.5:90"));
+        assert!(svg.contains("hatched: pair below the target Rs 1.5"));
+        assert!(!svg.contains("see Risks"));
+        assert_eq!(svg.matches("class=\"peak\"").count(), 3);
+        assert_eq!(svg.matches("class=\"interval\"").count(), 3);
+        // Only the pair below the target is flagged ("!" after the names).
+        assert!(svg.contains(">inv-b !<") && svg.contains(">inv-c !<"));
+        assert!(!svg.contains(">inv-a !<"));
+    }
 
     #[test]
     fn xml_escaping_covers_markup_characters() {

@@ -856,6 +856,14 @@ pub fn run_scout(a: &ScoutArgs) -> Result<ExitCode> {
         OptimiseError::UnknownAnalyte { .. } | OptimiseError::CriticalPairSameAnalyte { .. } => {
             anyhow::anyhow!("--critical: {e}")
         }
+        OptimiseError::TooFewAnalytes { .. } => anyhow::anyhow!(
+            "{e}: the peak tables {} name fewer than two peaks",
+            a.runs
+                .iter()
+                .map(|p| p.display().to_string())
+                .collect::<Vec<_>>()
+                .join(", ")
+        ),
         other => anyhow::Error::new(other).context("optimising the gradient"),
     })?;
     let text = match a.format {

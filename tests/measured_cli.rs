@@ -821,6 +821,22 @@ fn scout_errors_name_the_option_not_the_field() {
     // Nothing elutes within one minute: the options that widen the search are named.
     let e = usage_error(&with(&["--max-run-time", "1"]), "--max-run-time");
     assert!(e.contains("--end-range") && e.contains("--tg-range"), "{e}");
+    // One peak only: the run files are named.
+    let one =
+        |name: &str, rt: &str| write(dir.path(), name, &format!("name,rt,w50\nqc9-a,{rt},0.05\n"));
+    let (o1, o2) = (one("one-a.csv", "6.1"), one("one-b.csv", "14.2"));
+    usage_error(
+        &[
+            "scout",
+            o1.to_str().unwrap(),
+            o2.to_str().unwrap(),
+            "--gradients",
+            "0:5,10:95;0:5,30:95",
+            "--t0",
+            "1.5",
+        ],
+        "one-b.csv",
+    );
     // A peak before t0 names the run file, the peak and where t0 came from.
     let first_rt: f64 = std::fs::read_to_string(r1)
         .unwrap()

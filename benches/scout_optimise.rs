@@ -101,6 +101,7 @@ fn optimise_request(req: &ScoutRequest) -> OptimiseRequest {
         critical_pairs: vec![],
         two_segment: false,
         target_resolution: 1.5,
+        min_retention_factor: 1.0,
         gradient_time_steps: 25,
         composition_step_pct: 5.0,
     }

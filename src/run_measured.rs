@@ -24,19 +24,24 @@ use serde::Serialize;
 
 use phasewise::measured::DeadTimeInput;
 use phasewise::measured::optimise::{
-    OptimiseReport, OptimiseRequest, PlateSource, Prediction, Range, optimise, render_window_svg,
+    OptimiseError, OptimiseReport, OptimiseRequest, PlateSource, Prediction, Range, Selection,
+    optimise, render_window_svg,
 };
 use phasewise::measured::peaks::PeakTable;
-use phasewise::measured::scout::{FitFlag, ScoutFit, ScoutRequest, ScoutRun, fit};
+use phasewise::measured::scout::{FitFlag, ScoutError, ScoutFit, ScoutRequest, ScoutRun, fit};
 use phasewise::measured::suitability::{
-    Criterion, Outcome, SuitabilityReport, SuitabilityRequest, SuitabilityTargets, evaluate,
+    Criterion, Outcome, SuitabilityError, SuitabilityReport, SuitabilityRequest,
+    SuitabilityTargets, evaluate,
 };
-use phasewise::measured::transfer::{ColumnGeometry, TransferReport, TransferRequest, transfer};
+use phasewise::measured::transfer::{
+    ColumnGeometry, TransferError, TransferReport, TransferRequest, transfer,
+};
 use phasewise::model::eval::{EvalReport, evaluate_with};
 use phasewise::model::features::PhasewiseDescriptors;
 use phasewise::model::gradient::GradientProgram;
 use phasewise::model::memory::MemoryTable;
 use phasewise::model::regression::{DEFAULT_PENALTIES, TrainingData, train_with};
+use phasewise::report::chromatogram::render_optimum_svg;
 use phasewise::report::plan::{check_writable, write_atomically};
 use phasewise::report::table::render;
 
@@ -188,6 +193,32 @@ impl fmt::Display for ColumnSize {
 
 fn column_arg(s: &str) -> Result<ColumnSize, String> {
     parse_column(s).map_err(|e| e.to_string())
+}
+
+/// A finite number greater than zero (clap names the option in its message).
+fn positive_arg(s: &str) -> Result<f64, String> {
+    match s.trim().parse::<f64>() {
+        Ok(v) if v.is_finite() && v > 0.0 => Ok(v),
+        Ok(_) => Err(format!("`{s}` must be a finite number greater than zero")),
+        Err(_) => Err(format!("`{s}` is not a number")),
+    }
+}
+
+/// A finite number of zero or more (clap names the option in its message).
+fn non_negative_arg(s: &str) -> Result<f64, String> {
+    match s.trim().parse::<f64>() {
+        Ok(v) if v.is_finite() && v >= 0.0 => Ok(v),
+        Ok(_) => Err(format!("`{s}` must be a finite number of zero or more")),
+        Err(_) => Err(format!("`{s}` is not a number")),
+    }
+}
+
+/// Checks a `MIN,MAX` option against the allowed interval, naming the option.
+fn check_option_range(option: &str, r: NumberRange, lo: f64, hi: f64, what: &str) -> Result<()> {
+    if r.min < lo || r.max > hi {
+        bail!("{option} {},{}: {what} (allowed {lo}–{hi})", r.min, r.max);
+    }
+    Ok(())
 }
 
 /// Two peak names `A,B`.
@@ -343,31 +374,31 @@ pub struct SuitabilityArgs {
     #[arg(value_name = "PEAKS")]
     pub peaks: PathBuf,
     /// Dead time t0, min (e.g. from an unretained marker).
-    #[arg(long, value_name = "MIN", conflicts_with = "column")]
+    #[arg(long, value_name = "MIN", conflicts_with = "column", value_parser = positive_arg, allow_negative_numbers = true)]
     pub t0: Option<f64>,
     /// Column as LENGTHxID in mm (e.g. `150x4.6`): t0 is estimated with Vm ≈ 0.5·L·dc².
     #[arg(long, value_name = "LxID", value_parser = column_arg, requires = "flow")]
     pub column: Option<ColumnSize>,
     /// Flow rate, mL/min (with --column).
-    #[arg(long, value_name = "ML_MIN", requires = "column")]
+    #[arg(long, value_name = "ML_MIN", requires = "column", value_parser = positive_arg, allow_negative_numbers = true)]
     pub flow: Option<f64>,
     /// Column length, mm, for the plate height (default: the length in --column).
-    #[arg(long, value_name = "L")]
+    #[arg(long, value_name = "L", value_parser = positive_arg, allow_negative_numbers = true)]
     pub length_mm: Option<f64>,
     /// Check resolution only for this pair of peaks, `first,second`.
     #[arg(long, value_name = "A,B", value_parser = pair_arg)]
     pub critical: Option<[String; 2]>,
     /// Minimum resolution Rs.
-    #[arg(long, value_name = "RS", default_value_t = 1.5)]
+    #[arg(long, value_name = "RS", default_value_t = 1.5, value_parser = non_negative_arg, allow_negative_numbers = true)]
     pub min_resolution: f64,
     /// Acceptable retention-factor range, `MIN,MAX`.
-    #[arg(long, value_name = "MIN,MAX", value_parser = range_arg, default_value = "1,10")]
+    #[arg(long, value_name = "MIN,MAX", value_parser = range_arg, default_value = "1,10", allow_hyphen_values = true)]
     pub k_range: NumberRange,
     /// Highest acceptable USP tailing.
-    #[arg(long, value_name = "T", default_value_t = 2.0)]
+    #[arg(long, value_name = "T", default_value_t = 2.0, value_parser = positive_arg, allow_negative_numbers = true)]
     pub max_tailing: f64,
     /// Minimum plate number (none by default).
-    #[arg(long, value_name = "N")]
+    #[arg(long, value_name = "N", value_parser = positive_arg, allow_negative_numbers = true)]
     pub min_plates: Option<f64>,
     /// Leave a peak out (e.g. the t0 marker); repeatable.
     #[arg(long, value_name = "NAME")]
@@ -388,6 +419,13 @@ struct SuitabilityJson<'a> {
 
 /// Runs `phasewise suitability`.
 pub fn run_suitability(a: &SuitabilityArgs) -> Result<ExitCode> {
+    check_option_range(
+        "--k-range",
+        a.k_range,
+        0.0,
+        f64::MAX,
+        "retention factors cannot be negative",
+    )?;
     let dead_time = dead_time_input(a.t0, a.column, a.flow)?;
     let peaks = read_peaks(&a.peaks)?;
     let req = SuitabilityRequest {
@@ -404,7 +442,7 @@ pub fn run_suitability(a: &SuitabilityArgs) -> Result<ExitCode> {
             min_plates: a.min_plates,
         },
     };
-    let report = evaluate(&req).with_context(|| format!("evaluating {}", a.peaks.display()))?;
+    let report = evaluate(&req).map_err(|e| suitability_error(e, a))?;
     let text = match a.format {
         SuitabilityFormat::Json => json_line(&SuitabilityJson {
             schema_version: 1,
@@ -420,6 +458,42 @@ pub fn run_suitability(a: &SuitabilityArgs) -> Result<ExitCode> {
     } else {
         ExitCode::from(EXIT_PARTIAL)
     })
+}
+
+/// A library error with the option (or the file) the user can change named first.
+fn suitability_error(e: SuitabilityError, a: &SuitabilityArgs) -> anyhow::Error {
+    let file = a.peaks.display();
+    match &e {
+        SuitabilityError::UnknownPeak { role, .. } => {
+            let option = if role.contains("exclusion") {
+                "--exclude"
+            } else {
+                "--critical"
+            };
+            anyhow::anyhow!("{option}: {e}")
+        }
+        SuitabilityError::CriticalPairSamePeak { .. } => anyhow::anyhow!("--critical: {e}"),
+        SuitabilityError::BadTarget { target, .. } => {
+            let option = match *target {
+                "min_resolution" => "--min-resolution",
+                "min_retention_factor" | "max_retention_factor" => "--k-range",
+                "max_tailing" => "--max-tailing",
+                "min_plates" => "--min-plates",
+                _ => "a limit option",
+            };
+            anyhow::anyhow!("{option}: {e}")
+        }
+        SuitabilityError::PeakBeforeDeadTime { .. } => anyhow::anyhow!(
+            "{file}: {e} (t0 from {})",
+            if a.t0.is_some() {
+                "--t0"
+            } else {
+                "--column and --flow"
+            }
+        ),
+        SuitabilityError::NoPeaks { .. } => anyhow::anyhow!("{file}, --exclude: {e}"),
+        _ => anyhow::Error::new(e).context(format!("evaluating {file}")),
+    }
 }
 
 const PEAK_HEADER: [&str; 9] = [
@@ -586,42 +660,46 @@ pub struct ScoutArgs {
     #[arg(long, value_name = "PROGRAMS")]
     pub gradients: String,
     /// Dead time t0, min.
-    #[arg(long, value_name = "MIN", conflicts_with = "column")]
+    #[arg(long, value_name = "MIN", conflicts_with = "column", value_parser = positive_arg, allow_negative_numbers = true)]
     pub t0: Option<f64>,
     /// Column as LENGTHxID in mm (e.g. `150x4.6`): t0 is estimated with Vm ≈ 0.5·L·dc².
     #[arg(long, value_name = "LxID", value_parser = column_arg, requires = "flow")]
     pub column: Option<ColumnSize>,
     /// Flow rate, mL/min (needed with --column, and with --t0 when --dwell is not zero).
-    #[arg(long, value_name = "ML_MIN")]
+    #[arg(long, value_name = "ML_MIN", value_parser = positive_arg, allow_negative_numbers = true)]
     pub flow: Option<f64>,
     /// Dwell (gradient delay) volume, mL.
-    #[arg(long, value_name = "ML", default_value_t = 0.0)]
+    #[arg(long, value_name = "ML", default_value_t = 0.0, value_parser = non_negative_arg, allow_negative_numbers = true)]
     pub dwell: f64,
     /// Allowed gradient time, `MIN,MAX` in min.
-    #[arg(long, value_name = "MIN,MAX", value_parser = range_arg, default_value = "5,60")]
+    #[arg(long, value_name = "MIN,MAX", value_parser = range_arg, default_value = "5,60", allow_hyphen_values = true)]
     pub tg_range: NumberRange,
     /// Allowed initial composition, `MIN,MAX` in % organic.
-    #[arg(long, value_name = "MIN,MAX", value_parser = range_arg, default_value = "5,40")]
+    #[arg(long, value_name = "MIN,MAX", value_parser = range_arg, default_value = "5,40", allow_hyphen_values = true)]
     pub start_range: NumberRange,
     /// Allowed final composition, `MIN,MAX` in % organic.
-    #[arg(long, value_name = "MIN,MAX", value_parser = range_arg, default_value = "60,95")]
+    #[arg(long, value_name = "MIN,MAX", value_parser = range_arg, default_value = "60,95", allow_hyphen_values = true)]
     pub end_range: NumberRange,
     /// Latest allowed elution of the last peak, min.
-    #[arg(long, value_name = "MIN", default_value_t = 60.0)]
+    #[arg(long, value_name = "MIN", default_value_t = 60.0, value_parser = positive_arg, allow_negative_numbers = true)]
     pub max_run_time: f64,
     /// Optimise only this pair's resolution, `first,second`; repeatable.
     #[arg(long, value_name = "A,B", value_parser = pair_arg)]
     pub critical: Vec<[String; 2]>,
     /// Plate number for predicted widths (default: from --particle and the column length, else
     /// 10 000 assumed).
-    #[arg(long, value_name = "N", conflicts_with = "particle")]
+    #[arg(long, value_name = "N", conflicts_with = "particle", value_parser = positive_arg, allow_negative_numbers = true)]
     pub plates: Option<f64>,
     /// Particle size, µm: estimate N = L/(2.5·dp) from it and the --column length.
-    #[arg(long, value_name = "UM", requires = "column")]
+    #[arg(long, value_name = "UM", requires = "column", value_parser = positive_arg, allow_negative_numbers = true)]
     pub particle: Option<f64>,
-    /// Resolution target drawn in the window diagram.
-    #[arg(long, value_name = "RS", default_value_t = 1.5)]
+    /// Resolution target: the shortest run whose smallest Rs reaches it is chosen (if none
+    /// does, the largest smallest Rs); drawn in the window diagram.
+    #[arg(long, value_name = "RS", default_value_t = 1.5, value_parser = non_negative_arg, allow_negative_numbers = true)]
     pub target_resolution: f64,
+    /// Smallest acceptable retention factor k = (tR − t0)/t0 of the first peak.
+    #[arg(long, value_name = "K", default_value_t = 1.0, value_parser = non_negative_arg, allow_negative_numbers = true)]
+    pub min_k: f64,
     /// Also try a two-segment gradient.
     #[arg(long)]
     pub two_segment: bool,
@@ -631,12 +709,19 @@ pub struct ScoutArgs {
     /// Write the window diagram data as TSV.
     #[arg(long, value_name = "FILE")]
     pub window_data: Option<PathBuf>,
+    /// Write the predicted chromatogram at the chosen conditions as SVG.
+    #[arg(long, value_name = "FILE")]
+    pub chromatogram_svg: Option<PathBuf>,
     /// Output format.
     #[arg(long, short, value_enum, default_value_t = ReportFormat::Table)]
     pub format: ReportFormat,
 }
 
-/// JSON output of `scout` (schema version 1).
+/// Schema version of the `scout` JSON output (2: the optimiser's selection rule, first-peak
+/// retention and rounded programs; `rounded` removed).
+const SCOUT_SCHEMA_VERSION: u32 = 2;
+
+/// JSON output of `scout` (schema version [`SCOUT_SCHEMA_VERSION`]).
 #[derive(Serialize)]
 struct ScoutJson<'a> {
     schema_version: u32,
@@ -666,9 +751,15 @@ fn split_programs(spec: &str, runs: usize) -> Result<Vec<GradientProgram>> {
 
 /// Runs `phasewise scout`.
 pub fn run_scout(a: &ScoutArgs) -> Result<ExitCode> {
+    check_scout_options(a)?;
     let dead_time = dead_time_input(a.t0, a.column, a.flow)?;
     let programs = split_programs(&a.gradients, a.runs.len())?;
-    for out in a.window_svg.iter().chain(a.window_data.iter()) {
+    for out in a
+        .window_svg
+        .iter()
+        .chain(a.window_data.iter())
+        .chain(a.chromatogram_svg.iter())
+    {
         check_writable(out)?;
     }
     let (plates, plates_source) = match (a.plates, a.particle, a.column) {
@@ -709,7 +800,20 @@ pub fn run_scout(a: &ScoutArgs) -> Result<ExitCode> {
         dwell_volume_ml: a.dwell,
         flow_ml_min: a.flow,
     })
-    .context("fitting log kw and S to the scouting runs")?;
+    .map_err(|e| match e {
+        ScoutError::PeakBeforeDeadTime { .. } => anyhow::anyhow!(
+            "{e} (t0 from {})",
+            if a.t0.is_some() {
+                "--t0"
+            } else {
+                "--column and --flow"
+            }
+        ),
+        ScoutError::InconsistentFlow { .. } | ScoutError::FlowNeeded { .. } => {
+            anyhow::anyhow!("--flow, --dwell: {e}")
+        }
+        other => anyhow::Error::new(other).context("fitting log kw and S to the scouting runs"),
+    })?;
     let req = OptimiseRequest {
         analytes: OptimiseRequest::analytes_from_fit(&fitted),
         dead_time_min: fitted.dead_time_min,
@@ -731,13 +835,40 @@ pub fn run_scout(a: &ScoutArgs) -> Result<ExitCode> {
         critical_pairs: a.critical.clone(),
         two_segment: a.two_segment,
         target_resolution: a.target_resolution,
+        min_retention_factor: a.min_k,
         gradient_time_steps: 25,
         composition_step_pct: 5.0,
     };
-    let report = optimise(&req).context("optimising the gradient")?;
+    let report = optimise(&req).map_err(|e| match e {
+        // Name the options that widen the search rather than the library's fields.
+        OptimiseError::NoFeasibleCondition { .. } => anyhow::anyhow!(
+            "no gradient within --tg-range {},{}, --start-range {},{} and --end-range {},{} \
+             elutes every analyte within --max-run-time {} min; raise --max-run-time, the top \
+             of --end-range, or lower the top of --tg-range",
+            a.tg_range.min,
+            a.tg_range.max,
+            a.start_range.min,
+            a.start_range.max,
+            a.end_range.min,
+            a.end_range.max,
+            a.max_run_time
+        ),
+        OptimiseError::UnknownAnalyte { .. } | OptimiseError::CriticalPairSameAnalyte { .. } => {
+            anyhow::anyhow!("--critical: {e}")
+        }
+        OptimiseError::TooFewAnalytes { .. } => anyhow::anyhow!(
+            "{e}: the peak tables {} name fewer than two peaks",
+            a.runs
+                .iter()
+                .map(|p| p.display().to_string())
+                .collect::<Vec<_>>()
+                .join(", ")
+        ),
+        other => anyhow::Error::new(other).context("optimising the gradient"),
+    })?;
     let text = match a.format {
         ReportFormat::Json => json_line(&ScoutJson {
-            schema_version: 1,
+            schema_version: SCOUT_SCHEMA_VERSION,
             plates_source: plates_source.clone(),
             fit: &fitted,
             optimisation: &report,
@@ -750,8 +881,60 @@ pub fn run_scout(a: &ScoutArgs) -> Result<ExitCode> {
     if let Some(p) = &a.window_data {
         write_atomically(p, window_tsv(&report))?;
     }
+    if let Some(p) = &a.chromatogram_svg {
+        let svg = render_optimum_svg(
+            &report.optimum,
+            fitted.dead_time_min,
+            a.target_resolution,
+            "Predicted chromatogram at the chosen gradient",
+        );
+        write_atomically(p, svg)?;
+    }
     write_out(&text)?;
     Ok(ExitCode::SUCCESS)
+}
+
+/// Option checks that the library would otherwise report with its own field names.
+fn check_scout_options(a: &ScoutArgs) -> Result<()> {
+    if a.dwell > 0.0 && a.flow.is_none() {
+        bail!(
+            "--dwell {} mL needs --flow ML_MIN to be turned into a dwell time",
+            a.dwell
+        );
+    }
+    check_option_range(
+        "--tg-range",
+        a.tg_range,
+        f64::MIN_POSITIVE,
+        f64::MAX,
+        "gradient times must be greater than zero",
+    )?;
+    let pct = "compositions are % organic";
+    check_option_range("--start-range", a.start_range, 0.0, 100.0, pct)?;
+    check_option_range("--end-range", a.end_range, 0.0, 100.0, pct)?;
+    if a.end_range.max <= a.start_range.min {
+        bail!(
+            "--end-range {},{} never exceeds --start-range {},{}: the final % organic must be able to exceed the initial",
+            a.end_range.min,
+            a.end_range.max,
+            a.start_range.min,
+            a.start_range.max
+        );
+    }
+    for (option, r) in [
+        ("--tg-range", a.tg_range),
+        ("--start-range", a.start_range),
+        ("--end-range", a.end_range),
+    ] {
+        if (r.max * 10.0 + 1e-9).floor() < (r.min * 10.0 - 1e-9).ceil() {
+            bail!(
+                "{option} {},{} holds no value on the 0.1 grid in which programs are written; widen it",
+                r.min,
+                r.max
+            );
+        }
+    }
+    Ok(())
 }
 
 fn flag_text(f: &FitFlag) -> String {
@@ -803,12 +986,13 @@ fn prediction_table(p: &Prediction) -> String {
         })
         .collect();
     let mut s = format!(
-        "program {} (time min : % organic); last peak at {:.2} min; smallest Rs {:.2} ({} / {})\n",
-        p.program.to_spec(),
+        "program {} (time min : % organic); last peak at {:.2} min; smallest Rs {:.2} ({} / {}); first peak k = {:.2}\n",
+        program_text(&p.program),
         p.run_time_min,
         p.min_resolution,
         p.critical_pair[0],
-        p.critical_pair[1]
+        p.critical_pair[1],
+        p.first_peak_retention_factor
     );
     s.push_str(&render(
         &[
@@ -828,6 +1012,24 @@ fn prediction_table(p: &Prediction) -> String {
     ));
     s.push('\n');
     s
+}
+
+/// A program as `time:%organic` points, times and compositions to 0.1 (the optimiser's
+/// programs are on that grid already; this only keeps binary fractions out of the text).
+fn program_text(p: &GradientProgram) -> String {
+    p.points()
+        .iter()
+        .map(|q| format!("{}:{}", fmt_tenth(q.time_min), fmt_tenth(q.organic_pct)))
+        .collect::<Vec<_>>()
+        .join(",")
+}
+
+/// A number to 0.1 without a trailing `.0`, and never `-0`.
+fn fmt_tenth(v: f64) -> String {
+    let r = (v * 10.0).round() / 10.0;
+    let r = if r == 0.0 { 0.0 } else { r };
+    let t = format!("{r:.1}");
+    t.strip_suffix(".0").map_or(t.clone(), str::to_string)
 }
 
 fn scout_table(f: &ScoutFit, r: &OptimiseReport, plates_source: &str) -> String {
@@ -866,25 +1068,35 @@ fn scout_table(f: &ScoutFit, r: &OptimiseReport, plates_source: &str) -> String 
         &rows,
     ));
     s.push_str(&format!(
-        "\n\nOptimum: initial {:.1} %, final {:.1} % organic over {:.2} min; plate number {:.0} ({plates_source}); {} conditions evaluated\n",
+        "\n\nOptimum: initial {:.1} %, final {:.1} % organic over {:.1} min; plate number {:.0} ({plates_source}); {} conditions evaluated\n",
         r.initial_pct, r.final_pct, r.gradient_time_min, r.plates_used, r.evaluated_conditions
     ));
     if let Some(k) = &r.knee {
         s.push_str(&format!(
-            "two-segment knee at {:.2} min, {:.1} % organic\n",
+            "two-segment knee at {:.1} min, {:.1} % organic\n",
             k.time_min, k.organic_pct
         ));
     }
     s.push_str(&format!(
-        "target Rs {:.2}: {}\n",
+        "chosen by: {}\n",
+        match r.selection {
+            Selection::ShortestRunMeetingTarget => "shortest run meeting the target resolution",
+            Selection::LargestMinResolution =>
+                "largest smallest resolution (no condition meets the target)",
+        }
+    ));
+    s.push_str(&format!(
+        "target Rs {:.2}: {}; first peak k ≥ {}: {}\n",
         r.window.target_resolution,
-        if r.meets_target { "met" } else { "NOT met" }
+        if r.meets_target { "met" } else { "NOT met" },
+        r.min_retention_factor,
+        if r.meets_min_retention {
+            "met"
+        } else {
+            "NOT met"
+        }
     ));
     s.push_str(&prediction_table(&r.optimum));
-    if let Some(p) = &r.rounded {
-        s.push_str("\nRounded program, predicted again:\n");
-        s.push_str(&prediction_table(p));
-    }
     for n in &r.notes {
         s.push_str(&format!("note: {n}\n"));
     }
@@ -901,17 +1113,19 @@ fn window_tsv(r: &OptimiseReport) -> String {
         w.initial_pct, w.final_pct, w.target_resolution, w.optimum_gradient_time_min
     );
     s.push_str(
-        "gradient_time_min\tmin_resolution\tcritical_first\tcritical_second\trun_time_min\twithin_run_time\n",
+        "gradient_time_min\tmin_resolution\tcritical_first\tcritical_second\trun_time_min\twithin_run_time\tfirst_peak_k\tmeets_min_k\n",
     );
     for p in &w.points {
         s.push_str(&format!(
-            "{}\t{}\t{}\t{}\t{}\t{}\n",
+            "{}\t{}\t{}\t{}\t{}\t{}\t{}\t{}\n",
             p.gradient_time_min,
             p.min_resolution,
             p.critical_pair[0],
             p.critical_pair[1],
             p.run_time_min,
-            p.within_run_time
+            p.within_run_time,
+            p.first_peak_retention_factor,
+            p.meets_min_retention
         ));
     }
     s
@@ -927,31 +1141,31 @@ pub struct TransferArgs {
     #[arg(long, value_name = "LxID", value_parser = column_arg)]
     pub from: ColumnSize,
     /// Particle size of the existing column, µm.
-    #[arg(long, value_name = "UM")]
+    #[arg(long, value_name = "UM", value_parser = positive_arg, allow_negative_numbers = true)]
     pub from_particle: f64,
     /// Target column, LENGTHxID in mm.
     #[arg(long, value_name = "LxID", value_parser = column_arg)]
     pub to: ColumnSize,
     /// Particle size of the target column, µm.
-    #[arg(long, value_name = "UM")]
+    #[arg(long, value_name = "UM", value_parser = positive_arg, allow_negative_numbers = true)]
     pub to_particle: f64,
     /// Flow of the existing method, mL/min.
-    #[arg(long, value_name = "ML_MIN")]
+    #[arg(long, value_name = "ML_MIN", value_parser = positive_arg, allow_negative_numbers = true)]
     pub flow: f64,
     /// Gradient program of the existing method, `time:%organic,...`.
     #[arg(long, value_name = "PROGRAM")]
     pub gradient: String,
     /// Dwell volume of the existing system, mL.
-    #[arg(long, value_name = "ML", requires = "dwell_to")]
+    #[arg(long, value_name = "ML", requires = "dwell_to", value_parser = non_negative_arg, allow_negative_numbers = true)]
     pub dwell_from: Option<f64>,
     /// Dwell volume of the target system, mL.
-    #[arg(long, value_name = "ML", requires = "dwell_from")]
+    #[arg(long, value_name = "ML", requires = "dwell_from", value_parser = non_negative_arg, allow_negative_numbers = true)]
     pub dwell_to: Option<f64>,
     /// Injection volume of the existing method, µL.
-    #[arg(long, value_name = "UL")]
+    #[arg(long, value_name = "UL", value_parser = positive_arg, allow_negative_numbers = true)]
     pub injection: Option<f64>,
     /// Run time of the existing method, min (default: end of the program).
-    #[arg(long, value_name = "MIN")]
+    #[arg(long, value_name = "MIN", value_parser = positive_arg, allow_negative_numbers = true)]
     pub run_time: Option<f64>,
     /// Also scale the flow by dp1/dp2 (same reduced velocity) instead of the same linear velocity.
     #[arg(long)]
@@ -1004,7 +1218,11 @@ pub fn run_transfer(a: &TransferArgs) -> Result<ExitCode> {
         dwell_volume_target_ml: a.dwell_to.unwrap_or(0.0),
         run_time_min: a.run_time,
     };
-    let r = transfer(&req).context("scaling the method")?;
+    let r = transfer(&req).map_err(|e| match e {
+        TransferError::RunTimeTooShort { .. } => anyhow::anyhow!("--run-time: {e}"),
+        TransferError::Gradient(_) => anyhow::anyhow!("--gradient `{}`: {e}", a.gradient),
+        other => anyhow::Error::new(other).context("scaling the method"),
+    })?;
     let text = match a.format {
         ReportFormat::Json => json_line(&TransferJson {
             schema_version: 1,

@@ -185,6 +185,7 @@ fn optimiser_rejects_bad_requests() {
         critical_pairs: vec![],
         two_segment: false,
         target_resolution: 1.5,
+        min_retention_factor: 1.0,
         gradient_time_steps: 5,
         composition_step_pct: 5.0,
     };

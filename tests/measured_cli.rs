@@ -762,3 +762,265 @@ fn model_train_twice_on_the_subset_writes_identical_bytes() {
         "memory files differ between runs"
     );
 }
+
+/// Runs phasewise with `args` and returns stderr, asserting exit code 2 and that the message
+/// names `needle` (an option or file) and no internal field name (`_ml_min`, `_pct`, ...).
+fn usage_error(args: &[&str], needle: &str) -> String {
+    let out = phasewise().args(args).assert().code(2).get_output().clone();
+    let err = String::from_utf8_lossy(&out.stderr).into_owned();
+    assert!(err.contains(needle), "`{needle}` not named in:\n{err}");
+    for internal in [
+        "_ml_min",
+        "_pct",
+        "_min`",
+        "_time_",
+        "flow_ml",
+        "composition_step",
+    ] {
+        assert!(
+            !err.contains(internal),
+            "internal name `{internal}` in:\n{err}"
+        );
+    }
+    err
+}
+
+#[test]
+fn scout_errors_name_the_option_not_the_field() {
+    let dir = tempfile::tempdir().unwrap();
+    let r1 = simulated_run(dir.path(), "fast.csv", "0:5,10:95");
+    let r2 = simulated_run(dir.path(), "slow.csv", "0:5,30:95");
+    let (r1, r2) = (r1.to_str().unwrap(), r2.to_str().unwrap());
+    let base = [
+        "scout",
+        r1,
+        r2,
+        "--gradients",
+        "0:5,10:95;0:5,30:95",
+        "--t0",
+        "1.5",
+    ];
+    let with = |extra: &[&'static str]| -> Vec<&str> {
+        base.iter().copied().chain(extra.iter().copied()).collect()
+    };
+    // A dwell volume without a flow (the library's field is `flow_ml_min`).
+    let e = usage_error(&with(&["--dwell", "0.8"]), "--dwell");
+    assert!(e.contains("--flow"), "{e}");
+    usage_error(&with(&["--flow", "-1", "--dwell", "1"]), "--flow");
+    usage_error(
+        &with(&["--flow", "1", "--max-run-time", "0"]),
+        "--max-run-time",
+    );
+    usage_error(&with(&["--start-range", "5,120"]), "--start-range");
+    usage_error(&with(&["--tg-range", "-5,10"]), "--tg-range");
+    usage_error(&with(&["--end-range", "1,4"]), "--end-range");
+    usage_error(&with(&["--min-k", "-1"]), "--min-k");
+    usage_error(&with(&["--target-resolution", "x"]), "--target-resolution");
+    let e = usage_error(&with(&["--critical", "qc9-a,nope"]), "--critical");
+    assert!(e.contains("nope"), "{e}");
+    // Nothing elutes within one minute: the options that widen the search are named.
+    let e = usage_error(&with(&["--max-run-time", "1"]), "--max-run-time");
+    assert!(e.contains("--end-range") && e.contains("--tg-range"), "{e}");
+    // One peak only: the run files are named.
+    let one =
+        |name: &str, rt: &str| write(dir.path(), name, &format!("name,rt,w50\nqc9-a,{rt},0.05\n"));
+    let (o1, o2) = (one("one-a.csv", "6.1"), one("one-b.csv", "14.2"));
+    usage_error(
+        &[
+            "scout",
+            o1.to_str().unwrap(),
+            o2.to_str().unwrap(),
+            "--gradients",
+            "0:5,10:95;0:5,30:95",
+            "--t0",
+            "1.5",
+        ],
+        "one-b.csv",
+    );
+    // A peak before t0 names the run file, the peak and where t0 came from.
+    let first_rt: f64 = std::fs::read_to_string(r1)
+        .unwrap()
+        .lines()
+        .nth(2)
+        .and_then(|l| l.split(',').nth(1))
+        .and_then(|v| v.parse().ok())
+        .unwrap();
+    let late_t0 = format!("{}", first_rt + 0.1);
+    let e = usage_error(
+        &[
+            "scout",
+            r1,
+            r2,
+            "--gradients",
+            "0:5,10:95;0:5,30:95",
+            "--t0",
+            &late_t0,
+        ],
+        "--t0",
+    );
+    assert!(e.contains("fast.csv") && e.contains("qc9-a"), "{e}");
+}
+
+#[test]
+fn suitability_errors_name_the_option_or_the_file() {
+    let dir = tempfile::tempdir().unwrap();
+    let table = write(dir.path(), "qc9.csv", QC9);
+    let t = table.to_str().unwrap();
+    let e = usage_error(
+        &["suitability", t, "--t0", "1", "--critical", "marker-x,nope"],
+        "--critical",
+    );
+    assert!(e.contains("nope"), "{e}");
+    usage_error(
+        &["suitability", t, "--t0", "1", "--exclude", "nope"],
+        "--exclude",
+    );
+    usage_error(
+        &["suitability", t, "--t0", "1", "--max-tailing", "0"],
+        "--max-tailing",
+    );
+    usage_error(
+        &["suitability", t, "--t0", "1", "--k-range", "-1,10"],
+        "--k-range",
+    );
+    usage_error(&["suitability", t, "--t0", "-1"], "--t0");
+    usage_error(
+        &["suitability", t, "--t0", "1", "--length-mm", "0"],
+        "--length-mm",
+    );
+    let e = usage_error(&["suitability", t, "--t0", "3.5"], "qc9.csv");
+    assert!(e.contains("--t0") && e.contains("marker-x"), "{e}");
+    // A bad cell names the file, the line and the column.
+    let bad = write(dir.path(), "bad.csv", "name,rt,w50\nx,3.0,abc\n");
+    let e = usage_error(
+        &["suitability", bad.to_str().unwrap(), "--t0", "1"],
+        "bad.csv",
+    );
+    assert!(e.contains("line 2") && e.contains("w50"), "{e}");
+}
+
+#[test]
+fn transfer_errors_name_the_option() {
+    let base = [
+        "transfer",
+        "--from",
+        "150x4.6",
+        "--from-particle",
+        "5",
+        "--flow",
+        "1.0",
+        "--gradient",
+        "0:5,20:95",
+    ];
+    let with = |extra: &[&'static str]| -> Vec<&str> {
+        base.iter().copied().chain(extra.iter().copied()).collect()
+    };
+    let to = ["--to", "100x2.1", "--to-particle", "1.8"];
+    let ok = |extra: &[&'static str]| -> Vec<&str> {
+        with(&to).into_iter().chain(extra.iter().copied()).collect()
+    };
+    usage_error(
+        &with(&["--to", "100x2.1", "--to-particle", "-1.8"]),
+        "--to-particle",
+    );
+    usage_error(&ok(&["--run-time", "5"]), "--run-time");
+    usage_error(&ok(&["--injection", "0"]), "--injection");
+    usage_error(
+        &ok(&["--dwell-from", "-1", "--dwell-to", "0.2"]),
+        "--dwell-from",
+    );
+    usage_error(&with(&["--to", "100x0", "--to-particle", "1.8"]), "--to");
+}
+
+/// Value of attribute `name` in one element's text (the renderer writes `name="value"`).
+fn attr<'a>(element: &'a str, name: &str) -> Option<&'a str> {
+    let key = format!(" {name}=\"");
+    let start = element.find(&key)? + key.len();
+    let len = element[start..].find('"')?;
+    Some(&element[start..start + len])
+}
+
+/// Every `<path ...>` element with `class="peak"`.
+fn peak_paths(svg: &str) -> Vec<&str> {
+    let mut out = Vec::new();
+    let mut rest = svg;
+    while let Some(i) = rest.find("<path ") {
+        let tail = &rest[i..];
+        let end = tail.find('>').map_or(tail.len(), |e| e + 1);
+        if attr(&tail[..end], "class") == Some("peak") {
+            out.push(&tail[..end]);
+        }
+        rest = &tail[end..];
+    }
+    out
+}
+
+#[test]
+fn scout_writes_the_predicted_chromatogram_with_each_apex_at_its_predicted_time() {
+    let dir = tempfile::tempdir().unwrap();
+    let r1 = simulated_run(dir.path(), "fast.csv", "0:5,10:95");
+    let r2 = simulated_run(dir.path(), "slow.csv", "0:5,30:95");
+    let svg_path = dir.path().join("chromatogram.svg");
+    let out = phasewise()
+        .arg("scout")
+        .arg(&r1)
+        .arg(&r2)
+        .args([
+            "--gradients",
+            "0:5,10:95;0:5,30:95",
+            "--t0",
+            "1.5",
+            "--flow",
+            "1.0",
+            "--dwell",
+            "1.0",
+            "--format",
+            "json",
+        ])
+        .arg("--chromatogram-svg")
+        .arg(&svg_path)
+        .assert()
+        .code(0)
+        .get_output()
+        .stdout
+        .clone();
+    let j = json_of(&out);
+    let svg = std::fs::read_to_string(&svg_path).unwrap();
+    assert!(svg.starts_with("<svg") && svg.trim_end().ends_with("</svg>"));
+    let program = j["optimisation"]["optimum"]["program"].as_str().unwrap();
+    assert!(
+        svg.contains(program),
+        "the subtitle names the program {program}"
+    );
+    let root = &svg[..svg.find('>').unwrap()];
+    let x0: f64 = attr(root, "data-x-origin-px").unwrap().parse().unwrap();
+    let ppm: f64 = attr(root, "data-px-per-min").unwrap().parse().unwrap();
+    let paths = peak_paths(&svg);
+    let peaks = j["optimisation"]["optimum"]["peaks"].as_array().unwrap();
+    assert_eq!(paths.len(), peaks.len());
+    for p in peaks {
+        let name = p["name"].as_str().unwrap();
+        let tr = f(&p["retention_time_min"], "tR");
+        let path = paths
+            .iter()
+            .find(|e| attr(e, "data-analyte") == Some(name))
+            .unwrap_or_else(|| panic!("no peak for {name}"));
+        let nums: Vec<f64> = attr(path, "d")
+            .unwrap()
+            .split_whitespace()
+            .filter(|t| !matches!(*t, "M" | "L" | "Z"))
+            .map(|t| t.parse().unwrap())
+            .collect();
+        // SVG y grows downwards: the apex is the smallest y.
+        let apex = nums
+            .chunks(2)
+            .map(|c| (c[0], c[1]))
+            .reduce(|a, b| if b.1 < a.1 { b } else { a })
+            .unwrap();
+        let apex_min = (apex.0 - x0) / ppm;
+        assert!(
+            (apex_min - tr).abs() <= 1.0 / ppm,
+            "{name}: apex at {apex_min} min, predicted {tr} min"
+        );
+    }
+}

@@ -339,3 +339,46 @@ mod random_predictions {
         }
     }
 }
+
+#[test]
+fn aromatic_analytes_stored_as_kekule_smiles_get_no_weak_uv_note() {
+    // The knowledge base stores Kekulé SMILES (upper case); the plan read aromaticity from
+    // lower-case letters and called every such analyte "no aromatic ring".
+    let mut report = load("lc_impurity_panel.json");
+    let kekule = "O=C(NC1=CC=C(Cl)C=C1)C1CCN(C)CC1"; // compound A, written in Kekulé form
+    let a = &mut report.analytes[0];
+    a.smiles = Some(kekule.to_string());
+    let name = a.name.clone();
+    // An analyte without an aromatic ring (its ring saturated, as an invented variant) is still
+    // flagged.
+    let b = &mut report.analytes[1];
+    b.smiles = Some("O=C(NC1CCCCC1)C1CCN(C)CC1".to_string());
+    let plain = b.name.clone();
+    let md = render_markdown(&report, &opts(LC_TITLE));
+    assert!(
+        !md.contains(&format!("{name}: no aromatic ring")),
+        "{name} ({kekule}) was called non-aromatic"
+    );
+    assert!(md.contains(&format!("{plain}: no aromatic ring")), "{md}");
+}
+
+#[test]
+fn charges_that_round_to_zero_print_without_a_sign() {
+    // A stored charge of −0.0 and a net charge of −0.0004 e printed as "-0 e" in the Scope table.
+    let mut report = load("lc_impurity_panel.json");
+    for a in &mut report.analytes {
+        for p in a.properties.iter_mut().filter(|p| p.property == "charge") {
+            p.value = -0.0;
+        }
+        if let Some(ion) = a.ionisation.as_mut() {
+            ion.net_charge_e = -0.0004;
+        }
+    }
+    for text in [
+        render_markdown(&report, &opts(LC_TITLE)),
+        render_html(&report, &opts(LC_TITLE)),
+    ] {
+        assert!(!text.contains("-0 e"), "negative zero in the plan");
+        assert!(text.contains("net charge 0 e"));
+    }
+}

@@ -174,6 +174,7 @@ fn opt_request(analytes: Vec<NamedAnalyte>) -> OptimiseRequest {
         critical_pairs: vec![],
         two_segment: false,
         target_resolution: 1.5,
+        min_retention_factor: 1.0,
         gradient_time_steps: 12,
         composition_step_pct: 5.0,
     }
@@ -211,9 +212,15 @@ fn fitted_parameters_recover_the_known_optimum() {
             .all(|p| p.retention_time_uncertainty_min.is_none())
     );
     assert!(known.optimum.run_time_min <= 40.0);
-    // The optimum is at least as good as every window-diagram point within the run time.
-    for p in known.window.points.iter().filter(|p| p.within_run_time) {
-        assert!(known.optimum.min_resolution >= p.min_resolution - 1e-9);
+    // The optimum meets the target and no adequate window-diagram point is shorter.
+    assert!(known.meets_target && known.meets_min_retention);
+    for p in known
+        .window
+        .points
+        .iter()
+        .filter(|p| p.within_run_time && p.meets_min_retention && p.min_resolution >= 1.5)
+    {
+        assert!(known.optimum.run_time_min <= p.run_time_min + 1e-9, "{p:?}");
     }
     let svg = render_window_svg(&known.window);
     assert!(svg.contains("<polyline"));
@@ -221,6 +228,80 @@ fn fitted_parameters_recover_the_known_optimum() {
     let j = serde_json::to_string(&known).unwrap();
     let back: phasewise::measured::optimise::OptimiseReport = serde_json::from_str(&j).unwrap();
     assert_eq!(back.optimum.peaks.len(), 7);
+}
+
+/// Smallest Rs, run time and first-peak k of a linear program for the invented sample, with
+/// the optimiser's width formula w = 4 t0 (1 + k_e)/√N (self-consistency, no outside source).
+fn evaluate_linear(initial: f64, final_: f64, tg: f64, plates: f64) -> (f64, f64, f64) {
+    let p = GradientProgram::linear(initial, final_, tg).unwrap();
+    let sys = system();
+    let mut el: Vec<(f64, f64)> = invented_sample()
+        .iter()
+        .map(|(_, a)| {
+            let e = gradient_elution(a, &p, &sys).unwrap();
+            let w = 4.0 * sys.dead_time_min * (1.0 + e.retention_factor_at_elution) / plates.sqrt();
+            (e.retention_time_min, w)
+        })
+        .collect();
+    el.sort_by(|a, b| a.0.total_cmp(&b.0));
+    let rs = el
+        .windows(2)
+        .map(|w| 2.0 * (w[1].0 - w[0].0) / (w[0].1 + w[1].1))
+        .fold(f64::INFINITY, f64::min);
+    let run = el.last().unwrap().0;
+    let k1 = (el[0].0 - sys.dead_time_min) / sys.dead_time_min;
+    (rs, run, k1)
+}
+
+#[test]
+fn the_shortest_adequate_gradient_beats_a_longer_one_with_higher_resolution() {
+    // Only the gradient time is free (5–95 % organic fixed), so the choice is one of tG alone.
+    let truth: Vec<NamedAnalyte> = invented_sample()
+        .into_iter()
+        .map(|(name, p)| NamedAnalyte {
+            name,
+            log_kw: p.log_kw,
+            s: p.s,
+            uncertainty: None,
+        })
+        .collect();
+    let mut q = opt_request(truth);
+    q.initial_pct = Range { min: 5.0, max: 5.0 };
+    q.final_pct = Range {
+        min: 95.0,
+        max: 95.0,
+    };
+    q.gradient_time_min = Range {
+        min: 2.0,
+        max: 60.0,
+    };
+    q.max_run_time_min = 80.0;
+    q.target_resolution = 1.5;
+    q.plates = PlateSource::Given { plates: 10_000.0 };
+    let r = optimise(&q).unwrap();
+    let tg = r.gradient_time_min;
+    assert!(r.meets_target, "{:?}", r.notes);
+    // A longer gradient resolves better, yet is not chosen.
+    let (rs_long, run_long, _) = evaluate_linear(5.0, 95.0, 60.0, 10_000.0);
+    assert!(rs_long > r.optimum.min_resolution + 0.5, "{rs_long}");
+    assert!(run_long > r.optimum.run_time_min);
+    // The chosen tG meets the target; 0.1 min shorter does not (with 5–95 % fixed, the run gets
+    // shorter with tG, so this is the shortest adequate gradient on the 0.1 min grid).
+    let (rs, run, k1) = evaluate_linear(5.0, 95.0, tg, 10_000.0);
+    assert!(rs >= 1.5 && k1 >= 1.0);
+    assert!((rs - r.optimum.min_resolution).abs() < 1e-9);
+    assert!((run - r.optimum.run_time_min).abs() < 1e-9);
+    let (rs_shorter, _, _) = evaluate_linear(5.0, 95.0, tg - 0.1, 10_000.0);
+    assert!(
+        rs_shorter < 1.5,
+        "tG {tg}: {rs_shorter} at tG − 0.1 min still meets the target"
+    );
+    // With a target above every condition, the largest smallest Rs is chosen instead.
+    q.target_resolution = 100.0;
+    let best = optimise(&q).unwrap();
+    assert!(!best.meets_target);
+    assert!(best.optimum.min_resolution >= rs_long - 1e-6);
+    assert!(best.notes.iter().any(|n| n.contains("no condition")));
 }
 
 #[test]

@@ -1,13 +1,26 @@
 //! Gradient optimisation from fitted LSS parameters: search gradient time, initial and final
-//! % organic (optionally a two-segment gradient) to maximise the smallest resolution of all
-//! adjacent pairs (or of named critical pairs) within a maximum run time, and the window diagram
-//! (smallest resolution versus gradient time) with a hand-written SVG renderer.
+//! % organic (optionally a two-segment gradient) for the shortest run whose smallest resolution
+//! of all adjacent pairs (or of named critical pairs) meets the target, with the first peak
+//! retained to a minimum retention factor and every peak out within a maximum run time; and the
+//! window diagram (smallest resolution versus gradient time) with a hand-written SVG renderer.
+//!
+//! Selection rule (common practice, no source): among conditions with every peak out within the
+//! maximum run time and the first peak at k = (tR − t0)/t0 ≥ the minimum, those whose smallest
+//! resolution meets the target win, and among them the shortest run (last peak out) wins, then
+//! the larger smallest resolution. When no condition meets the target, the largest smallest
+//! resolution wins (then the shorter run), and the report says so. Conditions that violate the
+//! minimum retention factor lose to every condition that keeps it; when none keeps it the report
+//! says so.
+//!
+//! Every program is evaluated as it would be typed into an instrument method: times rounded to
+//! 0.1 min and compositions to 0.1 % before prediction, so the reported program is exactly the
+//! one whose retention is reported.
 //!
 //! Predictions: retention from [`gradient_elution`] (exact for LSS), baseline widths
 //! w = 4 t0 (1 + k_e)/√N (SD 2007 ch. 2, band compression ignored, G = 1), resolution
 //! Rs = 2 Δt/(w1 + w2) (SKD 2010 ch. 2). Search: a full grid over (tG, %B start, %B end),
-//! then compass (pattern) search with step halving from the best grid points. Ties are broken
-//! by shorter run time, then by grid order, so results are deterministic.
+//! then compass (pattern) search with step halving from the best grid points. Remaining ties are
+//! broken by grid order, so results are deterministic.
 //!
 //! Predictions are starting points to verify by a confirming run; the LSS model ignores
 //! curvature and peak-shape effects.
@@ -186,9 +199,15 @@ pub struct OptimiseRequest {
     /// Also try a two-segment gradient (start → knee → end).
     #[serde(default)]
     pub two_segment: bool,
-    /// Resolution target drawn in the window diagram and reported as met or not; default 1.5.
+    /// Resolution target: conditions meeting it are ranked by run time (shortest first); drawn
+    /// in the window diagram; default 1.5.
     #[serde(default = "default_target")]
     pub target_resolution: f64,
+    /// Smallest acceptable retention factor k = (tR − t0)/t0 of the first peak; default 1
+    /// (common practice, no source: peaks closer to the dead time share it with unretained
+    /// matrix and injection disturbances).
+    #[serde(default = "default_min_k")]
+    pub min_retention_factor: f64,
     /// Grid steps for gradient time (≥ 2); default 25.
     #[serde(default = "default_tg_steps")]
     pub gradient_time_steps: usize,
@@ -199,6 +218,9 @@ pub struct OptimiseRequest {
 
 fn default_target() -> f64 {
     1.5
+}
+fn default_min_k() -> f64 {
+    1.0
 }
 fn default_tg_steps() -> usize {
     25
@@ -273,6 +295,8 @@ pub struct Prediction {
     pub critical_pair: [String; 2],
     /// Time the last peak leaves the column, min.
     pub run_time_min: f64,
+    /// Retention factor k = (tR − t0)/t0 of the first peak (–).
+    pub first_peak_retention_factor: f64,
 }
 
 /// One point of the window diagram.
@@ -288,6 +312,10 @@ pub struct WindowPoint {
     pub run_time_min: f64,
     /// Within the maximum run time.
     pub within_run_time: bool,
+    /// Retention factor k = (tR − t0)/t0 of the first peak (–).
+    pub first_peak_retention_factor: f64,
+    /// The first peak's retention factor is at least the minimum.
+    pub meets_min_retention: bool,
 }
 
 /// Window diagram: smallest resolution versus gradient time at fixed start and end composition.
@@ -299,8 +327,15 @@ pub struct WindowDiagram {
     pub final_pct: f64,
     /// Resolution target line.
     pub target_resolution: f64,
-    /// Optimum gradient time marked on the diagram, min.
+    /// Minimum retention factor of the first peak (points below it are marked).
+    pub min_retention_factor: f64,
+    /// Chosen gradient time marked on the diagram, min.
     pub optimum_gradient_time_min: f64,
+    /// Smallest resolution of the chosen condition (the marked point).
+    pub optimum_min_resolution: f64,
+    /// The chosen condition is a two-segment gradient (so the marked point is not on the
+    /// linear-ramp curve).
+    pub optimum_is_two_segment: bool,
     /// The series.
     pub points: Vec<WindowPoint>,
 }
@@ -322,17 +357,35 @@ pub struct OptimiseReport {
     pub optimum: Prediction,
     /// Whether the optimum reaches the target resolution.
     pub meets_target: bool,
+    /// Minimum retention factor of the first peak that was required.
+    pub min_retention_factor: f64,
+    /// Whether the optimum's first peak reaches the minimum retention factor.
+    pub meets_min_retention: bool,
+    /// Which rule chose the optimum.
+    pub selection: Selection,
     /// Best single-linear-ramp result (for comparison when a two-segment gradient won).
     pub best_linear_min_resolution: f64,
-    /// The optimum with times rounded to 0.1 min and compositions to 0.1 %, as one would type
-    /// it into an instrument method, predicted again (None if rounding broke feasibility).
-    pub rounded: Option<Prediction>,
     /// Window diagram around the optimum.
     pub window: WindowDiagram,
     /// Conditions evaluated.
     pub evaluated_conditions: usize,
     /// Notes (assumptions, warnings).
     pub notes: Vec<String>,
+}
+
+/// Which rule chose the reported condition.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Selection {
+    /// Some conditions met the target resolution: the shortest run among them.
+    ShortestRunMeetingTarget,
+    /// No condition met the target: the largest smallest resolution.
+    LargestMinResolution,
+}
+
+/// Rounds to the 0.1 step (min or %) in which programs are written and evaluated.
+pub fn round_to_tenth(x: f64) -> f64 {
+    (x * 10.0).round() / 10.0
 }
 
 /// One analyte's predicted elution: (index, tR min, base width min, % organic at elution, phase).
@@ -345,15 +398,25 @@ struct Ctx<'a> {
     plates: f64,
     pairs: Vec<(usize, usize)>,
     max_run: f64,
+    target: f64,
+    min_k: f64,
 }
 
-/// Score for comparison: (feasible, min Rs, −run time).
+/// Score for comparison; see the module documentation for the rule.
 #[derive(Clone, Copy, PartialEq)]
 struct Score {
+    /// Every peak out within the maximum run time and a finite smallest resolution.
     feasible: bool,
+    /// First peak at k ≥ the minimum.
+    retained: bool,
+    /// Smallest resolution meets the target.
+    meets: bool,
     min_rs: f64,
     run: f64,
 }
+
+/// Run times closer than this count as equal, min (well below the 0.1 min program step).
+const RUN_TIE_MIN: f64 = 1e-9;
 
 impl Score {
     fn better_than(&self, o: &Score) -> bool {
@@ -363,10 +426,40 @@ impl Score {
         if !self.feasible {
             return self.run < o.run;
         }
+        if self.retained != o.retained {
+            return self.retained;
+        }
+        if self.meets != o.meets {
+            return self.meets;
+        }
+        if self.meets {
+            // Shortest adequate run, then the larger smallest resolution.
+            if (self.run - o.run).abs() > RUN_TIE_MIN {
+                return self.run < o.run;
+            }
+            return self.min_rs > o.min_rs + 1e-9;
+        }
         if (self.min_rs - o.min_rs).abs() > 1e-9 {
             return self.min_rs > o.min_rs;
         }
-        self.run < o.run - 1e-9
+        self.run < o.run - RUN_TIE_MIN
+    }
+
+    /// Better by a margin worth a harder-to-run program (two-segment gradient): 0.1 min shorter
+    /// when both meet the target, 0.01 higher smallest Rs when neither does (common practice,
+    /// no source).
+    fn clearly_better_than(&self, o: &Score) -> bool {
+        if !self.better_than(o) {
+            return false;
+        }
+        if self.feasible != o.feasible || self.retained != o.retained || self.meets != o.meets {
+            return true;
+        }
+        if self.meets {
+            self.run < o.run - 0.1
+        } else {
+            self.min_rs > o.min_rs + 0.01
+        }
     }
 }
 
@@ -389,14 +482,24 @@ impl Ctx<'_> {
         }
         let run = el.iter().map(|x| x.1).fold(0.0, f64::max);
         let min_rs = self.min_rs(&el);
+        let first_k = self.first_k(&el);
         Some((
             Score {
                 feasible: run <= self.max_run && min_rs.is_finite(),
+                retained: first_k >= self.min_k - 1e-12,
+                meets: min_rs >= self.target,
                 min_rs,
                 run,
             },
             el,
         ))
+    }
+
+    /// k = (tR − t0)/t0 of the first peak.
+    fn first_k(&self, el: &[El]) -> f64 {
+        let t0 = self.system.dead_time_min;
+        let first = el.iter().map(|x| x.1).fold(f64::INFINITY, f64::min);
+        (first - t0) / t0
     }
 
     fn rs(a: &El, b: &El) -> f64 {
@@ -496,6 +599,7 @@ impl Ctx<'_> {
             min_resolution: score.min_rs,
             critical_pair: crit,
             run_time_min: score.run,
+            first_peak_retention_factor: self.first_k(&el),
         })
     }
 }
@@ -532,6 +636,25 @@ fn check_range(name: &'static str, r: Range, lo: f64, hi: f64) -> Result<(), Opt
     Ok(())
 }
 
+/// The range with its ends moved inwards onto the 0.1 grid of programs.
+fn tenth_range(name: &'static str, r: Range) -> Result<Range, OptimiseError> {
+    let min = ((r.min * 10.0 - 1e-9).ceil() / 10.0).max(if name == "gradient_time_min" {
+        0.1
+    } else {
+        0.0
+    });
+    let max = (r.max * 10.0 + 1e-9).floor() / 10.0;
+    if min > max {
+        return Err(OptimiseError::BadRange {
+            name,
+            min: r.min,
+            max: r.max,
+            reason: "narrower than the 0.1 step in which programs are written",
+        });
+    }
+    Ok(Range { min, max })
+}
+
 fn linspace(r: Range, n: usize) -> Vec<f64> {
     if n < 2 || r.max == r.min {
         return vec![r.min];
@@ -552,8 +675,13 @@ fn steps(r: Range, step: f64) -> Vec<f64> {
     v
 }
 
-/// Linear program, or None when the composition would not rise.
+/// Linear program on the 0.1 min / 0.1 % grid, or None when the composition would not rise.
 fn linear(initial: f64, final_: f64, tg: f64) -> Option<GradientProgram> {
+    let (initial, final_, tg) = (
+        round_to_tenth(initial),
+        round_to_tenth(final_),
+        round_to_tenth(tg),
+    );
     if final_ <= initial || tg <= 0.0 {
         return None;
     }
@@ -567,7 +695,13 @@ fn two_segment(
     final_: f64,
     tg: f64,
 ) -> Option<GradientProgram> {
-    let tk = tg * knee_frac_t;
+    let (initial, knee_pct, final_, tg) = (
+        round_to_tenth(initial),
+        round_to_tenth(knee_pct),
+        round_to_tenth(final_),
+        round_to_tenth(tg),
+    );
+    let tk = round_to_tenth(tg * knee_frac_t);
     if !(initial <= knee_pct && knee_pct <= final_ && final_ > initial && tk > 0.0 && tk < tg) {
         return None;
     }
@@ -630,6 +764,10 @@ pub fn optimise(req: &OptimiseRequest) -> Result<OptimiseReport, OptimiseError> 
         });
     }
     theory::non_negative("target resolution", req.target_resolution)?;
+    theory::non_negative(
+        "minimum retention factor of the first peak",
+        req.min_retention_factor,
+    )?;
     check_range(
         "gradient_time_min",
         req.gradient_time_min,
@@ -638,6 +776,11 @@ pub fn optimise(req: &OptimiseRequest) -> Result<OptimiseReport, OptimiseError> 
     )?;
     check_range("initial_pct", req.initial_pct, 0.0, 100.0)?;
     check_range("final_pct", req.final_pct, 0.0, 100.0)?;
+    // Programs are written and evaluated on a 0.1 min / 0.1 % grid: keep the search inside the
+    // range by moving its ends inwards onto that grid.
+    let gradient_range = tenth_range("gradient_time_min", req.gradient_time_min)?;
+    let initial_range = tenth_range("initial_pct", req.initial_pct)?;
+    let final_range = tenth_range("final_pct", req.final_pct)?;
     if req.final_pct.max <= req.initial_pct.min {
         return Err(OptimiseError::BadRange {
             name: "final_pct",
@@ -686,6 +829,8 @@ pub fn optimise(req: &OptimiseRequest) -> Result<OptimiseReport, OptimiseError> 
         plates,
         pairs,
         max_run: req.max_run_time_min,
+        target: req.target_resolution,
+        min_k: req.min_retention_factor,
     };
     let mut evaluated = 0usize;
     let mut eval = |p: &GradientProgram| -> Option<Score> {
@@ -693,9 +838,9 @@ pub fn optimise(req: &OptimiseRequest) -> Result<OptimiseReport, OptimiseError> 
         ctx.evaluate(p).map(|x| x.0)
     };
     // Grid over linear gradients.
-    let tgs = linspace(req.gradient_time_min, req.gradient_time_steps.max(2));
-    let inits = steps(req.initial_pct, req.composition_step_pct);
-    let finals = steps(req.final_pct, req.composition_step_pct);
+    let tgs = linspace(gradient_range, req.gradient_time_steps.max(2));
+    let inits = steps(initial_range, req.composition_step_pct);
+    let finals = steps(final_range, req.composition_step_pct);
     let mut grid: Vec<(Score, [f64; 3])> = Vec::new();
     for &tg in &tgs {
         for &i in &inits {
@@ -724,16 +869,8 @@ pub fn optimise(req: &OptimiseRequest) -> Result<OptimiseReport, OptimiseError> 
             max_run_time_min: req.max_run_time_min,
         });
     }
-    let lo = [
-        req.gradient_time_min.min,
-        req.initial_pct.min,
-        req.final_pct.min,
-    ];
-    let hi = [
-        req.gradient_time_min.max,
-        req.initial_pct.max,
-        req.final_pct.max,
-    ];
+    let lo = [gradient_range.min, initial_range.min, final_range.min];
+    let hi = [gradient_range.max, initial_range.max, final_range.max];
     let init_step = [
         ((hi[0] - lo[0]) / (tgs.len().max(2) - 1) as f64).max(1e-3),
         req.composition_step_pct,
@@ -767,7 +904,8 @@ pub fn optimise(req: &OptimiseRequest) -> Result<OptimiseReport, OptimiseError> 
             }
             if !moved {
                 step.iter_mut().for_each(|v| *v /= 2.0);
-                if step[0] < 1e-3 && step[1] < 1e-3 {
+                // Below half the 0.1 program step no move can change the program.
+                if step[0] < 0.05 && step[1] < 0.05 {
                     break;
                 }
             }
@@ -829,24 +967,23 @@ pub fn optimise(req: &OptimiseRequest) -> Result<OptimiseReport, OptimiseError> 
                 }
                 if !moved {
                     step.iter_mut().for_each(|v| *v /= 2.0);
-                    if step[0] < 1e-3 && step[3] < 1e-4 {
+                    if step[0] < 0.05 && step[1] < 0.05 && step[3] < 1e-3 && step[4] < 1e-3 {
                         break;
                     }
                 }
             }
-            // Keep the two-segment gradient only if clearly better (0.01 in Rs), since it is
-            // harder to transfer and to run.
-            if s.feasible && s.min_rs > lin_score.min_rs + 0.01 {
+            // Keep the two-segment gradient only if clearly better, since it is harder to
+            // transfer and to run.
+            if s.feasible && s.clearly_better_than(&lin_score) {
                 let kp = x[1] + x[4] * (x[2] - x[1]);
                 if let Some(p) = two_segment(x[1], x[3], kp, x[2], x[0]) {
-                    knee = Some(GradientPoint {
-                        time_min: x[0] * x[3],
-                        organic_pct: kp,
-                    });
+                    // The knee as evaluated (on the 0.1 min / 0.1 % grid).
+                    knee = Some(p.points()[1]);
                     best_program = p;
                     notes.push(format!(
-                        "two-segment gradient improves the smallest resolution from {:.2} to {:.2}",
-                        lin_score.min_rs, s.min_rs
+                        "a two-segment gradient beats one linear ramp: smallest Rs {:.2} → {:.2}, \
+                         last peak {:.1} → {:.1} min",
+                        lin_score.min_rs, s.min_rs, lin_score.run, s.run
                     ));
                 }
             } else {
@@ -859,28 +996,23 @@ pub fn optimise(req: &OptimiseRequest) -> Result<OptimiseReport, OptimiseError> 
         .ok_or(OptimiseError::NoFeasibleCondition {
             max_run_time_min: req.max_run_time_min,
         })?;
-    let (tg, ip, fp) = match knee {
-        Some(_) => {
-            let pts = best_program.points();
-            (pts[2].time_min, pts[0].organic_pct, pts[2].organic_pct)
-        }
-        None => (lin_x[0], lin_x[1], lin_x[2]),
+    // The reported program is the evaluated one (already on the 0.1 min / 0.1 % grid).
+    let (tg, ip, fp) = {
+        let pts = best_program.points();
+        let (first, last) = (pts[0], pts[pts.len() - 1]);
+        (last.time_min, first.organic_pct, last.organic_pct)
     };
-    let rounded_points: Vec<GradientPoint> = best_program
-        .points()
-        .iter()
-        .map(|p| GradientPoint {
-            time_min: (p.time_min * 10.0).round() / 10.0,
-            organic_pct: (p.organic_pct * 10.0).round() / 10.0,
-        })
+    // Window diagram at the optimum's start and end compositions (linear ramps), on the same
+    // 0.1 min grid, with the chosen gradient time itself among the points.
+    let mut tg_points: Vec<f64> = linspace(gradient_range, 60)
+        .into_iter()
+        .map(round_to_tenth)
+        .chain(std::iter::once(tg))
         .collect();
-    let rounded = GradientProgram::from_points(&rounded_points)
-        .ok()
-        .and_then(|p| ctx.prediction(&p))
-        .filter(|p| p.run_time_min <= req.max_run_time_min);
-    // Window diagram at the optimum's start and end compositions (linear ramps).
+    tg_points.sort_by(f64::total_cmp);
+    tg_points.dedup();
     let mut points = Vec::new();
-    for tgw in linspace(req.gradient_time_min, 60) {
+    for tgw in tg_points {
         if let Some(p) = linear(ip, fp, tgw)
             && let Some(pr) = ctx.prediction(&p)
         {
@@ -890,8 +1022,42 @@ pub fn optimise(req: &OptimiseRequest) -> Result<OptimiseReport, OptimiseError> 
                 critical_pair: pr.critical_pair,
                 run_time_min: pr.run_time_min,
                 within_run_time: pr.run_time_min <= req.max_run_time_min,
+                first_peak_retention_factor: pr.first_peak_retention_factor,
+                meets_min_retention: pr.first_peak_retention_factor
+                    >= req.min_retention_factor - 1e-12,
             });
         }
+    }
+    let meets_target = optimum.min_resolution >= req.target_resolution;
+    let meets_min_retention =
+        optimum.first_peak_retention_factor >= req.min_retention_factor - 1e-12;
+    let selection = if meets_target {
+        notes.push(format!(
+            "chosen: the shortest run (last peak at {:.2} min) among conditions with smallest \
+             Rs ≥ {}, first peak k ≥ {} and every peak out within {} min",
+            optimum.run_time_min,
+            req.target_resolution,
+            req.min_retention_factor,
+            req.max_run_time_min
+        ));
+        Selection::ShortestRunMeetingTarget
+    } else {
+        notes.push(format!(
+            "no condition in the search space reaches the target Rs {}: the largest smallest \
+             resolution found ({:.2}) is reported instead; widen the ranges, allow a longer \
+             run or a more efficient column",
+            req.target_resolution, optimum.min_resolution
+        ));
+        Selection::LargestMinResolution
+    };
+    if !meets_min_retention {
+        notes.push(format!(
+            "no condition in the search space retains the first peak ({}) to k ≥ {}: it elutes \
+             at k = {:.2}; allow a lower initial % organic",
+            optimum.peaks.first().map_or("?", |p| p.name.as_str()),
+            req.min_retention_factor,
+            optimum.first_peak_retention_factor
+        ));
     }
     if optimum
         .peaks
@@ -917,17 +1083,22 @@ pub fn optimise(req: &OptimiseRequest) -> Result<OptimiseReport, OptimiseError> 
         initial_pct: ip,
         final_pct: fp,
         knee,
-        meets_target: optimum.min_resolution >= req.target_resolution,
+        meets_target,
+        min_retention_factor: req.min_retention_factor,
+        meets_min_retention,
+        selection,
         best_linear_min_resolution: lin_score.min_rs,
-        optimum,
-        rounded,
         window: WindowDiagram {
             initial_pct: ip,
             final_pct: fp,
             target_resolution: req.target_resolution,
+            min_retention_factor: req.min_retention_factor,
             optimum_gradient_time_min: tg,
+            optimum_min_resolution: optimum.min_resolution,
+            optimum_is_two_segment: knee.is_some(),
             points,
         },
+        optimum,
         evaluated_conditions: evaluated,
         notes,
     })
@@ -957,9 +1128,11 @@ fn nice_step(range: f64) -> f64 {
 }
 
 /// Renders the window diagram as a standalone SVG: a polyline of smallest resolution versus
-/// gradient time, axis labels with units, a dashed target line labelled in text, the optimum
-/// marked with a labelled vertical line, and points beyond the maximum run time drawn as open
-/// circles (explained in a text legend), so no meaning depends on colour.
+/// gradient time, axis labels with units, a dashed target line labelled in text, the chosen
+/// condition marked with a labelled vertical line and a filled circle at its smallest
+/// resolution, points beyond the maximum run time drawn as open circles and points whose first
+/// peak is retained less than the minimum drawn as open squares (explained in a text legend), so
+/// no meaning depends on colour.
 pub fn render_window_svg(diagram: &WindowDiagram) -> String {
     let (w, h) = (640.0, 400.0);
     let (ml, mr, mt, mb) = (70.0, 20.0, 40.0, 60.0);
@@ -1030,8 +1203,12 @@ pub fn render_window_svg(diagram: &WindowDiagram) -> String {
         mt + ph / 2.0
     ));
     s.push_str(&format!(
-        "<text x=\"{ml}\" y=\"20\">Window diagram, {:.1}–{:.1} % organic; open circles: beyond the maximum run time</text>\n",
+        "<text x=\"{ml}\" y=\"16\">Window diagram, {:.1}–{:.1} % organic; open circles: beyond the maximum run time</text>\n",
         diagram.initial_pct, diagram.final_pct
+    ));
+    s.push_str(&format!(
+        "<text x=\"{ml}\" y=\"31\">open squares: first peak below k = {}; filled circle: chosen condition</text>\n",
+        diagram.min_retention_factor
     ));
     // Target line.
     let yt = sy(diagram.target_resolution);
@@ -1059,6 +1236,16 @@ pub fn render_window_svg(diagram: &WindowDiagram) -> String {
             sy(p.min_resolution)
         ));
     }
+    for p in pts
+        .iter()
+        .filter(|p| !p.meets_min_retention && p.min_resolution.is_finite())
+    {
+        s.push_str(&format!(
+            "<rect x=\"{:.1}\" y=\"{:.1}\" width=\"6\" height=\"6\" fill=\"white\" stroke=\"black\"/>\n",
+            sx(p.gradient_time_min) - 3.0,
+            sy(p.min_resolution) - 3.0
+        ));
+    }
     let xo = sx(diagram.optimum_gradient_time_min.clamp(x0, x1));
     // Put the label on the side of the line with room for it.
     let (lx, anchor) = if xo > ml + 0.6 * pw {
@@ -1067,11 +1254,23 @@ pub fn render_window_svg(diagram: &WindowDiagram) -> String {
         (xo + 4.0, "start")
     };
     s.push_str(&format!(
-        "<line x1=\"{xo:.1}\" y1=\"{mt}\" x2=\"{xo:.1}\" y2=\"{}\" stroke=\"black\" stroke-dasharray=\"2 3\"/><text x=\"{lx:.1}\" y=\"{}\" text-anchor=\"{anchor}\">optimum tG = {:.2} min</text>\n",
+        "<line x1=\"{xo:.1}\" y1=\"{mt}\" x2=\"{xo:.1}\" y2=\"{}\" stroke=\"black\" stroke-dasharray=\"2 3\"/><text x=\"{lx:.1}\" y=\"{}\" text-anchor=\"{anchor}\">chosen tG = {:.1} min, Rs = {:.2}{}</text>\n",
         mt + ph,
         mt + 12.0,
-        diagram.optimum_gradient_time_min
+        diagram.optimum_gradient_time_min,
+        diagram.optimum_min_resolution,
+        if diagram.optimum_is_two_segment {
+            " (two-segment)"
+        } else {
+            ""
+        }
     ));
+    if diagram.optimum_min_resolution.is_finite() {
+        s.push_str(&format!(
+            "<circle id=\"chosen\" cx=\"{xo:.1}\" cy=\"{:.1}\" r=\"4.5\" fill=\"black\"/>\n",
+            sy(diagram.optimum_min_resolution)
+        ));
+    }
     s.push_str(&format!("<desc>{}</desc>\n", esc("generated by phasewise")));
     s.push_str("</svg>\n");
     s
@@ -1132,64 +1331,196 @@ mod tests {
             critical_pairs: vec![],
             two_segment: false,
             target_resolution: 1.5,
+            min_retention_factor: 1.0,
             gradient_time_steps: 12,
             composition_step_pct: 5.0,
         }
     }
 
-    #[test]
-    fn optimum_is_no_worse_than_any_window_point_and_grid() {
-        let r = optimise(&request()).unwrap();
-        for p in &r.window.points {
-            if p.within_run_time {
-                assert!(r.optimum.min_resolution >= p.min_resolution - 1e-9);
-            }
+    /// Brute force over a grid of linear programs with the same width and resolution formulas
+    /// (self-consistency): (run time, smallest Rs, first-peak k) or None past `max_run`.
+    fn brute(tg: f64, i: f64, f: f64, max_run: f64) -> Option<(f64, f64, f64)> {
+        let p = GradientProgram::linear(i, f, tg).unwrap();
+        let sys = GradientSystem {
+            dead_time_min: 1.0,
+            dwell_time_min: 0.5,
+        };
+        let mut el: Vec<(f64, f64)> = analytes()
+            .iter()
+            .map(|a| {
+                let e = gradient_elution(
+                    &LssParameters {
+                        log_kw: a.log_kw,
+                        s: a.s,
+                    },
+                    &p,
+                    &sys,
+                )
+                .unwrap();
+                (
+                    e.retention_time_min,
+                    4.0 * (1.0 + e.retention_factor_at_elution) / 100.0,
+                )
+            })
+            .collect();
+        el.sort_by(|a, b| a.0.total_cmp(&b.0));
+        let run = el.last().unwrap().0;
+        if run > max_run {
+            return None;
         }
+        let m = el
+            .windows(2)
+            .map(|w| 2.0 * (w[1].0 - w[0].0) / (w[0].1 + w[1].1))
+            .fold(f64::INFINITY, f64::min);
+        Some((run, m, (el[0].0 - 1.0) / 1.0))
+    }
+
+    #[test]
+    fn the_shortest_adequate_run_is_chosen_not_the_largest_resolution() {
+        let r = optimise(&request()).unwrap();
+        assert!(r.meets_target && r.meets_min_retention, "{:?}", r.notes);
+        assert_eq!(r.selection, Selection::ShortestRunMeetingTarget);
+        assert!(r.optimum.min_resolution >= 1.5);
+        assert!(r.optimum.first_peak_retention_factor >= 1.0);
         assert!(r.optimum.run_time_min <= 45.0);
         assert_eq!(r.optimum.peaks.len(), 4);
         assert_eq!(r.optimum.pairs.len(), 3);
-        // The rounded program (0.1 min, 0.1 %) stays within 2 % of the optimum's resolution.
-        let rounded = r.rounded.as_ref().unwrap();
-        assert!((rounded.min_resolution / r.optimum.min_resolution - 1.0).abs() < 0.02);
-        // Brute force check on a finer grid (self-consistency): no point beats the optimum by more
-        // than the refinement tolerance.
-        let ctx_best = r.optimum.min_resolution;
+        // Some longer condition resolves better: the optimiser did not maximise Rs.
+        let better_but_longer = r
+            .window
+            .points
+            .iter()
+            .any(|p| p.within_run_time && p.min_resolution > r.optimum.min_resolution + 0.5);
+        assert!(better_but_longer, "{:?}", r.window.points);
+        // No adequate window point or brute-force grid point is shorter (self-consistency).
+        for p in &r.window.points {
+            if p.within_run_time && p.meets_min_retention && p.min_resolution >= 1.5 {
+                assert!(p.run_time_min >= r.optimum.run_time_min - 1e-9, "{p:?}");
+            }
+        }
+        for tg in [5.0, 7.5, 10.0, 20.0, 30.0, 40.0] {
+            for i in [5.0, 10.0, 15.0, 20.0, 25.0, 30.0] {
+                for f in [60.0, 70.0, 80.0, 90.0, 100.0] {
+                    if let Some((run, m, k)) = brute(tg, i, f, 45.0)
+                        && m >= 1.5
+                        && k >= 1.0
+                    {
+                        assert!(
+                            run >= r.optimum.run_time_min - 1e-9,
+                            "tg {tg} {i}-{f}: run {run} < {}",
+                            r.optimum.run_time_min
+                        );
+                    }
+                }
+            }
+        }
+        // The chosen point is on the window diagram.
+        assert!(r.window.points.iter().any(|p| {
+            p.gradient_time_min == r.gradient_time_min
+                && (p.min_resolution - r.optimum.min_resolution).abs() < 1e-12
+        }));
+    }
+
+    #[test]
+    fn an_unreachable_target_falls_back_to_the_largest_resolution_and_says_so() {
+        let mut q = request();
+        q.target_resolution = 1000.0;
+        let r = optimise(&q).unwrap();
+        assert!(!r.meets_target);
+        assert_eq!(r.selection, Selection::LargestMinResolution);
+        assert!(
+            r.notes
+                .iter()
+                .any(|n| n.contains("no condition") && n.contains("1000"))
+        );
+        for p in &r.window.points {
+            if p.within_run_time && p.meets_min_retention {
+                assert!(r.optimum.min_resolution >= p.min_resolution - 1e-9, "{p:?}");
+            }
+        }
         for tg in [5.0, 10.0, 20.0, 30.0, 40.0] {
             for i in [5.0, 15.0, 30.0] {
                 for f in [60.0, 80.0, 100.0] {
-                    let p = GradientProgram::linear(i, f, tg).unwrap();
-                    let sys = GradientSystem {
-                        dead_time_min: 1.0,
-                        dwell_time_min: 0.5,
-                    };
-                    let mut el: Vec<(f64, f64)> = analytes()
-                        .iter()
-                        .map(|a| {
-                            let e = gradient_elution(
-                                &LssParameters {
-                                    log_kw: a.log_kw,
-                                    s: a.s,
-                                },
-                                &p,
-                                &sys,
-                            )
-                            .unwrap();
-                            (
-                                e.retention_time_min,
-                                4.0 * (1.0 + e.retention_factor_at_elution) / 100.0,
-                            )
-                        })
-                        .collect();
-                    el.sort_by(|a, b| a.0.total_cmp(&b.0));
-                    if el.last().unwrap().0 > 45.0 {
-                        continue;
+                    if let Some((_, m, k)) = brute(tg, i, f, 45.0)
+                        && k >= 1.0
+                    {
+                        assert!(m <= r.optimum.min_resolution + 1e-6, "tg {tg} {i}-{f}: {m}");
                     }
-                    let m = el
-                        .windows(2)
-                        .map(|w| 2.0 * (w[1].0 - w[0].0) / (w[0].1 + w[1].1))
-                        .fold(f64::INFINITY, f64::min);
-                    assert!(m <= ctx_best + 1e-6, "tg {tg} {i}-{f}: {m} > {ctx_best}");
                 }
+            }
+        }
+    }
+
+    #[test]
+    fn the_first_peak_is_kept_above_the_minimum_retention_factor() {
+        // Without the limit the shortest adequate run starts at a high % organic and the first
+        // peak comes out early; a limit above that k pushes the start down.
+        let mut q = request();
+        q.final_pct = Range {
+            min: 60.0,
+            max: 100.0,
+        };
+        q.initial_pct = Range {
+            min: 5.0,
+            max: 59.0,
+        };
+        q.min_retention_factor = 0.0;
+        let free = optimise(&q).unwrap();
+        let k_free = free.optimum.first_peak_retention_factor;
+        let limit = (2.0 * k_free).max(k_free + 1.0);
+        q.min_retention_factor = limit;
+        let held = optimise(&q).unwrap();
+        assert!(held.meets_min_retention, "{:?}", held.notes);
+        assert!(held.optimum.first_peak_retention_factor >= limit);
+        assert!(held.optimum.run_time_min >= free.optimum.run_time_min - 1e-9);
+        assert!(
+            held.initial_pct < free.initial_pct,
+            "{} vs {}",
+            held.initial_pct,
+            free.initial_pct
+        );
+        // An impossible limit is reported, not silently ignored.
+        q.min_retention_factor = 1000.0;
+        let r = optimise(&q).unwrap();
+        assert!(!r.meets_min_retention);
+        assert!(
+            r.notes.iter().any(|n| n.contains("k ≥ 1000")),
+            "{:?}",
+            r.notes
+        );
+        q.min_retention_factor = -1.0;
+        assert!(optimise(&q).is_err());
+    }
+
+    #[test]
+    fn the_reported_program_is_the_rounded_one_that_was_evaluated() {
+        let mut q = request();
+        q.two_segment = true;
+        for q in [request(), q] {
+            let r = optimise(&q).unwrap();
+            for p in r.optimum.program.points() {
+                assert_eq!(p.time_min, round_to_tenth(p.time_min), "{p:?}");
+                assert_eq!(p.organic_pct, round_to_tenth(p.organic_pct), "{p:?}");
+            }
+            assert_eq!(r.gradient_time_min, round_to_tenth(r.gradient_time_min));
+            assert!(!r.optimum.program.to_spec().contains("000"));
+            // Retention is predicted for exactly that program.
+            let sys = GradientSystem {
+                dead_time_min: 1.0,
+                dwell_time_min: 0.5,
+            };
+            for pk in &r.optimum.peaks {
+                let a = analytes().into_iter().find(|a| a.name == pk.name).unwrap();
+                let e = gradient_elution(
+                    &LssParameters {
+                        log_kw: a.log_kw,
+                        s: a.s,
+                    },
+                    &r.optimum.program,
+                    &sys,
+                )
+                .unwrap();
+                assert_eq!(e.retention_time_min, pk.retention_time_min);
             }
         }
     }
@@ -1204,7 +1535,15 @@ mod tests {
         let mut names = r.optimum.critical_pair.clone();
         names.sort();
         assert_eq!(names, ["inv-b".to_string(), "inv-c".to_string()]);
-        assert!(r.optimum.min_resolution >= r.best_linear_min_resolution - 1e-9);
+        // The two-segment result is kept only when it beats the linear ramp by the rule.
+        if r.knee.is_some() {
+            assert!(
+                r.notes
+                    .iter()
+                    .any(|n| n.contains("two-segment gradient beats"))
+            );
+        }
+        assert!(r.meets_target);
     }
 
     #[test]
@@ -1241,6 +1580,10 @@ mod tests {
         assert!(svg.contains("Smallest resolution Rs"));
         assert!(svg.contains("<polyline"));
         assert!(svg.contains("target Rs = 1.5"));
+        // The chosen point is marked where the curve has it.
+        let chosen = format!("chosen tG = {:.1} min", r.gradient_time_min);
+        assert!(svg.contains(&chosen), "{svg}");
+        assert_eq!(svg.matches("id=\"chosen\"").count(), 1);
         assert_eq!(svg.matches("<svg").count(), 1);
         assert!(svg.trim_end().ends_with("</svg>"));
     }

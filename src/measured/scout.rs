@@ -95,7 +95,7 @@ pub enum ScoutError {
     },
     /// A dwell volume without a flow to convert it.
     #[error(
-        "dwell volume {dwell_volume_ml} mL needs a flow rate (flow_ml_min) to become a dwell time"
+        "dwell volume {dwell_volume_ml} mL needs a flow rate (mL/min) to become a dwell time; give the flow"
     )]
     FlowNeeded {
         /// Dwell volume, mL.

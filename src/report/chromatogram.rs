@@ -17,7 +17,8 @@
 use std::collections::BTreeSet;
 use std::fmt::Write as _;
 
-use super::advice::{PredictionRow, Recommendation};
+use super::advice::{Coelution, PredictionRow, Recommendation};
+use crate::measured::optimise::Prediction;
 
 /// Width of the image, px.
 const WIDTH_PX: f64 = 960.0;
@@ -66,8 +67,8 @@ struct Peak<'a> {
 }
 
 /// Names of the analytes that belong to a pair listed as at risk of co-elution.
-fn flagged_names(rec: &Recommendation) -> BTreeSet<&str> {
-    rec.coelutions
+fn flagged_names(coelutions: &[Coelution]) -> BTreeSet<&str> {
+    coelutions
         .iter()
         .flat_map(|c| [c.a.as_str(), c.b.as_str()])
         .collect()
@@ -99,10 +100,113 @@ fn nice_step(span: f64) -> f64 {
 /// # }
 /// ```
 pub fn render_svg(rec: &Recommendation, title: &str) -> String {
-    let flagged = flagged_names(rec);
+    render_chromatogram_svg(
+        &ChromatogramData {
+            predictions: &rec.predictions,
+            coelutions: &rec.coelutions,
+            run_time_min: rec.conditions.run_time_min,
+            dead_time_min: rec.conditions.dead_time_min,
+            id: format!("{}-{}-{}", rec.rank, rec.mode, rec.phase.id),
+            subtitle: format!("{} on {}", rec.mode, rec.phase.name),
+            hatch_legend: "pair at risk of co-elution (see Risks)".to_string(),
+        },
+        title,
+    )
+}
+
+/// Gaussian half-height width over base width: w½/wb = 2.3548σ/4σ (textbook relation, from
+/// memory).
+const HALF_PER_BASE_WIDTH: f64 = FWHM_PER_SIGMA / 4.0;
+
+/// Renders the predicted chromatogram of an optimised gradient (`scout`): each analyte at its
+/// predicted time with its predicted width (w½ = 0.589 wb, Gaussian), a ±1σ whisker where the
+/// fit gave an uncertainty, and pairs below `target_resolution` hatched and shown in detail.
+pub fn render_optimum_svg(
+    prediction: &Prediction,
+    dead_time_min: f64,
+    target_resolution: f64,
+    title: &str,
+) -> String {
+    let rows: Vec<PredictionRow> = prediction
+        .peaks
+        .iter()
+        .map(|p| {
+            let (lo, hi, coverage) = match p.retention_time_uncertainty_min {
+                // ±1σ of a normal distribution covers 68.27 % (textbook value, from memory).
+                Some(u) if u.is_finite() => {
+                    (p.retention_time_min - u, p.retention_time_min + u, 0.6827)
+                }
+                _ => (f64::NAN, f64::NAN, f64::NAN),
+            };
+            PredictionRow {
+                analyte: p.name.clone(),
+                retention_time_min: p.retention_time_min,
+                interval_low_min: lo,
+                interval_high_min: hi,
+                interval_coverage: coverage,
+                retention_factor: (p.retention_time_min - dead_time_min) / dead_time_min,
+                peak_width_half_min: p.width_base_min * HALF_PER_BASE_WIDTH,
+                path: "scouting fit (LSS)".to_string(),
+                retention_index: None,
+            }
+        })
+        .collect();
+    let coelutions: Vec<Coelution> = prediction
+        .pairs
+        .iter()
+        .filter(|q| q.resolution < target_resolution)
+        .map(|q| Coelution {
+            a: q.first.clone(),
+            b: q.second.clone(),
+            // Not computed by the optimiser; the renderer does not draw it.
+            probability: f64::NAN,
+            resolution: q.resolution,
+            note: Some(format!("below the target Rs {target_resolution}")),
+        })
+        .collect();
+    render_chromatogram_svg(
+        &ChromatogramData {
+            predictions: &rows,
+            coelutions: &coelutions,
+            run_time_min: prediction.run_time_min,
+            dead_time_min,
+            id: "scout-optimum".to_string(),
+            subtitle: format!(
+                "optimised gradient {} (time min : % organic)",
+                prediction.program.to_spec()
+            ),
+            hatch_legend: format!("pair below the target Rs {target_resolution}"),
+        },
+        title,
+    )
+}
+
+/// What the chromatogram renderer draws, independent of where the predictions came from (an
+/// advice recommendation, or the optimum of a scouting fit).
+#[derive(Debug, Clone)]
+pub struct ChromatogramData<'a> {
+    /// One row per analyte (time, half-height width, interval).
+    pub predictions: &'a [PredictionRow],
+    /// Pairs to hatch and to show in detail windows.
+    pub coelutions: &'a [Coelution],
+    /// Run time the axis should cover at least, min.
+    pub run_time_min: f64,
+    /// Dead time marked on the axis, min (not drawn when not finite or not positive).
+    pub dead_time_min: f64,
+    /// Text that makes the pattern ids of this image unique within one document.
+    pub id: String,
+    /// Subtitle before "; predicted, not measured; equal response assumed".
+    pub subtitle: String,
+    /// What hatching means in this image (after "! hatched: " in the legend).
+    pub hatch_legend: String,
+}
+
+/// Renders [`ChromatogramData`] as an SVG document titled `title` (see [`render_svg`]).
+pub fn render_chromatogram_svg(data: &ChromatogramData, title: &str) -> String {
+    let flagged = flagged_names(data.coelutions);
     let mut peaks = Vec::new();
     let mut not_drawn = Vec::new();
-    for row in &rec.predictions {
+    for row in data.predictions {
         let ok = row.retention_time_min.is_finite()
             && row.retention_time_min >= 0.0
             && row.peak_width_half_min.is_finite()
@@ -125,8 +229,8 @@ pub fn render_svg(rec: &Recommendation, title: &str) -> String {
     });
 
     // Time axis: cover the run, every interval and every peak's tails.
-    let mut t_end = if rec.conditions.run_time_min.is_finite() {
-        rec.conditions.run_time_min.max(0.0)
+    let mut t_end = if data.run_time_min.is_finite() {
+        data.run_time_min.max(0.0)
     } else {
         0.0
     };
@@ -213,7 +317,7 @@ pub fn render_svg(rec: &Recommendation, title: &str) -> String {
     let y_of = |v: f64| plot_bottom - v / y_top_value * PLOT_HEIGHT_PX;
     let legend_top = plot_bottom + 58.0;
     let notes_lines = if not_drawn.is_empty() { 0.0 } else { 1.0 };
-    let details = detail_windows(rec, &peaks);
+    let details = detail_windows(data.coelutions, &peaks);
     let detail_top = legend_top + 3.0 * 18.0 + notes_lines * 16.0 + 22.0;
     let height = if details.is_empty() {
         legend_top + 3.0 * 18.0 + notes_lines * 16.0 + 10.0
@@ -225,7 +329,7 @@ pub fn render_svg(rec: &Recommendation, title: &str) -> String {
         .map(|p| p.row.interval_coverage)
         .filter(|c| c.is_finite() && *c > 0.0 && *c <= 1.0);
     let hatch_id = {
-        let raw = format!("hatch-{}-{}-{}", rec.rank, rec.mode, rec.phase.id);
+        let raw = format!("hatch-{}", data.id);
         raw.chars()
             .map(|c| {
                 if c.is_ascii_alphanumeric() {
@@ -271,10 +375,9 @@ pub fn render_svg(rec: &Recommendation, title: &str) -> String {
     );
     let _ = writeln!(
         s,
-        "<text x=\"{}\" y=\"37\" font-size=\"11\">{} on {}; predicted, not measured; equal response assumed</text>",
+        "<text x=\"{}\" y=\"37\" font-size=\"11\">{}; predicted, not measured; equal response assumed</text>",
         f2(LEFT_PX),
-        escape_xml(&rec.mode),
-        escape_xml(&rec.phase.name)
+        escape_xml(&data.subtitle)
     );
 
     // Axes, ticks and grid.
@@ -337,7 +440,7 @@ pub fn render_svg(rec: &Recommendation, title: &str) -> String {
     );
 
     // Dead time marker.
-    let t0 = rec.conditions.dead_time_min;
+    let t0 = data.dead_time_min;
     if t0.is_finite() && t0 > 0.0 && t0 < t_max {
         let x = x_of(t0);
         let _ = writeln!(
@@ -481,10 +584,11 @@ pub fn render_svg(rec: &Recommendation, title: &str) -> String {
          <path d=\"M {a} {y2a} L {a} {y2b} M {a} {y2} L {b} {y2} M {b} {y2a} L {b} {y2b}\" fill=\"none\" stroke=\"#000\" stroke-dasharray=\"5 2\"/>\
          <text x=\"{t}\" y=\"{y2t}\">prediction interval{cov}</text>\
          <rect x=\"{c}\" y=\"{r0}\" width=\"28\" height=\"12\" fill=\"url(#{hatch_id})\" stroke=\"#000\"/>\
-         <text x=\"{ct}\" y=\"{y0t}\">! hatched: pair at risk of co-elution (see Risks)</text>\
+         <text x=\"{ct}\" y=\"{y0t}\">! hatched: {hatched}</text>\
          <line x1=\"{c}\" y1=\"{y1}\" x2=\"{c}\" y2=\"{y1b}\" stroke=\"#000\" stroke-dasharray=\"2 3\"/>\
          <text x=\"{ct}\" y=\"{y1t}\">t0: column dead time</text>\
          </g>",
+        hatched = escape_xml(&data.hatch_legend),
         a = f2(lx),
         b = f2(lx + 28.0),
         t = f2(lx + 36.0),
@@ -543,9 +647,9 @@ struct DetailWindow {
 
 /// Windows on the flagged pairs (most likely first, at most [`MAX_DETAILS`]), each wide
 /// enough for both peaks' tails: a pair a few pixels wide in the full run is unreadable.
-fn detail_windows(rec: &Recommendation, peaks: &[Peak]) -> Vec<DetailWindow> {
+fn detail_windows(coelutions: &[Coelution], peaks: &[Peak]) -> Vec<DetailWindow> {
     let mut out = Vec::new();
-    for c in &rec.coelutions {
+    for c in coelutions {
         let find = |n: &str| peaks.iter().find(|p| p.row.analyte == n);
         let (Some(pa), Some(pb)) = (find(&c.a), find(&c.b)) else {
             continue;
@@ -738,6 +842,44 @@ fn draw_detail(s: &mut String, peaks: &[Peak], w: &DetailWindow, left: f64, top:
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn an_optimum_is_drawn_with_its_program_and_pairs_below_target_hatched() {
+        use crate::measured::optimise::{PredictedPair, PredictedPeak};
+        use crate::model::gradient::{ElutionPhase, GradientProgram};
+        // Invented prediction: three peaks, the last pair below Rs 1.5.
+        let peak = |name: &str, t: f64| PredictedPeak {
+            name: name.to_string(),
+            retention_time_min: t,
+            width_base_min: 0.1,
+            organic_at_elution_pct: 50.0,
+            phase: ElutionPhase::DuringGradient,
+            retention_time_uncertainty_min: Some(0.02),
+        };
+        let pair = |a: &str, b: &str, rs: f64| PredictedPair {
+            first: a.to_string(),
+            second: b.to_string(),
+            resolution: rs,
+        };
+        let p = Prediction {
+            program: GradientProgram::parse("0:10,6.5:90").unwrap(),
+            peaks: vec![peak("inv-a", 2.0), peak("inv-b", 3.0), peak("inv-c", 3.12)],
+            pairs: vec![pair("inv-a", "inv-b", 10.0), pair("inv-b", "inv-c", 1.2)],
+            min_resolution: 1.2,
+            critical_pair: ["inv-b".into(), "inv-c".into()],
+            run_time_min: 3.12,
+            first_peak_retention_factor: 1.0,
+        };
+        let svg = render_optimum_svg(&p, 1.0, 1.5, "t");
+        assert!(svg.contains("optimised gradient 0:10,6.5:90"));
+        assert!(svg.contains("hatched: pair below the target Rs 1.5"));
+        assert!(!svg.contains("see Risks"));
+        assert_eq!(svg.matches("class=\"peak\"").count(), 3);
+        assert_eq!(svg.matches("class=\"interval\"").count(), 3);
+        // Only the pair below the target is flagged ("!" after the names).
+        assert!(svg.contains(">inv-b !<") && svg.contains(">inv-c !<"));
+        assert!(!svg.contains(">inv-a !<"));
+    }
 
     #[test]
     fn xml_escaping_covers_markup_characters() {

@@ -31,14 +31,16 @@ pub enum Format {
     Tsv,
 }
 
-/// Format a float for text output: up to `digits` decimals, trailing zeros trimmed.
+/// Format a float for text output: up to `digits` decimals, trailing zeros trimmed. A value
+/// that rounds to zero prints as `0`, never `-0` (e.g. a net charge of −0.0004 e).
 pub fn num(v: f64, digits: usize) -> String {
     let s = format!("{v:.digits$}");
-    if s.contains('.') {
+    let s = if s.contains('.') {
         s.trim_end_matches('0').trim_end_matches('.').to_string()
     } else {
         s
-    }
+    };
+    if s == "-0" { "0".to_string() } else { s }
 }
 
 /// Quote a CSV cell when needed (RFC 4180).
@@ -62,6 +64,17 @@ mod tests {
         assert_eq!(num(1.500, 3), "1.5");
         assert_eq!(num(2.0, 2), "2");
         assert_eq!(num(-0.0712, 2), "-0.07");
+    }
+
+    #[test]
+    fn values_that_round_to_zero_have_no_sign() {
+        // The plan's Scope table printed "-0 e" for a stored charge of −0.0 and for net charges
+        // such as −0.0004 e.
+        assert_eq!(num(-0.0, 2), "0");
+        assert_eq!(num(-0.0004, 2), "0");
+        assert_eq!(num(-0.4, 0), "0");
+        assert_eq!(num(-0.6, 0), "-1");
+        assert_eq!(num(-0.005, 3), "-0.005");
     }
 
     #[test]

@@ -487,25 +487,14 @@ fn chelating_group(smiles: &str) -> Option<&'static str> {
         .map(|(_, name)| *name)
 }
 
-/// True when a SMILES string has an aromatic atom (lower-case c, n, o or s outside brackets
-/// and not part of `Cl`, `Sc`, `Sn`, ...). Used only to flag a possibly weak UV chromophore.
-fn has_aromatic_atom(smiles: &str) -> bool {
-    let chars: Vec<char> = smiles.chars().collect();
-    let mut in_bracket = false;
-    for (i, &c) in chars.iter().enumerate() {
-        match c {
-            '[' => in_bracket = true,
-            ']' => in_bracket = false,
-            'c' | 'n' | 'o' | 's' => {
-                let prev_upper = i > 0 && chars[i - 1].is_ascii_uppercase();
-                if in_bracket || !prev_upper {
-                    return true;
-                }
-            }
-            _ => {}
-        }
-    }
-    false
+/// Number of aromatic rings from the structure engine (aromaticity perceived as in RDKit's
+/// default model, so Kekulé input such as `C1=CC=CC=C1` counts), or None when the SMILES cannot
+/// be read. Used only to flag a possibly weak UV chromophore; string inspection would miss the
+/// upper-case Kekulé SMILES the knowledge base stores.
+fn aromatic_ring_count(smiles: &str) -> Option<u32> {
+    crate::structure::parse_smiles(smiles)
+        .ok()
+        .map(|p| crate::structure::descriptors::aromatic_ring_count(&p.graph))
 }
 
 /// UV cutoff of a modifier, nm: the wavelength below which a 1 cm path of the neat solvent
@@ -1138,7 +1127,7 @@ fn risks_and_rest(report: &AdviceReport, first: Option<&Recommendation>, b: &mut
             }
             for a in report.analytes.iter().filter(|a| !excluded(a)) {
                 if let Some(smi) = &a.smiles
-                    && !has_aromatic_atom(smi)
+                    && aromatic_ring_count(smi) == Some(0)
                 {
                     det.push(format!(
                         "{}: no aromatic ring in its structure, so UV absorbance may be weak; \
@@ -1489,11 +1478,20 @@ mod tests {
     }
 
     #[test]
-    fn aromatic_atoms_are_told_from_two_letter_elements() {
-        assert!(has_aromatic_atom("c1ccccc1"));
-        assert!(has_aromatic_atom("C[nH]1cccc1"));
-        assert!(!has_aromatic_atom("ClCCl"));
-        assert!(!has_aromatic_atom("CCO"));
+    fn aromatic_rings_come_from_the_structure_not_the_letters() {
+        // Aromatic and Kekulé forms of the same rings (benzene, N-methylpyrrole, aspirin as the
+        // knowledge base stores it): ring counts as RDKit's CalcNumAromaticRings gives them.
+        assert_eq!(aromatic_ring_count("c1ccccc1"), Some(1));
+        assert_eq!(aromatic_ring_count("C1=CC=CC=C1"), Some(1));
+        assert_eq!(aromatic_ring_count("Cn1cccc1"), Some(1));
+        assert_eq!(aromatic_ring_count("CN1C=CC=C1"), Some(1));
+        assert_eq!(aromatic_ring_count("CC(=O)OC1=CC=CC=C1C(=O)O"), Some(1));
+        // Two-letter elements and aliphatic rings are not aromatic.
+        assert_eq!(aromatic_ring_count("ClCCl"), Some(0));
+        assert_eq!(aromatic_ring_count("CCO"), Some(0));
+        assert_eq!(aromatic_ring_count("C1CCCCC1"), Some(0));
+        // Unreadable SMILES: no claim either way.
+        assert_eq!(aromatic_ring_count("C1CC"), None);
     }
 
     #[test]

@@ -147,6 +147,7 @@ pub fn render_optimum_svg(
                 retention_factor: (p.retention_time_min - dead_time_min) / dead_time_min,
                 peak_width_half_min: p.width_base_min * HALF_PER_BASE_WIDTH,
                 path: "scouting fit (LSS)".to_string(),
+                source_systems: Vec::new(),
                 retention_index: None,
             }
         })

@@ -117,6 +117,7 @@ pub fn candidate(
             peak_width_half_min: w_half,
             path: "retention-index".into(),
             retention_index: Some(ri.retention_index),
+            path_source: None,
         });
         sig.push((p.name().to_string(), ri.retention_index, ri.sigma_ri));
     }

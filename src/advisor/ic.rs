@@ -82,6 +82,7 @@ pub fn candidate(
             peak_width_half_min: 2.355 * t / n_plates.sqrt(),
             path: "ion-table".into(),
             retention_index: None,
+            path_source: None,
         });
     }
     let mut coelutions = Vec::new();

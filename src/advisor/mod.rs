@@ -122,6 +122,9 @@ pub struct AdviseRequest {
     pub risk_threshold: f64,
     /// Fixed LC conditions (for `predict`): when set, they replace the advisor's choices.
     pub fixed: Option<FixedLc>,
+    /// The user's stored scouting fits of the resolved analytes (`scout --store`): used
+    /// directly on a matching system, else as retention-memory sources.
+    pub stored_fits: Vec<crate::model::memory::StoredFit>,
 }
 
 /// LC conditions given by the user instead of chosen by the advisor.
@@ -152,6 +155,7 @@ impl Default for AdviseRequest {
             alternatives: 3,
             risk_threshold: 0.2,
             fixed: None,
+            stored_fits: Vec::new(),
         }
     }
 }

@@ -183,18 +183,4 @@ impl Kb {
             .map_err(sql)?;
         Ok(rows)
     }
-
-    /// Number of stored retention fits in the overlay (0 without one).
-    ///
-    /// # Errors
-    /// Database failures.
-    pub fn retention_fit_count(&self) -> Result<usize, KbError> {
-        let Some(conn) = &self.user else {
-            return Ok(0);
-        };
-        let n: i64 = conn
-            .query_row("SELECT count(*) FROM retention_fit", [], |r| r.get(0))
-            .map_err(|e| KbError::sql(&self.user_path, e))?;
-        Ok(usize::try_from(n).unwrap_or(0))
-    }
 }

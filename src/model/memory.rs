@@ -538,6 +538,109 @@ impl StoredFit {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::model::gradient::{
+        GradientProgram, GradientSystem, LssParameters, gradient_elution,
+    };
+    use crate::model::regression::GradientPoint;
+
+    fn rp_system(ph: f64, temperature_c: Option<f64>, program: &[(f64, f64)]) -> LcSystem {
+        LcSystem {
+            mode: Mode::ReversedPhase,
+            chem_class: ChemClass::C18,
+            modifier: Modifier::Acetonitrile,
+            ph: Some(ph),
+            additive: Additive::Other,
+            gradient: program
+                .iter()
+                .map(|&(time_min, organic_pct)| GradientPoint {
+                    time_min,
+                    organic_pct,
+                })
+                .collect(),
+            t0_min: 1.0,
+            dwell_min: 0.5,
+            flow_ml_min: 1.0,
+            temperature_c,
+        }
+    }
+
+    /// Invented fit (not a measured compound).
+    fn fit(ph: f64, temperature_c: Option<f64>) -> StoredFit {
+        StoredFit {
+            inchikey: "KEY".into(),
+            phase_id: "rp-c18".into(),
+            system: rp_system(ph, temperature_c, &[(0.0, 5.0), (10.0, 95.0)]),
+            lss: LssParameters {
+                log_kw: 2.0,
+                s: 4.0,
+            },
+            log_kw_uncertainty: 0.01,
+            s_uncertainty: 0.03,
+            correlation: 0.9,
+            rms_residual_min: 0.0,
+            source: "notebook (invented)".into(),
+        }
+    }
+
+    #[test]
+    fn a_fit_matches_only_its_own_system_within_the_tolerances() {
+        let f = fit(3.0, Some(30.0));
+        let target = |ph, t| rp_system(ph, t, &[(0.0, 5.0), (20.0, 95.0)]);
+        assert!(f.matches("rp-c18", &target(3.2, Some(35.0)), Some(35.0)));
+        assert!(f.matches("rp-c18", &target(2.8, None), None));
+        assert!(!f.matches("rp-c18", &target(3.3, None), None));
+        assert!(!f.matches("rp-c18", &target(3.0, Some(40.0)), Some(40.0)));
+        assert!(!f.matches("rp-c8", &target(3.0, None), None));
+        let mut meoh = target(3.0, None);
+        meoh.modifier = Modifier::Methanol;
+        assert!(!f.matches("rp-c18", &meoh, None));
+    }
+
+    #[test]
+    fn psi_k1_is_log_kw_over_s_in_the_strong_solvent() {
+        let mut f = fit(3.0, None);
+        assert!((f.psi_k1() - 0.5).abs() < 1e-12);
+        f.system.mode = Mode::Hilic;
+        assert!((f.psi_k1() - 0.5).abs() < 1e-12);
+        f.lss.log_kw = 1.0;
+        assert!((f.psi_k1() - 0.75).abs() < 1e-12);
+        assert!(
+            f.system_id()
+                .starts_with("user: notebook (invented) [rp-c18")
+        );
+    }
+
+    #[test]
+    fn direct_prediction_is_the_gradient_equation_with_an_interval_around_it() {
+        let f = fit(3.0, None);
+        let target = rp_system(3.0, None, &[(0.0, 5.0), (20.0, 95.0), (25.0, 95.0)]);
+        let p = f.predict(&target, Vec::new(), Vec::new()).unwrap();
+        let want = gradient_elution(
+            &f.lss,
+            &GradientProgram::parse("0:5,20:95,25:95").unwrap(),
+            &GradientSystem {
+                dead_time_min: 1.0,
+                dwell_time_min: 0.5,
+            },
+        )
+        .unwrap()
+        .retention_time_min;
+        assert!((p.rt_min - want).abs() < 1e-9);
+        assert_eq!(p.path.label(), "scouting fit");
+        let (lo, hi) = p.interval_min;
+        // at least ±1.645 × 0.01 min (the run repeatability) and symmetric
+        assert!(lo < want - 0.016 && hi > want + 0.016, "{lo} {hi}");
+        assert!(((want - lo) - (hi - want)).abs() < 1e-9);
+        // a larger parameter uncertainty widens it
+        let mut g = fit(3.0, None);
+        g.s_uncertainty = 0.3;
+        let q = g.predict(&target, Vec::new(), Vec::new()).unwrap();
+        assert!(q.interval_min.1 - q.interval_min.0 > hi - lo);
+        // an invalid target is an error naming the value
+        let mut bad = target.clone();
+        bad.t0_min = -1.0;
+        assert!(f.predict(&bad, Vec::new(), Vec::new()).is_err());
+    }
 
     #[test]
     fn combine_single_and_many_sources() {

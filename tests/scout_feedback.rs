@@ -30,6 +30,10 @@ fn truth_rt(log_kw: f64, s: f64, program: &str) -> f64 {
 
 /// Peak tables of the simulated runs, written into the test directory; `extra` adds a peak.
 fn write_runs(ctx: &Ctx, extra: Option<&str>) -> Vec<String> {
+    write_runs_with(ctx, extra, (2.6, 4.2))
+}
+
+fn write_runs_with(ctx: &Ctx, extra: Option<&str>, extra_lss: (f64, f64)) -> Vec<String> {
     SCOUT_PROGRAMS
         .iter()
         .enumerate()
@@ -39,7 +43,10 @@ fn write_runs(ctx: &Ctx, extra: Option<&str>) -> Vec<String> {
                 text.push_str(&format!("{name},{:.5},0.05\n", truth_rt(*lk, *s, prog)));
             }
             if let Some(n) = extra {
-                text.push_str(&format!("{n},{:.5},0.05\n", truth_rt(2.6, 4.2, prog)));
+                text.push_str(&format!(
+                    "{n},{:.5},0.05\n",
+                    truth_rt(extra_lss.0, extra_lss.1, prog)
+                ));
             }
             let p = ctx.path(&format!("run{}.csv", i + 1));
             std::fs::write(&p, text).unwrap();
@@ -356,4 +363,32 @@ fn an_incomplete_or_invalid_system_description_stores_nothing() {
     let out = ctx.run(&scout_args(&runs, &["--phase", "rp-c18"]));
     assert_eq!(out.status.code(), Some(2), "{}", stderr(&out));
     assert!(stderr(&out).contains("--store"), "{}", stderr(&out));
+}
+
+#[test]
+fn a_poorly_determined_fit_is_listed_and_not_stored() {
+    let ctx = Ctx::new();
+    // invented S = 0.5, below the plausible range 1-60: the fit is flagged
+    let runs = write_runs_with(&ctx, Some("theophylline"), (1.0, 0.5));
+    let out = ctx.run(&scout_args(
+        &runs,
+        &[
+            "--store",
+            "--phase",
+            "rp-c18",
+            "--modifier",
+            "acetonitrile",
+            "--ph",
+            "3",
+            "--source",
+            SOURCE,
+        ],
+    ));
+    assert_eq!(out.status.code(), Some(1), "{}", stderr(&out));
+    let e = stderr(&out);
+    assert!(
+        e.contains("stored 2 retention fits") && e.contains("not stored: theophylline"),
+        "{e}"
+    );
+    assert_eq!(stored_rows(&ctx), 2);
 }

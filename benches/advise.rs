@@ -38,6 +38,9 @@ fn request() -> AdviseRequest {
         alternatives: 3,
         risk_threshold: 0.2,
         fixed: None,
+        fixed_gc: None,
+        no_backup: false,
+        stored_fits: Vec::new(),
     }
 }
 

@@ -82,7 +82,7 @@ fn progress_bar() -> ProgressBar {
     pb
 }
 
-fn open_kb(cli: &Cli) -> Result<Kb> {
+pub(crate) fn open_kb(cli: &Cli) -> Result<Kb> {
     let p = paths(cli)?;
     let pb = progress_bar();
     let policy = if cli.no_build {
@@ -318,6 +318,7 @@ fn advise_report_fixed(
     let kb = open_kb(cli)?;
     let (found, missing) = resolve_all(&kb, &queries)?;
     let partial = !missing.is_empty();
+    let stored_fits = stored_fits(&kb, &found)?;
     let profiles: Vec<AnalyteProfile> = found.into_iter().map(AnalyteProfile::new).collect();
     if profiles.is_empty() {
         bail!(
@@ -342,9 +343,93 @@ fn advise_report_fixed(
         no_backup: predicting,
         fixed,
         fixed_gc,
+        stored_fits,
     };
     let report = advise(&profiles, missing, &req)?;
     Ok((report, partial))
+}
+
+/// The user's stored scouting fits (`scout --store`) of the resolved analytes, as the model
+/// reads them.
+fn stored_fits(kb: &Kb, analytes: &[Analyte]) -> Result<Vec<phasewise::model::memory::StoredFit>> {
+    let mut keys: Vec<&str> = analytes
+        .iter()
+        .filter_map(|a| a.inchikey.as_deref())
+        .collect();
+    keys.sort_unstable();
+    keys.dedup();
+    let mut out = Vec::new();
+    for key in keys {
+        for r in kb.retention_fits(key)? {
+            out.push(stored_fit_from(&r).with_context(|| {
+                format!(
+                    "stored retention fit of `{}` in {} is unreadable",
+                    r.analyte,
+                    kb.user_path().display()
+                )
+            })?);
+        }
+    }
+    Ok(out)
+}
+
+/// A stored row as the model reads it (see `StoredFit` for the fields not recorded).
+pub(crate) fn stored_fit_from(
+    r: &phasewise::kb::retention::RetentionFitRecord,
+) -> Result<phasewise::model::memory::StoredFit> {
+    use phasewise::model::regression::{
+        Additive, ChemClass, GradientPoint, LcSystem, Mode, Modifier,
+    };
+    let mode = match r.mode.as_str() {
+        "rp" => Mode::ReversedPhase,
+        "hilic" => Mode::Hilic,
+        m => bail!("mode `{m}` is neither rp nor hilic"),
+    };
+    let chem_class = ChemClass::parse(&r.chem_class)
+        .ok_or_else(|| anyhow::anyhow!("unknown chemistry class `{}`", r.chem_class))?;
+    let modifier = match r.modifier.as_str() {
+        "acetonitrile" => Modifier::Acetonitrile,
+        "methanol" => Modifier::Methanol,
+        m => bail!("modifier `{m}` is neither acetonitrile nor methanol"),
+    };
+    let first = r
+        .gradients
+        .first()
+        .ok_or_else(|| anyhow::anyhow!("no gradient program recorded"))?;
+    let program = phasewise::model::gradient::GradientProgram::parse(first)
+        .with_context(|| format!("gradient program `{first}`"))?;
+    Ok(phasewise::model::memory::StoredFit {
+        inchikey: r.inchikey.clone(),
+        phase_id: r.phase_id.clone(),
+        system: LcSystem {
+            mode,
+            chem_class,
+            modifier,
+            ph: Some(r.ph),
+            additive: Additive::Other,
+            gradient: program
+                .points()
+                .iter()
+                .map(|p| GradientPoint {
+                    time_min: p.time_min,
+                    organic_pct: p.organic_pct,
+                })
+                .collect(),
+            t0_min: r.t0_min,
+            dwell_min: r.dwell_min,
+            flow_ml_min: r.flow_ml_min.unwrap_or(1.0),
+            temperature_c: r.temperature_c,
+        },
+        lss: phasewise::model::gradient::LssParameters {
+            log_kw: r.log_kw,
+            s: r.s,
+        },
+        log_kw_uncertainty: r.log_kw_uncertainty,
+        s_uncertainty: r.s_uncertainty,
+        correlation: r.correlation,
+        rms_residual_min: r.rms_residual_min,
+        source: r.source.clone(),
+    })
 }
 
 /// Run a parsed command line.
@@ -454,7 +539,7 @@ pub fn run(cli: Cli) -> Result<ExitCode> {
         }
         Command::Kb(k) => run_kb(&cli, k),
         Command::Suitability(a) => crate::run_measured::run_suitability(a),
-        Command::Scout(a) => crate::run_measured::run_scout(a),
+        Command::Scout(a) => crate::run_measured::run_scout(&cli, a),
         Command::Transfer(a) => crate::run_measured::run_transfer(a),
         Command::Model(m) => crate::run_measured::run_model(m),
         Command::Completions(a) => {
@@ -552,14 +637,17 @@ fn run_kb(cli: &Cli, k: &KbCommand) -> Result<ExitCode> {
             for s in &r.skipped {
                 eprintln!("skipped line {}: {}", s.line, s.reason);
             }
+            let plural = |n: usize, one: &str, many: &str| {
+                format!("{n} {}", if n == 1 { one } else { many })
+            };
             eprintln!(
-                "imported {} compounds into {}{}",
-                r.imported,
+                "imported {} into {}{}",
+                plural(r.imported, "compound", "compounds"),
                 kb.user_path().display(),
                 if r.skipped.is_empty() {
                     String::new()
                 } else {
-                    format!(" ({} rows skipped)", r.skipped.len())
+                    format!(" ({} skipped)", plural(r.skipped.len(), "row", "rows"))
                 }
             );
             Ok(if r.skipped.is_empty() {
@@ -860,7 +948,7 @@ fn run_predict(cli: &Cli, a: &crate::cli::PredictArgs) -> Result<ExitCode> {
                         )),
                         _ => {}
                     }
-                    row.push(p.path.clone());
+                    row.push(p.path_label());
                     row
                 })
                 .collect();

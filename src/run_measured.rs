@@ -715,6 +715,226 @@ pub struct ScoutArgs {
     /// Output format.
     #[arg(long, short, value_enum, default_value_t = ReportFormat::Table)]
     pub format: ReportFormat,
+    /// Store the fitted log kw and S of every well-determined analyte in the user knowledge
+    /// base, so that later `advise` and `predict` use them. Needs --phase, --modifier, --ph
+    /// and --source; every analyte name must resolve in the knowledge base.
+    #[arg(long)]
+    pub store: bool,
+    /// Stationary-phase id of the runs (an RP or HILIC phase of the catalogue), for --store.
+    #[arg(long, value_name = "ID", requires = "store")]
+    pub phase: Option<String>,
+    /// Organic modifier of the runs: acetonitrile or methanol, for --store.
+    #[arg(long, value_name = "NAME", requires = "store")]
+    pub modifier: Option<String>,
+    /// Aqueous pH of the runs (inside the phase's range), for --store.
+    #[arg(
+        long,
+        value_name = "PH",
+        requires = "store",
+        allow_negative_numbers = true
+    )]
+    pub ph: Option<f64>,
+    /// Column temperature of the runs, °C, for --store.
+    #[arg(
+        long,
+        value_name = "C",
+        requires = "store",
+        allow_negative_numbers = true
+    )]
+    pub temperature: Option<f64>,
+    /// Where the runs are recorded (e.g. "lab notebook 12 p. 4"); required with --store.
+    #[arg(long, value_name = "TEXT", requires = "store")]
+    pub source: Option<String>,
+}
+
+/// The system description `scout --store` records with the fits, checked before any work.
+struct StoreTarget {
+    phase_id: String,
+    mode: &'static str,
+    chem_class: String,
+    modifier: String,
+    ph: f64,
+    temperature_c: Option<f64>,
+    source: String,
+}
+
+fn store_target(a: &ScoutArgs) -> Result<Option<StoreTarget>> {
+    use phasewise::phase::{Catalogue, PhaseMode};
+    if !a.store {
+        return Ok(None);
+    }
+    let missing: Vec<&str> = [
+        ("--phase", a.phase.is_none()),
+        ("--modifier", a.modifier.is_none()),
+        ("--ph", a.ph.is_none()),
+        (
+            "--source",
+            a.source.as_deref().is_none_or(|s| s.trim().is_empty()),
+        ),
+    ]
+    .iter()
+    .filter(|(_, m)| *m)
+    .map(|(n, _)| *n)
+    .collect();
+    if !missing.is_empty() {
+        bail!(
+            "--store needs the system the runs were made on: give {} (nothing stored)",
+            missing.join(", ")
+        );
+    }
+    let (Some(phase_id), Some(modifier), Some(ph), Some(source)) =
+        (&a.phase, &a.modifier, a.ph, &a.source)
+    else {
+        bail!("--store needs --phase, --modifier, --ph and --source (nothing stored)");
+    };
+    let catalogue = Catalogue::builtin()?;
+    let phase = catalogue
+        .phase(phase_id)
+        .with_context(|| format!("--phase `{phase_id}` (nothing stored)"))?;
+    let mode = match phase.mode() {
+        PhaseMode::Rp => "rp",
+        PhaseMode::Hilic => "hilic",
+        other => bail!(
+            "--phase `{phase_id}` is a {} phase; scouting fits are stored for RP or HILIC phases only (nothing stored)",
+            other.as_str()
+        ),
+    };
+    if modifier != "acetonitrile" && modifier != "methanol" {
+        bail!("--modifier `{modifier}`: use acetonitrile or methanol (nothing stored)");
+    }
+    let (lo, hi) = (
+        phase.ph_min().unwrap_or(0.0),
+        phase.ph_max().unwrap_or(14.0),
+    );
+    if !(ph.is_finite() && (lo..=hi).contains(&ph)) {
+        bail!("--ph {ph} is outside the range {lo}-{hi} of phase `{phase_id}` (nothing stored)");
+    }
+    if let Some(t) = a.temperature
+        && !(t.is_finite() && (-10.0..=phase.t_max_c()).contains(&t))
+    {
+        bail!(
+            "--temperature {t} °C is outside -10 to {} °C, the limit of phase `{phase_id}` (nothing stored)",
+            phase.t_max_c()
+        );
+    }
+    Ok(Some(StoreTarget {
+        phase_id: phase_id.clone(),
+        mode,
+        chem_class: phasewise::advisor::lc::model_class(phase)
+            .name()
+            .to_string(),
+        modifier: modifier.clone(),
+        ph,
+        temperature_c: a.temperature,
+        source: source.trim().to_string(),
+    }))
+}
+
+/// Store the well-determined fits; every analyte must resolve first, else nothing is stored.
+/// Returns the fits left out (poorly determined) with their reasons.
+fn store_fits(
+    cli: &crate::cli::Cli,
+    a: &ScoutArgs,
+    target: &StoreTarget,
+    fitted: &ScoutFit,
+    programs: &[String],
+) -> Result<Vec<(String, String)>> {
+    use phasewise::kb::resolve::Resolution;
+    let mut kb = crate::commands::open_kb(cli)?;
+    let mut keys = Vec::new();
+    let mut problems = Vec::new();
+    for f in &fitted.analytes {
+        match kb.resolve(&f.name)? {
+            Resolution::Found(an) => match &an.inchikey {
+                Some(k) => keys.push(k.clone()),
+                None => problems.push(format!(
+                    "`{}` resolves to `{}`, which has no InChIKey (add one with `phasewise kb add --name '{}' --inchikey KEY --source ...`)",
+                    f.name, an.name, an.name
+                )),
+            },
+            Resolution::StructureOnly { .. } => problems.push(format!(
+                "`{}` is a structure, not a compound of the knowledge base (add it with `phasewise kb add`)",
+                f.name
+            )),
+            Resolution::Unresolved(u) => problems.push(format!(
+                "`{}`: {}{}",
+                f.name,
+                u.reason,
+                if u.suggestions.is_empty() {
+                    String::new()
+                } else {
+                    format!(
+                        " (did you mean {}?)",
+                        u.suggestions
+                            .iter()
+                            .map(|s| format!("`{}`", s.name))
+                            .collect::<Vec<_>>()
+                            .join(", ")
+                    )
+                }
+            )),
+        }
+    }
+    if !problems.is_empty() {
+        bail!(
+            "--store: every analyte must resolve in the knowledge base, nothing stored: {}",
+            problems.join("; ")
+        );
+    }
+    let mut rows = Vec::new();
+    let mut left_out = Vec::new();
+    for (f, key) in fitted.analytes.iter().zip(keys) {
+        if !f.flags.is_empty() {
+            left_out.push((
+                f.name.clone(),
+                f.flags.iter().map(flag_text).collect::<Vec<_>>().join(", "),
+            ));
+            continue;
+        }
+        rows.push(phasewise::kb::retention::RetentionFitRecord {
+            analyte: f.name.clone(),
+            inchikey: key,
+            phase_id: target.phase_id.clone(),
+            mode: target.mode.to_string(),
+            chem_class: target.chem_class.clone(),
+            modifier: target.modifier.clone(),
+            ph: target.ph,
+            temperature_c: target.temperature_c,
+            log_kw: f.log_kw,
+            s: f.s,
+            log_kw_uncertainty: f.log_kw_uncertainty,
+            s_uncertainty: f.s_uncertainty,
+            correlation: f.correlation,
+            rms_residual_min: f.rms_residual_min,
+            gradients: programs.to_vec(),
+            t0_min: fitted.dead_time_min,
+            dwell_min: fitted.dwell_time_min,
+            flow_ml_min: a.flow,
+            source: target.source.clone(),
+            stored_on: String::new(),
+        });
+    }
+    let n = if rows.is_empty() {
+        0
+    } else {
+        kb.store_retention_fits(&rows)?
+    };
+    eprintln!(
+        "stored {n} retention fit{} in {} (phase {}, {}, pH {}{}; source: {})",
+        if n == 1 { "" } else { "s" },
+        kb.user_path().display(),
+        target.phase_id,
+        target.modifier,
+        target.ph,
+        target
+            .temperature_c
+            .map_or_else(String::new, |t| format!(", {t} °C")),
+        target.source
+    );
+    for (name, why) in &left_out {
+        eprintln!("not stored: {name}: poorly determined fit ({why})");
+    }
+    Ok(left_out)
 }
 
 /// Schema version of the `scout` JSON output (2: the optimiser's selection rule, first-peak
@@ -750,10 +970,12 @@ fn split_programs(spec: &str, runs: usize) -> Result<Vec<GradientProgram>> {
 }
 
 /// Runs `phasewise scout`.
-pub fn run_scout(a: &ScoutArgs) -> Result<ExitCode> {
+pub fn run_scout(cli: &crate::cli::Cli, a: &ScoutArgs) -> Result<ExitCode> {
     check_scout_options(a)?;
     let dead_time = dead_time_input(a.t0, a.column, a.flow)?;
     let programs = split_programs(&a.gradients, a.runs.len())?;
+    let program_specs: Vec<String> = programs.iter().map(GradientProgram::to_spec).collect();
+    let store = store_target(a)?;
     for out in a
         .window_svg
         .iter()
@@ -875,6 +1097,10 @@ pub fn run_scout(a: &ScoutArgs) -> Result<ExitCode> {
         })?,
         ReportFormat::Table => scout_table(&fitted, &report, &plates_source),
     };
+    let left_out = match &store {
+        Some(t) => store_fits(cli, a, t, &fitted, &program_specs)?,
+        None => Vec::new(),
+    };
     if let Some(p) = &a.window_svg {
         write_atomically(p, render_window_svg(&report.window))?;
     }
@@ -891,7 +1117,11 @@ pub fn run_scout(a: &ScoutArgs) -> Result<ExitCode> {
         write_atomically(p, svg)?;
     }
     write_out(&text)?;
-    Ok(ExitCode::SUCCESS)
+    Ok(if left_out.is_empty() {
+        ExitCode::SUCCESS
+    } else {
+        ExitCode::from(EXIT_PARTIAL)
+    })
 }
 
 /// Option checks that the library would otherwise report with its own field names.

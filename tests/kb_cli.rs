@@ -607,3 +607,217 @@ fn a_stale_shipped_base_is_rebuilt_and_a_missing_one_is_an_error_with_no_build()
     assert_eq!(out.status.code(), Some(3));
     assert!(stderr(&out).contains("does not exist"), "{}", stderr(&out));
 }
+
+/// Properties of one analyte from `lookup --format json`.
+fn props(a: &serde_json::Value) -> Vec<serde_json::Value> {
+    a["properties"].as_array().cloned().unwrap_or_default()
+}
+
+#[test]
+fn a_user_value_for_a_shipped_compound_does_not_let_estimates_outrank_measured_values() {
+    let ctx = Ctx::new();
+    let before = lookup_one(&ctx, "acetaminophen");
+    let shipped_logp = props(&before)
+        .into_iter()
+        .find(|p| p["property"] == "logp")
+        .unwrap();
+    assert_eq!(shipped_logp["kind"], "experimental", "{shipped_logp}");
+    let out = ctx.run(&[
+        "kb",
+        "add",
+        "--name",
+        "acetaminophen",
+        "--prop",
+        "pka=9.5;type=acidic",
+        "--source",
+        "test (invented)",
+    ]);
+    assert!(out.status.success(), "{}", stderr(&out));
+    let a = lookup_one(&ctx, "acetaminophen");
+    let p = props(&a);
+    // the shipped measured logP still wins over the (shipped) Crippen estimate
+    let best = p.iter().find(|p| p["property"] == "logp").unwrap();
+    assert_eq!(best, &shipped_logp, "{a}");
+    // the structure estimates are not stored a second time
+    let logp_rows = p.iter().filter(|p| p["property"] == "logp").count();
+    let before_rows = props(&before)
+        .iter()
+        .filter(|p| p["property"] == "logp")
+        .count();
+    assert_eq!(logp_rows, before_rows, "{a}");
+    assert_eq!(p.len(), props(&before).len() + 1, "{a}");
+    // the user's pKa is first among the pKa values
+    let pka = p.iter().find(|p| p["property"] == "pka").unwrap();
+    assert_eq!(
+        (pka["value"].as_f64(), &pka["origin"]),
+        (Some(9.5), &"user".into())
+    );
+}
+
+#[test]
+fn estimates_of_a_new_user_compound_are_marked_computed_and_its_formula_is_known() {
+    let ctx = Ctx::new();
+    let out = ctx.run(&[
+        "kb",
+        "add",
+        "--name",
+        "impurity HX-1 (invented)",
+        "--smiles",
+        "CC(=O)Nc1ccc(O)c(Cl)c1",
+        "--prop",
+        "logp=1.4",
+        "--estimated",
+        "--source",
+        "notebook 12 (invented)",
+    ]);
+    assert!(out.status.success(), "{}", stderr(&out));
+    let a = lookup_one(&ctx, "impurity HX-1 (invented)");
+    assert_eq!(a["formula"], "C8H8ClNO2", "{a}");
+    assert!(
+        (a["molar_mass_g_mol"].as_f64().unwrap() - 185.61).abs() < 0.05,
+        "{a}"
+    );
+    let p = props(&a);
+    let logp: Vec<_> = p.iter().filter(|p| p["property"] == "logp").collect();
+    // the user's own (estimated) value first, then phasewise's Crippen estimate
+    assert_eq!(logp[0]["origin"], "user", "{a}");
+    assert_eq!(logp[0]["value"], 1.4, "{a}");
+    assert!(logp[1..].iter().all(|p| p["origin"] == "computed"), "{a}");
+    assert!(
+        p.iter()
+            .filter(|p| p["source"] != "notebook 12 (invented)")
+            .all(|p| p["origin"] == "computed" && p["kind"] == "estimated"),
+        "{a}"
+    );
+    // the table shows formula and molar mass
+    let t = stdout(&ctx.run(&["lookup", "impurity HX-1 (invented)"]));
+    assert!(t.contains("C8H8ClNO2") && t.contains("185.6"), "{t}");
+}
+
+#[test]
+fn export_then_import_into_an_empty_overlay_reproduces_every_value_and_its_provenance() {
+    let ctx = Ctx::new();
+    for args in [
+        vec![
+            "kb",
+            "add",
+            "--name",
+            "impurity HX-3 (invented)",
+            "--smiles",
+            "CC(=O)Nc1ccc(O)cc1C",
+            "--prop",
+            "logp=1.1",
+            "--prop",
+            "boiling_point=78.4C",
+            "--source",
+            "notebook 12 p. 41 (invented)",
+        ],
+        vec![
+            "kb",
+            "add",
+            "--name",
+            "caffeine",
+            "--prop",
+            "pka=0.6;type=basic",
+            "--source",
+            "notebook 12 p. 43 (invented)",
+        ],
+    ] {
+        let out = ctx.run(&args);
+        assert!(out.status.success(), "{}", stderr(&out));
+    }
+    // a second source for the new compound, as an estimated value, through an import
+    let f = ctx.path("more.csv");
+    std::fs::write(
+        &f,
+        "name,smiles,kind,source,properties\nimpurity HX-3 (invented),CC(=O)Nc1ccc(O)cc1C,estimated,other program (invented),pka=9.9;type=acidic\n",
+    )
+    .unwrap();
+    // the import replaces the compound's earlier user record: add the first values again
+    // in the same file as a second row of the same compound
+    let mut text = std::fs::read_to_string(&f).unwrap();
+    text.push_str("impurity HX-3 (invented),CC(=O)Nc1ccc(O)cc1C,experimental,notebook 12 p. 41 (invented),logp=1.1 boiling_point=78.4C\n");
+    std::fs::write(&f, text).unwrap();
+    let out = ctx.run(&["kb", "import", f.to_str().unwrap()]);
+    assert!(out.status.success(), "{}", stderr(&out));
+    assert!(
+        stderr(&out).contains("imported 1 compound into"),
+        "{}",
+        stderr(&out)
+    );
+    let export = stdout(&ctx.run(&["kb", "export"]));
+    // only the user's values, each with its own kind and source, no float noise
+    assert!(!export.contains("Crippen"), "{export}");
+    assert!(export.contains("boiling_point=351.55"), "{export}");
+    assert!(
+        export.contains("\testimated\tother program (invented)\tpka=9.9;type=acidic"),
+        "{export}"
+    );
+    let file = ctx.path("export.tsv");
+    std::fs::write(&file, &export).unwrap();
+    let other = Ctx::new();
+    let out = other.run(&["kb", "import", file.to_str().unwrap()]);
+    assert!(out.status.success(), "{}", stderr(&out));
+    assert!(
+        stderr(&out).contains("imported 2 compounds"),
+        "{}",
+        stderr(&out)
+    );
+    let key = |p: &serde_json::Value| {
+        format!(
+            "{}|{:.9}|{}|{}|{}|{}|{}",
+            p["property"],
+            p["value"].as_f64().unwrap(),
+            p["unit"],
+            p["kind"],
+            p["source"],
+            p["detail"],
+            p["origin"]
+        )
+    };
+    for q in ["impurity HX-3 (invented)", "caffeine"] {
+        let a = lookup_one(&ctx, q);
+        let b = lookup_one(&other, q);
+        let (pa, pb): (Vec<String>, Vec<String>) = (
+            props(&a).iter().map(key).collect(),
+            props(&b).iter().map(key).collect(),
+        );
+        assert_eq!(pa, pb, "{q}");
+        assert_eq!(a["formula"], b["formula"], "{q}");
+    }
+    // and the export of the re-imported overlay is the same text
+    assert_eq!(stdout(&other.run(&["kb", "export"])), export);
+}
+
+#[test]
+fn two_queries_for_one_compound_show_its_properties_once_without_float_noise() {
+    let ctx = Ctx::new();
+    let t = stdout(&ctx.run(&["lookup", "caffeine", "58-08-2"]));
+    assert!(
+        t.contains("queries `caffeine` and `58-08-2` are the same compound"),
+        "{t}"
+    );
+    let rows = t.lines().filter(|l| l.contains("| logp ")).count();
+    let once = stdout(&ctx.run(&["lookup", "caffeine"]))
+        .lines()
+        .filter(|l| l.contains("| logp "))
+        .count();
+    assert_eq!(rows, once, "{t}");
+    let csv = stdout(&ctx.run(&["lookup", "caffeine", "58-08-2", "--format", "csv"]));
+    assert!(csv.contains("caffeine; 58-08-2"), "{csv}");
+    // no value cell with more than 6 significant digits
+    for line in csv.lines().skip(1) {
+        for cell in line.split(',') {
+            if cell.parse::<f64>().is_ok() {
+                let mantissa = cell.split(['e', 'E']).next().unwrap_or(cell);
+                let significant = mantissa
+                    .trim_start_matches('-')
+                    .trim_start_matches(['0', '.'])
+                    .chars()
+                    .filter(char::is_ascii_digit)
+                    .count();
+                assert!(significant <= 6, "{cell} in {line}");
+            }
+        }
+    }
+}

@@ -146,6 +146,7 @@ fn predictions_carry_interval_path_and_coelution() {
     match &p.path {
         PredictionPath::Memory { source_systems } => assert!(!source_systems.is_empty()),
         PredictionPath::Descriptor => {}
+        PredictionPath::ScoutingFit { .. } => panic!("no stored scouting fits here: {p:?}"),
     }
 
     // Bad input is an error naming the value, never a made-up number.

@@ -145,6 +145,7 @@ pub fn candidate(
             path: "retention-index".into(),
             retention_index: Some(ri.retention_index),
             source_systems: Vec::new(),
+            path_source: None,
         });
         sig.push((p.name().to_string(), ri.retention_index, ri.sigma_ri));
     }

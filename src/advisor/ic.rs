@@ -93,6 +93,7 @@ pub fn candidate(
             path: "ion-table".into(),
             retention_index: None,
             source_systems: Vec::new(),
+            path_source: None,
         });
     }
     let mut coelutions = Vec::new();

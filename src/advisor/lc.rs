@@ -84,7 +84,8 @@ fn additive_for(buffer: &str) -> Additive {
     }
 }
 
-fn model_class(phase: &StationaryPhase) -> regression::ChemClass {
+/// The retention model's chemistry class of a catalogue phase.
+pub fn model_class(phase: &StationaryPhase) -> regression::ChemClass {
     use crate::phase::ChemClass as P;
     use regression::ChemClass as R;
     match phase.chem_class() {
@@ -250,6 +251,66 @@ fn geometry(req: &AdviseRequest) -> (f64, f64, f64, f64) {
     (l, id, dp, flow)
 }
 
+/// Predict one analyte on the target system. The user's stored scouting fits come first: a
+/// fit measured on this system (same phase, modifier, pH within 0.2, temperature within 5 °C
+/// when both are known) predicts directly (path `scouting fit`, the most recent such fit);
+/// otherwise the analyte's fits on other systems of the same mode join the shipped retention
+/// memory as further sources (path `memory`). Without stored fits this is `Model::predict`.
+/// Returns the prediction and, for the user's fits, the source text or ids they came from.
+fn predict_one(
+    model: &Model,
+    feats: &AnalyteFeatures,
+    sys: &LcSystem,
+    phase_id: &str,
+    req: &AdviseRequest,
+    p: &AnalyteProfile,
+) -> Result<(regression::Prediction, Option<String>), regression::ModelError> {
+    let fits: Vec<&crate::model::memory::StoredFit> = match p.analyte.inchikey.as_deref() {
+        Some(key) => req
+            .stored_fits
+            .iter()
+            .filter(|f| f.inchikey == key && f.system.mode == sys.mode)
+            .collect(),
+        None => Vec::new(),
+    };
+    if fits.is_empty() {
+        return Ok((model.predict(feats, sys)?, None));
+    }
+    let target_temperature = req.fixed.as_ref().and_then(|f| f.temperature_c);
+    if let Some(fit) = fits
+        .iter()
+        .rev()
+        .find(|f| f.matches(phase_id, sys, target_temperature))
+    {
+        let map = |path: &str| {
+            model
+                .calibration
+                .get(&format!("{}/{path}", sys.mode.label()))
+                .map(|c| c.coelution_map.clone())
+                .unwrap_or_default()
+        };
+        let pr = fit.predict(sys, map("memory"), map("descriptor"))?;
+        return Ok((pr, Some(fit.source.clone())));
+    }
+    let extra: Vec<(String, LcSystem, f64)> = fits
+        .iter()
+        .map(|f| (f.system_id(), f.system.clone(), f.psi_k1()))
+        .collect();
+    let pr = model.predict_with_memory(feats, sys, None, &extra)?;
+    let user_sources = match &pr.path {
+        regression::PredictionPath::Memory { source_systems } => {
+            let used: Vec<&str> = source_systems
+                .iter()
+                .filter(|id| id.starts_with("user: "))
+                .map(String::as_str)
+                .collect();
+            (!used.is_empty()).then(|| used.join("; "))
+        }
+        _ => None,
+    };
+    Ok((pr, user_sources))
+}
+
 /// Build the candidate for one LC phase.
 ///
 /// # Errors
@@ -390,8 +451,8 @@ pub fn candidate(
                 continue;
             }
         };
-        match model.predict(&feats, &sys) {
-            Ok(pr) => {
+        match predict_one(model, &feats, &sys, phase.id(), req, p) {
+            Ok((pr, path_source)) => {
                 let k = ((pr.rt_min - t0 - dwell_min) / t0).max(0.0);
                 preds.push(PredictionRow {
                     analyte: p.name().to_string(),
@@ -402,12 +463,14 @@ pub fn candidate(
                     retention_factor: k,
                     peak_width_half_min: w_half,
                     path: pr.path.label().to_string(),
+                    path_source,
                     retention_index: None,
                     source_systems: match &pr.path {
                         regression::PredictionPath::Memory { source_systems } => {
                             source_systems.clone()
                         }
-                        regression::PredictionPath::Descriptor => Vec::new(),
+                        regression::PredictionPath::Descriptor
+                        | regression::PredictionPath::ScoutingFit { .. } => Vec::new(),
                     },
                 });
                 raw.push(pr);

@@ -126,6 +126,9 @@ pub struct AdviseRequest {
     pub fixed_gc: Option<FixedGc>,
     /// No back-up wanted (`predict`: one phase under given conditions).
     pub no_backup: bool,
+    /// The user's stored scouting fits of the resolved analytes (`scout --store`): used
+    /// directly on a matching system, else as retention-memory sources.
+    pub stored_fits: Vec<crate::model::memory::StoredFit>,
 }
 
 /// GC conditions given by the user instead of chosen by the advisor.
@@ -167,6 +170,7 @@ impl Default for AdviseRequest {
             fixed: None,
             fixed_gc: None,
             no_backup: false,
+            stored_fits: Vec::new(),
         }
     }
 }

@@ -316,20 +316,8 @@ fn estimate_all(compounds: &str) -> Vec<Vec<EstimatedValue>> {
     out
 }
 
-/// Insert the structure-based estimates of one compound; a SMILES string the engine cannot
-/// parse simply gets none. Returns the rows written.
-pub(crate) fn insert_estimates(
-    ins: &mut rusqlite::Statement<'_>,
-    compound_id: i64,
-    smiles: &str,
-) -> rusqlite::Result<usize> {
-    let Ok(est) = estimate(smiles) else {
-        return Ok(0);
-    };
-    insert_values(ins, compound_id, &est.values())
-}
-
-fn insert_values(
+/// Insert estimated rows of one compound. Returns the rows written.
+pub(crate) fn insert_values(
     ins: &mut rusqlite::Statement<'_>,
     compound_id: i64,
     values: &[EstimatedValue],

@@ -132,18 +132,48 @@ fn properties_of(conn: &Connection, id: i64, origin: Origin) -> rusqlite::Result
     )?;
     let rows = st.query_map([id], |r| {
         let kind: String = r.get(3)?;
+        let kind = PropertyKind::parse(&kind).unwrap_or(PropertyKind::Estimated);
+        let licence: String = r.get(5)?;
         Ok(Property {
             property: r.get(0)?,
             value: r.get(1)?,
             unit: r.get(2)?,
-            kind: PropertyKind::parse(&kind).unwrap_or(PropertyKind::Estimated),
+            kind,
             source: r.get(4)?,
-            licence: r.get(5)?,
+            // structure estimates stored beside a user compound were computed by phasewise,
+            // not supplied by the user: they must not carry the user's rank
+            origin: if origin == Origin::User && is_computed(kind, &licence) {
+                Origin::Computed
+            } else {
+                origin
+            },
+            licence,
             detail: r.get(6)?,
-            origin,
         })
     })?;
     rows.collect()
+}
+
+/// Whether a stored row is one of phasewise's own structure estimates.
+pub(crate) fn is_computed(kind: PropertyKind, licence: &str) -> bool {
+    kind == PropertyKind::Estimated && licence == crate::property::estimate::LICENCE_COMPUTED
+}
+
+/// Drop overlay rows computed by phasewise that repeat a shipped row (same property, method
+/// and value): overlays written before 0.1.1 stored the structure estimates of shipped
+/// compounds a second time.
+fn drop_repeated_estimates(props: &mut Vec<Property>) {
+    let shipped: Vec<(String, String, f64)> = props
+        .iter()
+        .filter(|p| p.origin == Origin::Shipped && p.kind == PropertyKind::Estimated)
+        .map(|p| (p.property.clone(), p.source.clone(), p.value))
+        .collect();
+    props.retain(|p| {
+        p.origin != Origin::Computed
+            || !shipped.iter().any(|(n, s, v)| {
+                *n == p.property && *s == p.source && (v - p.value).abs() <= 1e-9 * v.abs().max(1.0)
+            })
+    });
 }
 
 impl Kb {
@@ -227,6 +257,7 @@ impl Kb {
                 let extra = properties_of(&self.shipped, srow.id, Origin::Shipped)
                     .map_err(|e| KbError::sql(&self.shipped_path, e))?;
                 a.properties.extend(extra);
+                drop_repeated_estimates(&mut a.properties);
                 fill_identity(&mut a, &srow);
             }
             a.sort_properties();
@@ -245,6 +276,7 @@ impl Kb {
             let extra = properties_of(u, urow.id, Origin::User)
                 .map_err(|e| KbError::sql(&self.user_path, e))?;
             a.properties.extend(extra);
+            drop_repeated_estimates(&mut a.properties);
         }
         a.sort_properties();
         Ok(Some(a))

@@ -44,3 +44,33 @@ CREATE INDEX property_compound ON property(compound_id);
 CREATE VIRTUAL TABLE name_trigram USING fts5(norm, content='', tokenize='trigram', detail='none', contentless_delete=1);
 CREATE VIRTUAL TABLE name_trigram_vocab USING fts5vocab(name_trigram, 'row');
 -- end
+
+-- migration 2
+-- Retention fits from the user's own scouting runs (`phasewise scout --store`): one row per
+-- analyte and chromatographic system. Only the user overlay holds rows; the table exists in
+-- the shipped base too because both share this schema.
+CREATE TABLE retention_fit (
+    id INTEGER PRIMARY KEY,
+    analyte TEXT NOT NULL,
+    inchikey TEXT NOT NULL,
+    phase_id TEXT NOT NULL,
+    mode TEXT NOT NULL CHECK (mode IN ('rp', 'hilic')),
+    chem_class TEXT NOT NULL,
+    modifier TEXT NOT NULL CHECK (modifier IN ('acetonitrile', 'methanol')),
+    ph REAL NOT NULL,
+    temperature_c REAL,
+    log_kw REAL NOT NULL,
+    s REAL NOT NULL,
+    log_kw_sd REAL NOT NULL,
+    s_sd REAL NOT NULL,
+    correlation REAL NOT NULL,
+    rms_residual_min REAL NOT NULL,
+    gradients TEXT NOT NULL,
+    t0_min REAL NOT NULL,
+    dwell_min REAL NOT NULL,
+    flow_ml_min REAL,
+    source TEXT NOT NULL,
+    stored_on TEXT NOT NULL
+);
+CREATE INDEX retention_fit_inchikey ON retention_fit(inchikey);
+-- end

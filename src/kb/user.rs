@@ -200,7 +200,7 @@ pub struct SkippedRow {
 
 impl Kb {
     /// The user overlay for writing, opened (and created) on demand.
-    fn user_mut(&mut self) -> Result<&mut Connection, KbError> {
+    pub(crate) fn user_mut(&mut self) -> Result<&mut Connection, KbError> {
         if self.user.is_none() {
             self.user = Some(open_user(&self.user_path)?);
         }
@@ -215,6 +215,7 @@ impl Kb {
     /// Bad identifiers, a bad SMILES string, database failures.
     pub fn add_compound(&mut self, c: &NewCompound) -> Result<(), KbError> {
         let c = self.complete(c)?;
+        let estimates = !self.shipped_has_structure(&c)?;
         let path = self.user_path.clone();
         let conn = self.user_mut()?;
         // IMMEDIATE takes the write lock up front, so a second writer waits (busy timeout)
@@ -222,8 +223,29 @@ impl Kb {
         let tx = conn
             .transaction_with_behavior(rusqlite::TransactionBehavior::Immediate)
             .map_err(|e| KbError::sql(&path, e))?;
-        insert_compound(&tx, &c).map_err(|e| KbError::sql(&path, e))?;
+        insert_compound(&tx, &c, estimates).map_err(|e| KbError::sql(&path, e))?;
         tx.commit().map_err(|e| KbError::sql(&path, e))
+    }
+
+    /// Whether the shipped base already holds this compound with the same structure, so that
+    /// its structure estimates are already there and must not be stored again in the overlay.
+    fn shipped_has_structure(&self, c: &NewCompound) -> Result<bool, KbError> {
+        let Some(key) = &c.inchikey else {
+            return Ok(false);
+        };
+        let hit = super::resolve::find_row(
+            &self.shipped,
+            &super::identifier::Query::InchiKey(key.clone()),
+        )
+        .map_err(|e| KbError::sql(&self.shipped_path, e))?;
+        Ok(match hit {
+            Some(((_, shipped_smiles), _)) => match (&c.smiles, &shipped_smiles) {
+                (None, _) => true,
+                (Some(a), Some(b)) => a == b,
+                (Some(_), None) => false,
+            },
+            None => false,
+        })
     }
 
     /// Validate identifiers and fill in the InChIKey from the shipped base when the name,
@@ -288,7 +310,11 @@ impl Kb {
         let mut good = Vec::new();
         let mut report = ImportReport::default();
         for (line, row) in rows {
-            match row.and_then(|c| self.complete(&c)) {
+            match row.and_then(|c| {
+                let c = self.complete(&c)?;
+                let estimates = !self.shipped_has_structure(&c)?;
+                Ok((c, estimates))
+            }) {
                 Ok(c) => good.push(c),
                 Err(e) if skip_bad => report.skipped.push(SkippedRow {
                     line,
@@ -304,15 +330,36 @@ impl Kb {
         let tx = conn
             .transaction_with_behavior(rusqlite::TransactionBehavior::Immediate)
             .map_err(|e| KbError::sql(&path, e))?;
-        for c in &good {
-            insert_compound(&tx, c).map_err(|e| KbError::sql(&path, e))?;
+        // Rows of one compound (same InChIKey, or same name without one) are merged: each
+        // row adds its values with its own kind and source (this is how `kb export` writes a
+        // compound whose values come from several sources). A compound already in the overlay
+        // before the import is replaced by the file's rows, as a single `kb add` would.
+        let mut written: Vec<(String, i64)> = Vec::new();
+        for (c, estimates) in &good {
+            let key = compound_key(c);
+            match written.iter().find(|(k, _)| *k == key) {
+                Some((_, id)) => {
+                    append_to_compound(&tx, *id, c).map_err(|e| KbError::sql(&path, e))?
+                }
+                None => {
+                    let id =
+                        insert_compound(&tx, c, *estimates).map_err(|e| KbError::sql(&path, e))?;
+                    written.push((key, id));
+                }
+            }
         }
         tx.commit().map_err(|e| KbError::sql(&path, e))?;
-        report.imported = good.len();
+        report.imported = written.len();
         Ok(report)
     }
 
     /// Export the user overlay in the import format (TSV), so that it can be re-imported.
+    ///
+    /// Only what the user supplied is written: one row per compound and (kind, source) group
+    /// of its values, so that every value keeps its own provenance. phasewise's structure
+    /// estimates are left out (`kb import` recomputes them from the SMILES). Values are
+    /// written with 12 significant digits, which removes binary noise from unit conversions
+    /// (e.g. `351.55`, not `351.54999999999995`) and is far below any measurement's precision.
     ///
     /// # Errors
     /// Database failures.
@@ -334,42 +381,95 @@ impl Kb {
             .map_err(|e| KbError::sql(p, e))?
             .collect::<Result<_, _>>()
             .map_err(|e| KbError::sql(p, e))?;
+        type Prop = (String, f64, String, String, String, String);
         for (id, name, smiles, cas, key) in rows {
             let syn: Vec<String> = conn
                 .prepare("SELECT name FROM name WHERE compound_id = ?1 AND rank > 0 ORDER BY id")
                 .and_then(|mut s| s.query_map([id], |r| r.get(0))?.collect())
                 .map_err(|e| KbError::sql(p, e))?;
-            let props: Vec<(String, f64, String, String, String)> = conn
-                .prepare("SELECT property, value, detail, kind, source FROM property WHERE compound_id = ?1 ORDER BY id")
-                .and_then(|mut s| s.query_map([id], |r| Ok((r.get(0)?, r.get(1)?, r.get(2)?, r.get(3)?, r.get(4)?)))?.collect())
+            let props: Vec<Prop> = conn
+                .prepare("SELECT property, value, detail, kind, source, licence FROM property WHERE compound_id = ?1 ORDER BY id")
+                .and_then(|mut s| s.query_map([id], |r| Ok((r.get(0)?, r.get(1)?, r.get(2)?, r.get(3)?, r.get(4)?, r.get(5)?)))?.collect())
                 .map_err(|e| KbError::sql(p, e))?;
-            let (kind, source) = props
-                .first()
-                .map(|(_, _, _, k, s)| (k.clone(), s.clone()))
-                .unwrap_or_else(|| ("experimental".into(), "user".into()));
-            let plist: Vec<String> = props
-                .iter()
-                .map(|(n, v, d, _, _)| {
-                    if d.is_empty() {
-                        format!("{n}={v}")
-                    } else {
-                        format!("{n}={v};{d}")
-                    }
-                })
-                .collect();
-            out.push_str(&format!(
-                "{}\t{}\t{}\t{}\t{}\t{}\t{}\t{}\n",
-                clean(&name),
-                clean(smiles.as_deref().unwrap_or("")),
-                clean(cas.as_deref().unwrap_or("")),
-                clean(key.as_deref().unwrap_or("")),
-                syn.iter().map(|s| clean(s)).collect::<Vec<_>>().join("|"),
-                kind,
-                clean(&source),
-                plist.join(" ")
-            ));
+            // (kind, source) groups in the order their first value was stored
+            let mut groups: Vec<((String, String), Vec<String>)> = Vec::new();
+            for (n, v, d, k, src, licence) in &props {
+                let kind = PropertyKind::parse(k).unwrap_or(PropertyKind::Estimated);
+                if super::resolve::is_computed(kind, licence) {
+                    continue;
+                }
+                let item = if d.is_empty() {
+                    format!("{n}={}", export_number(*v))
+                } else {
+                    format!("{n}={};{d}", export_number(*v))
+                };
+                let g = (k.clone(), src.clone());
+                match groups.iter_mut().find(|(gk, _)| *gk == g) {
+                    Some((_, items)) => items.push(item),
+                    None => groups.push((g, vec![item])),
+                }
+            }
+            if groups.is_empty() {
+                // a compound with no values of its own (a structure or a name only); `user`
+                // keeps the row importable, which needs a source
+                groups.push((("experimental".into(), "user".into()), Vec::new()));
+            }
+            for ((kind, source), items) in groups {
+                out.push_str(&format!(
+                    "{}\t{}\t{}\t{}\t{}\t{}\t{}\t{}\n",
+                    clean(&name),
+                    clean(smiles.as_deref().unwrap_or("")),
+                    clean(cas.as_deref().unwrap_or("")),
+                    clean(key.as_deref().unwrap_or("")),
+                    syn.iter().map(|s| clean(s)).collect::<Vec<_>>().join("|"),
+                    kind,
+                    clean(&source),
+                    items
+                        .iter()
+                        .map(|i| clean(i).replace(' ', ""))
+                        .collect::<Vec<_>>()
+                        .join(" ")
+                ));
+            }
         }
         Ok(out)
+    }
+}
+
+/// A value with 12 significant digits, trailing zeros removed, in a form `parse_property`
+/// reads back.
+fn export_number(v: f64) -> String {
+    if v == 0.0 || !v.is_finite() {
+        return format!("{v}");
+    }
+    let s = format!("{v:.11e}");
+    let (mant, exp) = s.split_once('e').unwrap_or((&s, "0"));
+    let mant = if mant.contains('.') {
+        mant.trim_end_matches('0').trim_end_matches('.')
+    } else {
+        mant
+    };
+    let e: i32 = exp.parse().unwrap_or(0);
+    let text = format!("{mant}e{e}");
+    // plain decimal when it is as short and exact: 351.55 rather than 3.5155e2
+    match text.parse::<f64>() {
+        Ok(x) if (-6..=15).contains(&e) => {
+            let plain = format!("{x}");
+            if plain.parse::<f64>().ok() == Some(x) {
+                plain
+            } else {
+                text
+            }
+        }
+        _ => text,
+    }
+}
+
+/// The key that identifies a compound across rows of one import file.
+fn compound_key(c: &NewCompound) -> String {
+    match &c.inchikey {
+        Some(k) => format!("key:{k}"),
+        None => format!("name:{}", normalise_name(&c.name)),
     }
 }
 
@@ -378,10 +478,15 @@ fn clean(s: &str) -> String {
     s.replace(['\t', '\n', '\r'], " ")
 }
 
+/// Write one compound (replacing an earlier user record of it) and return its row id.
+/// `estimates`: also store phasewise's structure estimates (only for compounds the shipped
+/// base does not already hold with this structure). The formula and molar mass are computed
+/// from the SMILES when there is one.
 pub(crate) fn insert_compound(
     tx: &rusqlite::Transaction<'_>,
     c: &NewCompound,
-) -> rusqlite::Result<()> {
+    estimates: bool,
+) -> rusqlite::Result<i64> {
     // Replace an earlier user record of the same compound (same InChIKey or same name).
     let norm = normalise_name(&c.name);
     let old: Vec<i64> = {
@@ -410,13 +515,70 @@ pub(crate) fn insert_compound(
         tx.execute("DELETE FROM name WHERE compound_id = ?1", [id])?;
         tx.execute("DELETE FROM compound WHERE id = ?1", [id])?;
     }
+    let est = c
+        .smiles
+        .as_deref()
+        .and_then(|s| crate::property::estimate::estimate(s).ok());
+    let formula = est
+        .as_ref()
+        .map(|e| e.descriptors.molecular_formula.clone());
+    let molar_mass = est.as_ref().and_then(|e| e.descriptors.molar_mass_g_mol);
     tx.execute(
         "INSERT INTO compound(inchikey, preferred_name, smiles, formula, molar_mass_g_mol, cid, cas, origin)
-         VALUES (?1, ?2, ?3, NULL, NULL, NULL, ?4, 'user')",
-        params![c.inchikey, c.name, c.smiles, c.cas],
+         VALUES (?1, ?2, ?3, ?4, ?5, NULL, ?6, 'user')",
+        params![c.inchikey, c.name, c.smiles, formula, molar_mass, c.cas],
     )?;
     let id = tx.last_insert_rowid();
-    let mut seen = Vec::new();
+    insert_names(tx, id, c, true)?;
+    if estimates && let Some(e) = &est {
+        let mut ins = tx.prepare(
+            "INSERT INTO property(compound_id, property, value, unit, kind, source, licence, detail)
+             VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8)",
+        )?;
+        super::build::insert_values(&mut ins, id, &e.values())?;
+    }
+    insert_user_values(tx, id, c)?;
+    Ok(id)
+}
+
+/// Add a further row of an already written compound (same import file): its names not yet
+/// present and its values with the row's own kind and source.
+fn append_to_compound(
+    tx: &rusqlite::Transaction<'_>,
+    id: i64,
+    c: &NewCompound,
+) -> rusqlite::Result<()> {
+    insert_names(tx, id, c, false)?;
+    insert_user_values(tx, id, c)
+}
+
+fn insert_user_values(
+    tx: &rusqlite::Transaction<'_>,
+    id: i64,
+    c: &NewCompound,
+) -> rusqlite::Result<()> {
+    for p in &c.properties {
+        tx.execute(
+            "INSERT INTO property(compound_id, property, value, unit, kind, source, licence, detail)
+             VALUES (?1, ?2, ?3, ?4, ?5, ?6, 'user data', ?7)",
+            params![id, p.property, p.value, p.unit, c.kind.as_str(), c.source, p.detail],
+        )?;
+    }
+    Ok(())
+}
+
+/// Names of a compound; `first` makes the row's name the preferred one (rank 0), otherwise
+/// every new name is a synonym. Names already stored for the compound are skipped.
+fn insert_names(
+    tx: &rusqlite::Transaction<'_>,
+    id: i64,
+    c: &NewCompound,
+    first: bool,
+) -> rusqlite::Result<()> {
+    let mut seen: Vec<String> = tx
+        .prepare("SELECT norm FROM name WHERE compound_id = ?1")?
+        .query_map([id], |r| r.get(0))?
+        .collect::<Result<_, _>>()?;
     for (j, n) in std::iter::once(&c.name)
         .chain(c.synonyms.iter())
         .enumerate()
@@ -427,7 +589,7 @@ pub(crate) fn insert_compound(
         }
         tx.execute(
             "INSERT INTO name(compound_id, name, norm, rank) VALUES (?1, ?2, ?3, ?4)",
-            params![id, n, norm, if j == 0 { 0 } else { 1 }],
+            params![id, n, norm, if j == 0 && first { 0 } else { 1 }],
         )?;
         let nid = tx.last_insert_rowid();
         if norm.len() >= 2 {
@@ -440,20 +602,6 @@ pub(crate) fn insert_compound(
             )?;
         }
         seen.push(norm);
-    }
-    if let Some(smiles) = &c.smiles {
-        let mut ins = tx.prepare(
-            "INSERT INTO property(compound_id, property, value, unit, kind, source, licence, detail)
-             VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8)",
-        )?;
-        super::build::insert_estimates(&mut ins, id, smiles)?;
-    }
-    for p in &c.properties {
-        tx.execute(
-            "INSERT INTO property(compound_id, property, value, unit, kind, source, licence, detail)
-             VALUES (?1, ?2, ?3, ?4, ?5, ?6, 'user data', ?7)",
-            params![id, p.property, p.value, p.unit, c.kind.as_str(), c.source, p.detail],
-        )?;
     }
     Ok(())
 }

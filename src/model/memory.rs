@@ -496,9 +496,304 @@ impl MemoryTable {
     }
 }
 
+// ---------------------------------------------------------------------------------------------
+// The user's own scouting fits
+// ---------------------------------------------------------------------------------------------
+
+/// Largest pH difference at which a stored fit counts as measured on the target system
+/// (common practice for method robustness ranges, ±0.2 pH; no source).
+pub const FIT_PH_TOLERANCE: f64 = 0.2;
+/// Largest temperature difference, °C, at which a stored fit counts as measured on the target
+/// system, when both temperatures are known (common practice, no source).
+pub const FIT_TEMPERATURE_TOLERANCE_C: f64 = 5.0;
+/// Run-to-run retention error of one run, min: the repeatability the scouting fit assumes
+/// (`measured::scout::RETENTION_ERROR_MIN`; common practice, no source).
+pub const FIT_RETENTION_ERROR_MIN: f64 = 0.01;
+/// z value of a central 90 % normal interval.
+const Z90: f64 = 1.644_853_6;
+
+/// log kw and S fitted to the user's own scouting runs (`phasewise scout --store`), with the
+/// system they were measured on, as the retention model uses them.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct StoredFit {
+    /// InChIKey of the analyte.
+    pub inchikey: String,
+    /// Stationary-phase id of the runs (catalogue id).
+    pub phase_id: String,
+    /// The scouting system as the model reads it: mode, chemistry class, modifier, pH,
+    /// temperature, the first run's gradient program, dead and dwell time. The additive is not
+    /// recorded by `scout` and is `Other`; the flow is 1 mL/min when not given (the model's
+    /// system features do not use the flow).
+    pub system: LcSystem,
+    /// Fitted parameters (log k = log kw − S φ, φ the organic volume fraction).
+    pub lss: crate::model::gradient::LssParameters,
+    /// 1σ uncertainty of log kw.
+    pub log_kw_uncertainty: f64,
+    /// 1σ uncertainty of S.
+    pub s_uncertainty: f64,
+    /// Correlation of the two estimates.
+    pub correlation: f64,
+    /// RMS retention residual of the fit, min.
+    pub rms_residual_min: f64,
+    /// The user's source text.
+    pub source: String,
+}
+
+impl StoredFit {
+    /// Strong-solvent fraction at which k = 1, the retention memory's `psi_k1`: log kw / S is
+    /// the organic fraction at k = 1, which is psi in RP; in HILIC water is the strong solvent,
+    /// so psi = 1 − log kw / S (the model's convention, see `regression` module docs).
+    pub fn psi_k1(&self) -> f64 {
+        let organic_fraction = self.lss.log_kw / self.lss.s;
+        match self.system.mode {
+            Mode::ReversedPhase => organic_fraction,
+            Mode::Hilic => 1.0 - organic_fraction,
+        }
+    }
+
+    /// The id this fit carries as a retention-memory source: the user's source text and the
+    /// system, e.g. `user: notebook 12 p. 4 [rp-c18, acetonitrile, pH 3]`.
+    pub fn system_id(&self) -> String {
+        format!(
+            "user: {} [{}, {}, pH {}{}]",
+            self.source,
+            self.phase_id,
+            match self.system.modifier {
+                Modifier::Methanol => "methanol",
+                _ => "acetonitrile",
+            },
+            self.system
+                .ph
+                .map_or_else(|| "?".to_string(), |p| format!("{p}")),
+            self.system
+                .temperature_c
+                .map_or_else(String::new, |t| format!(", {t} °C"))
+        )
+    }
+
+    /// Whether the fit was measured on the target system: same phase id and modifier, pH
+    /// within [`FIT_PH_TOLERANCE`], and temperature within [`FIT_TEMPERATURE_TOLERANCE_C`]
+    /// when both are known (`target_temperature_c` is `None` when the user did not give one).
+    pub fn matches(
+        &self,
+        phase_id: &str,
+        target: &LcSystem,
+        target_temperature_c: Option<f64>,
+    ) -> bool {
+        let ph_ok = match (self.system.ph, target.ph) {
+            (Some(a), Some(b)) => (a - b).abs() <= FIT_PH_TOLERANCE + 1e-9,
+            _ => false,
+        };
+        let t_ok = match (self.system.temperature_c, target_temperature_c) {
+            (Some(a), Some(b)) => (a - b).abs() <= FIT_TEMPERATURE_TOLERANCE_C + 1e-9,
+            _ => true,
+        };
+        self.phase_id == phase_id
+            && self.system.mode == target.mode
+            && self.system.modifier == target.modifier
+            && ph_ok
+            && t_ok
+    }
+
+    /// Predict retention on `target` (which [`StoredFit::matches`]) directly from the fitted
+    /// log kw and S with the gradient equation ([`crate::model::gradient::gradient_elution`]).
+    ///
+    /// Interval: a central 90 % normal interval, `tR ± 1.645 σ`, with
+    /// `σ² = σt² + gᵀ C g`: σt the retention error of one run (the fit's RMS residual, at least
+    /// the scouting fit's assumed 0.01 min repeatability), C the covariance of (log kw, S) from
+    /// the fit and g the gradient of tR with respect to (log kw, S) on the target program
+    /// (central differences). The first term is the new run's own scatter, the second the
+    /// extrapolation of the fit to a program it was not measured on.
+    ///
+    /// # Errors
+    /// An invalid target system or a gradient on which the analyte does not elute.
+    pub fn predict(
+        &self,
+        target: &LcSystem,
+        coelution_map_memory: Vec<(f64, f64)>,
+        coelution_map_descriptor: Vec<(f64, f64)>,
+    ) -> Result<super::regression::Prediction, ModelError> {
+        use crate::model::gradient::{
+            GradientPoint as Point, GradientProgram, GradientSystem, LssParameters,
+            gradient_elution,
+        };
+        target.validate()?;
+        let points: Vec<Point> = target
+            .gradient
+            .iter()
+            .map(|p| Point {
+                time_min: p.time_min,
+                organic_pct: p.organic_pct,
+            })
+            .collect();
+        let program = GradientProgram::from_points(&points)
+            .map_err(|e| ModelError::BadGradient(e.to_string()))?;
+        let gsys = GradientSystem {
+            dead_time_min: target.t0_min,
+            dwell_time_min: target.dwell_min,
+        };
+        let rt_of = |p: &LssParameters| -> Result<f64, ModelError> {
+            gradient_elution(p, &program, &gsys)
+                .map(|e| e.retention_time_min)
+                .map_err(|e| ModelError::BadGradient(e.to_string()))
+        };
+        let elution = gradient_elution(&self.lss, &program, &gsys)
+            .map_err(|e| ModelError::BadGradient(e.to_string()))?;
+        let rt = elution.retention_time_min;
+        let (a, s) = (self.lss.log_kw, self.lss.s);
+        let (ha, hs) = (1e-4, 1e-4 * s.abs().max(1.0));
+        let d_a = (rt_of(&LssParameters { log_kw: a + ha, s })?
+            - rt_of(&LssParameters { log_kw: a - ha, s })?)
+            / (2.0 * ha);
+        let d_s = (rt_of(&LssParameters {
+            log_kw: a,
+            s: s + hs,
+        })? - rt_of(&LssParameters {
+            log_kw: a,
+            s: s - hs,
+        })?) / (2.0 * hs);
+        let (sa, ss) = (self.log_kw_uncertainty, self.s_uncertainty);
+        let rho = self.correlation.clamp(-1.0, 1.0);
+        let var_param = (d_a * sa).powi(2) + (d_s * ss).powi(2) + 2.0 * d_a * d_s * rho * sa * ss;
+        let sigma_run = self.rms_residual_min.max(FIT_RETENTION_ERROR_MIN);
+        let sigma = (sigma_run.powi(2) + var_param.max(0.0)).sqrt();
+        // d tR / d psi_k1 at fixed S: psi = log kw / S in RP (1 − log kw / S in HILIC), so
+        // d log kw = ±S d psi
+        let slope = match target.mode {
+            Mode::ReversedPhase => d_a * s,
+            Mode::Hilic => -d_a * s,
+        };
+        let sd_psi = if slope.abs() > 1e-12 {
+            sigma / slope.abs()
+        } else {
+            0.05
+        };
+        let t_out = rt - target.t0_min - target.dwell_min;
+        Ok(super::regression::Prediction {
+            rt_min: rt,
+            interval_min: ((rt - Z90 * sigma).max(target.t0_min), rt + Z90 * sigma),
+            organic_at_elution_pct: target.organic_at_pct(t_out),
+            psi_k1: self.psi_k1(),
+            lss_s: s,
+            elutes_after_program: rt - target.t0_min > target.program_end_min(),
+            path: super::regression::PredictionPath::ScoutingFit {
+                source: self.source.clone(),
+            },
+            difference_sd_psi: vec![(10.0, sd_psi)],
+            rt_slope_min: slope,
+            coelution_map_descriptor,
+            coelution_map_memory,
+            system: target.fingerprint(),
+        })
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::model::gradient::{
+        GradientProgram, GradientSystem, LssParameters, gradient_elution,
+    };
+    use crate::model::regression::GradientPoint;
+
+    fn rp_system(ph: f64, temperature_c: Option<f64>, program: &[(f64, f64)]) -> LcSystem {
+        LcSystem {
+            mode: Mode::ReversedPhase,
+            chem_class: ChemClass::C18,
+            modifier: Modifier::Acetonitrile,
+            ph: Some(ph),
+            additive: Additive::Other,
+            gradient: program
+                .iter()
+                .map(|&(time_min, organic_pct)| GradientPoint {
+                    time_min,
+                    organic_pct,
+                })
+                .collect(),
+            t0_min: 1.0,
+            dwell_min: 0.5,
+            flow_ml_min: 1.0,
+            temperature_c,
+        }
+    }
+
+    /// Invented fit (not a measured compound).
+    fn fit(ph: f64, temperature_c: Option<f64>) -> StoredFit {
+        StoredFit {
+            inchikey: "KEY".into(),
+            phase_id: "rp-c18".into(),
+            system: rp_system(ph, temperature_c, &[(0.0, 5.0), (10.0, 95.0)]),
+            lss: LssParameters {
+                log_kw: 2.0,
+                s: 4.0,
+            },
+            log_kw_uncertainty: 0.01,
+            s_uncertainty: 0.03,
+            correlation: 0.9,
+            rms_residual_min: 0.0,
+            source: "notebook (invented)".into(),
+        }
+    }
+
+    #[test]
+    fn a_fit_matches_only_its_own_system_within_the_tolerances() {
+        let f = fit(3.0, Some(30.0));
+        let target = |ph, t| rp_system(ph, t, &[(0.0, 5.0), (20.0, 95.0)]);
+        assert!(f.matches("rp-c18", &target(3.2, Some(35.0)), Some(35.0)));
+        assert!(f.matches("rp-c18", &target(2.8, None), None));
+        assert!(!f.matches("rp-c18", &target(3.3, None), None));
+        assert!(!f.matches("rp-c18", &target(3.0, Some(40.0)), Some(40.0)));
+        assert!(!f.matches("rp-c8", &target(3.0, None), None));
+        let mut meoh = target(3.0, None);
+        meoh.modifier = Modifier::Methanol;
+        assert!(!f.matches("rp-c18", &meoh, None));
+    }
+
+    #[test]
+    fn psi_k1_is_log_kw_over_s_in_the_strong_solvent() {
+        let mut f = fit(3.0, None);
+        assert!((f.psi_k1() - 0.5).abs() < 1e-12);
+        f.system.mode = Mode::Hilic;
+        assert!((f.psi_k1() - 0.5).abs() < 1e-12);
+        f.lss.log_kw = 1.0;
+        assert!((f.psi_k1() - 0.75).abs() < 1e-12);
+        assert!(
+            f.system_id()
+                .starts_with("user: notebook (invented) [rp-c18")
+        );
+    }
+
+    #[test]
+    fn direct_prediction_is_the_gradient_equation_with_an_interval_around_it() {
+        let f = fit(3.0, None);
+        let target = rp_system(3.0, None, &[(0.0, 5.0), (20.0, 95.0), (25.0, 95.0)]);
+        let p = f.predict(&target, Vec::new(), Vec::new()).unwrap();
+        let want = gradient_elution(
+            &f.lss,
+            &GradientProgram::parse("0:5,20:95,25:95").unwrap(),
+            &GradientSystem {
+                dead_time_min: 1.0,
+                dwell_time_min: 0.5,
+            },
+        )
+        .unwrap()
+        .retention_time_min;
+        assert!((p.rt_min - want).abs() < 1e-9);
+        assert_eq!(p.path.label(), "scouting fit");
+        let (lo, hi) = p.interval_min;
+        // at least ±1.645 × 0.01 min (the run repeatability) and symmetric
+        assert!(lo < want - 0.016 && hi > want + 0.016, "{lo} {hi}");
+        assert!(((want - lo) - (hi - want)).abs() < 1e-9);
+        // a larger parameter uncertainty widens it
+        let mut g = fit(3.0, None);
+        g.s_uncertainty = 0.3;
+        let q = g.predict(&target, Vec::new(), Vec::new()).unwrap();
+        assert!(q.interval_min.1 - q.interval_min.0 > hi - lo);
+        // an invalid target is an error naming the value
+        let mut bad = target.clone();
+        bad.t0_min = -1.0;
+        assert!(f.predict(&bad, Vec::new(), Vec::new()).is_err());
+    }
 
     #[test]
     fn combine_single_and_many_sources() {

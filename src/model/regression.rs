@@ -563,14 +563,21 @@ pub enum PredictionPath {
     },
     /// From descriptors only.
     Descriptor,
+    /// Directly from log kw and S fitted to the user's own scouting runs on this system
+    /// (`scout --store`), through the gradient equation.
+    ScoutingFit {
+        /// The user's source text of the runs (lab notebook, report).
+        source: String,
+    },
 }
 
 impl PredictionPath {
-    /// `memory` or `descriptor`.
+    /// `memory`, `descriptor` or `scouting fit`.
     pub fn label(&self) -> &'static str {
         match self {
             PredictionPath::Memory { .. } => "memory",
             PredictionPath::Descriptor => "descriptor",
+            PredictionPath::ScoutingFit { .. } => "scouting fit",
         }
     }
 }
@@ -663,6 +670,11 @@ pub fn coelution_probability(
         0.5 * (a.rt_slope_min + b.rt_slope_min),
         peak_width_min,
     );
+    let both_fit = a.path.label() == "scouting fit" && b.path.label() == "scouting fit";
+    if both_fit {
+        // no calibration map exists for the user's own fits: the raw normal-error probability
+        return Ok(raw);
+    }
     let both_memory = a.path.label() == "memory" && b.path.label() == "memory";
     let map = if both_memory {
         &a.coelution_map_memory
@@ -1114,6 +1126,23 @@ impl Model {
         sys: &LcSystem,
         exclude: Option<&str>,
     ) -> Result<Prediction, ModelError> {
+        self.predict_with_memory(f, sys, exclude, &[])
+    }
+
+    /// As `predict_excluding`, with further retention-memory sources of this analyte beside
+    /// the shipped table: `(system id, source system, measured psi_k1)`, e.g. the user's stored
+    /// scouting fits on other systems. With no extra sources this is exactly
+    /// `predict_excluding`.
+    ///
+    /// # Errors
+    /// As `predict`; an invalid extra source system.
+    pub fn predict_with_memory(
+        &self,
+        f: &AnalyteFeatures,
+        sys: &LcSystem,
+        exclude: Option<&str>,
+        extra: &[(String, LcSystem, f64)],
+    ) -> Result<Prediction, ModelError> {
         sys.validate()?;
         let mw = *f
             .descriptors
@@ -1126,9 +1155,18 @@ impl Model {
         let base = self.linear.predict_z(&z, &system_features(sys), &mut buf);
         let mut psi = base;
         let mut path = PredictionPath::Descriptor;
-        if let (Some(mem), Some(key)) = (&self.memory, &f.inchikey) {
+        let shipped = match (&self.memory, &f.inchikey) {
+            (Some(mem), Some(key)) => mem.measurements(key).collect::<Vec<_>>(),
+            _ => Vec::new(),
+        };
+        for (_, s, _) in extra {
+            s.validate()?;
+        }
+        let user = extra.iter().map(|(id, s, psi)| (id.as_str(), s, *psi));
+        let all: Vec<(&str, &LcSystem, f64)> = shipped.into_iter().chain(user).collect();
+        if !all.is_empty() {
             let mut sources = Vec::new();
-            for (sid, src_sys, measured) in mem.measurements(key) {
+            for (sid, src_sys, measured) in all {
                 if Some(sid) == exclude || src_sys.mode != sys.mode {
                     continue;
                 }

@@ -3,7 +3,9 @@
 //! Every property value carries its unit, whether it was measured (`experimental`, with its
 //! source) or computed (`estimated`, with its method), and the licence under which the value
 //! may be passed on. When several values exist for one property the precedence is:
-//! the user's own overlay, then experimental, then estimated; ties keep their stored order.
+//! experimental before estimated whatever the origin (a measured value always beats a computed
+//! one); within each kind the user's own overlay before the shipped base and phasewise's own
+//! structure estimates; ties keep their stored order.
 
 pub mod estimate;
 pub mod ionisation;
@@ -49,6 +51,9 @@ pub enum Origin {
     User,
     /// Not in any database: known only from the SMILES the user gave.
     Structure,
+    /// Estimated by phasewise from a structure the user stored in the overlay (a compound new
+    /// to the shipped base): computed, not supplied by the user.
+    Computed,
 }
 
 /// The properties phasewise knows by name, with their canonical units.
@@ -143,7 +148,8 @@ pub struct Analyte {
 }
 
 impl Analyte {
-    /// Sort properties by name, then by precedence (user > experimental > estimated).
+    /// Sort properties by name, then by precedence (experimental > estimated; within a kind,
+    /// user > shipped and computed).
     pub fn sort_properties(&mut self) {
         self.properties.sort_by(|a, b| {
             a.property
@@ -168,16 +174,18 @@ impl Analyte {
     }
 }
 
+/// Rank of a value: kind first (measured beats computed whatever the origin), then origin
+/// (the user's own values beat the shipped base and phasewise's structure estimates).
 fn precedence(p: &Property) -> (u8, u8) {
-    let origin = match p.origin {
-        Origin::User => 0,
-        Origin::Shipped | Origin::Structure => 1,
-    };
     let kind = match p.kind {
         PropertyKind::Experimental => 0,
         PropertyKind::Estimated => 1,
     };
-    (origin, kind)
+    let origin = match p.origin {
+        Origin::User => 0,
+        Origin::Shipped | Origin::Structure | Origin::Computed => 1,
+    };
+    (kind, origin)
 }
 
 #[cfg(test)]
@@ -198,7 +206,7 @@ mod tests {
     }
 
     #[test]
-    fn user_beats_experimental_beats_estimated() {
+    fn experimental_beats_estimated_whatever_the_origin() {
         let mut a = Analyte {
             query: "x".into(),
             name: "x".into(),
@@ -216,11 +224,19 @@ mod tests {
             ],
         };
         assert_eq!(a.best("logp").unwrap().value, 2.0);
+        // a user (or phasewise-computed) estimate never outranks a shipped measured value
         a.properties
             .push(prop(3.0, PropertyKind::Estimated, Origin::User));
-        assert_eq!(a.best("logp").unwrap().value, 3.0);
+        a.properties
+            .push(prop(3.5, PropertyKind::Estimated, Origin::Computed));
+        assert_eq!(a.best("logp").unwrap().value, 2.0);
+        // the user's measured value beats the shipped measured value
+        a.properties
+            .push(prop(4.0, PropertyKind::Experimental, Origin::User));
+        assert_eq!(a.best("logp").unwrap().value, 4.0);
         a.sort_properties();
-        assert_eq!(a.properties[0].value, 3.0);
+        let order: Vec<f64> = a.properties.iter().map(|p| p.value).collect();
+        assert_eq!(order, vec![4.0, 2.0, 3.0, 1.0, 3.5]);
     }
 
     #[test]

@@ -237,14 +237,30 @@ pub struct PredictionRow {
     pub retention_factor: f64,
     /// Predicted peak width at half height, min.
     pub peak_width_half_min: f64,
-    /// Which path predicted it (`memory`, `descriptor`, `retention-index`, `ion-table`, ...).
+    /// Which path predicted it (`scouting fit`, `memory`, `descriptor`, `retention-index`,
+    /// `ion-table`, ...).
     pub path: String,
+    /// For the `scouting fit` path: the user's source text of the stored runs; for `memory`
+    /// with the user's stored fits among the sources: those sources' ids.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub path_source: Option<String>,
     /// Retention index (GC) where applicable.
     pub retention_index: Option<f64>,
     /// For `memory` predictions, the ids of the source systems (RepoRT dataset ids) whose
     /// measurements were projected onto this system; empty for every other path.
     #[serde(default)]
     pub source_systems: Vec<String>,
+}
+
+impl PredictionRow {
+    /// The path with the user's source when there is one, e.g.
+    /// `scouting fit (notebook 12 p. 4)`, for tables.
+    pub fn path_label(&self) -> String {
+        match &self.path_source {
+            Some(src) => format!("{} ({src})", self.path),
+            None => self.path.clone(),
+        }
+    }
 }
 
 /// A pair at risk of co-eluting.
@@ -595,7 +611,7 @@ fn predictions_table(r: &Recommendation) -> String {
                 num(p.retention_factor, 2),
                 num(p.peak_width_half_min, 3),
                 p.retention_index.map_or("-".into(), |ri| num(ri, 0)),
-                p.path.clone(),
+                p.path_label(),
             ]
         })
         .collect();

@@ -148,6 +148,7 @@ pub fn render_optimum_svg(
                 peak_width_half_min: p.width_base_min * HALF_PER_BASE_WIDTH,
                 path: "scouting fit (LSS)".to_string(),
                 source_systems: Vec::new(),
+                path_source: None,
                 retention_index: None,
             }
         })

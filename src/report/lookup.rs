@@ -3,7 +3,7 @@
 
 use serde::{Deserialize, Serialize};
 
-use super::{Format, SCHEMA_VERSION, csv_cell, num, table};
+use super::{Format, SCHEMA_VERSION, csv_cell, num, sig, table};
 use crate::kb::resolve::Unresolved;
 use crate::property::Analyte;
 
@@ -40,6 +40,25 @@ impl LookupReport {
             Format::Csv => self.delimited(','),
             Format::Tsv => self.delimited('\t'),
         }
+    }
+
+    /// Distinct compounds in query order, each with every query that resolved to it (two
+    /// queries are the same compound when they share an InChIKey, or, without one, the same
+    /// name and structure). The tables and CSV show each compound's properties once.
+    fn distinct(&self) -> Vec<(Vec<&str>, &Analyte)> {
+        let mut out: Vec<(Vec<&str>, &Analyte)> = Vec::new();
+        for a in &self.analytes {
+            let same = |b: &Analyte| match (&a.inchikey, &b.inchikey) {
+                (Some(x), Some(y)) => x == y,
+                (None, None) => a.name == b.name && a.smiles == b.smiles,
+                _ => false,
+            };
+            match out.iter_mut().find(|(_, b)| same(b)) {
+                Some((queries, _)) => queries.push(&a.query),
+                None => out.push((vec![&a.query], a)),
+            }
+        }
+        out
     }
 
     fn table(&self) -> String {
@@ -80,14 +99,30 @@ impl LookupReport {
                 ],
                 &rows,
             ));
-            out.push_str("\n\nProperties (best value first; user > experimental > estimated)\n");
+            out.push_str(
+                "\n\nProperties (best value first; experimental > estimated, user > shipped within each)\n",
+            );
+            let distinct = self.distinct();
+            for (queries, a) in &distinct {
+                if queries.len() > 1 {
+                    out.push_str(&format!(
+                        "(queries {} are the same compound, {}: its properties are shown once)\n",
+                        queries
+                            .iter()
+                            .map(|q| format!("`{q}`"))
+                            .collect::<Vec<_>>()
+                            .join(" and "),
+                        a.name
+                    ));
+                }
+            }
             let mut prows = Vec::new();
-            for a in &self.analytes {
+            for (_, a) in &distinct {
                 for p in &a.properties {
                     prows.push(vec![
                         a.name.clone(),
                         p.property.clone(),
-                        num(p.value, 3),
+                        sig(p.value, 6),
                         if p.unit.is_empty() {
                             "(log units)".into()
                         } else {
@@ -180,18 +215,16 @@ impl LookupReport {
             );
             out.push('\n');
         };
-        for a in &self.analytes {
+        for (queries, a) in self.distinct() {
             let id = vec![
                 "resolved".to_string(),
-                a.query.clone(),
+                queries.join("; "),
                 a.name.clone(),
                 a.inchikey.clone().unwrap_or_default(),
                 a.cas.clone().unwrap_or_default(),
                 a.cid.map(|c| c.to_string()).unwrap_or_default(),
                 a.formula.clone().unwrap_or_default(),
-                a.molar_mass_g_mol
-                    .map(|m| m.to_string())
-                    .unwrap_or_default(),
+                a.molar_mass_g_mol.map(|m| sig(m, 6)).unwrap_or_default(),
                 a.smiles.clone().unwrap_or_default(),
             ];
             if a.properties.is_empty() {
@@ -203,7 +236,7 @@ impl LookupReport {
                 let mut c = id.clone();
                 c.extend([
                     p.property.clone(),
-                    p.value.to_string(),
+                    sig(p.value, 6),
                     p.unit.clone(),
                     p.kind.as_str().to_string(),
                     p.source.clone(),

@@ -43,6 +43,29 @@ pub fn num(v: f64, digits: usize) -> String {
     if s == "-0" { "0".to_string() } else { s }
 }
 
+/// Format a float for text and CSV output with `digits` significant digits (trailing zeros
+/// trimmed), so that binary noise such as `1.9950199999999998` prints as `1.99502`. JSON keeps
+/// the full value.
+pub fn sig(v: f64, digits: usize) -> String {
+    if v == 0.0 || !v.is_finite() {
+        return format!("{v}");
+    }
+    let digits = digits.max(1);
+    let magnitude = v.abs().log10().floor() as i64;
+    if !(-5..=15).contains(&magnitude) {
+        // very small or large: scientific notation with the same significant digits
+        let s = format!("{:.*e}", digits - 1, v);
+        return match s.split_once('e') {
+            Some((m, e)) if m.contains('.') => {
+                format!("{}e{e}", m.trim_end_matches('0').trim_end_matches('.'))
+            }
+            _ => s,
+        };
+    }
+    let decimals = (digits as i64 - 1 - magnitude).max(0) as usize;
+    num(v, decimals)
+}
+
 /// Quote a CSV cell when needed (RFC 4180).
 pub fn csv_cell(s: &str, delim: char) -> String {
     if delim == '\t' {
@@ -58,6 +81,17 @@ pub fn csv_cell(s: &str, delim: char) -> String {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn significant_digits_remove_binary_noise() {
+        assert_eq!(sig(1.995_019_999_999_999_8, 6), "1.99502");
+        assert_eq!(sig(47.420_500_000_000_004, 6), "47.4205");
+        assert_eq!(sig(351.549_999_999_999_95, 6), "351.55");
+        assert_eq!(sig(-0.31, 6), "-0.31");
+        assert_eq!(sig(0.0, 6), "0");
+        assert_eq!(sig(1.234_567e-7, 3), "1.23e-7");
+        assert_eq!(sig(9.999_999_9, 6), "10");
+    }
 
     #[test]
     fn numbers_drop_trailing_zeros() {

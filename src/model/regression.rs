@@ -1836,4 +1836,37 @@ mod tests {
         }
         assert_ne!(a, system_folds(23, 5, 8));
     }
+
+    proptest::proptest! {
+        #![proptest_config(proptest::prelude::ProptestConfig::with_cases(48))]
+        /// On reversed phase, predicted retention grows along a homologous series (n-alkyl
+        /// benzenes, one CH2 at a time) under any sensible gradient, pH and modifier: the
+        /// methylene increment is positive on every RP phase (common practice, no source).
+        #[test]
+        fn retention_grows_along_a_homologous_series_on_rp(
+            start in 0.0f64..40.0,
+            end in 80.0f64..100.0,
+            tg in 5.0f64..60.0,
+            t0 in 0.3f64..3.0,
+            ph in 2.0f64..8.0,
+            methanol in proptest::bool::ANY,
+        ) {
+            let model = Model::load_builtin().unwrap();
+            let mut system = sys(Mode::ReversedPhase, &[(0.0, start), (tg, end)], 0.0);
+            system.t0_min = t0;
+            system.ph = Some(ph);
+            system.modifier = if methanol { Modifier::Methanol } else { Modifier::Acetonitrile };
+            let mut last = f64::NEG_INFINITY;
+            for n in 1..=8 {
+                let smiles = format!("{}c1ccccc1", "C".repeat(n));
+                let f = AnalyteFeatures::from_smiles(&smiles, None).unwrap();
+                let p = model.predict(&f, &system).unwrap();
+                proptest::prop_assert!(
+                    p.rt_min > last,
+                    "C{n}-benzene at {} min after {} min", p.rt_min, last
+                );
+                last = p.rt_min;
+            }
+        }
+    }
 }

@@ -619,5 +619,42 @@ mod tests {
         fn retention_factor_never_panics(tr in proptest::num::f64::ANY, t0 in proptest::num::f64::ANY) {
             let _ = retention_factor(tr, t0);
         }
+
+        /// Unit conversions: volume (mL) ÷ flow (mL/min) = time (min), and back; the dead
+        /// volume scales with L·dc² (a column twice as long holds twice the volume); percent
+        /// to fraction divides by 100 and stays in [0, 1].
+        #[test]
+        fn volume_time_and_percent_conversions_are_consistent(
+            l in 10.0f64..300.0,
+            dc in 0.5f64..10.0,
+            flow in 0.01f64..5.0,
+            pct in 0.0f64..=100.0,
+        ) {
+            let vm = column_dead_volume_ml(l, dc).unwrap();
+            let t0 = dead_time_min(vm, flow).unwrap();
+            prop_assert!((t0 * flow - vm).abs() <= 1e-12 * vm.max(1.0));
+            let vm2 = column_dead_volume_ml(2.0 * l, dc).unwrap();
+            prop_assert!((vm2 - 2.0 * vm).abs() <= 1e-12 * vm2);
+            let dwell = dwell_time_min(vm, flow).unwrap();
+            prop_assert!((dwell - t0).abs() <= 1e-12 * t0.max(1.0));
+            let f = percent_to_fraction(pct).unwrap();
+            prop_assert!((0.0..=1.0).contains(&f));
+            prop_assert!((f * 100.0 - pct).abs() < 1e-12);
+        }
+
+        /// Plate number: the half-height and base-width forms agree for a Gaussian peak
+        /// (w_b = 4σ, w½ = 2.355σ; 5.54 ≈ 2.355²), and plate height is L / N in µm.
+        #[test]
+        fn plate_number_forms_agree_for_a_gaussian(
+            tr in 0.5f64..60.0,
+            sigma in 0.001f64..0.5,
+            l in 10.0f64..300.0,
+        ) {
+            let n_half = plate_number_half_height(tr, 2.3548 * sigma).unwrap();
+            let n_base = plate_number_base(tr, 4.0 * sigma).unwrap();
+            prop_assert!((n_half / n_base - 1.0).abs() < 0.002, "{n_half} vs {n_base}");
+            let h = plate_height_um(l, n_base).unwrap();
+            prop_assert!((h * n_base - l * 1000.0).abs() <= 1e-9 * l * 1000.0);
+        }
     }
 }

@@ -1194,7 +1194,7 @@ fn prediction_table(p: &Prediction) -> String {
                 num(k.retention_time_uncertainty_min, 2),
                 num(Some(k.width_base_min), 3),
                 num(Some(k.organic_at_elution_pct), 1),
-                label(&k.phase),
+                label(&k.phase).replace('_', " "),
             ]
         })
         .collect();

@@ -100,3 +100,45 @@ fn gradient_spec_corpus_replays_without_panic() {
     }
     assert!(accepted >= 4, "only {accepted} seed programs parsed");
 }
+
+#[test]
+fn oven_program_corpus_replays_without_panic() {
+    use phasewise::model::gc::{GcColumn, OvenProgram, alkane_ladder};
+    let files = inputs("oven_program");
+    assert!(
+        files.len() >= 9,
+        "seed corpus missing: {} files",
+        files.len()
+    );
+    let phase = phasewise::phase::Catalogue::builtin()
+        .unwrap()
+        .phase("gc-dimethyl")
+        .unwrap();
+    let column = GcColumn::new(30.0, 0.25, 0.25, 35.0).unwrap();
+    let (mut accepted, mut rejected) = (0, 0);
+    for (name, bytes) in files {
+        let Ok(text) = std::str::from_utf8(&bytes) else {
+            continue;
+        };
+        match OvenProgram::parse(text) {
+            Ok(p) => {
+                accepted += 1;
+                let again = OvenProgram::parse(&p.to_spec()).unwrap();
+                assert_eq!(again.to_spec(), p.to_spec(), "{name}");
+                assert!(p.final_c() >= p.initial_c(), "{name}");
+                if p.total_time_min() < 120.0 {
+                    let _ = alkane_ladder(phase, &column, &p);
+                }
+            }
+            Err(e) => {
+                rejected += 1;
+                assert!(!e.to_string().is_empty(), "{name}");
+            }
+        }
+    }
+    // the seeds hold valid programs and broken ones
+    assert!(
+        accepted >= 2 && rejected >= 5,
+        "{accepted} accepted, {rejected} rejected"
+    );
+}

@@ -821,3 +821,64 @@ fn two_queries_for_one_compound_show_its_properties_once_without_float_noise() {
         }
     }
 }
+
+#[test]
+fn a_second_kb_add_keeps_the_earlier_values_and_replaces_only_a_correction() {
+    // invented values and sources, for the test only
+    let ctx = Ctx::new();
+    let add = |prop: &str, source: &str, extra: &[&str]| {
+        let mut a = vec![
+            "kb",
+            "add",
+            "--name",
+            "invented lab compound Z",
+            "--smiles",
+            "CCCCOC(=O)C",
+            "--prop",
+            prop,
+            "--source",
+            source,
+        ];
+        a.extend_from_slice(extra);
+        let out = ctx.run(&a);
+        assert!(out.status.success(), "{}", stderr(&out));
+    };
+    add("pka=4.4", "notebook A (invented)", &[]);
+    add(
+        "logp=1.7",
+        "notebook B (invented)",
+        &["--synonym", "Z-ester"],
+    );
+    let values = |a: &serde_json::Value| -> Vec<(String, f64, String)> {
+        a["properties"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .filter(|p| p["kind"] == "experimental")
+            .map(|p| {
+                (
+                    p["property"].as_str().unwrap().to_string(),
+                    p["value"].as_f64().unwrap(),
+                    p["source"].as_str().unwrap().to_string(),
+                )
+            })
+            .collect()
+    };
+    let a = lookup_one(&ctx, "invented lab compound Z");
+    let v = values(&a);
+    assert!(
+        v.contains(&("pka".into(), 4.4, "notebook A (invented)".into())),
+        "{v:?}"
+    );
+    assert!(
+        v.contains(&("logp".into(), 1.7, "notebook B (invented)".into())),
+        "{v:?}"
+    );
+    // the same property from the same source is a correction: replaced, not duplicated
+    add("pka=4.6", "notebook A (invented)", &[]);
+    let v = values(&lookup_one(&ctx, "Z-ester"));
+    let pkas: Vec<_> = v.iter().filter(|x| x.0 == "pka").collect();
+    assert_eq!(pkas.len(), 1, "{v:?}");
+    assert_eq!(pkas[0].1, 4.6);
+    assert!(v.iter().any(|x| x.0 == "logp" && x.1 == 1.7), "{v:?}");
+}

@@ -497,6 +497,38 @@ pub(crate) fn insert_compound(
         st.query_map(params![c.inchikey, norm], |r| r.get(0))?
             .collect::<Result<_, _>>()?
     };
+    // The user's earlier values survive a new `kb add` for the same compound: only a value of
+    // the same property from the same source is replaced (a correction); earlier names stay as
+    // synonyms. (Before, the whole earlier record was replaced and its values lost.)
+    type KeptRow = (String, f64, Option<String>, String, String, Option<String>);
+    let mut kept_values: Vec<KeptRow> = Vec::new();
+    let mut kept_names: Vec<String> = Vec::new();
+    for &id in &old {
+        let rows: Vec<KeptRow> = tx
+            .prepare(
+                "SELECT property, value, unit, kind, source, detail FROM property
+                 WHERE compound_id = ?1 AND licence = 'user data' ORDER BY id",
+            )?
+            .query_map([id], |r| {
+                Ok((
+                    r.get(0)?,
+                    r.get(1)?,
+                    r.get(2)?,
+                    r.get(3)?,
+                    r.get(4)?,
+                    r.get(5)?,
+                ))
+            })?
+            .collect::<Result<_, _>>()?;
+        kept_values.extend(rows.into_iter().filter(|(prop, _, _, _, source, _)| {
+            !(source == &c.source && c.properties.iter().any(|p| &p.property == prop))
+        }));
+        let names: Vec<String> = tx
+            .prepare("SELECT name FROM name WHERE compound_id = ?1 ORDER BY rank, id")?
+            .query_map([id], |r| r.get(0))?
+            .collect::<Result<_, _>>()?;
+        kept_names.extend(names);
+    }
     for id in old {
         let names: Vec<(i64, String)> = tx
             .prepare("SELECT id, norm FROM name WHERE compound_id = ?1")?
@@ -538,6 +570,20 @@ pub(crate) fn insert_compound(
         super::build::insert_values(&mut ins, id, &e.values())?;
     }
     insert_user_values(tx, id, c)?;
+    if !kept_names.is_empty() {
+        let earlier = NewCompound {
+            synonyms: kept_names,
+            ..c.clone()
+        };
+        insert_names(tx, id, &earlier, false)?;
+    }
+    for (property, value, unit, kind, source, detail) in kept_values {
+        tx.execute(
+            "INSERT INTO property(compound_id, property, value, unit, kind, source, licence, detail)
+             VALUES (?1, ?2, ?3, ?4, ?5, ?6, 'user data', ?7)",
+            params![id, property, value, unit, kind, source, detail],
+        )?;
+    }
     Ok(id)
 }
 

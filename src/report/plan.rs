@@ -467,23 +467,37 @@ fn provenance_haystack(report: &AdviceReport) -> String {
     h.to_lowercase()
 }
 
-/// SMILES patterns of common metal-chelating groups (phosphate/phosphonate, catechol,
-/// hydroxamic acid, 8-hydroxyquinoline-like, 1,3-diketone enol). A text match on SMILES, not a
-/// substructure search: it can miss or mis-flag; common practice, no source.
+/// Substructure patterns (SMARTS, the structure engine's subset: no ring closures) of common
+/// metal-chelating groups: phosphate/phosphonate, catechol, hydroxamic acid,
+/// 8-hydroxyquinoline (the fused carbon next to the hydroxylated one carries the ring
+/// nitrogen). Matched on the parsed structure, so Kekulé and aromatic spellings agree; common
+/// practice, no source.
 const CHELATING_PATTERNS: &[(&str, &str)] = &[
     ("P(=O)(O)O", "phosphate or phosphonate"),
-    ("OP(O)(=O)", "phosphate or phosphonate"),
-    ("c(O)c(O)", "catechol"),
-    ("Oc1ccccc1O", "catechol"),
-    ("C(=O)NO", "hydroxamic acid"),
-    ("Oc1cccc2cccnc12", "8-hydroxyquinoline"),
+    ("c([OH])c[OH]", "catechol"),
+    ("C(=O)N[OH]", "hydroxamic acid"),
+    ("[OH]c:c(:c):n", "8-hydroxyquinoline"),
 ];
 
-/// Chelating group found in a SMILES string, if any.
+/// Chelating group found in a structure, if any (None also when the SMILES cannot be read).
 fn chelating_group(smiles: &str) -> Option<&'static str> {
-    CHELATING_PATTERNS
+    use std::sync::OnceLock;
+    static COMPILED: OnceLock<Vec<(crate::structure::smarts::Pattern, &'static str)>> =
+        OnceLock::new();
+    let patterns = COMPILED.get_or_init(|| {
+        CHELATING_PATTERNS
+            .iter()
+            .filter_map(|(p, name)| {
+                crate::structure::smarts::Pattern::new(p)
+                    .ok()
+                    .map(|p| (p, *name))
+            })
+            .collect()
+    });
+    let g = crate::structure::parse_smiles(smiles).ok()?.graph;
+    patterns
         .iter()
-        .find(|(pat, _)| smiles.contains(pat))
+        .find(|(p, _)| (0..g.atoms.len()).any(|i| p.matches_at(&g, i)))
         .map(|(_, name)| *name)
 }
 
@@ -1542,5 +1556,35 @@ mod tests {
         let dir = tempfile::tempdir().unwrap();
         let err = check_writable(dir.path()).unwrap_err();
         assert!(matches!(err, PlanError::TargetIsDirectory { .. }), "{err}");
+    }
+
+    #[test]
+    fn chelating_groups_are_found_in_kekule_and_aromatic_spellings() {
+        // every pattern compiles
+        for (p, _) in CHELATING_PATTERNS {
+            assert!(crate::structure::smarts::Pattern::new(p).is_ok(), "{p}");
+        }
+        // catechol, aromatic and Kekulé
+        assert_eq!(chelating_group("Oc1ccccc1O"), Some("catechol"));
+        assert_eq!(chelating_group("OC1=CC=CC=C1O"), Some("catechol"));
+        // phenol and anisole-like ethers are not catechols
+        assert_eq!(chelating_group("Oc1ccccc1"), None);
+        assert_eq!(chelating_group("COc1ccccc1OC"), None);
+        assert_eq!(
+            chelating_group("OP(=O)(O)OC"),
+            Some("phosphate or phosphonate")
+        );
+        assert_eq!(chelating_group("CC(=O)NO"), Some("hydroxamic acid"));
+        assert_eq!(
+            chelating_group("Oc1cccc2cccnc12"),
+            Some("8-hydroxyquinoline")
+        );
+        assert_eq!(
+            chelating_group("OC1=CC=CC2=C1N=CC=C2"),
+            Some("8-hydroxyquinoline")
+        );
+        // 3-hydroxypyridine has no fused carbon: not flagged
+        assert_eq!(chelating_group("Oc1cccnc1"), None);
+        assert_eq!(chelating_group("not a smiles"), None);
     }
 }

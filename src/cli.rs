@@ -313,9 +313,12 @@ pub enum KbCommand {
         force: bool,
     },
     /// Show counts by source and property.
-    #[command(after_help = "Example:\n  phasewise kb stats --format json")]
+    #[command(
+        after_help = "Example:\n  phasewise kb stats --format json\n  phasewise kb stats --format tsv"
+    )]
     Stats {
-        /// Output format (table or json).
+        /// Output format: table, json, or csv/tsv (one row per database, property, kind,
+        /// source and licence, with its row count).
         #[arg(long, short, value_enum, default_value_t = OutputFormat::Table)]
         format: OutputFormat,
     },

@@ -594,7 +594,33 @@ fn run_kb(cli: &Cli, k: &KbCommand) -> Result<ExitCode> {
             let s = kb.stats()?;
             let text = match format {
                 OutputFormat::Json => format!("{}\n", serde_json::to_string_pretty(&s)?),
-                _ => stats_table(&s),
+                OutputFormat::Table => stats_table(&s),
+                OutputFormat::Csv | OutputFormat::Tsv => {
+                    let d = if *format == OutputFormat::Csv {
+                        ','
+                    } else {
+                        '\t'
+                    };
+                    let cell = |x: &str| phasewise::report::csv_cell(x, d);
+                    let mut t = ["database", "property", "kind", "source", "licence", "rows"]
+                        .join(&d.to_string());
+                    t.push('\n');
+                    let dbs = std::iter::once(("shipped", &s.shipped))
+                        .chain(s.user.iter().map(|u| ("user", u)));
+                    for (db, stats) in dbs {
+                        for p in &stats.properties_by_source {
+                            t.push_str(&format!(
+                                "{db}{d}{}{d}{}{d}{}{d}{}{d}{}\n",
+                                cell(&p.property),
+                                cell(&p.kind),
+                                cell(&p.source),
+                                cell(&p.licence),
+                                p.count
+                            ));
+                        }
+                    }
+                    t
+                }
             };
             write_out(&text)?;
             Ok(ExitCode::SUCCESS)

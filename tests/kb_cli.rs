@@ -882,3 +882,30 @@ fn a_second_kb_add_keeps_the_earlier_values_and_replaces_only_a_correction() {
     assert_eq!(pkas[0].1, 4.6);
     assert!(v.iter().any(|x| x.0 == "logp" && x.1 == 1.7), "{v:?}");
 }
+
+#[test]
+fn kb_stats_writes_delimited_rows_for_csv_and_tsv() {
+    let ctx = Ctx::new();
+    for (fmt, d) in [("csv", ','), ("tsv", '\t')] {
+        let out = ctx.run(&["kb", "stats", "--format", fmt]);
+        assert!(out.status.success(), "{}", stderr(&out));
+        let text = stdout(&out);
+        let mut lines = text.lines();
+        assert_eq!(
+            lines.next(),
+            Some(
+                ["database", "property", "kind", "source", "licence", "rows"]
+                    .join(&d.to_string())
+                    .as_str()
+            )
+        );
+        let rows: Vec<&str> = lines.collect();
+        assert!(rows.len() > 5, "{text}");
+        assert!(
+            rows.iter()
+                .all(|r| r.starts_with("shipped") || r.starts_with("user")),
+            "{text}"
+        );
+        assert!(!text.contains("---"), "{fmt} printed the table: {text}");
+    }
+}

@@ -438,7 +438,17 @@ pub fn run(cli: Cli) -> Result<ExitCode> {
         Command::Lookup(args) => {
             let queries = read_analytes(&args.input)?;
             let kb = open_kb(&cli)?;
-            let (found, missing) = resolve_all(&kb, &queries)?;
+            let (mut found, missing) = resolve_all(&kb, &queries)?;
+            // a structure the base does not hold is shown with what phasewise computes from it
+            for a in found.iter_mut().filter(|a| a.origin == Origin::Structure) {
+                if let Some(e) = a
+                    .smiles
+                    .as_deref()
+                    .and_then(|s| phasewise::property::estimate::estimate(s).ok())
+                {
+                    phasewise::property::estimate::attach_estimates(a, &e);
+                }
+            }
             let partial = !missing.is_empty();
             let report = LookupReport::new(found, missing);
             write_out(&report.render(format_of(args.format)))?;

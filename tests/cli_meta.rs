@@ -91,6 +91,26 @@ fn analyte_tables_resolve_by_smiles_and_keep_their_names() {
     let text = stdout(&out);
     assert!(text.contains("invented impurity Q"), "{text}");
     assert!(text.contains("caffeine"), "{text}");
+    // the structure the base does not hold comes with what phasewise computes from it
+    let v: serde_json::Value = serde_json::from_str(&text).unwrap();
+    let q = v["analytes"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|a| a["query"] == "invented impurity Q")
+        .unwrap();
+    assert_eq!(q["formula"], "C9H11NO2", "{q}");
+    let logp = q["properties"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|p| p["property"] == "logp")
+        .expect("an estimated logP");
+    assert_eq!(logp["kind"], "estimated");
+    assert!(
+        logp["source"].as_str().unwrap().contains("Crippen"),
+        "{logp}"
+    );
     // a tab in a plain list is an error naming the line, not a silent failed lookup
     std::fs::write(&list, "caffeine\nCCO\tethanol\n").unwrap();
     let out = ctx.run(&["lookup", "--input", list.to_str().unwrap()]);

@@ -5,7 +5,7 @@
 use crate::model::gc::{GcAnalyte, RingSubstitution};
 use crate::property::estimate::{StructureEstimate, estimate};
 use crate::property::ionisation;
-use crate::property::{Analyte, Origin, Property, PropertyKind};
+use crate::property::{Analyte, Origin, PropertyKind};
 use crate::structure::graph::{BondOrder, MolGraph};
 use crate::structure::ionisable::{AcidBase, IonisableSite, SiteKind, apply_experimental};
 use crate::structure::volatility::{GcAssessment, GcVerdict, assess_gc};
@@ -69,21 +69,7 @@ impl AnalyteProfile {
             }
             // Analytes known only from structure get the estimates as properties.
             if analyte.origin == Origin::Structure {
-                for v in e.values() {
-                    analyte.properties.push(Property {
-                        property: v.property.to_string(),
-                        value: v.value,
-                        unit: v.unit.to_string(),
-                        kind: PropertyKind::Estimated,
-                        source: v.method.to_string(),
-                        licence: crate::property::estimate::LICENCE_COMPUTED.to_string(),
-                        detail: v.detail,
-                        origin: Origin::Structure,
-                    });
-                }
-                analyte.formula = Some(e.descriptors.molecular_formula.clone());
-                analyte.molar_mass_g_mol = e.descriptors.molar_mass_g_mol;
-                analyte.sort_properties();
+                crate::property::estimate::attach_estimates(&mut analyte, e);
             }
         }
         let experimental_pka: Vec<(f64, Option<AcidBase>)> = analyte

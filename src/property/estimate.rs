@@ -63,6 +63,28 @@ pub struct EstimatedValue {
     pub detail: String,
 }
 
+/// Give an analyte known only from its SMILES (origin [`Origin::Structure`]) the structure
+/// estimates as properties (kind estimated, the method as source), and its formula and molar
+/// mass; the properties are then sorted best first.
+pub fn attach_estimates(analyte: &mut crate::property::Analyte, e: &StructureEstimate) {
+    use crate::property::{Origin, Property, PropertyKind};
+    for v in e.values() {
+        analyte.properties.push(Property {
+            property: v.property.to_string(),
+            value: v.value,
+            unit: v.unit.to_string(),
+            kind: PropertyKind::Estimated,
+            source: v.method.to_string(),
+            licence: LICENCE_COMPUTED.to_string(),
+            detail: v.detail,
+            origin: Origin::Structure,
+        });
+    }
+    analyte.formula = Some(e.descriptors.molecular_formula.clone());
+    analyte.molar_mass_g_mol = e.descriptors.molar_mass_g_mol;
+    analyte.sort_properties();
+}
+
 /// Parse `smiles` and estimate everything phasewise estimates from structure.
 ///
 /// # Errors

@@ -674,6 +674,16 @@ impl OvenProgram {
                 reason: "an isothermal program needs a hold time above 0",
             });
         }
+        // An isothermal run is one hold (`to_spec` writes it so): the 600 min limit applies to
+        // the sum, or a program would be accepted that its own text form could not express
+        // (found by the `oven_program` fuzz target: `248:511,0:248:95`).
+        if final_c <= initial_c && initial_hold_min + final_hold_min > 600.0 {
+            return Err(GcError::BadCondition {
+                field: "final_hold_min",
+                value: initial_hold_min + final_hold_min,
+                reason: "an isothermal program (final = initial temperature) is one hold: the holds together must be at most 600 min",
+            });
+        }
         Ok(Self {
             initial_c,
             initial_hold_min,

@@ -389,7 +389,34 @@ fn oven_texts_name_the_bad_part() {
     );
 }
 
+#[test]
+fn an_isothermal_program_is_one_hold_within_the_limit() {
+    // found by the oven_program fuzz target: accepted, but its text form `248:606` was not
+    let err = OvenProgram::parse("248:511,0:248:95")
+        .unwrap_err()
+        .to_string();
+    assert!(err.contains("606") && err.contains("600"), "{err}");
+    let ok = OvenProgram::parse("248:500,0:248:95").unwrap();
+    let back = OvenProgram::parse(&ok.to_spec()).unwrap();
+    assert_eq!(
+        (back.to_spec(), back.total_time_min()),
+        (ok.to_spec(), ok.total_time_min())
+    );
+}
+
 proptest! {
+    #[test]
+    fn any_accepted_oven_text_round_trips(
+        t0 in -100.0f64..450.0, h0 in 0.0f64..600.0, r in 0.0f64..100.0,
+        dt in 0.0f64..100.0, h1 in 0.0f64..600.0,
+    ) {
+        let text = format!("{t0}:{h0},{r}:{}:{h1}", t0 + dt);
+        if let Ok(p) = OvenProgram::parse(&text) {
+            let back = OvenProgram::parse(&p.to_spec());
+            prop_assert!(back.is_ok(), "{text} -> {} rejected", p.to_spec());
+        }
+    }
+
     #[test]
     fn oven_texts_round_trip(t0 in -50.0f64..200.0, h0 in 0.0f64..20.0, r in 0.5f64..50.0, dt in 1.0f64..200.0, h1 in 0.0f64..20.0) {
         let p = OvenProgram::new(t0, h0, r, t0 + dt, h1).unwrap();

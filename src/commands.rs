@@ -863,7 +863,8 @@ fn run_predict(cli: &Cli, a: &crate::cli::PredictArgs) -> Result<ExitCode> {
     } else if mode == PhaseMode::Gc {
         let oven = match &a.oven {
             Some(spec) => {
-                let p = phasewise::model::gc::OvenProgram::parse(spec)?;
+                let p = phasewise::model::gc::OvenProgram::parse(spec)
+                    .with_context(|| format!("--oven `{spec}`"))?;
                 if p.final_c() > phase.t_max_c() {
                     bail!(
                         "--oven {spec}: final temperature {} °C is above the maximum {} °C of phase `{}`",

@@ -63,7 +63,7 @@ pub struct EstimatedValue {
     pub detail: String,
 }
 
-/// Give an analyte known only from its SMILES (origin [`Origin::Structure`]) the structure
+/// Give an analyte known only from its SMILES (origin [`crate::property::Origin::Structure`]) the structure
 /// estimates as properties (kind estimated, the method as source), and its formula and molar
 /// mass; the properties are then sorted best first.
 pub fn attach_estimates(analyte: &mut crate::property::Analyte, e: &StructureEstimate) {

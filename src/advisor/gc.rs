@@ -3,7 +3,7 @@
 //! through the n-alkane ladder, co-elution from the index uncertainty.
 
 use super::profile::AnalyteProfile;
-use super::{AdviseRequest, Detector, coelution, finish_predictions, phase_ref, separation_score};
+use super::{AdviseRequest, Detector, coelution, unscored_recommendation};
 use crate::model::gc::{
     GcColumn, OvenSuggestion, alkane_ladder, predict_retention_index, suggest_oven_program,
 };
@@ -265,21 +265,8 @@ pub fn candidate(
         run_time_min: prog.total_time_min(),
         pressure_bar: None,
     };
-    let mut rec = Recommendation {
-        rank: 0,
-        mode: "gc".into(),
-        phase: phase_ref(phase),
-        score: 0.0,
-        conditions,
-        predictions: preds,
-        coelutions,
-        reasons: Vec::new(),
-        excluded: Vec::new(),
-        critical_resolution: None,
-        critical_pair: None,
-    };
-    finish_predictions(&mut rec);
-    let (sep, sep_reason) = separation_score(&rec);
+    let (mut rec, sep, sep_reason) =
+        unscored_recommendation("gc", phase, conditions, preds, coelutions);
     let mut reasons = vec![Reason {
         source: "model:gc-retention-index".into(),
         text: "retention indices from boiling point and functional groups with the phase's McReynolds-type constants, times through the n-alkane ladder (docs/phases.md)".into(),

@@ -2,7 +2,7 @@
 //! (charge, hydrated size, eluent), converted to minutes with an assumed reference retention.
 
 use super::profile::AnalyteProfile;
-use super::{coelution, finish_predictions, phase_ref, separation_score};
+use super::{coelution, unscored_recommendation};
 use crate::model::ic::predict_ion_order;
 use crate::model::theory;
 use crate::phase::{Catalogue, PhaseMode, StationaryPhase};
@@ -167,21 +167,8 @@ pub fn candidate(
         run_time_min: run_time,
         pressure_bar: None,
     };
-    let mut rec = Recommendation {
-        rank: 0,
-        mode: mode.as_str().to_string(),
-        phase: phase_ref(phase),
-        score: 0.0,
-        conditions,
-        predictions: preds,
-        coelutions,
-        reasons: Vec::new(),
-        excluded: Vec::new(),
-        critical_resolution: None,
-        critical_pair: None,
-    };
-    finish_predictions(&mut rec);
-    let (sep, sep_reason) = separation_score(&rec);
+    let (mut rec, sep, sep_reason) =
+        unscored_recommendation(mode.as_str(), phase, conditions, preds, coelutions);
     let mut reasons = vec![Reason {
         source: "model:ic-ion-table".into(),
         text: format!(

@@ -4,10 +4,7 @@
 use std::sync::OnceLock;
 
 use super::profile::AnalyteProfile;
-use super::{
-    AdviseRequest, Detector, coelution, finish_predictions, phase_ref, retention_window_reason,
-    separation_score,
-};
+use super::{AdviseRequest, Detector, coelution, retention_window_reason, unscored_recommendation};
 use crate::model::features::AnalyteFeatures;
 use crate::model::regression::{self, Additive, GradientPoint, LcSystem, Mode, Model, Modifier};
 use crate::model::theory;
@@ -487,7 +484,7 @@ pub fn candidate(
     }
     // co-elution probabilities of every pair (close pairs matter). Only pairs that something
     // downstream reads are kept: the report lists those at or above the risk threshold, the
-    // separation score counts those above 0.2 (`separation_score`). With hundreds of analytes
+    // separation score counts those above 0.2 (``). With hundreds of analytes
     // the others would be most of the work and none of the result.
     let floor = req.risk_threshold.clamp(0.0, 0.2);
     let mut coelutions = Vec::new();
@@ -599,21 +596,8 @@ pub fn candidate(
         run_time_min: run_time,
         pressure_bar: pressure,
     };
-    let mut rec = Recommendation {
-        rank: 0,
-        mode: mode.as_str().to_string(),
-        phase: phase_ref(phase),
-        score: 0.0,
-        conditions,
-        predictions: preds,
-        coelutions,
-        reasons: Vec::new(),
-        excluded: Vec::new(),
-        critical_resolution: None,
-        critical_pair: None,
-    };
-    finish_predictions(&mut rec);
-    let (sep, sep_reason) = separation_score(&rec);
+    let (mut rec, sep, sep_reason) =
+        unscored_recommendation(mode.as_str(), phase, conditions, preds, coelutions);
     let window = retention_window_reason(&rec);
     let rules = rules(profiles, phase, mode, ph);
     let rule_sum: f64 = rules.iter().filter_map(|r| r.weight).sum();

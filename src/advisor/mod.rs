@@ -415,6 +415,33 @@ pub fn resolution(a: &PredictionRow, b: &PredictionRow) -> f64 {
     1.18 * (b.retention_time_min - a.retention_time_min).abs() / w
 }
 
+/// A candidate recommendation before scoring: predictions sorted, critical pair found, and its
+/// separation score with the reason (shared by the LC, GC and IC candidates).
+pub fn unscored_recommendation(
+    mode: &str,
+    phase: &crate::phase::StationaryPhase,
+    conditions: crate::report::advice::Conditions,
+    predictions: Vec<PredictionRow>,
+    coelutions: Vec<Coelution>,
+) -> (Recommendation, f64, Reason) {
+    let mut rec = Recommendation {
+        rank: 0,
+        mode: mode.to_string(),
+        phase: phase_ref(phase),
+        score: 0.0,
+        conditions,
+        predictions,
+        coelutions,
+        reasons: Vec::new(),
+        excluded: Vec::new(),
+        critical_resolution: None,
+        critical_pair: None,
+    };
+    finish_predictions(&mut rec);
+    let (sep, reason) = separation_score(&rec);
+    (rec, sep, reason)
+}
+
 /// Sort predictions by time and compute the adjacent-pair critical resolution.
 pub fn finish_predictions(rec: &mut Recommendation) {
     rec.predictions.sort_by(|a, b| {

@@ -23,6 +23,7 @@ pub mod joback;
 pub mod lipinski;
 pub mod mcgowan;
 pub mod query;
+pub mod rings;
 pub mod smarts;
 pub mod tolerance;
 pub mod tpsa;

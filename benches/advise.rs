@@ -14,6 +14,10 @@ use phasewise::kb::resolve::Resolution;
 use phasewise::kb::{BuildPolicy, Kb, KbPaths};
 use phasewise::model::regression::Model;
 
+// The program's allocator (src/main.rs), so that the figures are the program's.
+#[global_allocator]
+static GLOBAL: mimalloc::MiMalloc = mimalloc::MiMalloc;
+
 fn profiles(kb: &Kb, file: &str) -> Vec<AnalyteProfile> {
     let text = std::fs::read_to_string(file).expect("panel file");
     parse_analyte_list(&text)

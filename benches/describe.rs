@@ -5,6 +5,10 @@
 use criterion::{Criterion, Throughput, criterion_group, criterion_main};
 use phasewise::structure::describe;
 
+// The program's allocator (src/main.rs), so that the figures are the program's.
+#[global_allocator]
+static GLOBAL: mimalloc::MiMalloc = mimalloc::MiMalloc;
+
 fn smiles() -> Vec<String> {
     include_str!("../tests/data/rdkit_descriptors.tsv")
         .lines()

@@ -8,6 +8,10 @@ use std::io::Read;
 use criterion::{Criterion, criterion_group, criterion_main};
 use phasewise::kb::{BuildPolicy, Kb, KbPaths};
 
+// The program's allocator (src/main.rs), so that the figures are the program's.
+#[global_allocator]
+static GLOBAL: mimalloc::MiMalloc = mimalloc::MiMalloc;
+
 fn names() -> Vec<String> {
     let gz = std::fs::read("data/kb/compounds.tsv.gz").expect("seed table");
     let mut s = String::new();

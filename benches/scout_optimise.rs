@@ -12,6 +12,10 @@ use phasewise::model::gradient::{
     GradientProgram, GradientSystem, LssParameters, gradient_elution,
 };
 
+// The program's allocator (src/main.rs), so that the figures are the program's.
+#[global_allocator]
+static GLOBAL: mimalloc::MiMalloc = mimalloc::MiMalloc;
+
 /// Invented 20-analyte sample (not real compounds): parameters from a fixed linear
 /// congruential sequence, so the benchmark is deterministic.
 fn sample() -> Vec<(String, LssParameters)> {

@@ -2,6 +2,10 @@
 //! `cargo run --release --example describe_loop -- 20`; used with `perf record` to see where
 //! the structure engine spends its time (docs/performance.md).
 
+// The program's allocator (src/main.rs).
+#[global_allocator]
+static GLOBAL: mimalloc::MiMalloc = mimalloc::MiMalloc;
+
 fn main() {
     let n: usize = std::env::args()
         .nth(1)

@@ -18,7 +18,7 @@
 use std::sync::OnceLock;
 
 use super::graph::{BondOrder, MolGraph};
-use super::smarts::Pattern;
+use super::smarts::{AtomFacts, Pattern};
 
 /// (type label, SMARTS, logP contribution, MR contribution in cm3/mol), in RDKit's order.
 const HEAVY_TYPES: &[(&str, &str, f64, f64)] = &[
@@ -214,6 +214,7 @@ pub struct CrippenAtom {
 /// Crippen contributions of every atom (implicit hydrogens folded into their heavy atom).
 pub fn crippen_atoms(g: &MolGraph) -> Vec<CrippenAtom> {
     let c = compiled();
+    let facts = AtomFacts::new(g);
     let mut out = Vec::with_capacity(g.atoms.len());
     for i in 0..g.atoms.len() {
         let z = g.atoms[i].atomic_number;
@@ -232,7 +233,7 @@ pub fn crippen_atoms(g: &MolGraph) -> Vec<CrippenAtom> {
             };
         } else {
             for &k in &c.by_element[usize::from(z)] {
-                if c.patterns[k].matches_at(g, i) {
+                if c.patterns[k].matches_at_with(&facts, i) {
                     let (label, _, lp, mr) = HEAVY_TYPES[k];
                     entry.atom_type = Some(label);
                     entry.logp = lp;

@@ -24,7 +24,7 @@
 use std::sync::OnceLock;
 
 use super::graph::{BondOrder, MolGraph};
-use super::smarts::Pattern;
+use super::smarts::{AtomFacts, Pattern};
 
 /// RDKit `NumHBD` SMARTS (Lipinski.cpp, version 2.0.1).
 pub const HBD_SMARTS: &str = "[N&!H0&v3,N&!H0&+1&v4,O&H1&+0,S&H1&+0,n&H1&+0]";
@@ -55,9 +55,10 @@ fn compiled() -> &'static Compiled {
 /// that cannot change the count).
 fn count_atoms(p: Option<&Pattern>, g: &MolGraph) -> u32 {
     p.map_or(0, |p| {
+        let facts = AtomFacts::new(g);
         (0..g.atoms.len())
             .filter(|&i| matches!(g.atoms[i].atomic_number, 7 | 8 | 16))
-            .filter(|&i| p.matches_at(g, i))
+            .filter(|&i| p.matches_at_with(&facts, i))
             .count() as u32
     })
 }
@@ -103,16 +104,14 @@ pub fn rotatable_bonds(g: &MolGraph) -> u32 {
     };
     // Cheap necessary conditions first (single or aromatic, not in a ring,
     // both ends non-terminal), then the full SMARTS.
-    (0..g.bonds.len())
-        .filter(|&b| {
-            let bond = &g.bonds[b];
-            !bond.in_ring
-                && matches!(bond.order, BondOrder::Single | BondOrder::Aromatic)
-                && g.degree(bond.a) > 1
-                && g.degree(bond.b) > 1
-        })
-        .filter(|&b| p.matches_bond(g, b))
-        .count() as u32
+    let candidates = (0..g.bonds.len()).filter(|&b| {
+        let bond = &g.bonds[b];
+        !bond.in_ring
+            && matches!(bond.order, BondOrder::Single | BondOrder::Aromatic)
+            && g.degree(bond.a) > 1
+            && g.degree(bond.b) > 1
+    });
+    p.count_bond_matches(&AtomFacts::new(g), candidates) as u32
 }
 
 #[cfg(test)]

@@ -50,13 +50,7 @@ pub struct RingPerception {
 /// ```
 pub fn perceive(atom_count: usize, edges: &[(usize, usize)]) -> RingPerception {
     const UNSEEN: usize = usize::MAX;
-    let mut adjacency: Vec<Vec<(usize, usize)>> = vec![Vec::new(); atom_count];
-    for (e, &(a, b)) in edges.iter().enumerate() {
-        if a < atom_count && b < atom_count && a != b {
-            adjacency[a].push((b, e));
-            adjacency[b].push((a, e));
-        }
-    }
+    let adjacency = Adjacency::new(atom_count, edges);
     let mut bond_in_ring = vec![false; edges.len()];
     let mut atom_in_ring = vec![false; atom_count];
     let mut cycles: Vec<Vec<usize>> = Vec::new();
@@ -79,7 +73,7 @@ pub fn perceive(atom_count: usize, edges: &[(usize, usize)]) -> RingPerception {
         stack.push((root, UNSEEN, 0));
         while let Some(top) = stack.last_mut() {
             let (v, via, next) = *top;
-            if let Some(&(w, e)) = adjacency[v].get(next) {
+            if let Some(&(w, e)) = adjacency.of(v).get(next) {
                 top.2 += 1;
                 if e == via {
                     continue;
@@ -178,11 +172,7 @@ fn relevant_cycles(edges: &[(usize, usize)], block: &[usize]) -> Option<Vec<Vec<
     for &e in block {
         ends.push((local(edges[e].0)?, local(edges[e].1)?));
     }
-    let mut incident: Vec<Vec<(usize, usize)>> = vec![Vec::new(); v];
-    for (k, &(a, b)) in ends.iter().enumerate() {
-        incident[a].push((b, k));
-        incident[b].push((a, k));
-    }
+    let incident = Adjacency::new(v, &ends);
     // Spanning tree by breadth-first search; `path[x]` = tree edges from the root to x.
     let mut path: Vec<Option<u128>> = vec![None; v];
     let mut tree = 0u128;
@@ -190,7 +180,7 @@ fn relevant_cycles(edges: &[(usize, usize)], block: &[usize]) -> Option<Vec<Vec<
     let mut queue = std::collections::VecDeque::from([0usize]);
     while let Some(x) = queue.pop_front() {
         let px = path[x]?;
-        for &(y, k) in &incident[x] {
+        for &(y, k) in incident.of(x) {
             if path[y].is_none() {
                 path[y] = Some(px | 1 << k);
                 tree |= 1 << k;
@@ -210,13 +200,10 @@ fn relevant_cycles(edges: &[(usize, usize)], block: &[usize]) -> Option<Vec<Vec<
     // Every element of the cycle space that is one simple cycle.
     let mut found: Vec<u128> = Vec::new();
     let mut degree = vec![0u8; v];
-    for mask in 1u32..(1u32 << fundamental.len()) {
-        let mut set = 0u128;
-        for (i, f) in fundamental.iter().enumerate() {
-            if mask >> i & 1 == 1 {
-                set ^= f;
-            }
-        }
+    // Gray-code order: each element differs from the previous one by one fundamental cycle.
+    let mut set = 0u128;
+    for step in 1u32..(1u32 << fundamental.len()) {
+        set ^= fundamental[step.trailing_zeros() as usize];
         if is_simple_cycle(set, &ends, &incident, &mut degree) {
             found.push(set);
         }
@@ -279,10 +266,9 @@ fn relevant_cycles(edges: &[(usize, usize)], block: &[usize]) -> Option<Vec<Vec<
 fn is_simple_cycle(
     set: u128,
     ends: &[(usize, usize)],
-    incident: &[Vec<(usize, usize)>],
+    incident: &Adjacency,
     degree: &mut [u8],
 ) -> bool {
-    degree.iter_mut().for_each(|d| *d = 0);
     let mut first = usize::MAX;
     let mut bits = set;
     while bits != 0 {
@@ -293,13 +279,26 @@ fn is_simple_cycle(
         degree[b] += 1;
         first = first.min(a);
     }
-    if first == usize::MAX || degree.iter().any(|&d| d != 0 && d != 2) {
+    // Check the touched atoms and clear them for the next call.
+    let mut two_each = true;
+    let mut bits = set;
+    while bits != 0 {
+        let k = bits.trailing_zeros() as usize;
+        bits &= bits - 1;
+        let (a, b) = ends[k];
+        two_each &= degree[a] == 2 || degree[a] == 0;
+        two_each &= degree[b] == 2 || degree[b] == 0;
+        degree[a] = 0;
+        degree[b] = 0;
+    }
+    if first == usize::MAX || !two_each {
         return false;
     }
     // Walk the cycle from `first`; it must use every edge of the set.
     let (mut prev_edge, mut cur, mut steps) = (usize::MAX, first, 0u32);
     loop {
-        let Some(&(next, k)) = incident[cur]
+        let Some(&(next, k)) = incident
+            .of(cur)
             .iter()
             .find(|&&(_, k)| set >> k & 1 == 1 && k != prev_edge)
         else {
@@ -316,6 +315,44 @@ fn is_simple_cycle(
         }
     }
     steps == set.count_ones()
+}
+
+/// Neighbours of every atom in one flat array (compressed rows): (neighbour, edge index).
+struct Adjacency {
+    start: Vec<usize>,
+    entries: Vec<(usize, usize)>,
+}
+
+impl Adjacency {
+    /// Self-loops and edges naming an atom outside `0..atom_count` are left out.
+    fn new(atom_count: usize, edges: &[(usize, usize)]) -> Adjacency {
+        let usable = |a: usize, b: usize| a < atom_count && b < atom_count && a != b;
+        let mut start = vec![0usize; atom_count + 1];
+        for &(a, b) in edges {
+            if usable(a, b) {
+                start[a + 1] += 1;
+                start[b + 1] += 1;
+            }
+        }
+        for i in 0..atom_count {
+            start[i + 1] += start[i];
+        }
+        let mut fill = start.clone();
+        let mut entries = vec![(0, 0); start[atom_count]];
+        for (e, &(a, b)) in edges.iter().enumerate() {
+            if usable(a, b) {
+                entries[fill[a]] = (b, e);
+                fill[a] += 1;
+                entries[fill[b]] = (a, e);
+                fill[b] += 1;
+            }
+        }
+        Adjacency { start, entries }
+    }
+
+    fn of(&self, atom: usize) -> &[(usize, usize)] {
+        &self.entries[self.start[atom]..self.start[atom + 1]]
+    }
 }
 
 /// The atoms of a block in cycle order when the block is one simple cycle (as many distinct

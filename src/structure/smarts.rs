@@ -86,7 +86,54 @@ impl Pattern {
     }
 
     /// Does the pattern match with its first atom on `atom`?
+    ///
+    /// For many calls on one molecule, [`Pattern::matches_at_with`] with [`AtomFacts`]
+    /// computed once is faster.
     pub fn matches_at(&self, g: &MolGraph, atom: usize) -> bool {
+        self.matches_in(&Ctx { g, facts: None }, atom)
+    }
+
+    /// As [`Pattern::matches_at`] on the molecule of `facts`, reading hydrogen counts and
+    /// valences from them.
+    pub fn matches_at_with(&self, facts: &AtomFacts<'_>, atom: usize) -> bool {
+        self.matches_in(&Ctx::with(facts), atom)
+    }
+
+    /// For a two-atom pattern: the number of `bonds` it matches (in either direction), each
+    /// atom test made at most once per atom and end of the pattern.
+    pub fn count_bond_matches(
+        &self,
+        facts: &AtomFacts<'_>,
+        bonds: impl Iterator<Item = usize>,
+    ) -> usize {
+        if self.atoms.len() != 2 {
+            return 0;
+        }
+        let ctx = Ctx::with(facts);
+        let g = facts.graph;
+        let q = &self.parents[1].1;
+        // Per atom and pattern end: 0 unknown, 1 no, 2 yes.
+        let mut memo = vec![[0u8; 2]; g.atoms.len()];
+        let mut end = |k: usize, i: usize| -> bool {
+            if memo[i][k] == 0 {
+                memo[i][k] = if atom_ok(&self.atoms[k], &ctx, i) {
+                    2
+                } else {
+                    1
+                };
+            }
+            memo[i][k] == 2
+        };
+        bonds
+            .filter(|&b| {
+                let (x, y) = (g.bonds[b].a, g.bonds[b].b);
+                bond_ok(q, g, b) && ((end(0, x) && end(1, y)) || (end(0, y) && end(1, x)))
+            })
+            .count()
+    }
+
+    fn matches_in(&self, ctx: &Ctx<'_>, atom: usize) -> bool {
+        let g = ctx.g;
         if let Some(z) = self.root_element
             && g.atoms[atom].atomic_number != z
         {
@@ -97,19 +144,22 @@ impl Pattern {
         {
             return false;
         }
-        if !atom_ok(&self.atoms[0], g, atom) {
+        if !atom_ok(&self.atoms[0], ctx, atom) {
             return false;
         }
         // Patterns are small: map on the stack when it fits.
         let n = self.atoms.len();
+        if n == 1 {
+            return true;
+        }
         if n <= 16 {
             let mut map = [usize::MAX; 16];
             map[0] = atom;
-            self.extend(g, &mut map[..n], 1)
+            self.extend(ctx, &mut map[..n], 1)
         } else {
             let mut map = vec![usize::MAX; n];
             map[0] = atom;
-            self.extend(g, &mut map, 1)
+            self.extend(ctx, &mut map, 1)
         }
     }
 
@@ -139,23 +189,25 @@ impl Pattern {
         if !bond_ok(q, g, bond) {
             return false;
         }
-        (atom_ok(&self.atoms[0], g, b.a) && atom_ok(&self.atoms[1], g, b.b))
-            || (atom_ok(&self.atoms[0], g, b.b) && atom_ok(&self.atoms[1], g, b.a))
+        let ctx = Ctx { g, facts: None };
+        (atom_ok(&self.atoms[0], &ctx, b.a) && atom_ok(&self.atoms[1], &ctx, b.b))
+            || (atom_ok(&self.atoms[0], &ctx, b.b) && atom_ok(&self.atoms[1], &ctx, b.a))
     }
 
-    fn extend(&self, g: &MolGraph, map: &mut [usize], k: usize) -> bool {
+    fn extend(&self, ctx: &Ctx<'_>, map: &mut [usize], k: usize) -> bool {
         if k == self.atoms.len() {
             return true;
         }
+        let g = ctx.g;
         let (parent, ref bq) = self.parents[k];
         let from = map[parent];
         for &(n, b) in &g.neighbours[from] {
             if map[..k].contains(&n) {
                 continue;
             }
-            if bond_ok(bq, g, b) && atom_ok(&self.atoms[k], g, n) {
+            if bond_ok(bq, g, b) && atom_ok(&self.atoms[k], ctx, n) {
                 map[k] = n;
-                if self.extend(g, map, k + 1) {
+                if self.extend(ctx, map, k + 1) {
                     return true;
                 }
                 map[k] = usize::MAX;
@@ -165,24 +217,73 @@ impl Pattern {
     }
 }
 
-fn atom_ok(q: &AtomQuery, g: &MolGraph, i: usize) -> bool {
+/// Per-atom values that SMARTS primitives read again and again (total hydrogens, total
+/// valence), computed once for a molecule. Typing one molecule's atoms against the
+/// Wildman–Crippen table evaluates each of them dozens of times.
+/// The facts keep the molecule they describe, so they cannot be read for another one.
+#[derive(Debug, Clone)]
+pub struct AtomFacts<'a> {
+    graph: &'a MolGraph,
+    total_h: Vec<u32>,
+    valence: Vec<u32>,
+}
+
+impl<'a> AtomFacts<'a> {
+    /// The facts of every atom of `g`.
+    pub fn new(g: &'a MolGraph) -> AtomFacts<'a> {
+        let n = g.atoms.len();
+        AtomFacts {
+            graph: g,
+            total_h: (0..n).map(|i| g.total_hydrogens(i)).collect(),
+            valence: (0..n).map(|i| g.total_valence(i)).collect(),
+        }
+    }
+}
+
+/// The molecule being matched, with its precomputed facts when the caller has them.
+struct Ctx<'a> {
+    g: &'a MolGraph,
+    facts: Option<&'a AtomFacts<'a>>,
+}
+
+impl<'a> Ctx<'a> {
+    fn with(facts: &'a AtomFacts<'a>) -> Ctx<'a> {
+        Ctx {
+            g: facts.graph,
+            facts: Some(facts),
+        }
+    }
+
+    fn total_h(&self, i: usize) -> u32 {
+        self.facts
+            .map_or_else(|| self.g.total_hydrogens(i), |f| f.total_h[i])
+    }
+
+    fn valence(&self, i: usize) -> u32 {
+        self.facts
+            .map_or_else(|| self.g.total_valence(i), |f| f.valence[i])
+    }
+}
+
+fn atom_ok(q: &AtomQuery, ctx: &Ctx<'_>, i: usize) -> bool {
+    let g = ctx.g;
     let a = &g.atoms[i];
     match q {
         AtomQuery::True => true,
-        AtomQuery::Not(x) => !atom_ok(x, g, i),
-        AtomQuery::And(v) => v.iter().all(|x| atom_ok(x, g, i)),
-        AtomQuery::Or(v) => v.iter().any(|x| atom_ok(x, g, i)),
+        AtomQuery::Not(x) => !atom_ok(x, ctx, i),
+        AtomQuery::And(v) => v.iter().all(|x| atom_ok(x, ctx, i)),
+        AtomQuery::Or(v) => v.iter().any(|x| atom_ok(x, ctx, i)),
         AtomQuery::Element { z, aromatic } => {
             a.atomic_number == *z && aromatic.is_none_or(|ar| ar == a.aromatic)
         }
         AtomQuery::Aromatic(ar) => a.aromatic == *ar,
-        AtomQuery::TotalH(h) => g.total_hydrogens(i) == *h,
+        AtomQuery::TotalH(h) => ctx.total_h(i) == *h,
         AtomQuery::Degree(d) => g.degree(i) as u32 == *d,
         AtomQuery::Connections(x) => g.degree(i) as u32 + u32::from(a.hydrogens) == *x,
-        AtomQuery::Valence(v) => g.total_valence(i) == *v,
+        AtomQuery::Valence(v) => ctx.valence(i) == *v,
         AtomQuery::InRing(r) => a.in_ring == *r,
         AtomQuery::Charge(c) => i32::from(a.formal_charge) == *c,
-        AtomQuery::Recursive(p) => p.matches_at(g, i),
+        AtomQuery::Recursive(p) => p.matches_in(ctx, i),
     }
 }
 
@@ -619,6 +720,51 @@ mod tests {
         assert!(Pattern::new("[N+;X4]").unwrap().matches_at(&q, 1));
         assert!(Pattern::new("[#7;+1]").unwrap().matches_at(&q, 1));
         assert!(!Pattern::new("[#7;+0]").unwrap().matches_at(&q, 1));
+    }
+
+    #[test]
+    fn cached_facts_and_bond_counts_agree_with_direct_matching() {
+        let patterns: Vec<Pattern> = [
+            "[CH3]C",
+            "[N;v3;!$(N-*=!@[O,N,P,S])]",
+            "[$([O,S;H1;v2]-[!$(*=[O,N,P,S])]),$([O,S;-])]",
+            "[c](:a)(:a)-[#7,O]",
+            "[!D1&!$(C(F)(F)F)]-!@[!D1]",
+            "[NH2+0]",
+            "[S;v6]",
+        ]
+        .iter()
+        .map(|p| Pattern::new(p).unwrap())
+        .collect();
+        for smiles in [
+            "CC(=O)Nc1ccc(O)cc1",
+            "OCC(O)CO",
+            "[NH3+]CC([O-])=O",
+            "CS(=O)(=O)c1ccccc1C(F)(F)F",
+            "[H]OC([H])([H])C",
+        ] {
+            let m = g(smiles);
+            let facts = AtomFacts::new(&m);
+            for p in &patterns {
+                for i in 0..m.atoms.len() {
+                    assert_eq!(
+                        p.matches_at(&m, i),
+                        p.matches_at_with(&facts, i),
+                        "{smiles} atom {i}"
+                    );
+                }
+                if p.len() == 2 {
+                    let direct = (0..m.bonds.len())
+                        .filter(|&b| p.matches_bond(&m, b))
+                        .count();
+                    assert_eq!(
+                        direct,
+                        p.count_bond_matches(&facts, 0..m.bonds.len()),
+                        "{smiles}"
+                    );
+                }
+            }
+        }
     }
 
     #[test]

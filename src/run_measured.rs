@@ -35,7 +35,9 @@ use phasewise::measured::optimise::{
     optimise, render_window_svg,
 };
 use phasewise::measured::peaks::PeakTable;
-use phasewise::measured::scout::{FitFlag, ScoutError, ScoutFit, ScoutRequest, ScoutRun, fit};
+use phasewise::measured::scout::{
+    CompositionBasis, FitFlag, ScoutError, ScoutFit, ScoutRequest, ScoutRun, fit_in,
+};
 use phasewise::measured::suitability::{
     Criterion, Outcome, SuitabilityError, SuitabilityReport, SuitabilityRequest,
     SuitabilityTargets, evaluate,
@@ -70,7 +72,8 @@ Example:
 /// `scout` help footer.
 pub const SCOUT_HELP: &str = "\
 LC: the gradient programs are `time:%organic` points, one program per run, separated by `;`,
-in the order of the run files. GC (--mode gc): the oven programs are
+in the order of the run files; with --mode hilic log kw and S are fitted in the water fraction
+(1 - %organic/100). GC (--mode gc): the oven programs are
 INITIAL_C:HOLD_MIN,RAMP_C_PER_MIN:FINAL_C:HOLD_MIN, one per run, separated by `;`; the runs
 should differ in ramp rate (a factor of 2-3) or initial temperature. Recommendations are
 starting points: verify them by a run. GC: hydrogen carrier is flammable; never exceed the
@@ -666,8 +669,11 @@ pub enum ReportFormat {
 /// Which chromatography the scouting runs are.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
 pub enum ScoutMode {
-    /// Liquid chromatography: gradient runs, log kw and S.
-    Lc,
+    /// Reversed-phase LC: gradient runs, log k = log kw − S φ (φ the organic fraction).
+    Rp,
+    /// HILIC: gradient runs, log k = log kw − S ψ with ψ = 1 − %organic/100 (water is the
+    /// strong solvent, so S is positive).
+    Hilic,
     /// Gas chromatography: oven-program runs, ln k = A + B/T.
     Gc,
 }
@@ -679,8 +685,8 @@ pub struct ScoutArgs {
     /// programs), 2 or more.
     #[arg(value_name = "RUN", num_args = 2.., required = true)]
     pub runs: Vec<PathBuf>,
-    /// LC gradient runs or GC oven-program runs.
-    #[arg(long, value_enum, default_value_t = ScoutMode::Lc)]
+    /// The runs: reversed-phase or HILIC gradients (LC), or GC oven programs.
+    #[arg(long, value_enum, default_value_t = ScoutMode::Rp)]
     pub mode: ScoutMode,
     /// LC: gradient programs, one per run in the same order, separated by `;`:
     /// `0:5,10:95;0:5,30:95` (time min : % organic).
@@ -711,10 +717,10 @@ pub struct ScoutArgs {
     /// LC: allowed gradient time, `MIN,MAX` in min [default: 5,60].
     #[arg(long, value_name = "MIN,MAX", value_parser = range_arg, allow_hyphen_values = true)]
     pub tg_range: Option<NumberRange>,
-    /// LC: allowed initial composition, `MIN,MAX` in % organic [default: 5,40].
+    /// LC: allowed initial composition, `MIN,MAX` in % organic [default: 5,40; HILIC 80,97].
     #[arg(long, value_name = "MIN,MAX", value_parser = range_arg, allow_hyphen_values = true)]
     pub start_range: Option<NumberRange>,
-    /// LC: allowed final composition, `MIN,MAX` in % organic [default: 60,95].
+    /// LC: allowed final composition, `MIN,MAX` in % organic [default: 60,95; HILIC 50,70].
     #[arg(long, value_name = "MIN,MAX", value_parser = range_arg, allow_hyphen_values = true)]
     pub end_range: Option<NumberRange>,
     /// GC: allowed initial oven temperature, `MIN,MAX` in °C [default: 40,150, capped at the
@@ -798,6 +804,11 @@ pub struct ScoutArgs {
     /// Where the runs are recorded (e.g. "lab notebook 12 p. 4"); required with --store.
     #[arg(long, value_name = "TEXT", requires = "store")]
     pub source: Option<String>,
+    /// Buffer or additive of the aqueous phase of the runs, for --store (e.g. `0.1 % formic
+    /// acid`, `10 mM ammonium acetate`, or a buffer id such as `ammonium-formate-1`); a later
+    /// prediction with another additive does not use the fit directly.
+    #[arg(long, value_name = "TEXT", requires = "store")]
+    pub buffer: Option<String>,
 }
 
 /// The system description `scout --store` records with the fits, checked before any work.
@@ -809,6 +820,7 @@ struct StoreTarget {
     ph: f64,
     temperature_c: Option<f64>,
     source: String,
+    buffer: Option<String>,
 }
 
 fn store_target(a: &ScoutArgs) -> Result<Option<StoreTarget>> {
@@ -844,10 +856,16 @@ fn store_target(a: &ScoutArgs) -> Result<Option<StoreTarget>> {
     let phase = catalogue
         .phase(phase_id)
         .with_context(|| format!("--phase `{phase_id}` (nothing stored)"))?;
-    let mode = match phase.mode() {
-        PhaseMode::Rp => "rp",
-        PhaseMode::Hilic => "hilic",
-        other => bail!(
+    let mode = match (phase.mode(), a.mode) {
+        (PhaseMode::Rp, ScoutMode::Rp) => "rp",
+        (PhaseMode::Hilic, ScoutMode::Hilic) => "hilic",
+        (PhaseMode::Hilic, _) => bail!(
+            "--phase `{phase_id}` is a HILIC phase: add --mode hilic, so that log kw and S are fitted in the water fraction (nothing stored)"
+        ),
+        (PhaseMode::Rp, _) => bail!(
+            "--phase `{phase_id}` is a reversed phase, but --mode hilic was given: leave --mode out or give a HILIC phase (nothing stored)"
+        ),
+        (other, _) => bail!(
             "--phase `{phase_id}` is a {} phase; scouting fits are stored for RP or HILIC phases only (nothing stored)",
             other.as_str()
         ),
@@ -880,6 +898,12 @@ fn store_target(a: &ScoutArgs) -> Result<Option<StoreTarget>> {
         ph,
         temperature_c: a.temperature,
         source: source.trim().to_string(),
+        buffer: match a.buffer.as_deref().map(str::trim) {
+            Some("") => bail!(
+                "--buffer is empty: name the buffer or additive, or leave it out (nothing stored)"
+            ),
+            b => b.map(str::to_string),
+        },
     }))
 }
 
@@ -960,6 +984,12 @@ fn store_fits(
             correlation: f.correlation,
             rms_residual_min: f.rms_residual_min,
             gradients: programs.to_vec(),
+            basis: match fitted.basis {
+                CompositionBasis::Organic => "organic",
+                CompositionBasis::Water => "water",
+            }
+            .into(),
+            buffer: target.buffer.clone(),
             t0_min: fitted.dead_time_min,
             dwell_min: fitted.dwell_time_min,
             flow_ml_min: a.flow,
@@ -973,7 +1003,7 @@ fn store_fits(
         kb.store_retention_fits(&rows)?
     };
     eprintln!(
-        "stored {n} retention fit{} in {} (phase {}, {}, pH {}{}; source: {})",
+        "stored {n} retention fit{} in {} (phase {}, {}, pH {}{}{}; {}; source: {})",
         if n == 1 { "" } else { "s" },
         kb.user_path().display(),
         target.phase_id,
@@ -982,6 +1012,15 @@ fn store_fits(
         target
             .temperature_c
             .map_or_else(String::new, |t| format!(", {t} °C")),
+        target
+            .buffer
+            .as_deref()
+            .map_or_else(|| ", buffer not given".to_string(), |b| format!(", {b}")),
+        if fitted.basis == CompositionBasis::Water {
+            "log kw and S in the water fraction"
+        } else {
+            "log kw and S in the organic fraction"
+        },
         target.source
     );
     for (name, why) in &left_out {
@@ -1056,21 +1095,49 @@ pub fn run_scout(cli: &crate::cli::Cli, a: &ScoutArgs) -> Result<ExitCode> {
             "--gradients is needed in LC mode: one `time:%organic` program per run, separated by `;` (for GC runs add --mode gc and --ovens)"
         );
     };
+    let hilic = a.mode == ScoutMode::Hilic;
+    let basis = if hilic {
+        CompositionBasis::Water
+    } else {
+        CompositionBasis::Organic
+    };
+    // HILIC defaults (common practice, no source): start with 3–20 % water, end at 30–50 %.
+    let (start_default, end_default) = if hilic {
+        ((80.0, 97.0), (50.0, 70.0))
+    } else {
+        ((5.0, 40.0), (60.0, 95.0))
+    };
     let ranges = LcRanges {
         tg: a.tg_range.unwrap_or(NumberRange {
             min: 5.0,
             max: 60.0,
         }),
         start: a.start_range.unwrap_or(NumberRange {
-            min: 5.0,
-            max: 40.0,
+            min: start_default.0,
+            max: start_default.1,
         }),
         end: a.end_range.unwrap_or(NumberRange {
-            min: 60.0,
-            max: 95.0,
+            min: end_default.0,
+            max: end_default.1,
         }),
     };
-    check_scout_options(a, &ranges)?;
+    check_scout_options(a, &ranges, hilic)?;
+    // The optimiser searches the strong-solvent composition: % water in HILIC.
+    let strong = |r: NumberRange| {
+        if hilic {
+            NumberRange {
+                min: 100.0 - r.max,
+                max: 100.0 - r.min,
+            }
+        } else {
+            r
+        }
+    };
+    let search = LcRanges {
+        tg: ranges.tg,
+        start: strong(ranges.start),
+        end: strong(ranges.end),
+    };
     let column = a
         .column
         .as_deref()
@@ -1121,12 +1188,15 @@ pub fn run_scout(cli: &crate::cli::Cli, a: &ScoutArgs) -> Result<ExitCode> {
             peaks: read_peaks(path)?,
         });
     }
-    let fitted = fit(&ScoutRequest {
-        runs,
-        dead_time,
-        dwell_volume_ml: a.dwell,
-        flow_ml_min: a.flow,
-    })
+    let fitted = fit_in(
+        &ScoutRequest {
+            runs,
+            dead_time,
+            dwell_volume_ml: a.dwell,
+            flow_ml_min: a.flow,
+        },
+        basis,
+    )
     .map_err(|e| match e {
         ScoutError::PeakBeforeDeadTime { .. } => anyhow::anyhow!(
             "{e} (t0 from {})",
@@ -1151,12 +1221,12 @@ pub fn run_scout(cli: &crate::cli::Cli, a: &ScoutArgs) -> Result<ExitCode> {
             max: ranges.tg.max,
         },
         initial_pct: Range {
-            min: ranges.start.min,
-            max: ranges.start.max,
+            min: search.start.min,
+            max: search.start.max,
         },
         final_pct: Range {
-            min: ranges.end.min,
-            max: ranges.end.max,
+            min: search.end.min,
+            max: search.end.max,
         },
         max_run_time_min: a.max_run_time,
         critical_pairs: a.critical.clone(),
@@ -1166,7 +1236,7 @@ pub fn run_scout(cli: &crate::cli::Cli, a: &ScoutArgs) -> Result<ExitCode> {
         gradient_time_steps: 25,
         composition_step_pct: 5.0,
     };
-    let report = optimise(&req).map_err(|e| match e {
+    let mut report = optimise(&req).map_err(|e| match e {
         // Name the options that widen the search rather than the library's fields.
         OptimiseError::NoFeasibleCondition { .. } => anyhow::anyhow!(
             "no gradient within --tg-range {},{}, --start-range {},{} and --end-range {},{} \
@@ -1193,6 +1263,10 @@ pub fn run_scout(cli: &crate::cli::Cli, a: &ScoutArgs) -> Result<ExitCode> {
         ),
         other => anyhow::Error::new(other).context("optimising the gradient"),
     })?;
+    if hilic {
+        // Back from % water to % organic, as the programs are typed.
+        report.complement();
+    }
     let text = match a.format {
         ReportFormat::Json => json_line(&ScoutJson {
             schema_version: SCOUT_SCHEMA_VERSION,
@@ -1245,7 +1319,7 @@ fn refuse_options(why: &str, options: &[(&str, bool)]) -> Result<()> {
 }
 
 /// Option checks that the library would otherwise report with its own field names.
-fn check_scout_options(a: &ScoutArgs, r: &LcRanges) -> Result<()> {
+fn check_scout_options(a: &ScoutArgs, r: &LcRanges, hilic: bool) -> Result<()> {
     if a.dwell > 0.0 && a.flow.is_none() {
         bail!(
             "--dwell {} mL needs --flow ML_MIN to be turned into a dwell time",
@@ -1262,7 +1336,16 @@ fn check_scout_options(a: &ScoutArgs, r: &LcRanges) -> Result<()> {
     let pct = "compositions are % organic";
     check_option_range("--start-range", r.start, 0.0, 100.0, pct)?;
     check_option_range("--end-range", r.end, 0.0, 100.0, pct)?;
-    if r.end.max <= r.start.min {
+    if hilic && r.end.min >= r.start.max {
+        bail!(
+            "--end-range {},{} never falls below --start-range {},{}: in HILIC the final % organic must be able to fall below the initial",
+            r.end.min,
+            r.end.max,
+            r.start.min,
+            r.start.max
+        );
+    }
+    if !hilic && r.end.max <= r.start.min {
         bail!(
             "--end-range {},{} never exceeds --start-range {},{}: the final % organic must be able to exceed the initial",
             r.end.min,
@@ -1405,6 +1488,11 @@ fn scout_table(f: &ScoutFit, r: &OptimiseReport, plates_source: &str) -> String 
         f.dead_time_min,
         f.dwell_time_min
     );
+    if f.basis == CompositionBasis::Water {
+        s.push_str(
+            "HILIC: log k = log kw − S ψ with ψ = 1 − %organic/100, the water (strong-solvent) fraction\n",
+        );
+    }
     s.push_str(&render(
         &[
             "analyte",

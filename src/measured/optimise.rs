@@ -373,6 +373,44 @@ pub struct OptimiseReport {
     pub notes: Vec<String>,
 }
 
+impl Prediction {
+    /// The same prediction with compositions complemented (100 − %): the programs of a fit in
+    /// the water fraction (HILIC) written back in % organic. The optimiser's programs are on
+    /// the 0.1 % grid, and so are their complements (rounded so that they print as typed).
+    pub fn complement(&mut self) {
+        let points: Vec<GradientPoint> = self
+            .program
+            .points()
+            .iter()
+            .map(|p| GradientPoint {
+                time_min: p.time_min,
+                organic_pct: round_to_tenth(100.0 - p.organic_pct),
+            })
+            .collect();
+        self.program =
+            GradientProgram::from_points(&points).unwrap_or_else(|_| self.program.complement());
+        for p in &mut self.peaks {
+            p.organic_at_elution_pct = 100.0 - p.organic_at_elution_pct;
+        }
+    }
+}
+
+impl OptimiseReport {
+    /// The report with every composition complemented (100 − %), for an optimisation run in
+    /// the water fraction (HILIC) and reported in % organic: initial and final composition,
+    /// knee, programs, compositions at elution and the window diagram's compositions.
+    pub fn complement(&mut self) {
+        self.initial_pct = round_to_tenth(100.0 - self.initial_pct);
+        self.final_pct = round_to_tenth(100.0 - self.final_pct);
+        if let Some(k) = &mut self.knee {
+            k.organic_pct = round_to_tenth(100.0 - k.organic_pct);
+        }
+        self.optimum.complement();
+        self.window.initial_pct = round_to_tenth(100.0 - self.window.initial_pct);
+        self.window.final_pct = round_to_tenth(100.0 - self.window.final_pct);
+    }
+}
+
 /// Which rule chose the reported condition.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
 #[serde(rename_all = "snake_case")]
@@ -1054,7 +1092,8 @@ pub fn optimise(req: &OptimiseRequest) -> Result<OptimiseReport, OptimiseError> 
     if !meets_min_retention {
         notes.push(format!(
             "no condition in the search space retains the first peak ({}) to k ≥ {}: it elutes \
-             at k = {:.2}; allow a lower initial % organic",
+             at k = {:.2}; allow a weaker start (a lower initial % organic in reversed phase, a \
+             higher one in HILIC)",
             optimum.peaks.first().map_or("?", |p| p.name.as_str()),
             req.min_retention_factor,
             optimum.first_peak_retention_factor

@@ -30,6 +30,9 @@ use phasewise::measured::gc_optimise::{
 use phasewise::measured::gc_scout::{
     GcFitFlag, GcScoutError, GcScoutFit, GcScoutRequest, GcScoutRun, apparent_plates, fit_gc,
 };
+use phasewise::measured::lc_temperature::{
+    TemperatureError, TemperatureModel, TemperaturePoint, optimise_temperature, temperature_model,
+};
 use phasewise::measured::optimise::{
     OptimiseError, OptimiseReport, OptimiseRequest, PlateSource, Prediction, Range, Selection,
     optimise, render_window_svg,
@@ -723,6 +726,15 @@ pub struct ScoutArgs {
     /// LC: allowed final composition, `MIN,MAX` in % organic [default: 60,95; HILIC 50,70].
     #[arg(long, value_name = "MIN,MAX", value_parser = range_arg, allow_hyphen_values = true)]
     pub end_range: Option<NumberRange>,
+    /// LC: column temperature of each run, °C, in run order, separated by `;` (e.g.
+    /// `30;30;50;50` for two gradients at each of two temperatures): log kw and S are fitted
+    /// per temperature, taken linear in 1/T, and the temperature is searched with the gradient.
+    #[arg(long, value_name = "TEMPS")]
+    pub temperatures: Option<String>,
+    /// LC with --temperatures: allowed column temperature, `MIN,MAX` in °C [default: the
+    /// scouted temperatures' range]; searched in 5 °C steps.
+    #[arg(long, value_name = "MIN,MAX", value_parser = range_arg, allow_hyphen_values = true, requires = "temperatures")]
+    pub temperature_range: Option<NumberRange>,
     /// GC: allowed initial oven temperature, `MIN,MAX` in °C [default: 40,150, capped at the
     /// maximum temperature].
     #[arg(long, value_name = "MIN,MAX", value_parser = range_arg, allow_hyphen_values = true)]
@@ -1041,6 +1053,9 @@ struct ScoutJson<'a> {
     plates_source: String,
     fit: &'a ScoutFit,
     optimisation: &'a OptimiseReport,
+    /// With `--temperatures` only: the temperature model and search.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    temperature: Option<&'a TemperatureJson>,
 }
 
 fn split_programs(spec: &str, runs: usize) -> Result<Vec<GradientProgram>> {
@@ -1188,29 +1203,53 @@ pub fn run_scout(cli: &crate::cli::Cli, a: &ScoutArgs) -> Result<ExitCode> {
             peaks: read_peaks(path)?,
         });
     }
-    let fitted = fit_in(
-        &ScoutRequest {
-            runs,
-            dead_time,
-            dwell_volume_ml: a.dwell,
-            flow_ml_min: a.flow,
-        },
-        basis,
-    )
-    .map_err(|e| match e {
-        ScoutError::PeakBeforeDeadTime { .. } => anyhow::anyhow!(
-            "{e} (t0 from {})",
-            if a.t0.is_some() {
-                "--t0"
-            } else {
-                "--column and --flow"
+    let run_temperatures = match a.temperatures.as_deref() {
+        Some(text) => {
+            if a.store {
+                bail!(
+                    "--temperatures with --store: store the fits of one temperature at a time (one `scout --store --temperature T` per temperature)"
+                );
             }
-        ),
-        ScoutError::InconsistentFlow { .. } | ScoutError::FlowNeeded { .. } => {
-            anyhow::anyhow!("--flow, --dwell: {e}")
+            Some(parse_temperatures(text, runs.len())?)
         }
-        other => anyhow::Error::new(other).context("fitting log kw and S to the scouting runs"),
-    })?;
+        None => None,
+    };
+    let fit_runs = |runs: Vec<ScoutRun>| {
+        fit_in(
+            &ScoutRequest {
+                runs,
+                dead_time,
+                dwell_volume_ml: a.dwell,
+                flow_ml_min: a.flow,
+            },
+            basis,
+        )
+        .map_err(|e| scout_error(e, a))
+    };
+    let mut temperature_fits: Vec<(f64, ScoutFit)> = Vec::new();
+    let fitted = match &run_temperatures {
+        None => fit_runs(runs)?,
+        Some(ts) => {
+            let mut distinct: Vec<f64> = ts.clone();
+            distinct.sort_by(f64::total_cmp);
+            distinct.dedup();
+            for t in &distinct {
+                let group: Vec<ScoutRun> = runs
+                    .iter()
+                    .zip(ts)
+                    .filter(|(_, u)| *u == t)
+                    .map(|(r, _)| r.clone())
+                    .collect();
+                let f = fit_runs(group)
+                    .with_context(|| format!("the runs at {t} °C (--temperatures)"))?;
+                temperature_fits.push((*t, f));
+            }
+            match temperature_fits.first() {
+                Some((_, f)) => f.clone(),
+                None => bail!("--temperatures gives no temperature"),
+            }
+        }
+    };
     let req = OptimiseRequest {
         analytes: OptimiseRequest::analytes_from_fit(&fitted),
         dead_time_min: fitted.dead_time_min,
@@ -1236,33 +1275,50 @@ pub fn run_scout(cli: &crate::cli::Cli, a: &ScoutArgs) -> Result<ExitCode> {
         gradient_time_steps: 25,
         composition_step_pct: 5.0,
     };
-    let mut report = optimise(&req).map_err(|e| match e {
-        // Name the options that widen the search rather than the library's fields.
-        OptimiseError::NoFeasibleCondition { .. } => anyhow::anyhow!(
-            "no gradient within --tg-range {},{}, --start-range {},{} and --end-range {},{} \
-             elutes every analyte within --max-run-time {} min; raise --max-run-time, the top \
-             of --end-range, or lower the top of --tg-range",
-            ranges.tg.min,
-            ranges.tg.max,
-            ranges.start.min,
-            ranges.start.max,
-            ranges.end.min,
-            ranges.end.max,
-            a.max_run_time
-        ),
-        OptimiseError::UnknownAnalyte { .. } | OptimiseError::CriticalPairSameAnalyte { .. } => {
-            anyhow::anyhow!("--critical: {e}")
+    let optimise_error = |e: OptimiseError| optimise_error(e, a, &ranges);
+    let (mut report, temperature) = if temperature_fits.is_empty() {
+        (optimise(&req).map_err(optimise_error)?, None)
+    } else {
+        let model = temperature_model(&temperature_fits)
+            .map_err(|e| anyhow::anyhow!("--temperatures: {e}"))?;
+        let range = a.temperature_range.map_or_else(
+            || Range {
+                min: model.temperatures_c.first().copied().unwrap_or(0.0),
+                max: model.temperatures_c.last().copied().unwrap_or(0.0),
+            },
+            |r| Range {
+                min: r.min,
+                max: r.max,
+            },
+        );
+        let found = optimise_temperature(&model, &req, range, 5.0).map_err(|e| match e {
+            TemperatureError::Optimise(o) => optimise_error(o),
+            TemperatureError::BadTemperature { .. } => anyhow::anyhow!("--temperature-range: {e}"),
+            other => anyhow::anyhow!("--temperatures: {other}"),
+        })?;
+        let mut points = found.points.clone();
+        if hilic {
+            for p in &mut points {
+                if let Ok(g) = GradientProgram::parse(&p.program) {
+                    p.program = program_text(&g.complement());
+                }
+            }
         }
-        OptimiseError::TooFewAnalytes { .. } => anyhow::anyhow!(
-            "{e}: the peak tables {} name fewer than two peaks",
-            a.runs
+        let json = TemperatureJson {
+            chosen_c: found.temperature_c,
+            extrapolated: found.extrapolated,
+            model,
+            points,
+            fits: temperature_fits
                 .iter()
-                .map(|p| p.display().to_string())
-                .collect::<Vec<_>>()
-                .join(", ")
-        ),
-        other => anyhow::Error::new(other).context("optimising the gradient"),
-    })?;
+                .map(|(t, f)| TemperatureFitJson {
+                    temperature_c: *t,
+                    fit: f.clone(),
+                })
+                .collect(),
+        };
+        (found.report, Some(json))
+    };
     if hilic {
         // Back from % water to % organic, as the programs are typed.
         report.complement();
@@ -1273,8 +1329,24 @@ pub fn run_scout(cli: &crate::cli::Cli, a: &ScoutArgs) -> Result<ExitCode> {
             plates_source: plates_source.clone(),
             fit: &fitted,
             optimisation: &report,
+            temperature: temperature.as_ref(),
         })?,
-        ReportFormat::Table => scout_table(&fitted, &report, &plates_source),
+        ReportFormat::Table => {
+            let mut t = String::new();
+            if let Some(tj) = &temperature {
+                for f in &tj.fits {
+                    t.push_str(&format!("At {} °C:\n", f.temperature_c));
+                    t.push_str(&scout_fit_table(&f.fit));
+                    t.push_str("\n\n");
+                }
+                t.push_str(&temperature_table(tj));
+                t.push('\n');
+                t.push_str(&scout_optimum_table(&report, &plates_source));
+            } else {
+                t = scout_table(&fitted, &report, &plates_source);
+            }
+            t
+        }
     };
     let left_out = match &store {
         Some(t) => store_fits(cli, a, t, &fitted, &program_specs)?,
@@ -1301,6 +1373,173 @@ pub fn run_scout(cli: &crate::cli::Cli, a: &ScoutArgs) -> Result<ExitCode> {
     } else {
         ExitCode::from(EXIT_PARTIAL)
     })
+}
+
+/// A scouting-fit error with the option (or the file) the user can change named first.
+fn scout_error(e: ScoutError, a: &ScoutArgs) -> anyhow::Error {
+    match e {
+        ScoutError::PeakBeforeDeadTime { .. } => anyhow::anyhow!(
+            "{e} (t0 from {})",
+            if a.t0.is_some() {
+                "--t0"
+            } else {
+                "--column and --flow"
+            }
+        ),
+        ScoutError::InconsistentFlow { .. } | ScoutError::FlowNeeded { .. } => {
+            anyhow::anyhow!("--flow, --dwell: {e}")
+        }
+        other => anyhow::Error::new(other).context("fitting log kw and S to the scouting runs"),
+    }
+}
+
+/// An optimiser error naming the options that widen the search rather than library fields.
+fn optimise_error(e: OptimiseError, a: &ScoutArgs, r: &LcRanges) -> anyhow::Error {
+    match e {
+        // Name the options that widen the search rather than the library's fields.
+        OptimiseError::NoFeasibleCondition { .. } => anyhow::anyhow!(
+            "no gradient within --tg-range {},{}, --start-range {},{} and --end-range {},{} \
+             elutes every analyte within --max-run-time {} min; raise --max-run-time, the top \
+             of --end-range, or lower the top of --tg-range",
+            r.tg.min,
+            r.tg.max,
+            r.start.min,
+            r.start.max,
+            r.end.min,
+            r.end.max,
+            a.max_run_time
+        ),
+        OptimiseError::UnknownAnalyte { .. } | OptimiseError::CriticalPairSameAnalyte { .. } => {
+            anyhow::anyhow!("--critical: {e}")
+        }
+        OptimiseError::TooFewAnalytes { .. } => anyhow::anyhow!(
+            "{e}: the peak tables {} name fewer than two peaks",
+            a.runs
+                .iter()
+                .map(|p| p.display().to_string())
+                .collect::<Vec<_>>()
+                .join(", ")
+        ),
+        other => anyhow::Error::new(other).context("optimising the gradient"),
+    }
+}
+
+/// `--temperatures`: one column temperature (°C) per run, separated by `;`.
+fn parse_temperatures(text: &str, runs: usize) -> Result<Vec<f64>> {
+    let parts: Vec<&str> = text.split(';').map(str::trim).collect();
+    if parts.len() != runs {
+        bail!(
+            "--temperatures gives {} temperature(s) (`{text}`) for {runs} run files; give one per run, separated by `;`",
+            parts.len()
+        );
+    }
+    parts
+        .iter()
+        .map(|p| match p.parse::<f64>() {
+            Ok(v) if v.is_finite() && (-10.0..=200.0).contains(&v) => Ok(v),
+            Ok(v) => bail!("--temperatures: {v} °C must lie between -10 and 200 °C"),
+            Err(_) => bail!("--temperatures: `{p}` is not a temperature in °C"),
+        })
+        .collect()
+}
+
+/// The fits at one temperature of `--temperatures`.
+#[derive(Serialize)]
+struct TemperatureFitJson {
+    temperature_c: f64,
+    fit: ScoutFit,
+}
+
+/// `temperature` in the `scout` JSON when `--temperatures` is given.
+#[derive(Serialize)]
+struct TemperatureJson {
+    /// Chosen column temperature, °C.
+    chosen_c: f64,
+    /// Outside the scouted temperatures.
+    extrapolated: bool,
+    /// log kw and S as lines in 1/T.
+    model: TemperatureModel,
+    /// The best gradient at every temperature searched.
+    points: Vec<TemperaturePoint>,
+    /// The fit at each scouted temperature.
+    fits: Vec<TemperatureFitJson>,
+}
+
+fn temperature_table(t: &TemperatureJson) -> String {
+    let rows: Vec<Vec<String>> = t
+        .model
+        .analytes
+        .iter()
+        .map(|a| {
+            let (lk, s) = a.at(t.chosen_c);
+            vec![
+                a.name.clone(),
+                num(Some(a.log_kw_intercept), 3),
+                num(Some(a.log_kw_slope_k), 0),
+                num(Some(a.s_intercept), 3),
+                num(Some(a.s_slope_k), 0),
+                num(Some(lk), 3),
+                num(Some(s), 3),
+                if a.from_flagged_fit {
+                    "from a flagged fit".into()
+                } else {
+                    String::new()
+                },
+            ]
+        })
+        .collect();
+    let mut s = format!(
+        "log kw = a + b/T and S = c + d/T (T in K) through the fits at {}:\n",
+        t.model
+            .temperatures_c
+            .iter()
+            .map(|x| format!("{x} °C"))
+            .collect::<Vec<_>>()
+            .join(", ")
+    );
+    let at_lk = format!("log kw at {} °C", t.chosen_c);
+    let at_s = format!("S at {} °C", t.chosen_c);
+    s.push_str(&render(
+        &[
+            "analyte", "a (–)", "b (K)", "c (–)", "d (K)", &at_lk, &at_s, "",
+        ],
+        &rows,
+    ));
+    let pts: Vec<Vec<String>> = t
+        .points
+        .iter()
+        .map(|p| {
+            vec![
+                num(Some(p.temperature_c), 1),
+                p.program.clone(),
+                num(Some(p.min_resolution), 2),
+                num(Some(p.run_time_min), 2),
+                if p.meets_target { "met" } else { "not met" }.into(),
+                if (p.temperature_c - t.chosen_c).abs() < 1e-9 {
+                    "chosen".into()
+                } else {
+                    String::new()
+                },
+            ]
+        })
+        .collect();
+    s.push_str("\n\nBest gradient at each temperature:\n");
+    s.push_str(&render(
+        &[
+            "temperature (°C)",
+            "program (time min : % organic)",
+            "smallest Rs (–)",
+            "last peak (min)",
+            "target",
+            "",
+        ],
+        &pts,
+    ));
+    s.push('\n');
+    if t.extrapolated {
+        s.push_str("note: the chosen temperature is outside the scouted ones (extrapolation)\n");
+    }
+    s
 }
 
 /// The LC search ranges, defaults applied.
@@ -1466,6 +1705,14 @@ fn fmt_tenth(v: f64) -> String {
 }
 
 fn scout_table(f: &ScoutFit, r: &OptimiseReport, plates_source: &str) -> String {
+    let mut s = scout_fit_table(f);
+    s.push_str("\n\n");
+    s.push_str(&scout_optimum_table(r, plates_source));
+    s
+}
+
+/// The fit part of the `scout` table (no trailing newline).
+fn scout_fit_table(f: &ScoutFit) -> String {
     let rows: Vec<Vec<String>> = f
         .analytes
         .iter()
@@ -1505,8 +1752,14 @@ fn scout_table(f: &ScoutFit, r: &OptimiseReport, plates_source: &str) -> String 
         ],
         &rows,
     ));
+    s
+}
+
+/// The optimum part of the `scout` table.
+fn scout_optimum_table(r: &OptimiseReport, plates_source: &str) -> String {
+    let mut s = String::new();
     s.push_str(&format!(
-        "\n\nOptimum: initial {:.1} %, final {:.1} % organic over {:.1} min; plate number {:.0} ({plates_source}); {} conditions evaluated\n",
+        "Optimum: initial {:.1} %, final {:.1} % organic over {:.1} min; plate number {:.0} ({plates_source}); {} conditions evaluated\n",
         r.initial_pct, r.final_pct, r.gradient_time_min, r.plates_used, r.evaluated_conditions
     ));
     if let Some(k) = &r.knee {
@@ -1660,6 +1913,7 @@ fn run_scout_gc(a: &ScoutArgs) -> Result<ExitCode> {
             ("--start-range", a.start_range.is_some()),
             ("--end-range", a.end_range.is_some()),
             ("--two-segment", a.two_segment),
+            ("--temperatures", a.temperatures.is_some()),
             ("--modifier", a.modifier.is_some()),
             ("--ph", a.ph.is_some()),
             ("--temperature", a.temperature.is_some()),

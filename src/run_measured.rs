@@ -1053,8 +1053,7 @@ struct ScoutJson<'a> {
     plates_source: String,
     fit: &'a ScoutFit,
     optimisation: &'a OptimiseReport,
-    /// With `--temperatures` only: the temperature model and search.
-    #[serde(skip_serializing_if = "Option::is_none")]
+    /// The temperature model and search with `--temperatures`; null without.
     temperature: Option<&'a TemperatureJson>,
 }
 

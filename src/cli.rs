@@ -77,9 +77,10 @@ pub enum Command {
     /// System suitability of one measured run from its peak table.
     #[command(after_help = crate::run_measured::SUITABILITY_HELP)]
     Suitability(crate::run_measured::SuitabilityArgs),
-    /// Fit log kw and S from two or more scouting gradients, then optimise the gradient.
+    /// Fit log kw and S from two or more scouting gradients (or, with `--mode gc`, ln k = A + B/T
+    /// from two or more oven programs), then optimise the gradient (or the oven program).
     #[command(after_help = crate::run_measured::SCOUT_HELP)]
-    Scout(crate::run_measured::ScoutArgs),
+    Scout(Box<crate::run_measured::ScoutArgs>),
     /// Scale a gradient method to another column geometry and particle size.
     #[command(after_help = crate::run_measured::TRANSFER_HELP)]
     Transfer(crate::run_measured::TransferArgs),

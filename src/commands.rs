@@ -398,6 +398,7 @@ pub(crate) fn stored_fit_from(
         .ok_or_else(|| anyhow::anyhow!("no gradient program recorded"))?;
     let program = phasewise::model::gradient::GradientProgram::parse(first)
         .with_context(|| format!("gradient program `{first}`"))?;
+    let (lss, log_kw_uncertainty, s_uncertainty, correlation) = strong_solvent_parameters(r)?;
     Ok(phasewise::model::memory::StoredFit {
         inchikey: r.inchikey.clone(),
         phase_id: r.phase_id.clone(),
@@ -406,7 +407,10 @@ pub(crate) fn stored_fit_from(
             chem_class,
             modifier,
             ph: Some(r.ph),
-            additive: Additive::Other,
+            additive: r
+                .buffer
+                .as_deref()
+                .map_or(Additive::Other, Additive::from_buffer_text),
             gradient: program
                 .points()
                 .iter()
@@ -420,16 +424,46 @@ pub(crate) fn stored_fit_from(
             flow_ml_min: r.flow_ml_min.unwrap_or(1.0),
             temperature_c: r.temperature_c,
         },
-        lss: phasewise::model::gradient::LssParameters {
-            log_kw: r.log_kw,
-            s: r.s,
-        },
-        log_kw_uncertainty: r.log_kw_uncertainty,
-        s_uncertainty: r.s_uncertainty,
-        correlation: r.correlation,
+        lss,
+        log_kw_uncertainty,
+        s_uncertainty,
+        correlation,
         rms_residual_min: r.rms_residual_min,
         source: r.source.clone(),
+        buffer: r.buffer.clone(),
     })
+}
+
+/// A stored row's log kw and S (with 1σ and correlation) in the strong-solvent fraction of its
+/// mode, as `StoredFit` holds them. HILIC rows stored before the overlay's migration 3 were
+/// fitted in the organic fraction φ (basis `organic`): log k = a − s φ with φ = 1 − ψ is
+/// log k = (a − s) − (−s) ψ, so log kw = a − s and S = −s in the water fraction ψ, with
+/// Var(log kw) = Var a + Var s − 2 Cov(a, s) and Cov(log kw, S) = Var s − Cov(a, s).
+fn strong_solvent_parameters(
+    r: &phasewise::kb::retention::RetentionFitRecord,
+) -> Result<(phasewise::model::gradient::LssParameters, f64, f64, f64)> {
+    let lss = |log_kw, s| phasewise::model::gradient::LssParameters { log_kw, s };
+    match (r.mode.as_str(), r.basis.as_str()) {
+        ("rp", "organic") | ("hilic", "water") => Ok((
+            lss(r.log_kw, r.s),
+            r.log_kw_uncertainty,
+            r.s_uncertainty,
+            r.correlation,
+        )),
+        ("hilic", "organic") => {
+            let (sa, ss) = (r.log_kw_uncertainty, r.s_uncertainty);
+            let cov = r.correlation * sa * ss;
+            let sd_kw = (sa * sa + ss * ss - 2.0 * cov).max(0.0).sqrt();
+            let cov_new = ss * ss - cov;
+            let rho = if sd_kw > 0.0 && ss > 0.0 {
+                (cov_new / (sd_kw * ss)).clamp(-1.0, 1.0)
+            } else {
+                0.0
+            };
+            Ok((lss(r.log_kw - r.s, -r.s), sd_kw, ss, rho))
+        }
+        (m, b) => bail!("mode `{m}` with composition basis `{b}` is not a known combination"),
+    }
 }
 
 /// Run a parsed command line.

@@ -23,12 +23,24 @@ use clap::{Args, Subcommand, ValueEnum};
 use serde::Serialize;
 
 use phasewise::measured::DeadTimeInput;
+use phasewise::measured::gc_optimise::{
+    GcOptimiseError, GcOptimiseReport, GcOptimiseRequest, TemperatureRange, optimise_gc,
+    render_gc_window_svg,
+};
+use phasewise::measured::gc_scout::{
+    GcFitFlag, GcScoutError, GcScoutFit, GcScoutRequest, GcScoutRun, apparent_plates, fit_gc,
+};
+use phasewise::measured::lc_temperature::{
+    TemperatureError, TemperatureModel, TemperaturePoint, optimise_temperature, temperature_model,
+};
 use phasewise::measured::optimise::{
     OptimiseError, OptimiseReport, OptimiseRequest, PlateSource, Prediction, Range, Selection,
     optimise, render_window_svg,
 };
 use phasewise::measured::peaks::PeakTable;
-use phasewise::measured::scout::{FitFlag, ScoutError, ScoutFit, ScoutRequest, ScoutRun, fit};
+use phasewise::measured::scout::{
+    CompositionBasis, FitFlag, ScoutError, ScoutFit, ScoutRequest, ScoutRun, fit_in,
+};
 use phasewise::measured::suitability::{
     Criterion, Outcome, SuitabilityError, SuitabilityReport, SuitabilityRequest,
     SuitabilityTargets, evaluate,
@@ -38,6 +50,7 @@ use phasewise::measured::transfer::{
 };
 use phasewise::model::eval::{EvalReport, evaluate_with};
 use phasewise::model::features::PhasewiseDescriptors;
+use phasewise::model::gc::{GcColumn, OvenProgram};
 use phasewise::model::gradient::GradientProgram;
 use phasewise::model::memory::MemoryTable;
 use phasewise::model::regression::{DEFAULT_PENALTIES, TrainingData, train_with};
@@ -61,12 +74,19 @@ Example:
 
 /// `scout` help footer.
 pub const SCOUT_HELP: &str = "\
-The gradient programs are `time:%organic` points, one program per run, separated by `;`,
-in the order of the run files. Recommendations are starting points: verify them by a run.
+LC: the gradient programs are `time:%organic` points, one program per run, separated by `;`,
+in the order of the run files; with --mode hilic log kw and S are fitted in the water fraction
+(1 - %organic/100). GC (--mode gc): the oven programs are
+INITIAL_C:HOLD_MIN,RAMP_C_PER_MIN:FINAL_C:HOLD_MIN, one per run, separated by `;`; the runs
+should differ in ramp rate (a factor of 2-3) or initial temperature. Recommendations are
+starting points: verify them by a run. GC: hydrogen carrier is flammable; never exceed the
+phase's maximum temperature.
 
 Example:
   phasewise scout fast.csv slow.csv --gradients '0:5,10:95;0:5,30:95' \\
-      --column 150x4.6 --flow 1.0 --dwell 0.8 --window-svg window.svg";
+      --column 150x4.6 --flow 1.0 --dwell 0.8 --window-svg window.svg
+  phasewise scout --mode gc slow.csv fast.csv --ovens '40:1,5:300:5;40:1,15:300:5' \\
+      --column 30x0.25x0.25 --velocity 35 --phase gc-5-phenyl --window-svg ramp-window.svg";
 
 /// `transfer` help footer.
 pub const TRANSFER_HELP: &str = "\
@@ -649,45 +669,95 @@ pub enum ReportFormat {
     Json,
 }
 
+/// Which chromatography the scouting runs are.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum ScoutMode {
+    /// Reversed-phase LC: gradient runs, log k = log kw − S φ (φ the organic fraction).
+    Rp,
+    /// HILIC: gradient runs, log k = log kw − S ψ with ψ = 1 − %organic/100 (water is the
+    /// strong solvent, so S is positive).
+    Hilic,
+    /// Gas chromatography: oven-program runs, ln k = A + B/T.
+    Gc,
+}
+
 /// `scout` options.
 #[derive(Debug, Args)]
 pub struct ScoutArgs {
-    /// Peak tables of the scouting runs (same sample and flow, different gradients), 2 or more.
+    /// Peak tables of the scouting runs (same sample and flow, different gradients or oven
+    /// programs), 2 or more.
     #[arg(value_name = "RUN", num_args = 2.., required = true)]
     pub runs: Vec<PathBuf>,
-    /// Gradient programs, one per run in the same order, separated by `;`:
+    /// The runs: reversed-phase or HILIC gradients (LC), or GC oven programs.
+    #[arg(long, value_enum, default_value_t = ScoutMode::Rp)]
+    pub mode: ScoutMode,
+    /// LC: gradient programs, one per run in the same order, separated by `;`:
     /// `0:5,10:95;0:5,30:95` (time min : % organic).
     #[arg(long, value_name = "PROGRAMS")]
-    pub gradients: String,
-    /// Dead time t0, min.
+    pub gradients: Option<String>,
+    /// GC: oven programs, one per run in the same order, separated by `;`, each
+    /// `INITIAL_C:HOLD_MIN,RAMP_C_PER_MIN:FINAL_C:HOLD_MIN` (as `predict --oven`), e.g.
+    /// `40:1,5:300:5;40:1,15:300:5`.
+    #[arg(long, value_name = "PROGRAMS")]
+    pub ovens: Option<String>,
+    /// Dead time t0 (GC: hold-up time t_M, e.g. from an unretained methane peak), min.
     #[arg(long, value_name = "MIN", conflicts_with = "column", value_parser = positive_arg, allow_negative_numbers = true)]
     pub t0: Option<f64>,
-    /// Column as LENGTHxID in mm (e.g. `150x4.6`): t0 is estimated with Vm ≈ 0.5·L·dc².
-    #[arg(long, value_name = "LxID", value_parser = column_arg, requires = "flow")]
-    pub column: Option<ColumnSize>,
+    /// LC: column as LENGTHxID in mm (e.g. `150x4.6`), t0 estimated with Vm ≈ 0.5·L·dc² (needs
+    /// --flow). GC: `LENGTH_MxID_MMxFILM_UM` (e.g. `30x0.25x0.25`), t_M = L/u with --velocity.
+    #[arg(long, value_name = "COLUMN")]
+    pub column: Option<String>,
+    /// GC: average carrier linear velocity, cm/s, for t_M from --column (default 35, as
+    /// `predict --mode gc` assumes).
+    #[arg(long, value_name = "CM_S", requires = "column", value_parser = positive_arg, allow_negative_numbers = true)]
+    pub velocity: Option<f64>,
     /// Flow rate, mL/min (needed with --column, and with --t0 when --dwell is not zero).
     #[arg(long, value_name = "ML_MIN", value_parser = positive_arg, allow_negative_numbers = true)]
     pub flow: Option<f64>,
     /// Dwell (gradient delay) volume, mL.
     #[arg(long, value_name = "ML", default_value_t = 0.0, value_parser = non_negative_arg, allow_negative_numbers = true)]
     pub dwell: f64,
-    /// Allowed gradient time, `MIN,MAX` in min.
-    #[arg(long, value_name = "MIN,MAX", value_parser = range_arg, default_value = "5,60", allow_hyphen_values = true)]
-    pub tg_range: NumberRange,
-    /// Allowed initial composition, `MIN,MAX` in % organic.
-    #[arg(long, value_name = "MIN,MAX", value_parser = range_arg, default_value = "5,40", allow_hyphen_values = true)]
-    pub start_range: NumberRange,
-    /// Allowed final composition, `MIN,MAX` in % organic.
-    #[arg(long, value_name = "MIN,MAX", value_parser = range_arg, default_value = "60,95", allow_hyphen_values = true)]
-    pub end_range: NumberRange,
+    /// LC: allowed gradient time, `MIN,MAX` in min [default: 5,60].
+    #[arg(long, value_name = "MIN,MAX", value_parser = range_arg, allow_hyphen_values = true)]
+    pub tg_range: Option<NumberRange>,
+    /// LC: allowed initial composition, `MIN,MAX` in % organic [default: 5,40; HILIC 80,97].
+    #[arg(long, value_name = "MIN,MAX", value_parser = range_arg, allow_hyphen_values = true)]
+    pub start_range: Option<NumberRange>,
+    /// LC: allowed final composition, `MIN,MAX` in % organic [default: 60,95; HILIC 50,70].
+    #[arg(long, value_name = "MIN,MAX", value_parser = range_arg, allow_hyphen_values = true)]
+    pub end_range: Option<NumberRange>,
+    /// LC: column temperature of each run, °C, in run order, separated by `;` (e.g.
+    /// `30;30;50;50` for two gradients at each of two temperatures): log kw and S are fitted
+    /// per temperature, taken linear in 1/T, and the temperature is searched with the gradient.
+    #[arg(long, value_name = "TEMPS")]
+    pub temperatures: Option<String>,
+    /// LC with --temperatures: allowed column temperature, `MIN,MAX` in °C [default: the
+    /// scouted temperatures' range]; searched in 5 °C steps.
+    #[arg(long, value_name = "MIN,MAX", value_parser = range_arg, allow_hyphen_values = true, requires = "temperatures")]
+    pub temperature_range: Option<NumberRange>,
+    /// GC: allowed initial oven temperature, `MIN,MAX` in °C [default: 40,150, capped at the
+    /// maximum temperature].
+    #[arg(long, value_name = "MIN,MAX", value_parser = range_arg, allow_hyphen_values = true)]
+    pub initial_range: Option<NumberRange>,
+    /// GC: allowed ramp rate, `MIN,MAX` in °C/min [default: 2,30].
+    #[arg(long, value_name = "MIN,MAX", value_parser = range_arg, allow_hyphen_values = true)]
+    pub ramp_range: Option<NumberRange>,
+    /// GC: initial hold of the optimised program, min [default: 1].
+    #[arg(long, value_name = "MIN", value_parser = non_negative_arg, allow_negative_numbers = true)]
+    pub initial_hold: Option<f64>,
+    /// GC: highest oven temperature allowed, °C (default: the limit of --phase; one of the two
+    /// is needed in GC mode, and the lower wins when both are given).
+    #[arg(long, value_name = "C", allow_negative_numbers = true)]
+    pub max_temperature: Option<f64>,
     /// Latest allowed elution of the last peak, min.
     #[arg(long, value_name = "MIN", default_value_t = 60.0, value_parser = positive_arg, allow_negative_numbers = true)]
     pub max_run_time: f64,
     /// Optimise only this pair's resolution, `first,second`; repeatable.
     #[arg(long, value_name = "A,B", value_parser = pair_arg)]
     pub critical: Vec<[String; 2]>,
-    /// Plate number for predicted widths (default: from --particle and the column length, else
-    /// 10 000 assumed).
+    /// Plate number for predicted widths (LC default: from --particle and the column length,
+    /// else 10 000 assumed; GC default: the median apparent plate number of the runs' own peak
+    /// widths).
     #[arg(long, value_name = "N", conflicts_with = "particle", value_parser = positive_arg, allow_negative_numbers = true)]
     pub plates: Option<f64>,
     /// Particle size, µm: estimate N = L/(2.5·dp) from it and the --column length.
@@ -720,8 +790,9 @@ pub struct ScoutArgs {
     /// and --source; every analyte name must resolve in the knowledge base.
     #[arg(long)]
     pub store: bool,
-    /// Stationary-phase id of the runs (an RP or HILIC phase of the catalogue), for --store.
-    #[arg(long, value_name = "ID", requires = "store")]
+    /// Stationary-phase id of the runs: an RP or HILIC phase of the catalogue, for --store; in
+    /// GC mode a GC phase, whose maximum temperature limits the programs.
+    #[arg(long, value_name = "ID")]
     pub phase: Option<String>,
     /// Organic modifier of the runs: acetonitrile or methanol, for --store.
     #[arg(long, value_name = "NAME", requires = "store")]
@@ -745,6 +816,11 @@ pub struct ScoutArgs {
     /// Where the runs are recorded (e.g. "lab notebook 12 p. 4"); required with --store.
     #[arg(long, value_name = "TEXT", requires = "store")]
     pub source: Option<String>,
+    /// Buffer or additive of the aqueous phase of the runs, for --store (e.g. `0.1 % formic
+    /// acid`, `10 mM ammonium acetate`, or a buffer id such as `ammonium-formate-1`); a later
+    /// prediction with another additive does not use the fit directly.
+    #[arg(long, value_name = "TEXT", requires = "store")]
+    pub buffer: Option<String>,
 }
 
 /// The system description `scout --store` records with the fits, checked before any work.
@@ -756,6 +832,7 @@ struct StoreTarget {
     ph: f64,
     temperature_c: Option<f64>,
     source: String,
+    buffer: Option<String>,
 }
 
 fn store_target(a: &ScoutArgs) -> Result<Option<StoreTarget>> {
@@ -791,10 +868,16 @@ fn store_target(a: &ScoutArgs) -> Result<Option<StoreTarget>> {
     let phase = catalogue
         .phase(phase_id)
         .with_context(|| format!("--phase `{phase_id}` (nothing stored)"))?;
-    let mode = match phase.mode() {
-        PhaseMode::Rp => "rp",
-        PhaseMode::Hilic => "hilic",
-        other => bail!(
+    let mode = match (phase.mode(), a.mode) {
+        (PhaseMode::Rp, ScoutMode::Rp) => "rp",
+        (PhaseMode::Hilic, ScoutMode::Hilic) => "hilic",
+        (PhaseMode::Hilic, _) => bail!(
+            "--phase `{phase_id}` is a HILIC phase: add --mode hilic, so that log kw and S are fitted in the water fraction (nothing stored)"
+        ),
+        (PhaseMode::Rp, _) => bail!(
+            "--phase `{phase_id}` is a reversed phase, but --mode hilic was given: leave --mode out or give a HILIC phase (nothing stored)"
+        ),
+        (other, _) => bail!(
             "--phase `{phase_id}` is a {} phase; scouting fits are stored for RP or HILIC phases only (nothing stored)",
             other.as_str()
         ),
@@ -827,6 +910,12 @@ fn store_target(a: &ScoutArgs) -> Result<Option<StoreTarget>> {
         ph,
         temperature_c: a.temperature,
         source: source.trim().to_string(),
+        buffer: match a.buffer.as_deref().map(str::trim) {
+            Some("") => bail!(
+                "--buffer is empty: name the buffer or additive, or leave it out (nothing stored)"
+            ),
+            b => b.map(str::to_string),
+        },
     }))
 }
 
@@ -907,6 +996,12 @@ fn store_fits(
             correlation: f.correlation,
             rms_residual_min: f.rms_residual_min,
             gradients: programs.to_vec(),
+            basis: match fitted.basis {
+                CompositionBasis::Organic => "organic",
+                CompositionBasis::Water => "water",
+            }
+            .into(),
+            buffer: target.buffer.clone(),
             t0_min: fitted.dead_time_min,
             dwell_min: fitted.dwell_time_min,
             flow_ml_min: a.flow,
@@ -920,7 +1015,7 @@ fn store_fits(
         kb.store_retention_fits(&rows)?
     };
     eprintln!(
-        "stored {n} retention fit{} in {} (phase {}, {}, pH {}{}; source: {})",
+        "stored {n} retention fit{} in {} (phase {}, {}, pH {}{}{}; {}; source: {})",
         if n == 1 { "" } else { "s" },
         kb.user_path().display(),
         target.phase_id,
@@ -929,6 +1024,15 @@ fn store_fits(
         target
             .temperature_c
             .map_or_else(String::new, |t| format!(", {t} °C")),
+        target
+            .buffer
+            .as_deref()
+            .map_or_else(|| ", buffer not given".to_string(), |b| format!(", {b}")),
+        if fitted.basis == CompositionBasis::Water {
+            "log kw and S in the water fraction"
+        } else {
+            "log kw and S in the organic fraction"
+        },
         target.source
     );
     for (name, why) in &left_out {
@@ -949,6 +1053,8 @@ struct ScoutJson<'a> {
     plates_source: String,
     fit: &'a ScoutFit,
     optimisation: &'a OptimiseReport,
+    /// The temperature model and search with `--temperatures`; null without.
+    temperature: Option<&'a TemperatureJson>,
 }
 
 fn split_programs(spec: &str, runs: usize) -> Result<Vec<GradientProgram>> {
@@ -971,9 +1077,89 @@ fn split_programs(spec: &str, runs: usize) -> Result<Vec<GradientProgram>> {
 
 /// Runs `phasewise scout`.
 pub fn run_scout(cli: &crate::cli::Cli, a: &ScoutArgs) -> Result<ExitCode> {
-    check_scout_options(a)?;
-    let dead_time = dead_time_input(a.t0, a.column, a.flow)?;
-    let programs = split_programs(&a.gradients, a.runs.len())?;
+    if a.mode == ScoutMode::Gc {
+        return run_scout_gc(a);
+    }
+    refuse_options(
+        "a GC option; in LC mode give --gradients (or add --mode gc)",
+        &[
+            ("--ovens", a.ovens.is_some()),
+            ("--velocity", a.velocity.is_some()),
+            ("--initial-range", a.initial_range.is_some()),
+            ("--ramp-range", a.ramp_range.is_some()),
+            ("--initial-hold", a.initial_hold.is_some()),
+            ("--max-temperature", a.max_temperature.is_some()),
+        ],
+    )?;
+    if !a.store
+        && let Some((option, _)) = [
+            ("--phase", a.phase.is_some()),
+            ("--modifier", a.modifier.is_some()),
+            ("--ph", a.ph.is_some()),
+            ("--temperature", a.temperature.is_some()),
+            ("--source", a.source.is_some()),
+        ]
+        .iter()
+        .find(|(_, given)| *given)
+    {
+        bail!("{option} describes the runs for --store; give --store too (or leave {option} out)");
+    }
+    let Some(gradients) = a.gradients.as_deref() else {
+        bail!(
+            "--gradients is needed in LC mode: one `time:%organic` program per run, separated by `;` (for GC runs add --mode gc and --ovens)"
+        );
+    };
+    let hilic = a.mode == ScoutMode::Hilic;
+    let basis = if hilic {
+        CompositionBasis::Water
+    } else {
+        CompositionBasis::Organic
+    };
+    // HILIC defaults (common practice, no source): start with 3–20 % water, end at 30–50 %.
+    let (start_default, end_default) = if hilic {
+        ((80.0, 97.0), (50.0, 70.0))
+    } else {
+        ((5.0, 40.0), (60.0, 95.0))
+    };
+    let ranges = LcRanges {
+        tg: a.tg_range.unwrap_or(NumberRange {
+            min: 5.0,
+            max: 60.0,
+        }),
+        start: a.start_range.unwrap_or(NumberRange {
+            min: start_default.0,
+            max: start_default.1,
+        }),
+        end: a.end_range.unwrap_or(NumberRange {
+            min: end_default.0,
+            max: end_default.1,
+        }),
+    };
+    check_scout_options(a, &ranges, hilic)?;
+    // The optimiser searches the strong-solvent composition: % water in HILIC.
+    let strong = |r: NumberRange| {
+        if hilic {
+            NumberRange {
+                min: 100.0 - r.max,
+                max: 100.0 - r.min,
+            }
+        } else {
+            r
+        }
+    };
+    let search = LcRanges {
+        tg: ranges.tg,
+        start: strong(ranges.start),
+        end: strong(ranges.end),
+    };
+    let column = a
+        .column
+        .as_deref()
+        .map(parse_column)
+        .transpose()
+        .map_err(|e| anyhow::anyhow!("--column: {e}"))?;
+    let dead_time = dead_time_input(a.t0, column, a.flow)?;
+    let programs = split_programs(gradients, a.runs.len())?;
     let program_specs: Vec<String> = programs.iter().map(GradientProgram::to_spec).collect();
     let store = store_target(a)?;
     for out in a
@@ -984,7 +1170,7 @@ pub fn run_scout(cli: &crate::cli::Cli, a: &ScoutArgs) -> Result<ExitCode> {
     {
         check_writable(out)?;
     }
-    let (plates, plates_source) = match (a.plates, a.particle, a.column) {
+    let (plates, plates_source) = match (a.plates, a.particle, column) {
         (Some(n), _, _) => (PlateSource::Given { plates: n }, format!("given: {n}")),
         (None, Some(dp), Some(c)) => (
             PlateSource::Estimated {
@@ -1016,42 +1202,69 @@ pub fn run_scout(cli: &crate::cli::Cli, a: &ScoutArgs) -> Result<ExitCode> {
             peaks: read_peaks(path)?,
         });
     }
-    let fitted = fit(&ScoutRequest {
-        runs,
-        dead_time,
-        dwell_volume_ml: a.dwell,
-        flow_ml_min: a.flow,
-    })
-    .map_err(|e| match e {
-        ScoutError::PeakBeforeDeadTime { .. } => anyhow::anyhow!(
-            "{e} (t0 from {})",
-            if a.t0.is_some() {
-                "--t0"
-            } else {
-                "--column and --flow"
+    let run_temperatures = match a.temperatures.as_deref() {
+        Some(text) => {
+            if a.store {
+                bail!(
+                    "--temperatures with --store: store the fits of one temperature at a time (one `scout --store --temperature T` per temperature)"
+                );
             }
-        ),
-        ScoutError::InconsistentFlow { .. } | ScoutError::FlowNeeded { .. } => {
-            anyhow::anyhow!("--flow, --dwell: {e}")
+            Some(parse_temperatures(text, runs.len())?)
         }
-        other => anyhow::Error::new(other).context("fitting log kw and S to the scouting runs"),
-    })?;
+        None => None,
+    };
+    let fit_runs = |runs: Vec<ScoutRun>| {
+        fit_in(
+            &ScoutRequest {
+                runs,
+                dead_time,
+                dwell_volume_ml: a.dwell,
+                flow_ml_min: a.flow,
+            },
+            basis,
+        )
+        .map_err(|e| scout_error(e, a))
+    };
+    let mut temperature_fits: Vec<(f64, ScoutFit)> = Vec::new();
+    let fitted = match &run_temperatures {
+        None => fit_runs(runs)?,
+        Some(ts) => {
+            let mut distinct: Vec<f64> = ts.clone();
+            distinct.sort_by(f64::total_cmp);
+            distinct.dedup();
+            for t in &distinct {
+                let group: Vec<ScoutRun> = runs
+                    .iter()
+                    .zip(ts)
+                    .filter(|(_, u)| *u == t)
+                    .map(|(r, _)| r.clone())
+                    .collect();
+                let f = fit_runs(group)
+                    .with_context(|| format!("the runs at {t} °C (--temperatures)"))?;
+                temperature_fits.push((*t, f));
+            }
+            match temperature_fits.first() {
+                Some((_, f)) => f.clone(),
+                None => bail!("--temperatures gives no temperature"),
+            }
+        }
+    };
     let req = OptimiseRequest {
         analytes: OptimiseRequest::analytes_from_fit(&fitted),
         dead_time_min: fitted.dead_time_min,
         dwell_time_min: fitted.dwell_time_min,
         plates,
         gradient_time_min: Range {
-            min: a.tg_range.min,
-            max: a.tg_range.max,
+            min: ranges.tg.min,
+            max: ranges.tg.max,
         },
         initial_pct: Range {
-            min: a.start_range.min,
-            max: a.start_range.max,
+            min: search.start.min,
+            max: search.start.max,
         },
         final_pct: Range {
-            min: a.end_range.min,
-            max: a.end_range.max,
+            min: search.end.min,
+            max: search.end.max,
         },
         max_run_time_min: a.max_run_time,
         critical_pairs: a.critical.clone(),
@@ -1061,41 +1274,78 @@ pub fn run_scout(cli: &crate::cli::Cli, a: &ScoutArgs) -> Result<ExitCode> {
         gradient_time_steps: 25,
         composition_step_pct: 5.0,
     };
-    let report = optimise(&req).map_err(|e| match e {
-        // Name the options that widen the search rather than the library's fields.
-        OptimiseError::NoFeasibleCondition { .. } => anyhow::anyhow!(
-            "no gradient within --tg-range {},{}, --start-range {},{} and --end-range {},{} \
-             elutes every analyte within --max-run-time {} min; raise --max-run-time, the top \
-             of --end-range, or lower the top of --tg-range",
-            a.tg_range.min,
-            a.tg_range.max,
-            a.start_range.min,
-            a.start_range.max,
-            a.end_range.min,
-            a.end_range.max,
-            a.max_run_time
-        ),
-        OptimiseError::UnknownAnalyte { .. } | OptimiseError::CriticalPairSameAnalyte { .. } => {
-            anyhow::anyhow!("--critical: {e}")
+    let optimise_error = |e: OptimiseError| optimise_error(e, a, &ranges);
+    let (mut report, temperature) = if temperature_fits.is_empty() {
+        (optimise(&req).map_err(optimise_error)?, None)
+    } else {
+        let model = temperature_model(&temperature_fits)
+            .map_err(|e| anyhow::anyhow!("--temperatures: {e}"))?;
+        let range = a.temperature_range.map_or_else(
+            || Range {
+                min: model.temperatures_c.first().copied().unwrap_or(0.0),
+                max: model.temperatures_c.last().copied().unwrap_or(0.0),
+            },
+            |r| Range {
+                min: r.min,
+                max: r.max,
+            },
+        );
+        let found = optimise_temperature(&model, &req, range, 5.0).map_err(|e| match e {
+            TemperatureError::Optimise(o) => optimise_error(o),
+            TemperatureError::BadTemperature { .. } => anyhow::anyhow!("--temperature-range: {e}"),
+            other => anyhow::anyhow!("--temperatures: {other}"),
+        })?;
+        let mut points = found.points.clone();
+        if hilic {
+            for p in &mut points {
+                if let Ok(g) = GradientProgram::parse(&p.program) {
+                    p.program = program_text(&g.complement());
+                }
+            }
         }
-        OptimiseError::TooFewAnalytes { .. } => anyhow::anyhow!(
-            "{e}: the peak tables {} name fewer than two peaks",
-            a.runs
+        let json = TemperatureJson {
+            chosen_c: found.temperature_c,
+            extrapolated: found.extrapolated,
+            model,
+            points,
+            fits: temperature_fits
                 .iter()
-                .map(|p| p.display().to_string())
-                .collect::<Vec<_>>()
-                .join(", ")
-        ),
-        other => anyhow::Error::new(other).context("optimising the gradient"),
-    })?;
+                .map(|(t, f)| TemperatureFitJson {
+                    temperature_c: *t,
+                    fit: f.clone(),
+                })
+                .collect(),
+        };
+        (found.report, Some(json))
+    };
+    if hilic {
+        // Back from % water to % organic, as the programs are typed.
+        report.complement();
+    }
     let text = match a.format {
         ReportFormat::Json => json_line(&ScoutJson {
             schema_version: SCOUT_SCHEMA_VERSION,
             plates_source: plates_source.clone(),
             fit: &fitted,
             optimisation: &report,
+            temperature: temperature.as_ref(),
         })?,
-        ReportFormat::Table => scout_table(&fitted, &report, &plates_source),
+        ReportFormat::Table => {
+            let mut t = String::new();
+            if let Some(tj) = &temperature {
+                for f in &tj.fits {
+                    t.push_str(&format!("At {} °C:\n", f.temperature_c));
+                    t.push_str(&scout_fit_table(&f.fit));
+                    t.push_str("\n\n");
+                }
+                t.push_str(&temperature_table(tj));
+                t.push('\n');
+                t.push_str(&scout_optimum_table(&report, &plates_source));
+            } else {
+                t = scout_table(&fitted, &report, &plates_source);
+            }
+            t
+        }
     };
     let left_out = match &store {
         Some(t) => store_fits(cli, a, t, &fitted, &program_specs)?,
@@ -1124,8 +1374,190 @@ pub fn run_scout(cli: &crate::cli::Cli, a: &ScoutArgs) -> Result<ExitCode> {
     })
 }
 
+/// A scouting-fit error with the option (or the file) the user can change named first.
+fn scout_error(e: ScoutError, a: &ScoutArgs) -> anyhow::Error {
+    match e {
+        ScoutError::PeakBeforeDeadTime { .. } => anyhow::anyhow!(
+            "{e} (t0 from {})",
+            if a.t0.is_some() {
+                "--t0"
+            } else {
+                "--column and --flow"
+            }
+        ),
+        ScoutError::InconsistentFlow { .. } | ScoutError::FlowNeeded { .. } => {
+            anyhow::anyhow!("--flow, --dwell: {e}")
+        }
+        other => anyhow::Error::new(other).context("fitting log kw and S to the scouting runs"),
+    }
+}
+
+/// An optimiser error naming the options that widen the search rather than library fields.
+fn optimise_error(e: OptimiseError, a: &ScoutArgs, r: &LcRanges) -> anyhow::Error {
+    match e {
+        // Name the options that widen the search rather than the library's fields.
+        OptimiseError::NoFeasibleCondition { .. } => anyhow::anyhow!(
+            "no gradient within --tg-range {},{}, --start-range {},{} and --end-range {},{} \
+             elutes every analyte within --max-run-time {} min; raise --max-run-time, the top \
+             of --end-range, or lower the top of --tg-range",
+            r.tg.min,
+            r.tg.max,
+            r.start.min,
+            r.start.max,
+            r.end.min,
+            r.end.max,
+            a.max_run_time
+        ),
+        OptimiseError::UnknownAnalyte { .. } | OptimiseError::CriticalPairSameAnalyte { .. } => {
+            anyhow::anyhow!("--critical: {e}")
+        }
+        OptimiseError::TooFewAnalytes { .. } => anyhow::anyhow!(
+            "{e}: the peak tables {} name fewer than two peaks",
+            a.runs
+                .iter()
+                .map(|p| p.display().to_string())
+                .collect::<Vec<_>>()
+                .join(", ")
+        ),
+        other => anyhow::Error::new(other).context("optimising the gradient"),
+    }
+}
+
+/// `--temperatures`: one column temperature (°C) per run, separated by `;`.
+fn parse_temperatures(text: &str, runs: usize) -> Result<Vec<f64>> {
+    let parts: Vec<&str> = text.split(';').map(str::trim).collect();
+    if parts.len() != runs {
+        bail!(
+            "--temperatures gives {} temperature(s) (`{text}`) for {runs} run files; give one per run, separated by `;`",
+            parts.len()
+        );
+    }
+    parts
+        .iter()
+        .map(|p| match p.parse::<f64>() {
+            Ok(v) if v.is_finite() && (-10.0..=200.0).contains(&v) => Ok(v),
+            Ok(v) => bail!("--temperatures: {v} °C must lie between -10 and 200 °C"),
+            Err(_) => bail!("--temperatures: `{p}` is not a temperature in °C"),
+        })
+        .collect()
+}
+
+/// The fits at one temperature of `--temperatures`.
+#[derive(Serialize)]
+struct TemperatureFitJson {
+    temperature_c: f64,
+    fit: ScoutFit,
+}
+
+/// `temperature` in the `scout` JSON when `--temperatures` is given.
+#[derive(Serialize)]
+struct TemperatureJson {
+    /// Chosen column temperature, °C.
+    chosen_c: f64,
+    /// Outside the scouted temperatures.
+    extrapolated: bool,
+    /// log kw and S as lines in 1/T.
+    model: TemperatureModel,
+    /// The best gradient at every temperature searched.
+    points: Vec<TemperaturePoint>,
+    /// The fit at each scouted temperature.
+    fits: Vec<TemperatureFitJson>,
+}
+
+fn temperature_table(t: &TemperatureJson) -> String {
+    let rows: Vec<Vec<String>> = t
+        .model
+        .analytes
+        .iter()
+        .map(|a| {
+            let (lk, s) = a.at(t.chosen_c);
+            vec![
+                a.name.clone(),
+                num(Some(a.log_kw_intercept), 3),
+                num(Some(a.log_kw_slope_k), 0),
+                num(Some(a.s_intercept), 3),
+                num(Some(a.s_slope_k), 0),
+                num(Some(lk), 3),
+                num(Some(s), 3),
+                if a.from_flagged_fit {
+                    "from a flagged fit".into()
+                } else {
+                    String::new()
+                },
+            ]
+        })
+        .collect();
+    let mut s = format!(
+        "log kw = a + b/T and S = c + d/T (T in K) through the fits at {}:\n",
+        t.model
+            .temperatures_c
+            .iter()
+            .map(|x| format!("{x} °C"))
+            .collect::<Vec<_>>()
+            .join(", ")
+    );
+    let at_lk = format!("log kw at {} °C", t.chosen_c);
+    let at_s = format!("S at {} °C", t.chosen_c);
+    s.push_str(&render(
+        &[
+            "analyte", "a (–)", "b (K)", "c (–)", "d (K)", &at_lk, &at_s, "",
+        ],
+        &rows,
+    ));
+    let pts: Vec<Vec<String>> = t
+        .points
+        .iter()
+        .map(|p| {
+            vec![
+                num(Some(p.temperature_c), 1),
+                p.program.clone(),
+                num(Some(p.min_resolution), 2),
+                num(Some(p.run_time_min), 2),
+                if p.meets_target { "met" } else { "not met" }.into(),
+                if (p.temperature_c - t.chosen_c).abs() < 1e-9 {
+                    "chosen".into()
+                } else {
+                    String::new()
+                },
+            ]
+        })
+        .collect();
+    s.push_str("\n\nBest gradient at each temperature:\n");
+    s.push_str(&render(
+        &[
+            "temperature (°C)",
+            "program (time min : % organic)",
+            "smallest Rs (–)",
+            "last peak (min)",
+            "target",
+            "",
+        ],
+        &pts,
+    ));
+    s.push('\n');
+    if t.extrapolated {
+        s.push_str("note: the chosen temperature is outside the scouted ones (extrapolation)\n");
+    }
+    s
+}
+
+/// The LC search ranges, defaults applied.
+struct LcRanges {
+    tg: NumberRange,
+    start: NumberRange,
+    end: NumberRange,
+}
+
+/// Refuses options of the other mode rather than ignoring them, naming the first one given.
+fn refuse_options(why: &str, options: &[(&str, bool)]) -> Result<()> {
+    if let Some((name, _)) = options.iter().find(|(_, given)| *given) {
+        bail!("{name} is {why}");
+    }
+    Ok(())
+}
+
 /// Option checks that the library would otherwise report with its own field names.
-fn check_scout_options(a: &ScoutArgs) -> Result<()> {
+fn check_scout_options(a: &ScoutArgs, r: &LcRanges, hilic: bool) -> Result<()> {
     if a.dwell > 0.0 && a.flow.is_none() {
         bail!(
             "--dwell {} mL needs --flow ML_MIN to be turned into a dwell time",
@@ -1134,33 +1566,42 @@ fn check_scout_options(a: &ScoutArgs) -> Result<()> {
     }
     check_option_range(
         "--tg-range",
-        a.tg_range,
+        r.tg,
         f64::MIN_POSITIVE,
         f64::MAX,
         "gradient times must be greater than zero",
     )?;
     let pct = "compositions are % organic";
-    check_option_range("--start-range", a.start_range, 0.0, 100.0, pct)?;
-    check_option_range("--end-range", a.end_range, 0.0, 100.0, pct)?;
-    if a.end_range.max <= a.start_range.min {
+    check_option_range("--start-range", r.start, 0.0, 100.0, pct)?;
+    check_option_range("--end-range", r.end, 0.0, 100.0, pct)?;
+    if hilic && r.end.min >= r.start.max {
         bail!(
-            "--end-range {},{} never exceeds --start-range {},{}: the final % organic must be able to exceed the initial",
-            a.end_range.min,
-            a.end_range.max,
-            a.start_range.min,
-            a.start_range.max
+            "--end-range {},{} never falls below --start-range {},{}: in HILIC the final % organic must be able to fall below the initial",
+            r.end.min,
+            r.end.max,
+            r.start.min,
+            r.start.max
         );
     }
-    for (option, r) in [
-        ("--tg-range", a.tg_range),
-        ("--start-range", a.start_range),
-        ("--end-range", a.end_range),
+    if !hilic && r.end.max <= r.start.min {
+        bail!(
+            "--end-range {},{} never exceeds --start-range {},{}: the final % organic must be able to exceed the initial",
+            r.end.min,
+            r.end.max,
+            r.start.min,
+            r.start.max
+        );
+    }
+    for (option, range) in [
+        ("--tg-range", r.tg),
+        ("--start-range", r.start),
+        ("--end-range", r.end),
     ] {
-        if (r.max * 10.0 + 1e-9).floor() < (r.min * 10.0 - 1e-9).ceil() {
+        if (range.max * 10.0 + 1e-9).floor() < (range.min * 10.0 - 1e-9).ceil() {
             bail!(
                 "{option} {},{} holds no value on the 0.1 grid in which programs are written; widen it",
-                r.min,
-                r.max
+                range.min,
+                range.max
             );
         }
     }
@@ -1263,6 +1704,14 @@ fn fmt_tenth(v: f64) -> String {
 }
 
 fn scout_table(f: &ScoutFit, r: &OptimiseReport, plates_source: &str) -> String {
+    let mut s = scout_fit_table(f);
+    s.push_str("\n\n");
+    s.push_str(&scout_optimum_table(r, plates_source));
+    s
+}
+
+/// The fit part of the `scout` table (no trailing newline).
+fn scout_fit_table(f: &ScoutFit) -> String {
     let rows: Vec<Vec<String>> = f
         .analytes
         .iter()
@@ -1285,6 +1734,11 @@ fn scout_table(f: &ScoutFit, r: &OptimiseReport, plates_source: &str) -> String 
         f.dead_time_min,
         f.dwell_time_min
     );
+    if f.basis == CompositionBasis::Water {
+        s.push_str(
+            "HILIC: log k = log kw − S ψ with ψ = 1 − %organic/100, the water (strong-solvent) fraction\n",
+        );
+    }
     s.push_str(&render(
         &[
             "analyte",
@@ -1297,8 +1751,14 @@ fn scout_table(f: &ScoutFit, r: &OptimiseReport, plates_source: &str) -> String 
         ],
         &rows,
     ));
+    s
+}
+
+/// The optimum part of the `scout` table.
+fn scout_optimum_table(r: &OptimiseReport, plates_source: &str) -> String {
+    let mut s = String::new();
     s.push_str(&format!(
-        "\n\nOptimum: initial {:.1} %, final {:.1} % organic over {:.1} min; plate number {:.0} ({plates_source}); {} conditions evaluated\n",
+        "Optimum: initial {:.1} %, final {:.1} % organic over {:.1} min; plate number {:.0} ({plates_source}); {} conditions evaluated\n",
         r.initial_pct, r.final_pct, r.gradient_time_min, r.plates_used, r.evaluated_conditions
     ));
     if let Some(k) = &r.knee {
@@ -1349,6 +1809,539 @@ fn window_tsv(r: &OptimiseReport) -> String {
         s.push_str(&format!(
             "{}\t{}\t{}\t{}\t{}\t{}\t{}\t{}\n",
             p.gradient_time_min,
+            p.min_resolution,
+            p.critical_pair[0],
+            p.critical_pair[1],
+            p.run_time_min,
+            p.within_run_time,
+            p.first_peak_retention_factor,
+            p.meets_min_retention
+        ));
+    }
+    s
+}
+
+// ---------------------------------------------------------------------------------------------
+// scout --mode gc
+
+/// Schema version of the `scout --mode gc` JSON output.
+const SCOUT_GC_SCHEMA_VERSION: u32 = 1;
+
+/// Carrier velocity assumed for t_M from a GC `--column` when `--velocity` is not given, cm/s
+/// (the value `predict --mode gc` assumes; common practice for helium, no source).
+const DEFAULT_GC_VELOCITY_CM_S: f64 = 35.0;
+
+/// JSON output of `scout --mode gc` (schema version [`SCOUT_GC_SCHEMA_VERSION`]).
+#[derive(Serialize)]
+struct ScoutGcJson<'a> {
+    schema_version: u32,
+    mode: &'static str,
+    /// Where t_M came from.
+    holdup_source: String,
+    /// Where the plate number for widths came from.
+    plates_source: String,
+    fit: &'a GcScoutFit,
+    optimisation: &'a GcOptimiseReport,
+    safety: &'static str,
+}
+
+/// The safety note printed with every GC recommendation.
+const GC_SAFETY: &str = "Hydrogen carrier gas is flammable (explosive in air from about 4 % by \
+volume, from memory): leak-check after every column installation, use a hydrogen sensor or a \
+flow shut-off where the lab's SOPs require it, and never let hydrogen flow into the oven from an \
+open column end. Secure gas cylinders upright, with the valve cap on during transport. Never program the oven above the phase's maximum temperature (bleed, \
+phase damage), and let the oven and injector cool before opening them. The lab's SOPs, local \
+regulations and licensed practice take precedence.";
+
+fn split_ovens(spec: &str, runs: usize) -> Result<Vec<OvenProgram>> {
+    let parts: Vec<&str> = spec.split(';').map(str::trim).collect();
+    if parts.len() != runs {
+        bail!(
+            "--ovens gives {} program(s) (`{spec}`) for {runs} run files; give one per run, separated by `;`",
+            parts.len()
+        );
+    }
+    parts
+        .iter()
+        .enumerate()
+        .map(|(i, p)| {
+            OvenProgram::parse(p)
+                .with_context(|| format!("oven program {} `{p}` in --ovens", i + 1))
+        })
+        .collect()
+}
+
+/// Parses a GC column `LENGTH_MxID_MMxFILM_UM` for `scout --mode gc`, naming the option.
+fn parse_gc_column(text: &str, velocity_cm_s: f64) -> Result<GcColumn> {
+    let parts: Vec<&str> = text.split(['x', 'X', '×']).map(str::trim).collect();
+    let nums: Option<Vec<f64>> = parts.iter().map(|p| p.parse::<f64>().ok()).collect();
+    match nums.as_deref() {
+        Some(&[l, id, film]) => GcColumn::new(l, id, film, velocity_cm_s)
+            .map_err(|e| anyhow::anyhow!("--column {text}: {e}")),
+        _ => bail!(
+            "--column {text}: a GC column is LENGTH_MxID_MMxFILM_UM, e.g. 30x0.25x0.25 (30 m x 0.25 mm, 0.25 µm film)"
+        ),
+    }
+}
+
+fn gc_range(
+    option: &str,
+    r: NumberRange,
+    lo: f64,
+    hi: f64,
+    what: &str,
+) -> Result<TemperatureRange> {
+    check_option_range(option, r, lo, hi, what)?;
+    Ok(TemperatureRange {
+        min: r.min,
+        max: r.max,
+    })
+}
+
+/// Runs `phasewise scout --mode gc`.
+fn run_scout_gc(a: &ScoutArgs) -> Result<ExitCode> {
+    use phasewise::phase::{Catalogue, PhaseMode};
+    refuse_options(
+        "an LC option; in GC mode give --ovens, --t0 or --column LENGTH_MxID_MMxFILM_UM, and --phase or --max-temperature",
+        &[
+            ("--gradients", a.gradients.is_some()),
+            ("--flow", a.flow.is_some()),
+            ("--dwell", a.dwell != 0.0),
+            ("--particle", a.particle.is_some()),
+            ("--tg-range", a.tg_range.is_some()),
+            ("--start-range", a.start_range.is_some()),
+            ("--end-range", a.end_range.is_some()),
+            ("--two-segment", a.two_segment),
+            ("--temperatures", a.temperatures.is_some()),
+            ("--modifier", a.modifier.is_some()),
+            ("--ph", a.ph.is_some()),
+            ("--temperature", a.temperature.is_some()),
+        ],
+    )?;
+    if a.store {
+        bail!(
+            "--store keeps LC scouting fits only; GC fits (A, B) are not stored yet: leave --store out"
+        );
+    }
+    if a.chromatogram_svg.is_some() {
+        bail!(
+            "--chromatogram-svg is drawn for LC scouting only; in GC mode use --window-svg and --window-data"
+        );
+    }
+    let Some(ovens) = a.ovens.as_deref() else {
+        bail!(
+            "--ovens is needed in GC mode: one oven program per run, separated by `;`, e.g. '40:1,5:300:5;40:1,15:300:5'"
+        );
+    };
+    let programs = split_ovens(ovens, a.runs.len())?;
+    // Temperature limit: the phase's, --max-temperature, or the lower of the two.
+    let phase_limit = match &a.phase {
+        Some(id) => {
+            let catalogue = Catalogue::builtin()?;
+            let phase = catalogue
+                .phase(id)
+                .with_context(|| format!("--phase `{id}`"))?;
+            if phase.mode() != PhaseMode::Gc {
+                bail!(
+                    "--phase `{id}` is a {} phase; GC scouting needs a GC phase (`phasewise phases --mode gc`)",
+                    phase.mode().as_str()
+                );
+            }
+            Some(phase.t_max_c())
+        }
+        None => None,
+    };
+    if let Some(t) = a.max_temperature
+        && !(t.is_finite() && (-100.0..=450.0).contains(&t))
+    {
+        bail!("--max-temperature {t} °C must lie between -100 and 450 °C");
+    }
+    let max_temperature = match (phase_limit, a.max_temperature) {
+        (Some(p), Some(m)) => p.min(m),
+        (Some(p), None) => p,
+        (None, Some(m)) => m,
+        (None, None) => bail!(
+            "GC scouting needs the oven limit: give --phase ID (a GC phase of `phasewise phases --mode gc`) or --max-temperature C"
+        ),
+    };
+    for (i, p) in programs.iter().enumerate() {
+        if p.final_c() > max_temperature {
+            bail!(
+                "--ovens: program {} `{}` heats to {} °C, above the maximum {max_temperature} °C ({}); check the program",
+                i + 1,
+                p.to_spec(),
+                p.final_c(),
+                if phase_limit.is_some() {
+                    "the limit of --phase"
+                } else {
+                    "--max-temperature"
+                }
+            );
+        }
+    }
+    let (holdup, holdup_source, column) = match (a.t0, a.column.as_deref()) {
+        (Some(t), None) => (t, format!("given: {t} min"), None),
+        (None, Some(text)) => {
+            let v = a.velocity.unwrap_or(DEFAULT_GC_VELOCITY_CM_S);
+            let c = parse_gc_column(text, v)?;
+            (
+                c.holdup_time_min(),
+                format!(
+                    "t_M = L/u for {} m at {v} cm/s{} (constant-velocity approximation)",
+                    c.length_m(),
+                    if a.velocity.is_some() {
+                        ""
+                    } else {
+                        " (assumed; give --velocity)"
+                    }
+                ),
+                Some(c),
+            )
+        }
+        (Some(_), Some(_)) => bail!("give either --t0 or --column, not both"),
+        (None, None) => bail!(
+            "the hold-up time is needed: give --t0 MIN (e.g. from an unretained methane peak) or --column LENGTH_MxID_MMxFILM_UM with --velocity CM_S"
+        ),
+    };
+    let initial = gc_range(
+        "--initial-range",
+        a.initial_range.unwrap_or(NumberRange {
+            min: 40.0_f64.min(max_temperature),
+            max: 150.0_f64.min(max_temperature),
+        }),
+        -100.0,
+        max_temperature,
+        "initial temperatures in °C, at most the maximum temperature",
+    )?;
+    let ramp = gc_range(
+        "--ramp-range",
+        a.ramp_range.unwrap_or(NumberRange {
+            min: 2.0,
+            max: 30.0,
+        }),
+        0.1,
+        100.0,
+        "ramp rates in °C/min",
+    )?;
+    let initial_hold = a.initial_hold.unwrap_or(1.0);
+    if initial_hold > 600.0 {
+        bail!("--initial-hold {initial_hold} min must be at most 600 min");
+    }
+    for out in a.window_svg.iter().chain(a.window_data.iter()) {
+        check_writable(out)?;
+    }
+    let mut runs = Vec::new();
+    for (path, program) in a.runs.iter().zip(programs) {
+        runs.push(GcScoutRun {
+            name: path.file_name().map_or_else(
+                || path.display().to_string(),
+                |n| n.to_string_lossy().into(),
+            ),
+            program,
+            peaks: read_peaks(path)?,
+        });
+    }
+    let fitted = fit_gc(&GcScoutRequest {
+        runs: runs.clone(),
+        holdup_time_min: holdup,
+        max_temperature_c: Some(max_temperature),
+    })
+    .map_err(|e| match e {
+        GcScoutError::PeakBeforeHoldup { .. } => anyhow::anyhow!(
+            "{e} (t_M from {})",
+            if a.t0.is_some() {
+                "--t0"
+            } else {
+                "--column and --velocity"
+            }
+        ),
+        GcScoutError::NotIdentifiable { .. } => anyhow::anyhow!("--ovens: {e}"),
+        other => {
+            anyhow::Error::new(other).context("fitting ln k = A + B/T to the GC scouting runs")
+        }
+    })?;
+    let (plates, plates_source) = match a.plates {
+        Some(n) => (n, format!("given: {n}")),
+        None => {
+            let mut ns: Vec<f64> = Vec::new();
+            for f in fitted.analytes.iter().filter(|f| f.flags.is_empty()) {
+                for r in &runs {
+                    if let Some(p) = r.peaks.get(&f.name)
+                        && let Some(n) = apparent_plates(
+                            &f.parameters(),
+                            &r.program,
+                            holdup,
+                            p.width_base_min,
+                            p.width_half_min,
+                        )
+                    {
+                        ns.push(n);
+                    }
+                }
+            }
+            ns.sort_by(f64::total_cmp);
+            let Some(median) = (!ns.is_empty()).then(|| {
+                let m = ns.len() / 2;
+                if ns.len() % 2 == 1 {
+                    ns[m]
+                } else {
+                    0.5 * (ns[m - 1] + ns[m])
+                }
+            }) else {
+                bail!(
+                    "no well-determined fit to estimate the plate number from the peak widths: give --plates N"
+                );
+            };
+            let golay = column.map_or_else(String::new, |c| {
+                format!(
+                    "; the open-tube estimate L/dc would be {:.0}",
+                    c.length_m() * 1000.0 / c.inner_diameter_mm()
+                )
+            });
+            (
+                median,
+                format!(
+                    "median apparent plate number of {} measured peaks under w = 4 t_M (1 + k_e)/√N{golay}",
+                    ns.len()
+                ),
+            )
+        }
+    };
+    let req = GcOptimiseRequest {
+        analytes: GcOptimiseRequest::analytes_from_fit(&fitted),
+        holdup_time_min: holdup,
+        plates,
+        initial_c: initial,
+        ramp_c_per_min: ramp,
+        initial_hold_min: initial_hold,
+        max_temperature_c: max_temperature,
+        max_run_time_min: a.max_run_time,
+        critical_pairs: a.critical.clone(),
+        target_resolution: a.target_resolution,
+        min_retention_factor: a.min_k,
+    };
+    let report = optimise_gc(&req).map_err(|e| match e {
+        GcOptimiseError::NoFeasibleCondition { .. } => anyhow::anyhow!(
+            "no oven program within --initial-range {},{} °C and --ramp-range {},{} °C/min (limit {max_temperature} °C) elutes every analyte within --max-run-time {} min; raise --max-run-time or the top of --ramp-range",
+            initial.min,
+            initial.max,
+            ramp.min,
+            ramp.max,
+            a.max_run_time
+        ),
+        GcOptimiseError::UnknownAnalyte { .. } | GcOptimiseError::CriticalPairSameAnalyte { .. } => {
+            anyhow::anyhow!("--critical: {e}")
+        }
+        GcOptimiseError::TooFewAnalytes { .. } => anyhow::anyhow!(
+            "{e}: the peak tables {} name fewer than two peaks",
+            a.runs
+                .iter()
+                .map(|p| p.display().to_string())
+                .collect::<Vec<_>>()
+                .join(", ")
+        ),
+        other => anyhow::Error::new(other).context("optimising the oven program"),
+    })?;
+    let text = match a.format {
+        ReportFormat::Json => json_line(&ScoutGcJson {
+            schema_version: SCOUT_GC_SCHEMA_VERSION,
+            mode: "gc",
+            holdup_source: holdup_source.clone(),
+            plates_source: plates_source.clone(),
+            fit: &fitted,
+            optimisation: &report,
+            safety: GC_SAFETY,
+        })?,
+        ReportFormat::Table => scout_gc_table(&fitted, &report, &holdup_source, &plates_source),
+    };
+    if let Some(p) = &a.window_svg {
+        write_atomically(p, render_gc_window_svg(&report.window))?;
+    }
+    if let Some(p) = &a.window_data {
+        write_atomically(p, gc_window_tsv(&report))?;
+    }
+    write_out(&text)?;
+    Ok(ExitCode::SUCCESS)
+}
+
+fn gc_flag_text(f: &GcFitFlag) -> String {
+    match f {
+        GcFitFlag::NonPhysical { b_k } => {
+            format!("non-physical B {b_k:.0} K (retention would rise with temperature)")
+        }
+        GcFitFlag::BOutsideRange { b_k } => format!("B {b_k:.0} K outside 1000–25000 K"),
+        GcFitFlag::ElutedAfterProgram { run } => {
+            format!("measured after the end of the program in {run}")
+        }
+        GcFitFlag::LargeResidual { rms_min } => format!("large residual {rms_min:.3} min"),
+        GcFitFlag::IllConditioned {
+            b_relative_uncertainty,
+        } => format!(
+            "ill-conditioned (σB/B = {:.0} %)",
+            100.0 * b_relative_uncertainty
+        ),
+        GcFitFlag::NotConverged => "not converged".into(),
+    }
+}
+
+fn scout_gc_table(
+    f: &GcScoutFit,
+    r: &GcOptimiseReport,
+    holdup_source: &str,
+    plates_source: &str,
+) -> String {
+    let rows: Vec<Vec<String>> = f
+        .analytes
+        .iter()
+        .map(|x| {
+            vec![
+                x.name.clone(),
+                num(Some(x.a), 3),
+                num(Some(x.a_uncertainty), 3),
+                num(Some(x.b_k), 0),
+                num(Some(x.b_uncertainty_k), 0),
+                num(Some(x.sorption_enthalpy_kj_mol), 1),
+                num(Some(x.rms_residual_min), 4),
+                x.flags
+                    .iter()
+                    .map(gc_flag_text)
+                    .collect::<Vec<_>>()
+                    .join("; "),
+            ]
+        })
+        .collect();
+    let mut s = format!(
+        "GC scouting fit of ln k = A + B/T over {} runs ({}); t_M = {:.3} min ({holdup_source}); ramp integrated in {} K steps\n",
+        f.runs.len(),
+        f.runs.join(", "),
+        f.holdup_time_min,
+        f.integration_step_k
+    );
+    s.push_str(&render(
+        &[
+            "analyte",
+            "A (–)",
+            "±1σ A (–)",
+            "B (K)",
+            "±1σ B (K)",
+            "ΔH (kJ/mol)",
+            "RMS residual (min)",
+            "flags",
+        ],
+        &rows,
+    ));
+    let o = &r.optimum;
+    s.push_str(&format!(
+        "\n\nOptimum oven program {} (initial °C : hold min, ramp °C/min : final °C : hold min): {} °C for {} min, {} °C/min to {} °C, hold {} min; limit {} °C\nplate number {:.0} ({plates_source}); {} programs evaluated\n",
+        o.program,
+        o.initial_c,
+        o.initial_hold_min,
+        o.ramp_c_per_min,
+        o.final_c,
+        o.final_hold_min,
+        r.max_temperature_c,
+        r.plates_used,
+        r.evaluated_conditions
+    ));
+    s.push_str(&format!(
+        "chosen by: {}\n",
+        match r.selection {
+            Selection::ShortestRunMeetingTarget => "shortest run meeting the target resolution",
+            Selection::LargestMinResolution =>
+                "largest smallest resolution (no condition meets the target)",
+        }
+    ));
+    s.push_str(&format!(
+        "target Rs {:.2}: {}; first peak k ≥ {}: {}\n",
+        r.window.target_resolution,
+        if r.meets_target { "met" } else { "NOT met" },
+        r.min_retention_factor,
+        if r.meets_min_retention {
+            "met"
+        } else {
+            "NOT met"
+        }
+    ));
+    s.push_str(&format!(
+        "last peak at {:.2} min, program ends at {:.2} min; smallest Rs {:.2} ({} / {}); first peak k = {:.2}\n",
+        o.run_time_min,
+        o.program_time_min,
+        o.min_resolution,
+        o.critical_pair[0],
+        o.critical_pair[1],
+        o.first_peak_retention_factor
+    ));
+    let peaks: Vec<Vec<String>> = o
+        .peaks
+        .iter()
+        .map(|k| {
+            vec![
+                k.name.clone(),
+                num(Some(k.retention_time_min), 2),
+                num(k.retention_time_uncertainty_min, 2),
+                num(Some(k.width_base_min), 3),
+                num(Some(k.elution_temperature_c), 1),
+                label(&k.phase).replace('_', " "),
+            ]
+        })
+        .collect();
+    s.push_str(&render(
+        &[
+            "analyte",
+            "predicted tR (min)",
+            "±1σ tR (min)",
+            "base width (min)",
+            "elution temperature (°C)",
+            "elutes in",
+        ],
+        &peaks,
+    ));
+    s.push('\n');
+    let pairs: Vec<Vec<String>> = o
+        .pairs
+        .iter()
+        .map(|q| {
+            let critical = q.first == o.critical_pair[0] && q.second == o.critical_pair[1];
+            vec![
+                q.first.clone(),
+                q.second.clone(),
+                num(Some(q.resolution), 2),
+                if critical {
+                    "critical".into()
+                } else {
+                    String::new()
+                },
+            ]
+        })
+        .collect();
+    s.push_str(&render(
+        &["first", "second", "predicted Rs (–)", ""],
+        &pairs,
+    ));
+    s.push('\n');
+    for n in &r.notes {
+        s.push_str(&format!("note: {n}\n"));
+    }
+    s.push_str(
+        "note: predictions from a two-parameter retention–temperature model with constant t_M; verify the program by a run.\n",
+    );
+    s.push_str(&format!("safety: {GC_SAFETY}\n"));
+    s
+}
+
+fn gc_window_tsv(r: &GcOptimiseReport) -> String {
+    let w = &r.window;
+    let mut s = format!(
+        "# window diagram at initial {} °C, hold {} min; target Rs {}; optimum ramp {} °C/min\n",
+        w.initial_c, w.initial_hold_min, w.target_resolution, w.optimum_ramp_c_per_min
+    );
+    s.push_str(
+        "ramp_c_per_min\tmin_resolution\tcritical_first\tcritical_second\trun_time_min\twithin_run_time\tfirst_peak_k\tmeets_min_k\n",
+    );
+    for p in &w.points {
+        s.push_str(&format!(
+            "{}\t{}\t{}\t{}\t{}\t{}\t{}\t{}\n",
+            p.ramp_c_per_min,
             p.min_resolution,
             p.critical_pair[0],
             p.critical_pair[1],

@@ -280,3 +280,70 @@ fn transfer_json_matches_the_documented_schema() {
     assert!((doc.report.flow_ml_min - (2.1f64 / 4.6).powi(2)).abs() < 1e-9);
     assert!(doc.regulatory_note.contains("pharmacopoeial"));
 }
+
+/// `scout --mode gc --format json` as documented.
+#[derive(Deserialize)]
+struct ScoutGcDoc {
+    schema_version: u32,
+    mode: String,
+    holdup_source: String,
+    plates_source: String,
+    fit: phasewise::measured::gc_scout::GcScoutFit,
+    optimisation: phasewise::measured::gc_optimise::GcOptimiseReport,
+    safety: String,
+}
+
+#[test]
+fn scout_gc_json_matches_the_documented_schema() {
+    use phasewise::measured::gc_scout::{VantHoffParameters, programmed_elution};
+    use phasewise::model::gc::OvenProgram;
+    let dir = tempfile::tempdir().unwrap();
+    // Invented parameters (A, B in K) of an imaginary mix; t_M = 1.25 min, N = 100 000.
+    let run = |name: &str, spec: &str| {
+        let prog = OvenProgram::parse(spec).unwrap();
+        let mut text = String::from("# simulated from invented parameters\nname,rt,wb\n");
+        for (n, a, b) in [
+            ("qc9-g1", -10.2, 4500.0),
+            ("qc9-g2", -11.4, 5400.0),
+            ("qc9-g3", -12.9, 6500.0),
+        ] {
+            let e = programmed_elution(&VantHoffParameters { a, b_k: b }, &prog, 1.25).unwrap();
+            let w = 4.0 * 1.25 * (1.0 + e.retention_factor_at_elution) / 100_000f64.sqrt();
+            text.push_str(&format!("{n},{},{w}\n", e.retention_time_min));
+        }
+        write(dir.path(), name, &text)
+    };
+    let r1 = run("slow.csv", "40:1,5:300:5");
+    let r2 = run("fast.csv", "40:1,15:300:5");
+    let out = phasewise()
+        .args(["scout", "--mode", "gc"])
+        .arg(&r1)
+        .arg(&r2)
+        .args([
+            "--ovens",
+            "40:1,5:300:5;40:1,15:300:5",
+            "--t0",
+            "1.25",
+            "--phase",
+            "gc-5-phenyl",
+            "--format",
+            "json",
+        ])
+        .assert()
+        .code(0)
+        .get_output()
+        .stdout
+        .clone();
+    let v = json(&out);
+    check_against_docs("## `phasewise scout --mode gc", &v);
+    let doc: ScoutGcDoc = serde_json::from_value(v).expect("typed decode");
+    assert_eq!((doc.schema_version, doc.mode.as_str()), (1, "gc"));
+    assert!(doc.holdup_source.contains("given"));
+    assert!(doc.plates_source.contains("median"));
+    assert!(doc.safety.contains("Hydrogen"));
+    assert_eq!(doc.fit.analytes.len(), 3);
+    assert_eq!(doc.optimisation.optimum.peaks.len(), 3);
+    // gc-5-phenyl is limited to 325 °C (data/phases.tsv).
+    assert_eq!(doc.optimisation.max_temperature_c, 325.0);
+    assert!(doc.optimisation.optimum.final_c <= 325.0);
+}

@@ -25,7 +25,7 @@ use rusqlite::{Connection, OpenFlags};
 pub const SCHEMA_SQL: &str = include_str!("schema.sql");
 
 /// The newest schema version this build understands.
-pub const SCHEMA_VERSION: i64 = 2;
+pub const SCHEMA_VERSION: i64 = 3;
 
 /// Fingerprint of the embedded seed data (set by `build.rs`) and of the way it is turned
 /// into a database: a base built by another version of either is stale and rebuilt.

@@ -1,5 +1,5 @@
 //! Retention fits from the user's own scouting runs, kept in the user overlay
-//! (`retention_fit` table, schema migration 2).
+//! (`retention_fit` table, schema migration 2; composition basis and buffer, migration 3).
 //!
 //! A row is one analyte's fitted linear-solvent-strength parameters (log kw and S) on one
 //! chromatographic system (phase id, modifier, pH, temperature), with the runs it came from
@@ -33,8 +33,16 @@ pub struct RetentionFitRecord {
     pub temperature_c: Option<f64>,
     /// Fitted log10 kw.
     pub log_kw: f64,
-    /// Fitted S (log k = log kw − S φ, φ the organic volume fraction).
+    /// Fitted S (log k = log kw − S ψ, ψ the fraction named by `basis`).
     pub s: f64,
+    /// The composition log kw and S refer to: `organic` (the organic fraction; RP, and HILIC
+    /// rows stored before migration 3) or `water` (1 − organic fraction; HILIC).
+    #[serde(default = "organic_basis")]
+    pub basis: String,
+    /// Buffer or additive of the runs' aqueous phase as the user gave it; `None` for rows
+    /// stored before migration 3 or when not given.
+    #[serde(default)]
+    pub buffer: Option<String>,
     /// 1σ uncertainty of log kw.
     pub log_kw_uncertainty: f64,
     /// 1σ uncertainty of S.
@@ -57,6 +65,10 @@ pub struct RetentionFitRecord {
     pub stored_on: String,
 }
 
+fn organic_basis() -> String {
+    "organic".into()
+}
+
 impl Kb {
     /// Store retention fits in the user overlay, all in one IMMEDIATE transaction (all or
     /// nothing). A fit replaces an earlier one of the same compound on the same system (phase,
@@ -71,6 +83,12 @@ impl Kb {
                 return Err(KbError::BadInput(format!(
                     "retention fit of `{}`: say where the runs are recorded (source)",
                     r.analyte
+                )));
+            }
+            if r.basis != "organic" && r.basis != "water" {
+                return Err(KbError::BadInput(format!(
+                    "retention fit of `{}`: composition basis `{}` is neither organic nor water",
+                    r.analyte, r.basis
                 )));
             }
             let numbers = [
@@ -96,16 +114,23 @@ impl Kb {
         for r in rows {
             tx.execute(
                 "DELETE FROM retention_fit WHERE inchikey = ?1 AND phase_id = ?2 AND modifier = ?3
-                 AND ph = ?4 AND temperature_c IS ?5",
-                params![r.inchikey, r.phase_id, r.modifier, r.ph, r.temperature_c],
+                 AND ph = ?4 AND temperature_c IS ?5 AND buffer IS ?6",
+                params![
+                    r.inchikey,
+                    r.phase_id,
+                    r.modifier,
+                    r.ph,
+                    r.temperature_c,
+                    r.buffer
+                ],
             )
             .map_err(sql)?;
             tx.execute(
                 "INSERT INTO retention_fit(analyte, inchikey, phase_id, mode, chem_class, modifier,
                  ph, temperature_c, log_kw, s, log_kw_sd, s_sd, correlation, rms_residual_min,
-                 gradients, t0_min, dwell_min, flow_ml_min, source, stored_on)
+                 gradients, t0_min, dwell_min, flow_ml_min, source, stored_on, basis, buffer)
                  VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11, ?12, ?13, ?14, ?15, ?16,
-                 ?17, ?18, ?19, date('now'))",
+                 ?17, ?18, ?19, date('now'), ?20, ?21)",
                 params![
                     r.analyte,
                     r.inchikey,
@@ -126,6 +151,8 @@ impl Kb {
                     r.dwell_min,
                     r.flow_ml_min,
                     r.source,
+                    r.basis,
+                    r.buffer,
                 ],
             )
             .map_err(sql)?;
@@ -148,7 +175,7 @@ impl Kb {
             .prepare_cached(
                 "SELECT analyte, inchikey, phase_id, mode, chem_class, modifier, ph, temperature_c,
                  log_kw, s, log_kw_sd, s_sd, correlation, rms_residual_min, gradients, t0_min,
-                 dwell_min, flow_ml_min, source, stored_on
+                 dwell_min, flow_ml_min, source, stored_on, basis, buffer
                  FROM retention_fit WHERE inchikey = ?1 ORDER BY id",
             )
             .map_err(sql)?;
@@ -176,6 +203,8 @@ impl Kb {
                     flow_ml_min: r.get(17)?,
                     source: r.get(18)?,
                     stored_on: r.get(19)?,
+                    basis: r.get(20)?,
+                    buffer: r.get(21)?,
                 })
             })
             .map_err(sql)?

@@ -74,3 +74,13 @@ CREATE TABLE retention_fit (
 );
 CREATE INDEX retention_fit_inchikey ON retention_fit(inchikey);
 -- end
+
+-- migration 3
+-- The composition the stored log kw and S refer to, and the buffer or additive of the runs.
+-- `basis`: `organic` (log k = log kw − S φ, φ the organic fraction; every row stored before
+-- this migration) or `water` (ψ = 1 − φ, HILIC fits from now on, with positive S).
+-- `buffer`: the aqueous buffer or additive as the user gave it (e.g. `0.1 % formic acid`);
+-- NULL for rows stored before this migration, when it was not recorded.
+ALTER TABLE retention_fit ADD COLUMN basis TEXT NOT NULL DEFAULT 'organic' CHECK (basis IN ('organic', 'water'));
+ALTER TABLE retention_fit ADD COLUMN buffer TEXT;
+-- end

@@ -1,9 +1,14 @@
 //! Measured runs: peak tables ([`peaks`]), system suitability ([`suitability`]), scouting-run
-//! fits of the LSS model ([`scout`]), gradient optimisation ([`optimise`]) and method transfer
-//! between column geometries ([`transfer`]).
+//! fits of the LSS model ([`scout`]), gradient optimisation ([`optimise`]), GC scouting fits of
+//! the retention–temperature relation ([`gc_scout`]) and oven-program optimisation
+//! ([`gc_optimise`]), LC temperature as a second variable ([`lc_temperature`]), and method
+//! transfer between column geometries ([`transfer`]).
 //!
 //! Shared here: how the column dead time is obtained ([`DeadTimeInput`]).
 
+pub mod gc_optimise;
+pub mod gc_scout;
+pub mod lc_temperature;
 pub mod optimise;
 pub mod peaks;
 pub mod scout;

@@ -373,6 +373,44 @@ pub struct OptimiseReport {
     pub notes: Vec<String>,
 }
 
+impl Prediction {
+    /// The same prediction with compositions complemented (100 − %): the programs of a fit in
+    /// the water fraction (HILIC) written back in % organic. The optimiser's programs are on
+    /// the 0.1 % grid, and so are their complements (rounded so that they print as typed).
+    pub fn complement(&mut self) {
+        let points: Vec<GradientPoint> = self
+            .program
+            .points()
+            .iter()
+            .map(|p| GradientPoint {
+                time_min: p.time_min,
+                organic_pct: round_to_tenth(100.0 - p.organic_pct),
+            })
+            .collect();
+        self.program =
+            GradientProgram::from_points(&points).unwrap_or_else(|_| self.program.complement());
+        for p in &mut self.peaks {
+            p.organic_at_elution_pct = 100.0 - p.organic_at_elution_pct;
+        }
+    }
+}
+
+impl OptimiseReport {
+    /// The report with every composition complemented (100 − %), for an optimisation run in
+    /// the water fraction (HILIC) and reported in % organic: initial and final composition,
+    /// knee, programs, compositions at elution and the window diagram's compositions.
+    pub fn complement(&mut self) {
+        self.initial_pct = round_to_tenth(100.0 - self.initial_pct);
+        self.final_pct = round_to_tenth(100.0 - self.final_pct);
+        if let Some(k) = &mut self.knee {
+            k.organic_pct = round_to_tenth(100.0 - k.organic_pct);
+        }
+        self.optimum.complement();
+        self.window.initial_pct = round_to_tenth(100.0 - self.window.initial_pct);
+        self.window.final_pct = round_to_tenth(100.0 - self.window.final_pct);
+    }
+}
+
 /// Which rule chose the reported condition.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
 #[serde(rename_all = "snake_case")]
@@ -403,23 +441,24 @@ struct Ctx<'a> {
 }
 
 /// Score for comparison; see the module documentation for the rule.
+/// Also used by the GC optimiser ([`crate::measured::gc_optimise`]), so both apply one rule.
 #[derive(Clone, Copy, PartialEq)]
-struct Score {
+pub(crate) struct Score {
     /// Every peak out within the maximum run time and a finite smallest resolution.
-    feasible: bool,
+    pub(crate) feasible: bool,
     /// First peak at k ≥ the minimum.
-    retained: bool,
+    pub(crate) retained: bool,
     /// Smallest resolution meets the target.
-    meets: bool,
-    min_rs: f64,
-    run: f64,
+    pub(crate) meets: bool,
+    pub(crate) min_rs: f64,
+    pub(crate) run: f64,
 }
 
 /// Run times closer than this count as equal, min (well below the 0.1 min program step).
 const RUN_TIE_MIN: f64 = 1e-9;
 
 impl Score {
-    fn better_than(&self, o: &Score) -> bool {
+    pub(crate) fn better_than(&self, o: &Score) -> bool {
         if self.feasible != o.feasible {
             return self.feasible;
         }
@@ -1053,7 +1092,8 @@ pub fn optimise(req: &OptimiseRequest) -> Result<OptimiseReport, OptimiseError> 
     if !meets_min_retention {
         notes.push(format!(
             "no condition in the search space retains the first peak ({}) to k ≥ {}: it elutes \
-             at k = {:.2}; allow a lower initial % organic",
+             at k = {:.2}; allow a weaker start (a lower initial % organic in reversed phase, a \
+             higher one in HILIC)",
             optimum.peaks.first().map_or("?", |p| p.name.as_str()),
             req.min_retention_factor,
             optimum.first_peak_retention_factor
@@ -1134,6 +1174,79 @@ fn nice_step(range: f64) -> f64 {
 /// peak is retained less than the minimum drawn as open squares (explained in a text legend), so
 /// no meaning depends on colour.
 pub fn render_window_svg(diagram: &WindowDiagram) -> String {
+    render_window_plot(&WindowPlot {
+        title: format!(
+            "Window diagram: smallest resolution versus gradient time ({:.0}–{:.0} % organic)",
+            diagram.initial_pct, diagram.final_pct
+        ),
+        x_label: "Gradient time tG (min)".into(),
+        legend: [
+            format!(
+                "Window diagram, {:.1}–{:.1} % organic; open circles: beyond the maximum run time",
+                diagram.initial_pct, diagram.final_pct
+            ),
+            format!(
+                "open squares: first peak below k = {}; filled circle: chosen condition",
+                diagram.min_retention_factor
+            ),
+        ],
+        chosen_label: format!(
+            "chosen tG = {:.1} min, Rs = {:.2}{}",
+            diagram.optimum_gradient_time_min,
+            diagram.optimum_min_resolution,
+            if diagram.optimum_is_two_segment {
+                " (two-segment)"
+            } else {
+                ""
+            }
+        ),
+        target_resolution: diagram.target_resolution,
+        optimum_x: diagram.optimum_gradient_time_min,
+        optimum_min_resolution: diagram.optimum_min_resolution,
+        points: diagram
+            .points
+            .iter()
+            .map(|p| PlotPoint {
+                x: p.gradient_time_min,
+                min_resolution: p.min_resolution,
+                within_run_time: p.within_run_time,
+                meets_min_retention: p.meets_min_retention,
+            })
+            .collect(),
+    })
+}
+
+/// What a window diagram draws, whatever the swept variable (gradient time in LC, ramp rate in
+/// GC); the texts are given in full by the caller.
+pub(crate) struct WindowPlot {
+    /// `<title>` text.
+    pub(crate) title: String,
+    /// x-axis label with its unit.
+    pub(crate) x_label: String,
+    /// Two legend lines above the plot.
+    pub(crate) legend: [String; 2],
+    /// Label of the chosen condition's vertical line.
+    pub(crate) chosen_label: String,
+    /// Dashed target line.
+    pub(crate) target_resolution: f64,
+    /// x of the chosen condition.
+    pub(crate) optimum_x: f64,
+    /// Smallest resolution of the chosen condition.
+    pub(crate) optimum_min_resolution: f64,
+    /// The series.
+    pub(crate) points: Vec<PlotPoint>,
+}
+
+/// One point of a [`WindowPlot`].
+pub(crate) struct PlotPoint {
+    pub(crate) x: f64,
+    pub(crate) min_resolution: f64,
+    pub(crate) within_run_time: bool,
+    pub(crate) meets_min_retention: bool,
+}
+
+/// The SVG of a [`WindowPlot`] (see [`render_window_svg`] for what is drawn).
+pub(crate) fn render_window_plot(diagram: &WindowPlot) -> String {
     let (w, h) = (640.0, 400.0);
     let (ml, mr, mt, mb) = (70.0, 20.0, 40.0, 60.0);
     let pw = w - ml - mr;
@@ -1142,7 +1255,7 @@ pub fn render_window_svg(diagram: &WindowDiagram) -> String {
     let (x0, x1) = pts
         .iter()
         .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), p| {
-            (a.min(p.gradient_time_min), b.max(p.gradient_time_min))
+            (a.min(p.x), b.max(p.x))
         });
     let (x0, x1) = if x0.is_finite() && x1 > x0 {
         (x0, x1)
@@ -1162,10 +1275,7 @@ pub fn render_window_svg(diagram: &WindowDiagram) -> String {
     s.push_str(&format!(
         "<svg xmlns=\"http://www.w3.org/2000/svg\" width=\"{w}\" height=\"{h}\" viewBox=\"0 0 {w} {h}\" font-family=\"sans-serif\" font-size=\"12\">\n"
     ));
-    s.push_str(&format!(
-        "<title>Window diagram: smallest resolution versus gradient time ({:.0}–{:.0} % organic)</title>\n",
-        diagram.initial_pct, diagram.final_pct
-    ));
+    s.push_str(&format!("<title>{}</title>\n", esc(&diagram.title)));
     s.push_str("<rect width=\"100%\" height=\"100%\" fill=\"white\"/>\n");
     // Axes.
     s.push_str(&format!(
@@ -1193,9 +1303,10 @@ pub fn render_window_svg(diagram: &WindowDiagram) -> String {
         t += ys;
     }
     s.push_str(&format!(
-        "<text x=\"{:.1}\" y=\"{}\" text-anchor=\"middle\">Gradient time tG (min)</text>\n",
+        "<text x=\"{:.1}\" y=\"{}\" text-anchor=\"middle\">{}</text>\n",
         ml + pw / 2.0,
-        h - 15.0
+        h - 15.0,
+        esc(&diagram.x_label)
     ));
     s.push_str(&format!(
         "<text x=\"18\" y=\"{:.1}\" text-anchor=\"middle\" transform=\"rotate(-90 18 {:.1})\">Smallest resolution Rs (dimensionless)</text>\n",
@@ -1203,12 +1314,12 @@ pub fn render_window_svg(diagram: &WindowDiagram) -> String {
         mt + ph / 2.0
     ));
     s.push_str(&format!(
-        "<text x=\"{ml}\" y=\"16\">Window diagram, {:.1}–{:.1} % organic; open circles: beyond the maximum run time</text>\n",
-        diagram.initial_pct, diagram.final_pct
+        "<text x=\"{ml}\" y=\"16\">{}</text>\n",
+        esc(&diagram.legend[0])
     ));
     s.push_str(&format!(
-        "<text x=\"{ml}\" y=\"31\">open squares: first peak below k = {}; filled circle: chosen condition</text>\n",
-        diagram.min_retention_factor
+        "<text x=\"{ml}\" y=\"31\">{}</text>\n",
+        esc(&diagram.legend[1])
     ));
     // Target line.
     let yt = sy(diagram.target_resolution);
@@ -1220,7 +1331,7 @@ pub fn render_window_svg(diagram: &WindowDiagram) -> String {
     let poly: Vec<String> = pts
         .iter()
         .filter(|p| p.min_resolution.is_finite())
-        .map(|p| format!("{:.1},{:.1}", sx(p.gradient_time_min), sy(p.min_resolution)))
+        .map(|p| format!("{:.1},{:.1}", sx(p.x), sy(p.min_resolution)))
         .collect();
     s.push_str(&format!(
         "<polyline fill=\"none\" stroke=\"black\" stroke-width=\"1.5\" points=\"{}\"/>\n",
@@ -1232,7 +1343,7 @@ pub fn render_window_svg(diagram: &WindowDiagram) -> String {
     {
         s.push_str(&format!(
             "<circle cx=\"{:.1}\" cy=\"{:.1}\" r=\"3\" fill=\"white\" stroke=\"black\"/>\n",
-            sx(p.gradient_time_min),
+            sx(p.x),
             sy(p.min_resolution)
         ));
     }
@@ -1242,11 +1353,11 @@ pub fn render_window_svg(diagram: &WindowDiagram) -> String {
     {
         s.push_str(&format!(
             "<rect x=\"{:.1}\" y=\"{:.1}\" width=\"6\" height=\"6\" fill=\"white\" stroke=\"black\"/>\n",
-            sx(p.gradient_time_min) - 3.0,
+            sx(p.x) - 3.0,
             sy(p.min_resolution) - 3.0
         ));
     }
-    let xo = sx(diagram.optimum_gradient_time_min.clamp(x0, x1));
+    let xo = sx(diagram.optimum_x.clamp(x0, x1));
     // Put the label on the side of the line with room for it.
     let (lx, anchor) = if xo > ml + 0.6 * pw {
         (xo - 4.0, "end")
@@ -1254,16 +1365,10 @@ pub fn render_window_svg(diagram: &WindowDiagram) -> String {
         (xo + 4.0, "start")
     };
     s.push_str(&format!(
-        "<line x1=\"{xo:.1}\" y1=\"{mt}\" x2=\"{xo:.1}\" y2=\"{}\" stroke=\"black\" stroke-dasharray=\"2 3\"/><text x=\"{lx:.1}\" y=\"{}\" text-anchor=\"{anchor}\">chosen tG = {:.1} min, Rs = {:.2}{}</text>\n",
+        "<line x1=\"{xo:.1}\" y1=\"{mt}\" x2=\"{xo:.1}\" y2=\"{}\" stroke=\"black\" stroke-dasharray=\"2 3\"/><text x=\"{lx:.1}\" y=\"{}\" text-anchor=\"{anchor}\">{}</text>\n",
         mt + ph,
         mt + 12.0,
-        diagram.optimum_gradient_time_min,
-        diagram.optimum_min_resolution,
-        if diagram.optimum_is_two_segment {
-            " (two-segment)"
-        } else {
-            ""
-        }
+        esc(&diagram.chosen_label)
     ));
     if diagram.optimum_min_resolution.is_finite() {
         s.push_str(&format!(

@@ -222,9 +222,34 @@ impl AnalyteFit {
     }
 }
 
+/// The composition the LSS parameters are written in: log k = log kw − S ψ.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum CompositionBasis {
+    /// ψ = organic volume fraction (reversed phase: the organic modifier is the strong solvent).
+    #[default]
+    Organic,
+    /// ψ = water volume fraction, 1 − %organic/100 (HILIC: water is the strong solvent, so S
+    /// is positive; the convention of the LC model, docs/model.md §1).
+    Water,
+}
+
+impl CompositionBasis {
+    /// The program in the strong-solvent composition of this basis (the complement for water).
+    pub fn strong_program(self, program: &GradientProgram) -> GradientProgram {
+        match self {
+            CompositionBasis::Organic => program.clone(),
+            CompositionBasis::Water => program.complement(),
+        }
+    }
+}
+
 /// Result of a scouting fit.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct ScoutFit {
+    /// The composition log kw and S refer to (`organic` for RP, `water` for HILIC).
+    #[serde(default)]
+    pub basis: CompositionBasis,
     /// Dead time used, min.
     pub dead_time_min: f64,
     /// Dwell time used, min.
@@ -499,6 +524,18 @@ fn levenberg_marquardt(
 /// # Examples
 /// See `tests/scout_optimise.rs` (self-consistency with invented analytes).
 pub fn fit(req: &ScoutRequest) -> Result<ScoutFit, ScoutError> {
+    fit_in(req, CompositionBasis::Organic)
+}
+
+/// Fits log kw and S with log k = log kw − S ψ in the composition `basis`: the organic fraction
+/// (reversed phase, as [`fit`]) or the water fraction (HILIC, where water is the strong solvent
+/// and S comes out positive). The programs stay in % organic; for the water basis the fit runs
+/// on their complements ([`GradientProgram::complement`]), and the residuals, flags and
+/// phases refer to the programs as run.
+///
+/// # Errors
+/// As [`fit`].
+pub fn fit_in(req: &ScoutRequest, basis: CompositionBasis) -> Result<ScoutFit, ScoutError> {
     if req.runs.len() < 2 {
         return Err(ScoutError::TooFewRuns {
             count: req.runs.len(),
@@ -512,7 +549,12 @@ pub fn fit(req: &ScoutRequest) -> Result<ScoutFit, ScoutError> {
         }
     }
     let sys = resolve_system(&req.dead_time, req.dwell_volume_ml, req.flow_ml_min)?;
-    let sigs: Vec<(f64, f64, f64)> = req.runs.iter().map(|r| signature(&r.program)).collect();
+    let strong: Vec<GradientProgram> = req
+        .runs
+        .iter()
+        .map(|r| basis.strong_program(&r.program))
+        .collect();
+    let sigs: Vec<(f64, f64, f64)> = strong.iter().map(signature).collect();
     let distinct = sigs
         .iter()
         .any(|s| !(close(s.0, sigs[0].0) && close(s.1, sigs[0].1) && close(s.2, sigs[0].2)));
@@ -538,7 +580,7 @@ pub fn fit(req: &ScoutRequest) -> Result<ScoutFit, ScoutError> {
     let mut analytes = Vec::new();
     for peak in req.runs[0].peaks.peaks() {
         let mut obs = Vec::with_capacity(req.runs.len());
-        for run in &req.runs {
+        for (run, program) in req.runs.iter().zip(&strong) {
             let tr = run
                 .peaks
                 .get(&peak.name)
@@ -552,11 +594,12 @@ pub fn fit(req: &ScoutRequest) -> Result<ScoutFit, ScoutError> {
                     dead_time_min: sys.dead_time_min,
                 });
             }
-            obs.push((&run.program, tr));
+            obs.push((program, tr));
         }
         analytes.push(fit_one(&peak.name, &obs, req, &sys));
     }
     Ok(ScoutFit {
+        basis,
         dead_time_min: sys.dead_time_min,
         dwell_time_min: sys.dwell_time_min,
         runs: req.runs.iter().map(|r| r.name.clone()).collect(),

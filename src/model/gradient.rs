@@ -291,6 +291,23 @@ impl GradientProgram {
         &self.points
     }
 
+    /// The same program with every composition replaced by its complement, 100 − %: the water
+    /// content of a % organic program. HILIC retention is written in the water (strong-solvent)
+    /// fraction ψ = 1 − %organic/100 (docs/model.md §1), so [`gradient_elution`] of HILIC
+    /// parameters runs on the complement. Applying it twice gives the program back.
+    pub fn complement(&self) -> Self {
+        Self {
+            points: self
+                .points
+                .iter()
+                .map(|p| GradientPoint {
+                    time_min: p.time_min,
+                    organic_pct: 100.0 - p.organic_pct,
+                })
+                .collect(),
+        }
+    }
+
     /// Organic volume fraction φ (0–1) at program time `time_min` (linear interpolation, holds
     /// before the first and after the last point).
     pub fn organic_fraction_at(&self, time_min: f64) -> f64 {

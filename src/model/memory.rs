@@ -521,11 +521,20 @@ pub struct StoredFit {
     /// Stationary-phase id of the runs (catalogue id).
     pub phase_id: String,
     /// The scouting system as the model reads it: mode, chemistry class, modifier, pH,
-    /// temperature, the first run's gradient program, dead and dwell time. The additive is not
-    /// recorded by `scout` and is `Other`; the flow is 1 mL/min when not given (the model's
-    /// system features do not use the flow).
+    /// temperature, the first run's gradient program, dead and dwell time, and the additive
+    /// read from the recorded buffer ([`Additive::from_buffer_text`]; `Other` when no buffer
+    /// was recorded, as before the overlay's migration 3); the flow is 1 mL/min when not given
+    /// (the model's system features do not use the flow).
     pub system: LcSystem,
-    /// Fitted parameters (log k = log kw − S φ, φ the organic volume fraction).
+    /// The buffer or additive of the runs as the user gave it (`scout --store --buffer`), when
+    /// recorded.
+    #[serde(default)]
+    pub buffer: Option<String>,
+    /// Fitted parameters, log k = log kw − S ψ with ψ the strong-solvent fraction of the
+    /// system's mode: the organic fraction in RP, the water fraction 1 − %organic/100 in HILIC
+    /// (docs/model.md §1), so S is positive in both. Rows stored before the overlay's
+    /// migration 3 were HILIC fits in the organic fraction; they are converted when read
+    /// (`commands::stored_fit_from`).
     pub lss: crate::model::gradient::LssParameters,
     /// 1σ uncertainty of log kw.
     pub log_kw_uncertainty: f64,
@@ -540,22 +549,18 @@ pub struct StoredFit {
 }
 
 impl StoredFit {
-    /// Strong-solvent fraction at which k = 1, the retention memory's `psi_k1`: log kw / S is
-    /// the organic fraction at k = 1, which is psi in RP; in HILIC water is the strong solvent,
-    /// so psi = 1 − log kw / S (the model's convention, see `regression` module docs).
+    /// Strong-solvent fraction at which k = 1, the retention memory's `psi_k1`: log kw / S,
+    /// since the parameters are written in the strong-solvent fraction of the mode (organic in
+    /// RP, water in HILIC; the model's convention, see `regression` module docs).
     pub fn psi_k1(&self) -> f64 {
-        let organic_fraction = self.lss.log_kw / self.lss.s;
-        match self.system.mode {
-            Mode::ReversedPhase => organic_fraction,
-            Mode::Hilic => 1.0 - organic_fraction,
-        }
+        self.lss.log_kw / self.lss.s
     }
 
     /// The id this fit carries as a retention-memory source: the user's source text and the
     /// system, e.g. `user: notebook 12 p. 4 [rp-c18, acetonitrile, pH 3]`.
     pub fn system_id(&self) -> String {
         format!(
-            "user: {} [{}, {}, pH {}{}]",
+            "user: {} [{}, {}, pH {}{}{}]",
             self.source,
             self.phase_id,
             match self.system.modifier {
@@ -567,13 +572,18 @@ impl StoredFit {
                 .map_or_else(|| "?".to_string(), |p| format!("{p}")),
             self.system
                 .temperature_c
-                .map_or_else(String::new, |t| format!(", {t} °C"))
+                .map_or_else(String::new, |t| format!(", {t} °C")),
+            self.buffer
+                .as_deref()
+                .map_or_else(String::new, |b| format!(", {b}"))
         )
     }
 
     /// Whether the fit was measured on the target system: same phase id and modifier, pH
-    /// within [`FIT_PH_TOLERANCE`], and temperature within [`FIT_TEMPERATURE_TOLERANCE_C`]
-    /// when both are known (`target_temperature_c` is `None` when the user did not give one).
+    /// within [`FIT_PH_TOLERANCE`], temperature within [`FIT_TEMPERATURE_TOLERANCE_C`]
+    /// when both are known (`target_temperature_c` is `None` when the user did not give one),
+    /// and the same additive when both are known (a fit whose buffer was not recorded, or not
+    /// recognised, matches any additive: it cannot be told apart).
     pub fn matches(
         &self,
         phase_id: &str,
@@ -588,11 +598,15 @@ impl StoredFit {
             (Some(a), Some(b)) => (a - b).abs() <= FIT_TEMPERATURE_TOLERANCE_C + 1e-9,
             _ => true,
         };
+        let additive_ok = self.system.additive == Additive::Other
+            || target.additive == Additive::Other
+            || self.system.additive == target.additive;
         self.phase_id == phase_id
             && self.system.mode == target.mode
             && self.system.modifier == target.modifier
             && ph_ok
             && t_ok
+            && additive_ok
     }
 
     /// Predict retention on `target` (which [`StoredFit::matches`]) directly from the fitted
@@ -626,8 +640,13 @@ impl StoredFit {
                 organic_pct: p.organic_pct,
             })
             .collect();
-        let program = GradientProgram::from_points(&points)
+        let as_run = GradientProgram::from_points(&points)
             .map_err(|e| ModelError::BadGradient(e.to_string()))?;
+        // The parameters are in the strong-solvent fraction: water in HILIC.
+        let program = match self.system.mode {
+            Mode::ReversedPhase => as_run,
+            Mode::Hilic => as_run.complement(),
+        };
         let gsys = GradientSystem {
             dead_time_min: target.t0_min,
             dwell_time_min: target.dwell_min,
@@ -657,12 +676,9 @@ impl StoredFit {
         let var_param = (d_a * sa).powi(2) + (d_s * ss).powi(2) + 2.0 * d_a * d_s * rho * sa * ss;
         let sigma_run = self.rms_residual_min.max(FIT_RETENTION_ERROR_MIN);
         let sigma = (sigma_run.powi(2) + var_param.max(0.0)).sqrt();
-        // d tR / d psi_k1 at fixed S: psi = log kw / S in RP (1 − log kw / S in HILIC), so
-        // d log kw = ±S d psi
-        let slope = match target.mode {
-            Mode::ReversedPhase => d_a * s,
-            Mode::Hilic => -d_a * s,
-        };
+        // d tR / d psi_k1 at fixed S: psi = log kw / S in the strong solvent, so
+        // d log kw = S d psi
+        let slope = d_a * s;
         let sd_psi = if slope.abs() > 1e-12 {
             sigma / slope.abs()
         } else {
@@ -732,6 +748,38 @@ mod tests {
             correlation: 0.9,
             rms_residual_min: 0.0,
             source: "notebook (invented)".into(),
+            buffer: None,
+        }
+    }
+
+    #[test]
+    fn a_recorded_buffer_must_match_a_known_target_additive() {
+        let mut f = fit(3.0, None);
+        f.buffer = Some("0.1 % formic acid".into());
+        f.system.additive = Additive::from_buffer_text("0.1 % formic acid");
+        assert_eq!(f.system.additive, Additive::FormicAcid);
+        let mut target = rp_system(3.0, None, &[(0.0, 5.0), (20.0, 95.0)]);
+        // the target's additive unknown: cannot be told apart, matches
+        assert!(f.matches("rp-c18", &target, None));
+        target.additive = Additive::FormicAcid;
+        assert!(f.matches("rp-c18", &target, None));
+        target.additive = Additive::AmmoniumFormate;
+        assert!(!f.matches("rp-c18", &target, None));
+        // shown in the memory-source id
+        assert!(
+            f.system_id().ends_with("pH 3, 0.1 % formic acid]"),
+            "{}",
+            f.system_id()
+        );
+        // buffer texts and catalogue ids
+        for (text, want) in [
+            ("10 mM Ammonium Formate pH 3.5", Additive::AmmoniumFormate),
+            ("ammonium-acetate-2", Additive::AmmoniumAcetate),
+            ("0.05 % TFA", Additive::TrifluoroaceticAcid),
+            ("formic-acid", Additive::FormicAcid),
+            ("20 mM potassium phosphate", Additive::Other),
+        ] {
+            assert_eq!(Additive::from_buffer_text(text), want, "{text}");
         }
     }
 
@@ -753,10 +801,11 @@ mod tests {
     fn psi_k1_is_log_kw_over_s_in_the_strong_solvent() {
         let mut f = fit(3.0, None);
         assert!((f.psi_k1() - 0.5).abs() < 1e-12);
+        // HILIC fits are in the water fraction too (positive S): psi = log kw / S as well.
         f.system.mode = Mode::Hilic;
         assert!((f.psi_k1() - 0.5).abs() < 1e-12);
         f.lss.log_kw = 1.0;
-        assert!((f.psi_k1() - 0.75).abs() < 1e-12);
+        assert!((f.psi_k1() - 0.25).abs() < 1e-12);
         assert!(
             f.system_id()
                 .starts_with("user: notebook (invented) [rp-c18")
@@ -793,6 +842,36 @@ mod tests {
         let mut bad = target.clone();
         bad.t0_min = -1.0;
         assert!(f.predict(&bad, Vec::new(), Vec::new()).is_err());
+    }
+
+    #[test]
+    fn a_hilic_fit_predicts_on_the_water_content_of_the_program() {
+        // Invented HILIC fit in the water fraction: log kw = 1.2, S = 6 (psi_k1 = 0.2, i.e.
+        // k = 1 at 20 % water = 80 % acetonitrile). On a 95 → 60 % acetonitrile program it must
+        // elute as the gradient equation says on the water program 5 → 40 %.
+        let mut f = fit(3.0, None);
+        f.system.mode = Mode::Hilic;
+        f.lss = LssParameters {
+            log_kw: 1.2,
+            s: 6.0,
+        };
+        let mut target = rp_system(3.0, None, &[(0.0, 95.0), (15.0, 60.0), (20.0, 60.0)]);
+        target.mode = Mode::Hilic;
+        let p = f.predict(&target, Vec::new(), Vec::new()).unwrap();
+        let want = gradient_elution(
+            &f.lss,
+            &GradientProgram::parse("0:5,15:40,20:40").unwrap(),
+            &GradientSystem {
+                dead_time_min: 1.0,
+                dwell_time_min: 0.5,
+            },
+        )
+        .unwrap()
+        .retention_time_min;
+        assert!((p.rt_min - want).abs() < 1e-9, "{} vs {want}", p.rt_min);
+        assert!((p.psi_k1 - 0.2).abs() < 1e-12);
+        // More retention (larger log kw) elutes later: the slope is positive.
+        assert!(p.rt_slope_min > 0.0);
     }
 
     #[test]

@@ -258,6 +258,34 @@ impl Additive {
             _ => Additive::Other,
         }
     }
+    /// Reads a buffer or additive as a user writes it (`0.1 % formic acid`, `10 mM ammonium
+    /// acetate pH 4.8`, `TFA`) or as a buffer id of the catalogue (`ammonium-formate-1`):
+    /// case, hyphens and underscores are ignored, ammonium salts are recognised before their
+    /// acids. Anything else (phosphate, citrate, no additive) is [`Additive::Other`].
+    pub fn from_buffer_text(text: &str) -> Self {
+        let t = text.to_lowercase().replace(['-', '_'], " ");
+        let has = |w: &str| t.contains(w);
+        if has("ammonium formate") {
+            Additive::AmmoniumFormate
+        } else if has("ammonium acetate") {
+            Additive::AmmoniumAcetate
+        } else if has("ammonium bicarbonate") || has("ammonium carbonate") {
+            Additive::AmmoniumCarbonate
+        } else if has("ammonium fluoride") {
+            Additive::AmmoniumFluoride
+        } else if has("ammonium hydroxide") || has("ammonia") {
+            Additive::AmmoniumHydroxide
+        } else if has("trifluoroacetic") || t.split_whitespace().any(|w| w == "tfa") {
+            Additive::TrifluoroaceticAcid
+        } else if has("formic") {
+            Additive::FormicAcid
+        } else if has("acetic") {
+            Additive::AceticAcid
+        } else {
+            Additive::Other
+        }
+    }
+
     /// Typical aqueous pH of the additive at usual LC concentrations, used when the pH is not
     /// stated (common practice, no source).
     pub fn typical_ph(self) -> f64 {

@@ -1,0 +1,1191 @@
+//! GC scouting-run fitting: from two or more runs of the same sample under oven programs that
+//! differ (in ramp rate, initial temperature or, for isothermal runs, temperature), fit each
+//! analyte's retention–temperature relation ln k = A + B/T (T in K) so that the retention times
+//! predicted by the temperature-programmed migration equation match the measured ones.
+//!
+//! Retention model: ln k = A + B/T is the van 't Hoff form of the partition equilibrium,
+//! A = ΔS/R − ln β and B = −ΔH/R with the (negative) sorption enthalpy ΔH and the phase ratio β,
+//! heat capacity neglected: the first two terms of the Clarke & Glew expansion (Trans. Faraday
+//! Soc., 1966), as in the thermodynamic retention models of GC (e.g. McGinitie & Harynuk,
+//! J. Chromatogr. A, 2012); both from memory, not checked against the papers. B > 0 means
+//! retention falls with temperature; B ≤ 0 is non-physical and flagged.
+//!
+//! Migration: a band moves the fraction dz = dt / (t_M (1 + k(T(t)))) of the column per time
+//! step, and elutes when z reaches 1, i.e. ∫₀^tR dt / (t_M (1 + k(T(t)))) = 1 (the classic
+//! programmed-temperature retention integral, Harris & Habgood, *Programmed Temperature Gas
+//! Chromatography*, 1966, from memory). t_M is treated as constant during the run (the same
+//! constant-velocity approximation as [`crate::model::gc::GcColumn::holdup_time_min`]).
+//! Numerically: the holds are integrated exactly (constant integrand); the ramp is integrated in
+//! temperature, dt = dT / r, by Simpson's rule on panels of at most [`RAMP_STEP_K`] K, and the
+//! crossing z = 1 inside the last panel is solved by Newton's method on the same Simpson
+//! integral from the panel start (so the predicted time is a smooth function of A and B, which
+//! the finite-difference Jacobian needs). The test `ramp_step_is_converged` checks the step
+//! against a 20-times finer integration.
+//!
+//! Fit: ln k is written about a reference temperature T_ref (the mean measured elution
+//! temperature), ln k = L + B (1/T − 1/T_ref), which decorrelates the two parameters. Start: for
+//! each B on a logarithmic grid, each run's L is solved (bisection: tR rises with L) and the B
+//! whose runs agree best is taken. Refinement: Levenberg–Marquardt on the squared retention
+//! residuals (with two runs the system is square and this is a damped Newton solve to zero
+//! residual). Parameter uncertainties are from (JᵀJ)⁻¹ scaled by an assumed retention-time error
+//! of 0.01 min (common practice for run-to-run repeatability, no source) or the fit's own
+//! residual scatter if larger, transformed back to (A, B).
+//!
+//! No published worked example is reproduced here; the tests are self-consistency only
+//! (simulate runs from known invented parameters, fit, recover).
+
+use serde::{Deserialize, Serialize};
+use thiserror::Error;
+
+use crate::measured::peaks::PeakTable;
+use crate::model::gc::{GcError, OvenProgram};
+
+/// Largest temperature step of the ramp integration, K (see the module docs).
+pub const RAMP_STEP_K: f64 = 0.5;
+/// Assumed retention-time measurement error for the uncertainty estimate, min (common
+/// practice, no source).
+pub const RETENTION_ERROR_MIN: f64 = 0.01;
+/// RMS residual above which a fit is flagged, min (common practice, no source).
+pub const LARGE_RESIDUAL_MIN: f64 = 0.05;
+/// Plausible range of B = −ΔH/R for analytes a GC elutes, K: sorption enthalpies of about
+/// 8–200 kJ/mol (from memory of typical values; very volatile gases to heavy analytes).
+pub const B_RANGE_K: (f64, f64) = (1000.0, 25_000.0);
+/// Relative 1σ uncertainty of B above which a fit is flagged ill-conditioned (common practice,
+/// no source).
+pub const ILL_CONDITIONED_RELATIVE: f64 = 0.2;
+
+/// Errors from GC scouting-run fitting.
+#[derive(Debug, Clone, PartialEq, Error)]
+pub enum GcScoutError {
+    /// Fewer than two runs.
+    #[error("need at least 2 GC scouting runs, got {count}")]
+    TooFewRuns {
+        /// Runs given.
+        count: usize,
+    },
+    /// Two runs share a name.
+    #[error("two scouting runs are both named `{name}`; give each run its own name")]
+    DuplicateRun {
+        /// The name.
+        name: String,
+    },
+    /// The runs do not differ in the part of the program that moves the peaks.
+    #[error(
+        "parameters not identifiable: runs {runs:?} have the same oven program up to the final \
+         temperature (same initial temperature, hold and ramp rate); use ramp rates that differ by \
+         a factor of 2–3, or different initial temperatures"
+    )]
+    NotIdentifiable {
+        /// Names of the runs.
+        runs: Vec<String>,
+    },
+    /// A peak is missing from a run.
+    #[error(
+        "peak `{peak}` is missing from run `{run}` (it is in run `{present_in}`); match names across runs"
+    )]
+    MissingPeak {
+        /// The peak.
+        peak: String,
+        /// The run lacking it.
+        run: String,
+        /// A run that has it.
+        present_in: String,
+    },
+    /// A peak elutes at or before the hold-up time.
+    #[error(
+        "peak `{peak}` in run `{run}` at {retention_time_min} min elutes at or before the hold-up time t_M {holdup_time_min} min"
+    )]
+    PeakBeforeHoldup {
+        /// Peak.
+        peak: String,
+        /// Run.
+        run: String,
+        /// Retention time, min.
+        retention_time_min: f64,
+        /// Hold-up time, min.
+        holdup_time_min: f64,
+    },
+    /// A run heats the column above the phase's limit.
+    #[error(
+        "run `{run}`: oven final temperature {final_c} °C is above the maximum {t_max_c} °C of the phase; check the program (bleed and phase damage above the limit)"
+    )]
+    AbovePhaseLimit {
+        /// Run.
+        run: String,
+        /// Final temperature of its program, °C.
+        final_c: f64,
+        /// Phase limit, °C.
+        t_max_c: f64,
+    },
+    /// The hold-up time is not usable.
+    #[error("hold-up time t_M = {holdup_time_min} min must be a finite number greater than zero")]
+    BadHoldup {
+        /// The value.
+        holdup_time_min: f64,
+    },
+    /// The analyte does not elute under the program (retention beyond any run time).
+    #[error(
+        "the analyte does not elute under oven program {program} (ln k at the final temperature {ln_k_final:.1})"
+    )]
+    NotEluted {
+        /// The program.
+        program: String,
+        /// ln k at the final temperature.
+        ln_k_final: f64,
+    },
+    /// A GC condition failed validation.
+    #[error(transparent)]
+    Gc(#[from] GcError),
+}
+
+/// The retention–temperature relation ln k = A + B/T of one analyte on one column.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+pub struct VantHoffParameters {
+    /// A (dimensionless): ΔS/R − ln β.
+    pub a: f64,
+    /// B, K: −ΔH/R.
+    pub b_k: f64,
+}
+
+impl VantHoffParameters {
+    /// ln k at `temperature_k`.
+    pub fn ln_k(&self, temperature_k: f64) -> f64 {
+        self.a + self.b_k / temperature_k
+    }
+}
+
+/// Which part of the oven program the band elutes in.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum OvenPhase {
+    /// During the initial hold (or an isothermal run).
+    InitialHold,
+    /// During the ramp.
+    Ramp,
+    /// After the ramp, at the final temperature (possibly after the programmed final hold;
+    /// the oven is assumed to stay at the final temperature).
+    FinalHold,
+}
+
+/// A predicted elution under an oven program.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+pub struct ProgrammedElution {
+    /// Retention time, min.
+    pub retention_time_min: f64,
+    /// Oven temperature at elution, °C.
+    pub elution_temperature_c: f64,
+    /// Retention factor at the elution temperature (–).
+    pub retention_factor_at_elution: f64,
+    /// Part of the program.
+    pub phase: OvenPhase,
+    /// The band leaves after the programmed end of the run (final hold too short).
+    pub after_program_end: bool,
+}
+
+const KELVIN: f64 = 273.15;
+/// Retention times beyond this are treated as "does not elute", min.
+const NOT_ELUTED_MIN: f64 = 1e5;
+
+/// Predicts the elution of an analyte with `params` under `program` on a column with hold-up
+/// time `holdup_time_min` (see the module docs for the integration).
+///
+/// # Errors
+/// [`GcScoutError::BadHoldup`]; [`GcScoutError::NotEluted`] when the band would need more than
+/// 10⁵ min.
+pub fn programmed_elution(
+    params: &VantHoffParameters,
+    program: &OvenProgram,
+    holdup_time_min: f64,
+) -> Result<ProgrammedElution, GcScoutError> {
+    elution_with_step(params, program, holdup_time_min, RAMP_STEP_K)
+}
+
+/// 1 / (1 + k) without overflow for very large ln k.
+fn mobile_fraction(ln_k: f64) -> f64 {
+    if ln_k > 700.0 {
+        0.0
+    } else {
+        1.0 / (1.0 + ln_k.exp())
+    }
+}
+
+fn elution_with_step(
+    params: &VantHoffParameters,
+    program: &OvenProgram,
+    tm: f64,
+    step_k: f64,
+) -> Result<ProgrammedElution, GcScoutError> {
+    if !(tm.is_finite() && tm > 0.0) {
+        return Err(GcScoutError::BadHoldup {
+            holdup_time_min: tm,
+        });
+    }
+    let t0_k = program.initial_c() + KELVIN;
+    let tf_k = program.final_c() + KELVIN;
+    let total = program.total_time_min();
+    let done = |tr: f64, t_k: f64, phase: OvenPhase| {
+        let ln_k = params.ln_k(t_k);
+        ProgrammedElution {
+            retention_time_min: tr,
+            elution_temperature_c: t_k - KELVIN,
+            retention_factor_at_elution: if ln_k > 700.0 {
+                f64::INFINITY
+            } else {
+                ln_k.exp()
+            },
+            phase,
+            after_program_end: tr > total + 1e-9,
+        }
+    };
+    // Initial hold (whole run when isothermal).
+    let hold = program.initial_hold_min();
+    let f0 = mobile_fraction(params.ln_k(t0_k));
+    let isothermal = program.final_c() <= program.initial_c();
+    if isothermal || hold * f0 >= tm {
+        if f0 <= 0.0 || tm / f0 > NOT_ELUTED_MIN {
+            return Err(not_eluted(params, program));
+        }
+        return Ok(done(tm / f0, t0_k, OvenPhase::InitialHold));
+    }
+    let mut z = hold * f0 / tm;
+    // Ramp, integrated in temperature: dz = g(T) dT with g = 1/(1 + k) / (r t_M).
+    let r = program.ramp_c_per_min();
+    let g = |t_k: f64| mobile_fraction(params.ln_k(t_k)) / (r * tm);
+    let span = tf_k - t0_k;
+    let n = (span / step_k).ceil().max(1.0);
+    let h = span / n;
+    let panels = n as usize;
+    let mut ga = g(t0_k);
+    for i in 0..panels {
+        let ta = t0_k + h * i as f64;
+        let tb = if i + 1 == panels { tf_k } else { ta + h };
+        let gm = g(0.5 * (ta + tb));
+        let gb = g(tb);
+        let inc = (tb - ta) / 6.0 * (ga + 4.0 * gm + gb);
+        if z + inc >= 1.0 {
+            let t_star = crossing(&g, ta, tb, ga, 1.0 - z, inc);
+            let tr = hold + (t_star - t0_k) / r;
+            return Ok(done(tr, t_star, OvenPhase::Ramp));
+        }
+        z += inc;
+        ga = gb;
+    }
+    // Final temperature, held until the band is out.
+    let ff = mobile_fraction(params.ln_k(tf_k));
+    let rest = if ff > 0.0 {
+        (1.0 - z) * tm / ff
+    } else {
+        f64::INFINITY
+    };
+    let tr = hold + program.ramp_time_min() + rest;
+    if !tr.is_finite() || tr > NOT_ELUTED_MIN {
+        return Err(not_eluted(params, program));
+    }
+    Ok(done(tr, tf_k, OvenPhase::FinalHold))
+}
+
+fn not_eluted(params: &VantHoffParameters, program: &OvenProgram) -> GcScoutError {
+    GcScoutError::NotEluted {
+        program: program.to_spec(),
+        ln_k_final: params.ln_k(program.final_c() + KELVIN),
+    }
+}
+
+/// Solves S(ta, T) = need for T in [ta, tb], with S the one-panel Simpson integral of `g` from
+/// `ta` (Newton from the linear interpolation, safeguarded by bisection). `whole` = S(ta, tb).
+fn crossing(g: &dyn Fn(f64) -> f64, ta: f64, tb: f64, ga: f64, need: f64, whole: f64) -> f64 {
+    let simpson = |t: f64| (t - ta) / 6.0 * (ga + 4.0 * g(0.5 * (ta + t)) + g(t));
+    let (mut lo, mut hi) = (ta, tb);
+    let mut t = if whole > 0.0 {
+        ta + (tb - ta) * (need / whole).clamp(0.0, 1.0)
+    } else {
+        tb
+    };
+    for _ in 0..60 {
+        let f = simpson(t) - need;
+        if f > 0.0 {
+            hi = t;
+        } else {
+            lo = t;
+        }
+        if f.abs() <= 1e-15 || hi - lo <= 1e-13 * tb {
+            break;
+        }
+        let d = g(t);
+        let newton = t - f / d;
+        t = if d > 0.0 && newton > lo && newton < hi {
+            newton
+        } else {
+            0.5 * (lo + hi)
+        };
+    }
+    t
+}
+
+/// One GC scouting run: its oven program and measured peaks.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct GcScoutRun {
+    /// Run name (unique).
+    pub name: String,
+    /// Oven program.
+    pub program: OvenProgram,
+    /// Measured peaks (names, retention times and widths are used).
+    pub peaks: PeakTable,
+}
+
+/// A GC scouting-fit request.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct GcScoutRequest {
+    /// Two or more runs of the same sample on the same column and carrier velocity.
+    pub runs: Vec<GcScoutRun>,
+    /// Hold-up time t_M, min.
+    pub holdup_time_min: f64,
+    /// Maximum temperature of the phase, °C, when known (programs above it are refused).
+    pub max_temperature_c: Option<f64>,
+}
+
+/// One run's residual for one analyte.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct GcRunResidual {
+    /// Run name.
+    pub run: String,
+    /// Measured retention time, min.
+    pub measured_min: f64,
+    /// Predicted by the fitted parameters, min.
+    pub predicted_min: f64,
+    /// predicted − measured, min.
+    pub residual_min: f64,
+    /// Oven temperature at the measured retention time, °C.
+    pub measured_elution_temperature_c: f64,
+    /// Part of the program in which the analyte is predicted to elute.
+    pub phase: OvenPhase,
+}
+
+/// Why a GC fit is poorly determined.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+#[serde(tag = "flag", rename_all = "snake_case")]
+pub enum GcFitFlag {
+    /// B ≤ 0: retention would rise with temperature.
+    NonPhysical {
+        /// Fitted B, K.
+        b_k: f64,
+    },
+    /// B outside [`B_RANGE_K`].
+    BOutsideRange {
+        /// Fitted B, K.
+        b_k: f64,
+    },
+    /// The peak was measured after the programmed end of this run (the oven may have cooled).
+    ElutedAfterProgram {
+        /// Run.
+        run: String,
+    },
+    /// RMS residual above [`LARGE_RESIDUAL_MIN`].
+    LargeResidual {
+        /// RMS residual, min.
+        rms_min: f64,
+    },
+    /// A 0.01 min retention error moves B by more than 20 %.
+    IllConditioned {
+        /// Relative 1σ uncertainty of B.
+        b_relative_uncertainty: f64,
+    },
+    /// The solver stopped without converging.
+    NotConverged,
+}
+
+/// Fitted retention–temperature parameters for one analyte.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct GcAnalyteFit {
+    /// Analyte name.
+    pub name: String,
+    /// Fitted A (–).
+    pub a: f64,
+    /// Fitted B, K.
+    pub b_k: f64,
+    /// 1σ uncertainty of A.
+    pub a_uncertainty: f64,
+    /// 1σ uncertainty of B, K.
+    pub b_uncertainty_k: f64,
+    /// Correlation of the A and B estimates.
+    pub correlation: f64,
+    /// Reference temperature of the fit (mean measured elution temperature), °C.
+    pub reference_temperature_c: f64,
+    /// ln k at the reference temperature (the well-determined combination).
+    pub ln_k_at_reference: f64,
+    /// Sorption enthalpy ΔH = −R B, kJ/mol.
+    pub sorption_enthalpy_kj_mol: f64,
+    /// Start A (grid start, see the module docs).
+    pub start_a: f64,
+    /// Start B, K.
+    pub start_b_k: f64,
+    /// Per-run residuals.
+    pub residuals: Vec<GcRunResidual>,
+    /// RMS residual, min.
+    pub rms_residual_min: f64,
+    /// Solver iterations.
+    pub iterations: usize,
+    /// Flags; empty when the fit looks well determined.
+    pub flags: Vec<GcFitFlag>,
+}
+
+impl GcAnalyteFit {
+    /// The fitted parameters.
+    pub fn parameters(&self) -> VantHoffParameters {
+        VantHoffParameters {
+            a: self.a,
+            b_k: self.b_k,
+        }
+    }
+}
+
+/// Result of a GC scouting fit.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct GcScoutFit {
+    /// Hold-up time used, min.
+    pub holdup_time_min: f64,
+    /// Run names in input order.
+    pub runs: Vec<String>,
+    /// The runs' oven programs (`--oven` syntax), in input order.
+    pub programs: Vec<String>,
+    /// Temperature step of the ramp integration, K.
+    pub integration_step_k: f64,
+    /// One fit per analyte, in the order of the first run's table.
+    pub analytes: Vec<GcAnalyteFit>,
+}
+
+/// Molar gas constant, J/(mol K) (CODATA).
+const GAS_CONSTANT: f64 = 8.314_462_618;
+
+/// The part of a program that moves peaks: initial temperature, hold and ramp (or the
+/// temperature alone for an isothermal run).
+fn signature(p: &OvenProgram) -> (f64, f64, f64) {
+    if p.final_c() <= p.initial_c() {
+        (p.initial_c(), 0.0, 0.0)
+    } else {
+        (p.initial_c(), p.initial_hold_min(), p.ramp_c_per_min())
+    }
+}
+
+fn close(a: f64, b: f64) -> bool {
+    (a - b).abs() <= 1e-9 * (1.0 + a.abs().max(b.abs()))
+}
+
+/// Fitting coordinates: x = [L, B/1000 K] with ln k = L + B (1/T − 1/T_ref).
+struct Frame {
+    t_ref_k: f64,
+}
+
+impl Frame {
+    fn params(&self, x: [f64; 2]) -> VantHoffParameters {
+        let b_k = 1000.0 * x[1];
+        VantHoffParameters {
+            a: x[0] - b_k / self.t_ref_k,
+            b_k,
+        }
+    }
+}
+
+const L_BOUNDS: (f64, f64) = (-20.0, 30.0);
+const B_KK_BOUNDS: (f64, f64) = (-20.0, 60.0);
+
+fn clamp(x: [f64; 2]) -> [f64; 2] {
+    [
+        x[0].clamp(L_BOUNDS.0, L_BOUNDS.1),
+        x[1].clamp(B_KK_BOUNDS.0, B_KK_BOUNDS.1),
+    ]
+}
+
+type Obs<'a> = [(&'a OvenProgram, f64)];
+
+fn predict(p: &VantHoffParameters, prog: &OvenProgram, tm: f64) -> f64 {
+    programmed_elution(p, prog, tm).map_or(1e6, |e| e.retention_time_min)
+}
+
+fn residuals(x: [f64; 2], obs: &Obs, tm: f64, fr: &Frame) -> Vec<f64> {
+    let p = fr.params(x);
+    obs.iter().map(|(g, tr)| predict(&p, g, tm) - tr).collect()
+}
+
+/// L such that the run's predicted time equals the measured one, for fixed B (bisection;
+/// predicted time rises with L).
+fn solve_l(b_kk: f64, prog: &OvenProgram, tr: f64, tm: f64, fr: &Frame) -> f64 {
+    let (mut lo, mut hi) = L_BOUNDS;
+    for _ in 0..60 {
+        let mid = 0.5 * (lo + hi);
+        if predict(&fr.params([mid, b_kk]), prog, tm) < tr {
+            lo = mid;
+        } else {
+            hi = mid;
+        }
+        if hi - lo < 1e-10 {
+            break;
+        }
+    }
+    0.5 * (lo + hi)
+}
+
+fn start_estimate(obs: &Obs, tm: f64, fr: &Frame) -> [f64; 2] {
+    let cost = |x: [f64; 2]| residuals(x, obs, tm, fr).iter().map(|r| r * r).sum::<f64>();
+    let mut best = [0.0, 5.0];
+    let mut best_cost = f64::INFINITY;
+    // B from 0.5 to 40 kK, 32 logarithmic steps.
+    for i in 0..32 {
+        let b_kk = 0.5 * (80.0_f64).powf(f64::from(i) / 31.0);
+        let ls: Vec<f64> = obs
+            .iter()
+            .map(|(p, tr)| solve_l(b_kk, p, *tr, tm, fr))
+            .collect();
+        let l = ls.iter().sum::<f64>() / ls.len() as f64;
+        let c = cost([l, b_kk]);
+        if c < best_cost {
+            best_cost = c;
+            best = [l, b_kk];
+        }
+    }
+    clamp(best)
+}
+
+fn jacobian(x: [f64; 2], obs: &Obs, tm: f64, fr: &Frame) -> Vec<[f64; 2]> {
+    let mut cols = [Vec::new(), Vec::new()];
+    for (k, col) in cols.iter_mut().enumerate() {
+        let h = 1e-6 * x[k].abs().max(1.0);
+        let mut xp = x;
+        let mut xm = x;
+        xp[k] += h;
+        xm[k] -= h;
+        let rp = residuals(xp, obs, tm, fr);
+        let rm = residuals(xm, obs, tm, fr);
+        *col = rp
+            .iter()
+            .zip(&rm)
+            .map(|(a, b)| (a - b) / (2.0 * h))
+            .collect();
+    }
+    (0..obs.len()).map(|i| [cols[0][i], cols[1][i]]).collect()
+}
+
+fn jtj_of(j: &[[f64; 2]]) -> [f64; 3] {
+    let mut a = [0.0; 3];
+    for r in j {
+        a[0] += r[0] * r[0];
+        a[1] += r[0] * r[1];
+        a[2] += r[1] * r[1];
+    }
+    a
+}
+
+struct LmOutcome {
+    x: [f64; 2],
+    iterations: usize,
+    converged: bool,
+    jtj: [f64; 3],
+}
+
+fn levenberg_marquardt(start: [f64; 2], obs: &Obs, tm: f64, fr: &Frame) -> LmOutcome {
+    let cost = |r: &[f64]| r.iter().map(|v| v * v).sum::<f64>();
+    let mut x = start;
+    let mut r = residuals(x, obs, tm, fr);
+    let mut c = cost(&r);
+    let mut lambda = 1e-3;
+    let mut converged = false;
+    let mut it = 0;
+    while it < 200 {
+        it += 1;
+        if c < 1e-24 {
+            converged = true;
+            break;
+        }
+        let j = jacobian(x, obs, tm, fr);
+        let a = jtj_of(&j);
+        let g = [
+            j.iter().zip(&r).map(|(jr, ri)| jr[0] * ri).sum::<f64>(),
+            j.iter().zip(&r).map(|(jr, ri)| jr[1] * ri).sum::<f64>(),
+        ];
+        let mut improved = false;
+        for _ in 0..30 {
+            let a00 = a[0] * (1.0 + lambda) + 1e-300;
+            let a11 = a[2] * (1.0 + lambda) + 1e-300;
+            let det = a00 * a11 - a[1] * a[1];
+            if det.abs() < 1e-300 || !det.is_finite() {
+                lambda *= 10.0;
+                continue;
+            }
+            let dx = [
+                -(a11 * g[0] - a[1] * g[1]) / det,
+                -(-a[1] * g[0] + a00 * g[1]) / det,
+            ];
+            let xn = clamp([x[0] + dx[0], x[1] + dx[1]]);
+            let rn = residuals(xn, obs, tm, fr);
+            let cn = cost(&rn);
+            if cn.is_finite() && cn < c {
+                let step = ((xn[0] - x[0]).abs() / x[0].abs().max(1.0))
+                    .max((xn[1] - x[1]).abs() / x[1].abs().max(1.0));
+                let rel_drop = (c - cn) / c.max(1e-300);
+                x = xn;
+                r = rn;
+                c = cn;
+                lambda = (lambda / 10.0).max(1e-12);
+                improved = true;
+                if step < 1e-12 || rel_drop < 1e-14 {
+                    converged = true;
+                }
+                break;
+            }
+            lambda *= 10.0;
+        }
+        if !improved {
+            // No downhill step at any damping: at a (local) minimum.
+            converged = true;
+            break;
+        }
+        if converged {
+            break;
+        }
+    }
+    LmOutcome {
+        x,
+        iterations: it,
+        converged,
+        jtj: jtj_of(&jacobian(x, obs, tm, fr)),
+    }
+}
+
+/// Fits A and B for every analyte of the GC scouting runs.
+///
+/// # Errors
+/// Fewer than 2 runs, duplicate run names, runs whose programs do not differ before the final
+/// temperature, a program above the phase limit, a peak missing from a run, a peak at or before
+/// t_M, an invalid t_M.
+pub fn fit_gc(req: &GcScoutRequest) -> Result<GcScoutFit, GcScoutError> {
+    let tm = req.holdup_time_min;
+    if !(tm.is_finite() && tm > 0.0) {
+        return Err(GcScoutError::BadHoldup {
+            holdup_time_min: tm,
+        });
+    }
+    if req.runs.len() < 2 {
+        return Err(GcScoutError::TooFewRuns {
+            count: req.runs.len(),
+        });
+    }
+    for (i, r) in req.runs.iter().enumerate() {
+        if req.runs[..i].iter().any(|q| q.name == r.name) {
+            return Err(GcScoutError::DuplicateRun {
+                name: r.name.clone(),
+            });
+        }
+        if let Some(t_max) = req.max_temperature_c
+            && r.program.final_c() > t_max
+        {
+            return Err(GcScoutError::AbovePhaseLimit {
+                run: r.name.clone(),
+                final_c: r.program.final_c(),
+                t_max_c: t_max,
+            });
+        }
+    }
+    let sigs: Vec<(f64, f64, f64)> = req.runs.iter().map(|r| signature(&r.program)).collect();
+    let distinct = sigs
+        .iter()
+        .any(|s| !(close(s.0, sigs[0].0) && close(s.1, sigs[0].1) && close(s.2, sigs[0].2)));
+    if !distinct {
+        return Err(GcScoutError::NotIdentifiable {
+            runs: req.runs.iter().map(|r| r.name.clone()).collect(),
+        });
+    }
+    for a in &req.runs {
+        for p in a.peaks.peaks() {
+            for b in &req.runs {
+                if b.peaks.get(&p.name).is_none() {
+                    return Err(GcScoutError::MissingPeak {
+                        peak: p.name.clone(),
+                        run: b.name.clone(),
+                        present_in: a.name.clone(),
+                    });
+                }
+            }
+        }
+    }
+    let mut analytes = Vec::new();
+    for peak in req.runs[0].peaks.peaks() {
+        let mut obs = Vec::with_capacity(req.runs.len());
+        for run in &req.runs {
+            let tr = run
+                .peaks
+                .get(&peak.name)
+                .map_or(f64::NAN, |p| p.retention_time_min);
+            if tr.is_nan() || tr <= tm {
+                return Err(GcScoutError::PeakBeforeHoldup {
+                    peak: peak.name.clone(),
+                    run: run.name.clone(),
+                    retention_time_min: tr,
+                    holdup_time_min: tm,
+                });
+            }
+            obs.push((&run.program, tr));
+        }
+        analytes.push(fit_one(&peak.name, &obs, req));
+    }
+    Ok(GcScoutFit {
+        holdup_time_min: tm,
+        runs: req.runs.iter().map(|r| r.name.clone()).collect(),
+        programs: req.runs.iter().map(|r| r.program.to_spec()).collect(),
+        integration_step_k: RAMP_STEP_K,
+        analytes,
+    })
+}
+
+fn fit_one(name: &str, obs: &Obs, req: &GcScoutRequest) -> GcAnalyteFit {
+    let tm = req.holdup_time_min;
+    let measured_t: Vec<f64> = obs
+        .iter()
+        .map(|(p, tr)| p.temperature_c_at(*tr) + KELVIN)
+        .collect();
+    let fr = Frame {
+        t_ref_k: measured_t.iter().sum::<f64>() / measured_t.len() as f64,
+    };
+    let start = start_estimate(obs, tm, &fr);
+    let out = levenberg_marquardt(start, obs, tm, &fr);
+    let p = fr.params(out.x);
+    let mut flags = Vec::new();
+    let mut res = Vec::with_capacity(obs.len());
+    for ((run, (prog, tr)), t_meas) in req.runs.iter().zip(obs).zip(&measured_t) {
+        let (pred, phase) = match programmed_elution(&p, prog, tm) {
+            Ok(e) => (e.retention_time_min, e.phase),
+            Err(_) => (f64::INFINITY, OvenPhase::FinalHold),
+        };
+        if *tr > prog.total_time_min() + 1e-9 {
+            flags.push(GcFitFlag::ElutedAfterProgram {
+                run: run.name.clone(),
+            });
+        }
+        res.push(GcRunResidual {
+            run: run.name.clone(),
+            measured_min: *tr,
+            predicted_min: pred,
+            residual_min: pred - tr,
+            measured_elution_temperature_c: t_meas - KELVIN,
+            phase,
+        });
+    }
+    let n = res.len() as f64;
+    let rms = (res.iter().map(|r| r.residual_min.powi(2)).sum::<f64>() / n).sqrt();
+    // Cov = σ² (JᵀJ)⁻¹ in (L, B/1000); σ the larger of the assumed error and the residual
+    // scatter (n − 2 degrees of freedom, only with more than 2 runs).
+    let sigma = if res.len() > 2 {
+        let ss: f64 = res.iter().map(|r| r.residual_min.powi(2)).sum();
+        (ss / (n - 2.0)).sqrt().max(RETENTION_ERROR_MIN)
+    } else {
+        RETENTION_ERROR_MIN
+    };
+    let a = out.jtj;
+    let det = a[0] * a[2] - a[1] * a[1];
+    let (se_a, se_b, corr) = if det > 0.0 && det.is_finite() {
+        let s2 = sigma * sigma;
+        let (v_ll, v_bb, v_lb) = (s2 * a[2] / det, s2 * a[0] / det, -s2 * a[1] / det);
+        // A = L − 1000 x₁ / T_ref, B = 1000 x₁.
+        let c = 1000.0 / fr.t_ref_k;
+        let var_a = v_ll + c * c * v_bb - 2.0 * c * v_lb;
+        let var_b = 1e6 * v_bb;
+        let cov_ab = 1000.0 * v_lb - 1000.0 * c * v_bb;
+        let (sa, sb) = (var_a.max(0.0).sqrt(), var_b.max(0.0).sqrt());
+        (sa, sb, cov_ab / (sa * sb))
+    } else {
+        (f64::INFINITY, f64::INFINITY, f64::NAN)
+    };
+    if p.b_k <= 0.0 {
+        flags.push(GcFitFlag::NonPhysical { b_k: p.b_k });
+    } else if !(B_RANGE_K.0..=B_RANGE_K.1).contains(&p.b_k) {
+        flags.push(GcFitFlag::BOutsideRange { b_k: p.b_k });
+    }
+    if rms > LARGE_RESIDUAL_MIN || !rms.is_finite() {
+        flags.push(GcFitFlag::LargeResidual { rms_min: rms });
+    }
+    let rel = se_b / p.b_k.abs();
+    if rel.is_nan() || rel > ILL_CONDITIONED_RELATIVE {
+        flags.push(GcFitFlag::IllConditioned {
+            b_relative_uncertainty: rel,
+        });
+    }
+    if !out.converged {
+        flags.push(GcFitFlag::NotConverged);
+    }
+    let start_p = fr.params(start);
+    GcAnalyteFit {
+        name: name.to_string(),
+        a: p.a,
+        b_k: p.b_k,
+        a_uncertainty: se_a,
+        b_uncertainty_k: se_b,
+        correlation: corr,
+        reference_temperature_c: fr.t_ref_k - KELVIN,
+        ln_k_at_reference: out.x[0],
+        sorption_enthalpy_kj_mol: -GAS_CONSTANT * p.b_k / 1000.0,
+        start_a: start_p.a,
+        start_b_k: start_p.b_k,
+        residuals: res,
+        rms_residual_min: rms,
+        iterations: out.iterations,
+        flags,
+    }
+}
+
+/// Apparent plate number of a measured peak under the model's width: w_base = 4 t_M (1 + k_e)
+/// / √N (see [`crate::measured::gc_optimise`]), so N = (4 t_M (1 + k_e) / w_base)², with the
+/// baseline width from the half-height width of a Gaussian (w_base = 4σ = 1.699 w½) when the
+/// table gives only that. `None` when the peak has no width or the elution cannot be predicted.
+pub fn apparent_plates(
+    params: &VantHoffParameters,
+    program: &OvenProgram,
+    holdup_time_min: f64,
+    width_base_min: Option<f64>,
+    width_half_min: Option<f64>,
+) -> Option<f64> {
+    let w = width_base_min
+        .or(width_half_min.map(|w| w * 4.0 / (8.0 * std::f64::consts::LN_2).sqrt()))?;
+    let e = programmed_elution(params, program, holdup_time_min).ok()?;
+    let n = (4.0 * holdup_time_min * (1.0 + e.retention_factor_at_elution) / w).powi(2);
+    (n.is_finite() && n > 0.0 && w > 0.0).then_some(n)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::measured::peaks::Peak;
+
+    pub(crate) fn table(rows: &[(&str, f64)]) -> PeakTable {
+        PeakTable::from_peaks(
+            rows.iter()
+                .map(|(n, t)| Peak {
+                    name: n.to_string(),
+                    retention_time_min: *t,
+                    width_half_min: Some(0.02),
+                    width_base_min: None,
+                    area: None,
+                    height: None,
+                    usp_tailing: None,
+                    width_5pct_min: None,
+                    front_5pct_min: None,
+                    front_10pct_min: None,
+                    back_10pct_min: None,
+                    line: 0,
+                })
+                .collect(),
+        )
+        .unwrap()
+    }
+
+    // Invented analytes (not real compounds): B of 4.5–7.5 kK (ΔH of 37–62 kJ/mol) and A of
+    // about −10 to −14, typical magnitudes for a 0.25 mm × 0.25 µm column (β = 250), from
+    // memory.
+    pub(crate) fn truth() -> Vec<(&'static str, VantHoffParameters)> {
+        vec![
+            (
+                "inv-g1",
+                VantHoffParameters {
+                    a: -10.2,
+                    b_k: 4500.0,
+                },
+            ),
+            (
+                "inv-g2",
+                VantHoffParameters {
+                    a: -11.4,
+                    b_k: 5400.0,
+                },
+            ),
+            (
+                "inv-g3",
+                VantHoffParameters {
+                    a: -12.9,
+                    b_k: 6500.0,
+                },
+            ),
+            (
+                "inv-g4",
+                VantHoffParameters {
+                    a: -14.0,
+                    b_k: 7500.0,
+                },
+            ),
+        ]
+    }
+
+    const TM: f64 = 1.2;
+
+    fn simulate(truth: &[(&str, VantHoffParameters)], specs: &[&str]) -> Vec<GcScoutRun> {
+        specs
+            .iter()
+            .map(|spec| {
+                let program = OvenProgram::parse(spec).unwrap();
+                let rows: Vec<(&str, f64)> = truth
+                    .iter()
+                    .map(|(n, p)| {
+                        (
+                            *n,
+                            programmed_elution(p, &program, TM)
+                                .unwrap()
+                                .retention_time_min,
+                        )
+                    })
+                    .collect();
+                GcScoutRun {
+                    name: format!("run {spec}"),
+                    program,
+                    peaks: table(&rows),
+                }
+            })
+            .collect()
+    }
+
+    fn request(runs: Vec<GcScoutRun>) -> GcScoutRequest {
+        GcScoutRequest {
+            runs,
+            holdup_time_min: TM,
+            max_temperature_c: Some(325.0),
+        }
+    }
+
+    #[test]
+    fn isothermal_elution_is_t_m_times_one_plus_k() {
+        // tR = t_M (1 + k) at constant temperature (definition of k).
+        let p = VantHoffParameters {
+            a: -10.0,
+            b_k: 5000.0,
+        };
+        let prog = OvenProgram::parse("120:60").unwrap();
+        let k = p.ln_k(120.0 + KELVIN).exp();
+        let e = programmed_elution(&p, &prog, 1.5).unwrap();
+        assert!((e.retention_time_min - 1.5 * (1.0 + k)).abs() < 1e-12);
+        assert_eq!(e.phase, OvenPhase::InitialHold);
+    }
+
+    #[test]
+    fn an_unretained_band_at_a_constant_rate_matches_the_closed_form() {
+        // B = 0: k is constant (= e^A) and the ramp does not matter: tR = t_M (1 + k) exactly,
+        // which checks the Simpson panels and the crossing solve through the ramp.
+        let p = VantHoffParameters { a: 1.5, b_k: 0.0 };
+        let prog = OvenProgram::parse("50:0.5,7:300:5").unwrap();
+        let e = programmed_elution(&p, &prog, 1.0).unwrap();
+        assert!(
+            (e.retention_time_min - (1.0 + 1.5_f64.exp())).abs() < 1e-10,
+            "{e:?}"
+        );
+        assert_eq!(e.phase, OvenPhase::Ramp);
+    }
+
+    #[test]
+    fn ramp_step_is_converged() {
+        // The 0.5 K Simpson step against a 20-times finer integration (0.025 K): elution times
+        // agree within 1e-6 min for every invented analyte at slow and fast ramps.
+        for spec in ["40:1,3:300:5", "40:1,25:300:5", "90:0,10:300:10"] {
+            let prog = OvenProgram::parse(spec).unwrap();
+            for (_, p) in truth() {
+                let coarse = elution_with_step(&p, &prog, TM, RAMP_STEP_K).unwrap();
+                let fine = elution_with_step(&p, &prog, TM, RAMP_STEP_K / 20.0).unwrap();
+                let d = (coarse.retention_time_min - fine.retention_time_min).abs();
+                assert!(d < 1e-6, "{spec}: {d} min");
+            }
+        }
+    }
+
+    #[test]
+    fn elution_in_the_final_hold_continues_at_the_final_temperature() {
+        // A strongly retained invented analyte under a program ending at 100 °C.
+        let p = VantHoffParameters {
+            a: -14.0,
+            b_k: 7500.0,
+        };
+        let prog = OvenProgram::parse("40:1,10:100:2").unwrap();
+        let e = programmed_elution(&p, &prog, TM).unwrap();
+        assert_eq!(e.phase, OvenPhase::FinalHold);
+        assert!(e.after_program_end);
+        assert!((e.elution_temperature_c - 100.0).abs() < 1e-9);
+        // Never-eluting parameters are an error, not a silent number.
+        let stuck = VantHoffParameters {
+            a: 0.0,
+            b_k: 9000.0,
+        };
+        assert!(matches!(
+            programmed_elution(&stuck, &prog, TM),
+            Err(GcScoutError::NotEluted { .. })
+        ));
+    }
+
+    #[test]
+    fn two_ramps_recover_parameters() {
+        // Self-consistency: simulate, fit, recover (no published worked example used).
+        let runs = simulate(&truth(), &["40:1,5:300:5", "40:1,15:300:5"]);
+        let f = fit_gc(&request(runs)).unwrap();
+        for ((_, t), a) in truth().iter().zip(&f.analytes) {
+            assert!((a.b_k - t.b_k).abs() < 1e-3, "{a:?}");
+            assert!((a.a - t.a).abs() < 1e-5, "{a:?}");
+            assert!(a.rms_residual_min < 1e-7, "{a:?}");
+            assert!(a.flags.is_empty(), "{:?}", a.flags);
+            assert!(a.b_uncertainty_k.is_finite() && a.b_uncertainty_k > 0.0);
+            assert!(a.correlation.abs() <= 1.0 + 1e-9);
+        }
+    }
+
+    #[test]
+    fn initial_temperatures_alone_identify_the_parameters() {
+        // Same ramp, initial temperatures 40 and 80 °C with 3 runs (one with another rate).
+        let runs = simulate(
+            &truth(),
+            &["40:2,10:300:5", "80:2,10:300:5", "60:0,20:300:5"],
+        );
+        let f = fit_gc(&request(runs)).unwrap();
+        for ((_, t), a) in truth().iter().zip(&f.analytes) {
+            assert!((a.b_k - t.b_k).abs() < 1e-2, "{a:?}");
+            assert!(a.flags.is_empty(), "{:?}", a.flags);
+        }
+    }
+
+    #[test]
+    fn two_isothermal_runs_give_the_van_t_hoff_line() {
+        let t = vec![
+            (
+                "inv-a",
+                VantHoffParameters {
+                    a: -10.0,
+                    b_k: 5000.0,
+                },
+            ),
+            (
+                "inv-b",
+                VantHoffParameters {
+                    a: -10.5,
+                    b_k: 5400.0,
+                },
+            ),
+        ];
+        let runs = simulate(&t, &["100:120", "130:120"]);
+        let f = fit_gc(&request(runs)).unwrap();
+        for ((_, t), a) in t.iter().zip(&f.analytes) {
+            assert!((a.b_k - t.b_k).abs() < 1e-3, "{a:?}");
+        }
+    }
+
+    #[test]
+    fn the_same_program_twice_is_not_identifiable() {
+        // Differ only in the final temperature: the peaks carry no extra information.
+        let mut runs = simulate(&truth(), &["40:1,10:300:5", "40:1,10:280:5"]);
+        runs[1].name = "repeat".into();
+        let e = fit_gc(&request(runs)).unwrap_err().to_string();
+        assert!(
+            e.contains("not identifiable") && e.contains("repeat"),
+            "{e}"
+        );
+    }
+
+    #[test]
+    fn bad_inputs_name_the_value() {
+        let runs = simulate(&truth(), &["40:1,5:300:5", "40:1,15:300:5"]);
+        // Missing peak.
+        let mut r = runs.clone();
+        r[1].peaks = table(&[("inv-g1", 10.0), ("inv-g2", 12.0), ("inv-g3", 14.0)]);
+        let e = fit_gc(&request(r)).unwrap_err().to_string();
+        assert!(e.contains("inv-g4") && e.contains("missing"), "{e}");
+        // Peak before t_M.
+        let mut r = runs.clone();
+        r[0].peaks = table(&[
+            ("inv-g1", 1.1),
+            ("inv-g2", 12.0),
+            ("inv-g3", 14.0),
+            ("inv-g4", 16.0),
+        ]);
+        let e = fit_gc(&request(r)).unwrap_err().to_string();
+        assert!(e.contains("inv-g1") && e.contains("1.1"), "{e}");
+        // Above the phase limit.
+        let mut req = request(runs.clone());
+        req.max_temperature_c = Some(250.0);
+        let e = fit_gc(&req).unwrap_err().to_string();
+        assert!(e.contains("300") && e.contains("250"), "{e}");
+        // One run.
+        let e = fit_gc(&request(runs[..1].to_vec())).unwrap_err();
+        assert!(matches!(e, GcScoutError::TooFewRuns { count: 1 }));
+        // Bad t_M.
+        let mut req = request(runs);
+        req.holdup_time_min = -1.0;
+        assert!(fit_gc(&req).unwrap_err().to_string().contains("-1"));
+    }
+
+    #[test]
+    fn inconsistent_retention_is_flagged_not_hidden() {
+        // Swap one analyte's times between runs: the later time under the faster ramp cannot
+        // be fitted with B > 0 and a small residual.
+        let mut runs = simulate(&truth(), &["40:1,5:300:5", "40:1,15:300:5"]);
+        let t_slow = runs[0].peaks.get("inv-g2").unwrap().retention_time_min;
+        let t_fast = runs[1].peaks.get("inv-g2").unwrap().retention_time_min;
+        let swap = |run: &GcScoutRun, t: f64| {
+            let rows: Vec<(String, f64)> = run
+                .peaks
+                .peaks()
+                .iter()
+                .map(|p| {
+                    let v = if p.name == "inv-g2" {
+                        t
+                    } else {
+                        p.retention_time_min
+                    };
+                    (p.name.clone(), v)
+                })
+                .collect();
+            let r: Vec<(&str, f64)> = rows.iter().map(|(n, t)| (n.as_str(), *t)).collect();
+            table(&r)
+        };
+        runs[0].peaks = swap(&runs[0], t_fast);
+        runs[1].peaks = swap(&runs[1], t_slow);
+        let f = fit_gc(&request(runs)).unwrap();
+        let g2 = &f.analytes[1];
+        assert!(!g2.flags.is_empty(), "{g2:?}");
+        assert!(f.analytes[0].flags.is_empty());
+    }
+
+    proptest::proptest! {
+        #![proptest_config(proptest::prelude::ProptestConfig::with_cases(64))]
+        /// Physical sense of the migration integral for arbitrary invented parameters and
+        /// programs: the band never leaves before t_M, more retention (larger A) never elutes
+        /// earlier, and a faster ramp from the same start never elutes later.
+        #[test]
+        fn elution_is_monotone(
+            a in -16.0f64..-6.0,
+            b in 2000.0f64..9000.0,
+            t0 in 30.0f64..120.0,
+            hold in 0.0f64..3.0,
+            ramp in 1.0f64..30.0,
+            tm in 0.5f64..3.0,
+        ) {
+            let p = VantHoffParameters { a, b_k: b };
+            let slow = OvenProgram::new(t0, hold, ramp, 350.0, 30.0).unwrap();
+            let fast = OvenProgram::new(t0, hold, ramp * 1.5, 350.0, 30.0).unwrap();
+            if let (Ok(e), Ok(more), Ok(f)) = (
+                programmed_elution(&p, &slow, tm),
+                programmed_elution(&VantHoffParameters { a: a + 0.5, b_k: b }, &slow, tm),
+                programmed_elution(&p, &fast, tm),
+            ) {
+                proptest::prop_assert!(e.retention_time_min > tm);
+                proptest::prop_assert!(more.retention_time_min >= e.retention_time_min - 1e-9);
+                proptest::prop_assert!(f.retention_time_min <= e.retention_time_min + 1e-9);
+                proptest::prop_assert!(e.elution_temperature_c >= t0 - 1e-9);
+                proptest::prop_assert!(e.elution_temperature_c <= 350.0 + 1e-9);
+            }
+        }
+    }
+
+    #[test]
+    fn apparent_plates_invert_the_width_model() {
+        let p = truth()[2].1;
+        let prog = OvenProgram::parse("40:1,10:300:5").unwrap();
+        let e = programmed_elution(&p, &prog, TM).unwrap();
+        let n = 120_000.0;
+        let w = 4.0 * TM * (1.0 + e.retention_factor_at_elution) / f64::sqrt(n);
+        let got = apparent_plates(&p, &prog, TM, Some(w), None).unwrap();
+        assert!((got - n).abs() < 1e-6 * n);
+        // Half-height width of a Gaussian: w½ = 2.3548 σ, w_base = 4 σ.
+        let half = w / 4.0 * 2.354_820_045;
+        let got = apparent_plates(&p, &prog, TM, None, Some(half)).unwrap();
+        assert!((got - n).abs() < 1e-6 * n, "{got}");
+    }
+}

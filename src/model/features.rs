@@ -67,7 +67,9 @@ pub trait DescriptorSource {
 /// The descriptor source of the shipped model: the structure engine's descriptors
 /// (`structure::describe`: Crippen logP and MR, TPSA, H-bond donors/acceptors, rotatable bonds,
 /// aromatic rings, fraction sp3, McGowan volume, formal charge, molar mass) merged with the
-/// constitutional counts of `ConstitutionalCounts` (the engine's molar mass wins).
+/// constitutional counts of `ConstitutionalCounts` (the engine's molar mass wins), the
+/// log10 neutral fraction and mean charge on an integer pH grid (`lfn_ph_N`, `charge_ph_N`),
+/// the counts of acidic, basic and permanently charged sites, and the `SECOND_ORDER_NAMES`.
 #[derive(Debug, Clone, Copy, Default)]
 pub struct PhasewiseDescriptors;
 

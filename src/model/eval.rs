@@ -357,9 +357,9 @@ fn coelution_map(
             .map(|&r| {
                 let psi = pred(r).unwrap_or(0.0);
                 let s = row_s(data, r);
-                let rt = rt_from_psi(&ts.system, s, psi);
-                let slope = (rt_from_psi(&ts.system, s, psi + 0.01)
-                    - rt_from_psi(&ts.system, s, psi - 0.01))
+                let rt = ts.real_time(rt_from_psi(&ts.system, s, psi));
+                let slope = (ts.real_time(rt_from_psi(&ts.system, s, psi + 0.01))
+                    - ts.real_time(rt_from_psi(&ts.system, s, psi - 0.01)))
                     / 0.02;
                 (psi, rt, slope, data.rows[r].rt_min)
             })
@@ -483,6 +483,9 @@ pub struct SystemFigures {
     pub order_accuracy: f64,
     /// Mean absolute error (min).
     pub mae_min: f64,
+    /// Mean signed error, predicted − measured (min): the system-wide part of the error.
+    #[serde(default)]
+    pub bias_min: f64,
     /// MAE as % of the gradient duration.
     pub mae_pct_gradient: f64,
     /// ROC AUC for measured co-eluting pairs (|Δt| < 1 % of gradient duration).
@@ -624,6 +627,7 @@ fn figures(
             f64::NAN
         },
         mae_min: mae,
+        bias_min: s.pred.iter().zip(&s.meas).map(|(p, m)| p - m).sum::<f64>() / n as f64,
         mae_pct_gradient: 100.0 * mae / duration,
         coelution_auc: roc_auc(&scores, &labels),
         n,
@@ -742,10 +746,12 @@ pub fn evaluate_with(
                         None => (cv.psi_descriptor[r], "descriptor"),
                     },
                 };
-                let rt = rt_from_psi(&ts.system, s, psi);
+                // systems with a flow program are modelled on the volume-equivalent time
+                // axis; scores are in real minutes
+                let rt = ts.real_time(rt_from_psi(&ts.system, s, psi));
                 let h = 0.01;
-                let slope = (rt_from_psi(&ts.system, s, psi + h)
-                    - rt_from_psi(&ts.system, s, psi - h))
+                let slope = (ts.real_time(rt_from_psi(&ts.system, s, psi + h))
+                    - ts.real_time(rt_from_psi(&ts.system, s, psi - h)))
                     / (2.0 * h);
                 sc.memory.push(path == "memory");
                 sc.pred.push(rt);

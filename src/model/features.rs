@@ -67,7 +67,9 @@ pub trait DescriptorSource {
 /// The descriptor source of the shipped model: the structure engine's descriptors
 /// (`structure::describe`: Crippen logP and MR, TPSA, H-bond donors/acceptors, rotatable bonds,
 /// aromatic rings, fraction sp3, McGowan volume, formal charge, molar mass) merged with the
-/// constitutional counts of `ConstitutionalCounts` (the engine's molar mass wins).
+/// constitutional counts of `ConstitutionalCounts` (the engine's molar mass wins), the
+/// log10 neutral fraction and mean charge on an integer pH grid (`lfn_ph_N`, `charge_ph_N`),
+/// the counts of acidic, basic and permanently charged sites, and the `SECOND_ORDER_NAMES`.
 #[derive(Debug, Clone, Copy, Default)]
 pub struct PhasewiseDescriptors;
 
@@ -130,6 +132,54 @@ impl DescriptorSource for PhasewiseDescriptors {
                 .map_err(|e| bad(e.to_string()))?;
             out.insert(format!("lfn_ph_{ph}"), lfn.max(-6.0));
         }
+        // Ionisable-site classes and the mean charge at integer pH 0-14, sites taken as
+        // independent (Henderson-Hasselbalch per site; common practice, no source); the model
+        // interpolates the charge at the eluent pH (`charge_at_ph`, `abs_charge_at_ph`).
+        use crate::structure::ionisable::SiteKind;
+        let count = |k: SiteKind| sites.iter().filter(|s| s.kind == k).count() as f64;
+        out.insert("n_acid_sites".into(), count(SiteKind::Acid));
+        out.insert("n_base_sites".into(), count(SiteKind::Base));
+        out.insert(
+            "n_permanent_charges".into(),
+            count(SiteKind::PermanentCation) + count(SiteKind::PermanentAnion),
+        );
+        for ph in 0..=14u8 {
+            let ph_f = f64::from(ph);
+            let q: f64 = sites
+                .iter()
+                .map(|s| match (s.kind, s.pka) {
+                    (SiteKind::Acid, Some(pka)) => -1.0 / (1.0 + 10f64.powf(pka - ph_f)),
+                    (SiteKind::Base, Some(pka)) => 1.0 / (1.0 + 10f64.powf(ph_f - pka)),
+                    (SiteKind::PermanentCation, _) => 1.0,
+                    (SiteKind::PermanentAnion, _) => -1.0,
+                    _ => 0.0,
+                })
+                .sum();
+            out.insert(format!("charge_ph_{ph}"), q);
+        }
+        // Second-order terms: psi_k1 is not linear in logP over the whole range (it levels off
+        // for very polar and very apolar analytes), and the effect of polarity and size depends
+        // on logP; products of the main descriptors give the ridge that curvature (chosen by
+        // the system-grouped CV, docs/model.md "What was tried").
+        let logp = x.crippen_logp;
+        let tpsa = x.tpsa_a2 / 100.0;
+        // mw_g_mol is set above (engine's molar mass, else the constitutional one)
+        let log_mw = out.get("mw_g_mol").copied().unwrap_or(1.0).max(1.0).log10();
+        let second_order = [
+            ("logp_sq", logp * logp),
+            ("tpsa_sq", tpsa * tpsa),
+            ("logp_x_tpsa", logp * tpsa),
+            ("logp_x_log_mw", logp * log_mw),
+            ("log_mw_sq", log_mw * log_mw),
+            ("logp_x_hbd", logp * f64::from(x.hbond_donors)),
+            (
+                "logp_x_aromatic_rings",
+                logp * f64::from(x.aromatic_ring_count),
+            ),
+        ];
+        for (n, v) in second_order {
+            out.insert(n.to_owned(), v);
+        }
         Ok(out)
     }
 }
@@ -143,6 +193,19 @@ pub fn log10_fraction_neutral_at(f: &AnalyteFeatures, ph: f64) -> Option<f64> {
     let (a, b) = (get(lo)?, get(hi)?);
     Some(a + (b - a) * (ph - lo))
 }
+
+/// Second-order descriptors of `PhasewiseDescriptors` (products of logP, TPSA/100 Å², log10
+/// molar mass, H-bond donors and aromatic rings). The model uses them as main effects and ×
+/// the HILIC flag only, without the other system interactions.
+pub const SECOND_ORDER_NAMES: [&str; 7] = [
+    "logp_sq",
+    "tpsa_sq",
+    "logp_x_tpsa",
+    "logp_x_log_mw",
+    "log_mw_sq",
+    "logp_x_hbd",
+    "logp_x_aromatic_rings",
+];
 
 /// The built-in descriptor source: element, hydrogen, aromatic-atom, bond and ring counts read
 /// from the SMILES string with default valences (OpenSMILES organic-subset rules), plus the

@@ -843,6 +843,19 @@ fn transformed_descriptors(
     names
         .iter()
         .map(|n| {
+            if n == "charge_at_ph" || n == "abs_charge_at_ph" {
+                let ph = eluent_ph(sys).clamp(0.0, 14.0);
+                let (lo, hi) = (ph.floor(), ph.ceil());
+                let get = |p: f64| {
+                    f.descriptors
+                        .get(&format!("charge_ph_{}", p as u8))
+                        .copied()
+                        .ok_or_else(|| ModelError::MissingDescriptor("charge_ph_0..14".into()))
+                };
+                let (a, b) = (get(lo)?, get(hi)?);
+                let q = a + (b - a) * (ph - lo);
+                return Ok(if n == "charge_at_ph" { q } else { q.abs() });
+            }
             if DYNAMIC_NAMES.contains(&n.as_str()) {
                 let lfn = super::features::log10_fraction_neutral_at(f, eluent_ph(sys))
                     .ok_or_else(|| ModelError::MissingDescriptor("lfn_ph_0..14".into()))?;
@@ -901,12 +914,20 @@ pub struct LinearPart {
     /// Whether descriptor × system interactions are used.
     pub interactions: bool,
     /// Coefficients: intercept, system features, descriptors, then interactions
-    /// (descriptor-major: for each descriptor, one per entry of `INTERACTING`).
+    /// (descriptor-major: for each descriptor that interacts, one per entry of `INTERACTING`;
+    /// then the second-order terms `features::SECOND_ORDER_NAMES`, listed last, × the HILIC
+    /// flag only).
     pub coefficients: Vec<f64>,
 }
 
 /// Sparse design row: (column, value) pairs with increasing columns.
-fn design_row(z: &[f64], s: &[f64], interactions: bool, out: &mut Vec<(usize, f64)>) {
+fn design_row(
+    z: &[f64],
+    s: &[f64],
+    interactions: bool,
+    n_interacting: usize,
+    out: &mut Vec<(usize, f64)>,
+) {
     out.clear();
     let ns = s.len();
     out.push((0, 1.0));
@@ -922,7 +943,7 @@ fn design_row(z: &[f64], s: &[f64], interactions: bool, out: &mut Vec<(usize, f6
     if interactions {
         let base = 1 + ns + z.len();
         let ni = INTERACTING.len();
-        for (j, &zj) in z.iter().enumerate() {
+        for (j, &zj) in z.iter().enumerate().take(n_interacting) {
             for (q, &k) in INTERACTING.iter().enumerate() {
                 let v = s[k];
                 if v != 0.0 {
@@ -930,17 +951,34 @@ fn design_row(z: &[f64], s: &[f64], interactions: bool, out: &mut Vec<(usize, f6
                 }
             }
         }
+        // second-order terms interact with the mode only (their curvature differs between
+        // RP and HILIC)
+        let base = base + n_interacting.min(z.len()) * ni;
+        if s[0] != 0.0 {
+            for (j, &zj) in z.iter().enumerate().skip(n_interacting) {
+                out.push((base + j - n_interacting, zj * s[0]));
+            }
+        }
     }
 }
 
-fn n_columns(nz: usize, ns: usize, interactions: bool) -> usize {
+fn n_columns(nz: usize, ns: usize, interactions: bool, n_interacting: usize) -> usize {
     1 + ns
         + nz
         + if interactions {
-            nz * INTERACTING.len()
+            n_interacting.min(nz) * INTERACTING.len() + nz.saturating_sub(n_interacting)
         } else {
             0
         }
+}
+
+/// Number of leading descriptors that interact with the system features: all up to the first
+/// second-order term (`common_descriptor_names` lists those last).
+fn interacting_count(names: &[String]) -> usize {
+    names
+        .iter()
+        .position(|n| super::features::SECOND_ORDER_NAMES.contains(&n.as_str()))
+        .unwrap_or(names.len())
 }
 
 impl LinearPart {
@@ -960,7 +998,13 @@ impl LinearPart {
 
     /// Predicted psi_k1 from standardised descriptors and system features.
     pub(crate) fn predict_z(&self, z: &[f64], s: &[f64], buf: &mut Vec<(usize, f64)>) -> f64 {
-        design_row(z, s, self.interactions, buf);
+        design_row(
+            z,
+            s,
+            self.interactions,
+            interacting_count(&self.descriptor_names),
+            buf,
+        );
         buf.iter().map(|&(c, v)| self.coefficients[c] * v).sum()
     }
 
@@ -977,13 +1021,14 @@ impl LinearPart {
     ) -> Result<Self, ModelError> {
         let nz = descriptor_names.len();
         let ns = SYSTEM_FEATURE_NAMES.len();
-        let p = n_columns(nz, ns, interactions);
+        let n_int = interacting_count(&descriptor_names);
+        let p = n_columns(nz, ns, interactions, n_int);
         let mut gram = vec![0.0f64; p * p];
         let mut xty = vec![0.0f64; p];
         let mut buf = Vec::new();
         let mut wsum = 0.0;
         for (z, s, y, w) in rows {
-            design_row(z, s, interactions, &mut buf);
+            design_row(z, s, interactions, n_int, &mut buf);
             wsum += w;
             for (a, &(ca, va)) in buf.iter().enumerate() {
                 let wa = w * va;
@@ -1281,6 +1326,84 @@ pub struct TrainingSystem {
     pub system: LcSystem,
     /// Gradient duration (min) as given in systems.tsv.
     pub gradient_duration_min: f64,
+    /// Flow program `(time min, flow mL/min)` where the flow changes before the end of the
+    /// separation window (empty: constant nominal flow). When present, `system.gradient` is on
+    /// the volume-equivalent time axis `τ(t) = ∫₀ᵗ F dt / F_nominal` (see `volume_time`).
+    pub flow_program: Vec<(f64, f64)>,
+}
+
+impl TrainingSystem {
+    /// Volume-equivalent time `τ(t) = ∫₀ᵗ F(t') dt' / F_nominal` (min) of a real time `t`; the
+    /// identity for a constant flow. Retention is a matter of volume (V_R = V0 (1 + k) in the
+    /// gradient integral written in volume), so on the τ axis a flow program becomes a
+    /// constant-flow problem at the nominal flow with the same dead time (common practice,
+    /// no source).
+    pub fn volume_time(&self, t_min: f64) -> f64 {
+        volume_time(&self.flow_program, self.system.flow_ml_min, t_min)
+    }
+    /// Real time (min) at which the volume-equivalent time is `tau_min` (inverse of
+    /// `volume_time`).
+    pub fn real_time(&self, tau_min: f64) -> f64 {
+        if self.flow_program.is_empty() {
+            return tau_min;
+        }
+        // volume_time is increasing (flows > 0): bisection to 1e-9 min
+        let (mut lo, mut hi) = (0.0, tau_min.max(0.0) + 1.0);
+        while self.volume_time(hi) < tau_min {
+            hi *= 2.0;
+        }
+        for _ in 0..80 {
+            let mid = 0.5 * (lo + hi);
+            if self.volume_time(mid) < tau_min {
+                lo = mid;
+            } else {
+                hi = mid;
+            }
+        }
+        0.5 * (lo + hi)
+    }
+}
+
+/// Flow (mL/min) at time t of a piecewise-linear flow program, held before the first and after
+/// the last point.
+fn flow_at(program: &[(f64, f64)], t: f64) -> f64 {
+    let Some(&(t_first, f_first)) = program.first() else {
+        return 1.0;
+    };
+    if t <= t_first {
+        return f_first;
+    }
+    for w in program.windows(2) {
+        let ((ta, fa), (tb, fb)) = (w[0], w[1]);
+        if t <= tb {
+            return if tb > ta {
+                fa + (fb - fa) * (t - ta) / (tb - ta)
+            } else {
+                fb
+            };
+        }
+    }
+    program[program.len() - 1].1
+}
+
+/// `∫₀ᵗ F dt / F_nominal` for a piecewise-linear flow program (exact: between the program's
+/// breakpoints the flow is linear, so the midpoint rule is exact; steps are handled too).
+fn volume_time(program: &[(f64, f64)], nominal_ml_min: f64, t_min: f64) -> f64 {
+    if program.is_empty() {
+        return t_min;
+    }
+    let mut knots: Vec<f64> = program
+        .iter()
+        .map(|p| p.0)
+        .filter(|&x| x > 0.0 && x < t_min)
+        .collect();
+    knots.insert(0, 0.0);
+    knots.push(t_min.max(0.0));
+    let mut v = 0.0;
+    for w in knots.windows(2) {
+        v += flow_at(program, 0.5 * (w[0] + w[1])) * (w[1] - w[0]);
+    }
+    v / nominal_ml_min
 }
 
 /// One measured retention row with its descriptors resolved.
@@ -1425,6 +1548,73 @@ fn system_from_row(col: &dyn Fn(&str) -> Option<String>) -> Result<TrainingSyste
             organic_pct: at_end,
         });
     }
+    // Flow programs that change the flow inside the separation window: the program is moved
+    // onto the volume-equivalent time axis (breakpoints of both programs, ramps of the flow
+    // subdivided so that the composition stays close to linear in τ).
+    let nominal = num("flow_ml_min")?;
+    let mut flow_program: Vec<(f64, f64)> = Vec::new();
+    if let Some(fp) = col("gradient_flow") {
+        let mut pts = Vec::new();
+        for tok in fp.split(';').filter(|t| !t.trim().is_empty()) {
+            let (t, f) = tok
+                .split_once(':')
+                .ok_or_else(|| format!("gradient_flow token {tok:?} lacks ':'"))?;
+            let t: f64 = t
+                .trim()
+                .parse()
+                .map_err(|_| format!("gradient_flow time {t:?}"))?;
+            let f: f64 = f
+                .trim()
+                .parse()
+                .map_err(|_| format!("gradient_flow flow {f:?}"))?;
+            if !(t.is_finite() && t >= 0.0 && f.is_finite() && f > 0.0) {
+                return Err(format!("gradient_flow point {tok:?}"));
+            }
+            pts.push((t, f));
+        }
+        let end = gradient.last().map_or(0.0, |p| p.time_min);
+        // the flow anywhere in [0, end] differs from the nominal flow
+        let changes = std::iter::once(0.0)
+            .chain(pts.iter().map(|p| p.0).filter(|&t| t <= end))
+            .chain([end])
+            .any(|t| (flow_at(&pts, t) - nominal).abs() > 1e-9);
+        if changes && !pts.is_empty() {
+            flow_program = pts;
+        }
+    }
+    if !flow_program.is_empty() {
+        let probe = LcSystem {
+            mode,
+            chem_class,
+            modifier: Modifier::Other,
+            ph: None,
+            additive: Additive::Other,
+            gradient: gradient.clone(),
+            t0_min: 1.0,
+            dwell_min: 0.0,
+            flow_ml_min: 1.0,
+            temperature_c: None,
+        };
+        let end = gradient.last().map_or(0.0, |p| p.time_min);
+        let mut times: Vec<f64> = gradient.iter().map(|p| p.time_min).collect();
+        for w in flow_program.windows(2) {
+            let ((ta, fa), (tb, fb)) = (w[0], w[1]);
+            let pieces = if (fb - fa).abs() > 1e-12 { 8 } else { 1 };
+            for k in 0..=pieces {
+                times.push(ta + (tb - ta) * f64::from(k) / f64::from(pieces));
+            }
+        }
+        times.retain(|&t| (0.0..=end).contains(&t));
+        times.sort_by(f64::total_cmp);
+        times.dedup_by(|a, b| (*a - *b).abs() < 1e-9);
+        gradient = times
+            .iter()
+            .map(|&t| GradientPoint {
+                time_min: (volume_time(&flow_program, nominal, t) * 1e6).round() / 1e6,
+                organic_pct: probe.organic_at_pct(t),
+            })
+            .collect();
+    }
     let system = LcSystem {
         mode,
         chem_class,
@@ -1442,6 +1632,7 @@ fn system_from_row(col: &dyn Fn(&str) -> Option<String>) -> Result<TrainingSyste
         id: get("id")?,
         system,
         gradient_duration_min: num("gradient_duration_min")?,
+        flow_program,
     })
 }
 
@@ -1539,7 +1730,7 @@ impl TrainingData {
                 .get("mw_g_mol")
                 .copied()
                 .unwrap_or(0.0);
-            match psi_from_rt(&systems[si].system, lss_s(mw), rt) {
+            match psi_from_rt(&systems[si].system, lss_s(mw), systems[si].volume_time(rt)) {
                 Ok(psi) if psi.is_finite() => out.push(TrainingRow {
                     system: si,
                     inchikey: key.to_owned(),
@@ -1688,12 +1879,28 @@ pub fn common_descriptor_names(data: &TrainingData) -> Vec<String> {
     let mut names: Vec<String> = first
         .descriptors
         .keys()
-        .filter(|k| !k.starts_with("lfn_ph_") && all_have(k))
+        .filter(|k| {
+            !k.starts_with("lfn_ph_")
+                && !k.starts_with("charge_ph_")
+                && !super::features::SECOND_ORDER_NAMES.contains(&k.as_str())
+                && all_have(k)
+        })
         .cloned()
         .collect();
     if all_have("logp") && all_have("lfn_ph_7") {
         names.extend(DYNAMIC_NAMES.iter().map(|n| (*n).to_owned()));
     }
+    if all_have("charge_ph_7") {
+        names.push("charge_at_ph".to_owned());
+        names.push("abs_charge_at_ph".to_owned());
+    }
+    // second-order terms last: main effects and × mode only (`interacting_count`)
+    names.extend(
+        super::features::SECOND_ORDER_NAMES
+            .iter()
+            .filter(|n| all_have(n))
+            .map(|n| (*n).to_owned()),
+    );
     names
 }
 
@@ -1837,6 +2044,33 @@ mod tests {
         let s = sys(Mode::ReversedPhase, &[(1.0, 5.0)], 0.0);
         assert!(s.validate().is_err());
         assert!(psi_from_rt(&sys(Mode::ReversedPhase, &[(0.0, 5.0)], 0.0), 4.0, 0.5).is_err());
+    }
+
+    #[test]
+    fn flow_programs_map_to_volume_equivalent_time_and_back() {
+        // Flow doubles at 10 min: after 20 min, 10·F + 10·2F = 30·F of eluent has passed,
+        // i.e. 30 min at the nominal flow F (definition of τ).
+        let ts = TrainingSystem {
+            id: "x".into(),
+            system: sys(Mode::ReversedPhase, &[(0.0, 5.0), (20.0, 95.0)], 0.0),
+            gradient_duration_min: 20.0,
+            flow_program: vec![(0.0, 0.4), (10.0, 0.4), (10.0, 0.8)],
+        };
+        assert!((ts.volume_time(5.0) - 5.0).abs() < 1e-12);
+        assert!((ts.volume_time(20.0) - 30.0).abs() < 1e-9);
+        assert!((ts.real_time(30.0) - 20.0).abs() < 1e-6);
+        // A linear ramp 0.4 → 0.8 over 10 min: mean flow 0.6, τ(10) = 15 min.
+        let ramp = TrainingSystem {
+            flow_program: vec![(0.0, 0.4), (10.0, 0.8)],
+            ..ts.clone()
+        };
+        assert!((ramp.volume_time(10.0) - 15.0).abs() < 1e-9);
+        let constant = TrainingSystem {
+            flow_program: Vec::new(),
+            ..ts
+        };
+        assert_eq!(constant.volume_time(7.5), 7.5);
+        assert_eq!(constant.real_time(7.5), 7.5);
     }
 
     #[test]

@@ -580,13 +580,22 @@ fn choose_backup(
             .find(|m| m.mode == mode)
             .is_some_and(|m| 2 * m.fitting >= n_analytes.max(1))
     };
-    let risky: Vec<(String, String)> = first
+    let mut risky: Vec<(String, String)> = Vec::new();
+    // the critical pair is usually also a risky pair: each pair once, in either order
+    for (a, b) in first
         .coelutions
         .iter()
         .filter(|c| c.probability >= risk)
         .map(|c| (c.a.clone(), c.b.clone()))
         .chain(first.critical_pair.clone())
-        .collect();
+    {
+        if !risky
+            .iter()
+            .any(|(x, y)| (x == &a && y == &b) || (x == &b && y == &a))
+        {
+            risky.push((a, b));
+        }
+    }
     let mut best: Option<(f64, &Candidate)> = None;
     for c in cands.iter().skip(1) {
         if c.rec.phase.id == first.phase.id || !fits(&c.rec.mode) {

@@ -1122,6 +1122,21 @@ const BUILTIN_MODEL: &[u8] = include_bytes!("../../data/lc_model.json.gz");
 const BUILTIN_MEMORY: &[u8] = include_bytes!("../../data/retention_memory.tsv.gz");
 
 impl Model {
+    /// Number of shipped training systems of one mode and chemistry class (from the retention
+    /// memory's system records); `None` when no memory table is loaded. Classes with few
+    /// systems are predicted close to the C18/mode reference by the ridge shrinkage
+    /// (docs/model.md §2), so their predictions say less about that chemistry's selectivity.
+    pub fn training_systems(&self, mode: Mode, chem_class: ChemClass) -> Option<usize> {
+        let memory = self.memory.as_ref()?;
+        Some(
+            memory
+                .systems
+                .values()
+                .filter(|s| s.mode == mode && s.chem_class == chem_class)
+                .count(),
+        )
+    }
+
     /// Loads the bundled model and retention memory.
     ///
     /// # Errors

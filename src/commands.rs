@@ -933,12 +933,29 @@ fn run_predict(cli: &Cli, a: &crate::cli::PredictArgs) -> Result<ExitCode> {
     };
     report.recommendations = vec![rec.clone()];
     // what the user's conditions implied (buffer for the pH, flow from t0)
-    let notes: Vec<String> = rec
+    let mut notes: Vec<String> = rec
         .reasons
         .iter()
         .filter(|r| r.source == "user")
         .map(|r| r.text.clone())
         .collect();
+    // A time past the end of the program is the model's extrapolation of an endless final
+    // hold, not a retention time the run will show: say so beside the number.
+    let run_end = rec.conditions.run_time_min;
+    if run_end > 0.0 {
+        for p in rec
+            .predictions
+            .iter()
+            .filter(|p| p.retention_time_min > run_end)
+        {
+            notes.push(format!(
+                "{}: predicted at {} min, after the program ends at {} min; it does not elute in this run (the time assumes the final conditions are held); raise the final strength or extend the program",
+                p.analyte,
+                phasewise::report::num(p.retention_time_min, 1),
+                phasewise::report::num(run_end, 1)
+            ));
+        }
+    }
     let text = match a.format {
         OutputFormat::Json => format!(
             "{}\n",

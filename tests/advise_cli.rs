@@ -466,6 +466,44 @@ fn plan_writes_one_self_contained_html_file_and_refuses_a_missing_directory_befo
 }
 
 #[test]
+fn predict_says_when_an_analyte_would_elute_only_after_the_program_ends() {
+    // A C36 alkane cannot leave a C18 column under a short gradient to 60 % acetonitrile
+    // (common practice, no source); caffeine elutes well inside it.
+    let ctx = Ctx::new();
+    let out = ctx.run(&[
+        "predict",
+        "hexatriacontane",
+        "caffeine",
+        "--mode",
+        "rp",
+        "--phase",
+        "rp-c18",
+        "--gradient",
+        "0:5,10:60,12:60",
+        "--ph",
+        "3",
+        "--t0",
+        "1",
+        "--format",
+        "json",
+    ]);
+    assert!(out.status.success(), "{}", stderr(&out));
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let notes: Vec<&str> = v["notes"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .filter_map(|n| n.as_str())
+        .collect();
+    let late: Vec<&&str> = notes
+        .iter()
+        .filter(|n| n.contains("after the program ends"))
+        .collect();
+    assert_eq!(late.len(), 1, "{notes:?}");
+    assert!(late[0].starts_with("hexatriacontane:"), "{}", late[0]);
+}
+
+#[test]
 fn predict_gives_retention_with_intervals_and_the_path_for_given_lc_conditions() {
     let ctx = Ctx::new();
     let out = ctx.run(&[

@@ -467,10 +467,6 @@ fn signature(p: &OvenProgram) -> (f64, f64, f64) {
     }
 }
 
-fn close(a: f64, b: f64) -> bool {
-    (a - b).abs() <= 1e-9 * (1.0 + a.abs().max(b.abs()))
-}
-
 /// Fitting coordinates: x = [L, B/1000 K] with ln k = L + B (1/T − 1/T_ref).
 struct Frame {
     t_ref_k: f64,
@@ -686,26 +682,22 @@ pub fn fit_gc(req: &GcScoutRequest) -> Result<GcScoutFit, GcScoutError> {
         }
     }
     let sigs: Vec<(f64, f64, f64)> = req.runs.iter().map(|r| signature(&r.program)).collect();
-    let distinct = sigs
-        .iter()
-        .any(|s| !(close(s.0, sigs[0].0) && close(s.1, sigs[0].1) && close(s.2, sigs[0].2)));
-    if !distinct {
+    if super::all_signatures_equal(&sigs) {
         return Err(GcScoutError::NotIdentifiable {
             runs: req.runs.iter().map(|r| r.name.clone()).collect(),
         });
     }
-    for a in &req.runs {
-        for p in a.peaks.peaks() {
-            for b in &req.runs {
-                if b.peaks.get(&p.name).is_none() {
-                    return Err(GcScoutError::MissingPeak {
-                        peak: p.name.clone(),
-                        run: b.name.clone(),
-                        present_in: a.name.clone(),
-                    });
-                }
-            }
-        }
+    let tables: Vec<(&str, &crate::measured::peaks::PeakTable)> = req
+        .runs
+        .iter()
+        .map(|r| (r.name.as_str(), &r.peaks))
+        .collect();
+    if let Some((peak, run, present_in)) = super::first_missing_peak(&tables) {
+        return Err(GcScoutError::MissingPeak {
+            peak,
+            run,
+            present_in,
+        });
     }
     let mut analytes = Vec::new();
     for peak in req.runs[0].peaks.peaks() {

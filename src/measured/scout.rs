@@ -282,10 +282,6 @@ fn signature(p: &GradientProgram) -> (f64, f64, f64) {
     (first, slope, last)
 }
 
-fn close(a: f64, b: f64) -> bool {
-    (a - b).abs() <= 1e-9 * (1.0 + a.abs().max(b.abs()))
-}
-
 /// Resolves t0 and tD from a request.
 ///
 /// # Errors
@@ -300,7 +296,7 @@ pub fn resolve_system(
     let flow = match (*dead_time, flow_ml_min) {
         (DeadTimeInput::FromColumn { flow_ml_min: f, .. }, Some(g)) => {
             theory::positive("flow rate (mL/min)", g)?;
-            if !close(f, g) {
+            if !super::close(f, g) {
                 return Err(ScoutError::InconsistentFlow {
                     flow_ml_min: g,
                     column_flow_ml_min: f,
@@ -555,27 +551,23 @@ pub fn fit_in(req: &ScoutRequest, basis: CompositionBasis) -> Result<ScoutFit, S
         .map(|r| basis.strong_program(&r.program))
         .collect();
     let sigs: Vec<(f64, f64, f64)> = strong.iter().map(signature).collect();
-    let distinct = sigs
-        .iter()
-        .any(|s| !(close(s.0, sigs[0].0) && close(s.1, sigs[0].1) && close(s.2, sigs[0].2)));
-    if !distinct {
+    if super::all_signatures_equal(&sigs) {
         return Err(ScoutError::NotIdentifiable {
             runs: req.runs.iter().map(|r| r.name.clone()).collect(),
         });
     }
     // Every peak of every run must be in every other run.
-    for a in &req.runs {
-        for p in a.peaks.peaks() {
-            for b in &req.runs {
-                if b.peaks.get(&p.name).is_none() {
-                    return Err(ScoutError::MissingPeak {
-                        peak: p.name.clone(),
-                        run: b.name.clone(),
-                        present_in: a.name.clone(),
-                    });
-                }
-            }
-        }
+    let tables: Vec<(&str, &crate::measured::peaks::PeakTable)> = req
+        .runs
+        .iter()
+        .map(|r| (r.name.as_str(), &r.peaks))
+        .collect();
+    if let Some((peak, run, present_in)) = super::first_missing_peak(&tables) {
+        return Err(ScoutError::MissingPeak {
+            peak,
+            run,
+            present_in,
+        });
     }
     let mut analytes = Vec::new();
     for peak in req.runs[0].peaks.peaks() {

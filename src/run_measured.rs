@@ -54,7 +54,7 @@ use phasewise::model::gc::{GcColumn, OvenProgram};
 use phasewise::model::gradient::GradientProgram;
 use phasewise::model::memory::MemoryTable;
 use phasewise::model::regression::{DEFAULT_PENALTIES, TrainingData, train_with};
-use phasewise::report::chromatogram::render_optimum_svg;
+use phasewise::report::chromatogram::{render_gc_optimum_svg, render_optimum_svg};
 use phasewise::report::plan::{check_writable, write_atomically};
 use phasewise::report::table::render;
 
@@ -1923,11 +1923,6 @@ fn run_scout_gc(a: &ScoutArgs) -> Result<ExitCode> {
             "--store keeps LC scouting fits only; GC fits (A, B) are not stored yet: leave --store out"
         );
     }
-    if a.chromatogram_svg.is_some() {
-        bail!(
-            "--chromatogram-svg is drawn for LC scouting only; in GC mode use --window-svg and --window-data"
-        );
-    }
     let Some(ovens) = a.ovens.as_deref() else {
         bail!(
             "--ovens is needed in GC mode: one oven program per run, separated by `;`, e.g. '40:1,5:300:5;40:1,15:300:5'"
@@ -2027,7 +2022,12 @@ fn run_scout_gc(a: &ScoutArgs) -> Result<ExitCode> {
     if initial_hold > 600.0 {
         bail!("--initial-hold {initial_hold} min must be at most 600 min");
     }
-    for out in a.window_svg.iter().chain(a.window_data.iter()) {
+    for out in a
+        .window_svg
+        .iter()
+        .chain(a.window_data.iter())
+        .chain(a.chromatogram_svg.iter())
+    {
         check_writable(out)?;
     }
     let mut runs = Vec::new();
@@ -2154,6 +2154,15 @@ fn run_scout_gc(a: &ScoutArgs) -> Result<ExitCode> {
         })?,
         ReportFormat::Table => scout_gc_table(&fitted, &report, &holdup_source, &plates_source),
     };
+    if let Some(p) = &a.chromatogram_svg {
+        let svg = render_gc_optimum_svg(
+            &report.optimum,
+            fitted.holdup_time_min,
+            a.target_resolution,
+            "Predicted chromatogram at the chosen oven program",
+        );
+        write_atomically(p, svg)?;
+    }
     if let Some(p) = &a.window_svg {
         write_atomically(p, render_gc_window_svg(&report.window))?;
     }

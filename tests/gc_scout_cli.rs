@@ -73,6 +73,7 @@ fn gc_scout_recovers_parameters_plates_and_the_known_optimum() {
     let r2 = simulated_run(dir.path(), "fast.csv", FAST, None);
     let svg = dir.path().join("ramp.svg");
     let tsv = dir.path().join("ramp.tsv");
+    let chrom = dir.path().join("optimum.svg");
     let out = phasewise()
         .arg("scout")
         .args(["--mode", "gc"])
@@ -94,6 +95,8 @@ fn gc_scout_recovers_parameters_plates_and_the_known_optimum() {
         .arg(&svg)
         .arg("--window-data")
         .arg(&tsv)
+        .arg("--chromatogram-svg")
+        .arg(&chrom)
         .assert()
         .code(0)
         .get_output()
@@ -160,6 +163,16 @@ fn gc_scout_recovers_parameters_plates_and_the_known_optimum() {
     let tsv_text = std::fs::read_to_string(&tsv).unwrap();
     assert!(tsv_text.contains("ramp_c_per_min\tmin_resolution"));
     assert!(tsv_text.lines().filter(|l| !l.starts_with('#')).count() > 10);
+    // The predicted chromatogram names the optimum program and every analyte.
+    let chrom_text = std::fs::read_to_string(&chrom).unwrap();
+    assert!(chrom_text.contains("<svg") && chrom_text.trim_end().ends_with("</svg>"));
+    assert!(
+        chrom_text.contains(opt["program"].as_str().unwrap()),
+        "program not named"
+    );
+    for (name, _, _) in ANALYTES {
+        assert!(chrom_text.contains(name), "{name} not drawn");
+    }
 }
 
 #[test]

@@ -1057,22 +1057,33 @@ struct ScoutJson<'a> {
     temperature: Option<&'a TemperatureJson>,
 }
 
-fn split_programs(spec: &str, runs: usize) -> Result<Vec<GradientProgram>> {
+/// Splits a `;`-separated list with one item per run file, parsing each item; messages name
+/// the option, the item's place and text.
+fn per_run<T>(
+    spec: &str,
+    runs: usize,
+    option: &str,
+    what: &str,
+    parse: impl Fn(&str) -> Result<T>,
+) -> Result<Vec<T>> {
     let parts: Vec<&str> = spec.split(';').map(str::trim).collect();
     if parts.len() != runs {
         bail!(
-            "--gradients gives {} program(s) (`{spec}`) for {runs} run files; give one per run, separated by `;`",
+            "{option} gives {} {what}(s) (`{spec}`) for {runs} run files; give one per run, separated by `;`",
             parts.len()
         );
     }
     parts
         .iter()
         .enumerate()
-        .map(|(i, p)| {
-            GradientProgram::parse(p)
-                .with_context(|| format!("gradient program {} `{p}` in --gradients", i + 1))
-        })
+        .map(|(i, p)| parse(p).with_context(|| format!("{what} {} `{p}` in {option}", i + 1)))
         .collect()
+}
+
+fn split_programs(spec: &str, runs: usize) -> Result<Vec<GradientProgram>> {
+    per_run(spec, runs, "--gradients", "gradient program", |p| {
+        Ok(GradientProgram::parse(p)?)
+    })
 }
 
 /// Runs `phasewise scout`.
@@ -1425,21 +1436,13 @@ fn optimise_error(e: OptimiseError, a: &ScoutArgs, r: &LcRanges) -> anyhow::Erro
 
 /// `--temperatures`: one column temperature (°C) per run, separated by `;`.
 fn parse_temperatures(text: &str, runs: usize) -> Result<Vec<f64>> {
-    let parts: Vec<&str> = text.split(';').map(str::trim).collect();
-    if parts.len() != runs {
-        bail!(
-            "--temperatures gives {} temperature(s) (`{text}`) for {runs} run files; give one per run, separated by `;`",
-            parts.len()
-        );
-    }
-    parts
-        .iter()
-        .map(|p| match p.parse::<f64>() {
+    per_run(text, runs, "--temperatures", "temperature", |p| {
+        match p.parse::<f64>() {
             Ok(v) if v.is_finite() && (-10.0..=200.0).contains(&v) => Ok(v),
-            Ok(v) => bail!("--temperatures: {v} °C must lie between -10 and 200 °C"),
-            Err(_) => bail!("--temperatures: `{p}` is not a temperature in °C"),
-        })
-        .collect()
+            Ok(v) => bail!("{v} °C must lie between -10 and 200 °C"),
+            Err(_) => bail!("`{p}` is not a temperature in °C"),
+        }
+    })
 }
 
 /// The fits at one temperature of `--temperatures`.
@@ -1854,21 +1857,9 @@ phase damage), and let the oven and injector cool before opening them. The lab's
 regulations and licensed practice take precedence.";
 
 fn split_ovens(spec: &str, runs: usize) -> Result<Vec<OvenProgram>> {
-    let parts: Vec<&str> = spec.split(';').map(str::trim).collect();
-    if parts.len() != runs {
-        bail!(
-            "--ovens gives {} program(s) (`{spec}`) for {runs} run files; give one per run, separated by `;`",
-            parts.len()
-        );
-    }
-    parts
-        .iter()
-        .enumerate()
-        .map(|(i, p)| {
-            OvenProgram::parse(p)
-                .with_context(|| format!("oven program {} `{p}` in --ovens", i + 1))
-        })
-        .collect()
+    per_run(spec, runs, "--ovens", "oven program", |p| {
+        Ok(OvenProgram::parse(p)?)
+    })
 }
 
 /// Parses a GC column `LENGTH_MxID_MMxFILM_UM` for `scout --mode gc`, naming the option.
@@ -2757,6 +2748,56 @@ fn eval_table(r: &EvalReport) -> String {
 mod tests {
     use super::*;
     use proptest::prelude::*;
+
+    #[test]
+    fn per_run_lists_name_the_option_the_count_and_the_bad_item() {
+        let e = format!("{:#}", parse_temperatures("30;x", 2).unwrap_err());
+        assert!(e.contains("--temperatures") && e.contains("`x`"), "{e}");
+        let e = format!("{:#}", parse_temperatures("30;40;50", 2).unwrap_err());
+        assert!(
+            e.contains("3 temperature(s)") && e.contains("2 run files"),
+            "{e}"
+        );
+        let e = format!("{:#}", parse_temperatures("30;500", 2).unwrap_err());
+        assert!(e.contains("500 °C must lie between"), "{e}");
+        assert_eq!(
+            parse_temperatures(" 30 ; 60 ", 2).unwrap(),
+            vec![30.0, 60.0]
+        );
+        let e = format!(
+            "{:#}",
+            split_ovens("40:1,5:300:5;40:1,x:300:5", 2).unwrap_err()
+        );
+        assert!(e.contains("oven program 2") && e.contains("--ovens"), "{e}");
+        let e = format!("{:#}", split_programs("0:5,10:95", 2).unwrap_err());
+        assert!(e.contains("--gradients gives 1 gradient program(s)"), "{e}");
+    }
+
+    proptest! {
+        // Any text: a list of the right length or an error, never a panic; accepted
+        // temperatures are inside the stated range.
+        #[test]
+        fn per_run_lists_never_panic(text in "\\PC{0,40}", runs in 1usize..4) {
+            if let Ok(t) = parse_temperatures(&text, runs) {
+                prop_assert_eq!(t.len(), runs);
+                prop_assert!(t.iter().all(|v| (-10.0..=200.0).contains(v)));
+            }
+            if let Ok(p) = split_ovens(&text, runs) {
+                prop_assert_eq!(p.len(), runs);
+            }
+            if let Ok(p) = split_programs(&text, runs) {
+                prop_assert_eq!(p.len(), runs);
+            }
+        }
+
+        #[test]
+        fn valid_temperature_lists_are_read_back(ts in proptest::collection::vec(-10i32..=200, 1..5)) {
+            let text: Vec<String> = ts.iter().map(i32::to_string).collect();
+            let got = parse_temperatures(&text.join(";"), ts.len()).unwrap();
+            let want: Vec<f64> = ts.iter().map(|&t| f64::from(t)).collect();
+            prop_assert_eq!(got, want);
+        }
+    }
 
     #[test]
     fn column_sizes_read_with_and_without_spaces() {

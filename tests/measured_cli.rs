@@ -495,7 +495,7 @@ fn scout_with_a_program_count_unlike_the_run_count_is_a_usage_error() {
         .args(["--gradients", "0:5,10:95", "--t0", "1.5"])
         .assert()
         .code(2)
-        .stderr(predicate::str::contains("1 program(s)"));
+        .stderr(predicate::str::contains("1 gradient program(s)"));
 }
 
 #[test]

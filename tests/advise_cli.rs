@@ -1211,3 +1211,47 @@ fn predict_ic_gives_the_elution_order_and_relative_retention() {
     assert_eq!(out.status.code(), Some(2));
     assert!(stderr(&out).contains("--gradient"));
 }
+
+#[test]
+fn the_pressure_caution_says_whose_pressure_it_is() {
+    // Narrow-bore column with sub-2 µm particles: the first choice and the back-up need
+    // different pressures; the caution names the recommendation with the highest, and its
+    // number is that recommendation's own estimate.
+    let ctx = Ctx::new();
+    let (r, _) = advise(
+        &ctx,
+        &["caffeine", "theophylline"],
+        &[
+            "--column",
+            "100x2.1",
+            "--particle",
+            "1.8",
+            "--dwell",
+            "0.2",
+            "--modes",
+            "rp",
+            "--alternatives",
+            "1",
+        ],
+    );
+    let cautions: Vec<&str> = r
+        .cautions
+        .iter()
+        .filter(|c| c.topic == "pressure")
+        .map(|c| c.text.as_str())
+        .collect();
+    assert_eq!(cautions.len(), 1, "{cautions:?}");
+    let shown = std::iter::once(("first choice", first(&r)))
+        .chain(r.backup.iter().map(|b| ("back-up", &b.recommendation)))
+        .filter_map(|(role, x)| x.conditions.pressure_bar.map(|p| (p, role, x)))
+        .max_by(|a, b| a.0.total_cmp(&b.0))
+        .expect("a pressure estimate");
+    let (p, role, x) = shown;
+    assert!(
+        cautions[0].contains(&format!("{p:.0} bar"))
+            && cautions[0].contains(&format!("the {role} on"))
+            && cautions[0].contains(&x.phase.id),
+        "{}",
+        cautions[0]
+    );
+}

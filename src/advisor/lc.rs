@@ -362,7 +362,7 @@ pub fn candidate(
                 )
             } else {
                 format!(
-                    "pH {ph} given by the user; buffer {buffer} chosen for it (pKa within 1 unit, common practice, no source)"
+                    "pH {ph} given by the user; buffer chosen for it: {prep} [{buffer}], pKa within 1 unit of the pH (common practice, no source)"
                 )
             },
             weight: None,

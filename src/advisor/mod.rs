@@ -713,20 +713,25 @@ fn cautions(
     }
     // one pressure caution, for the highest estimated pressure of the first choice and back-up
     // (400 bar: a common limit of conventional LC instruments; common practice, no source)
-    let p_max = std::iter::once(first)
-        .chain(backup.map(|b| &b.recommendation))
-        .filter_map(|r| r.conditions.pressure_bar)
-        .fold(None, |m: Option<f64>, p| Some(m.map_or(p, |m| m.max(p))));
-    if let Some(p) = p_max {
+    let highest = std::iter::once((first, "first choice"))
+        .chain(backup.map(|b| (&b.recommendation, "back-up")))
+        .filter_map(|(r, role)| r.conditions.pressure_bar.map(|p| (p, role, r)))
+        .fold(None, |m: Option<(f64, &str, &Recommendation)>, x| match m {
+            Some(m) if m.0 >= x.0 => Some(m),
+            _ => Some(x),
+        });
+    if let Some((p, role, r)) = highest {
+        // say whose pressure it is: the back-up's conditions may be the harder ones
+        let whose = format!("highest: the {role} on {} [{}]", r.phase.name, r.phase.id);
         add(
             "pressure",
             if p > 400.0 {
                 format!(
-                    "estimated back pressure {p:.0} bar exceeds 400 bar: use an instrument and column rated for it, or lower the flow"
+                    "estimated back pressure {p:.0} bar ({whose}) exceeds 400 bar: use an instrument and column rated for it, or lower the flow"
                 )
             } else {
                 format!(
-                    "estimated back pressure up to {p:.0} bar: check it against the column's and the instrument's pressure limits before the first run"
+                    "estimated back pressure up to {p:.0} bar ({whose}): check it against the column's and the instrument's pressure limits before the first run"
                 )
             },
         );

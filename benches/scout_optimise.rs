@@ -48,20 +48,13 @@ fn scout_request() -> ScoutRequest {
             let peaks = sample()
                 .iter()
                 .map(|(n, p)| Peak {
-                    name: n.clone(),
-                    retention_time_min: gradient_elution(p, &program, &sys)
-                        .unwrap()
-                        .retention_time_min,
                     width_half_min: Some(0.05),
-                    width_base_min: None,
-                    area: None,
-                    height: None,
-                    usp_tailing: None,
-                    width_5pct_min: None,
-                    front_5pct_min: None,
-                    front_10pct_min: None,
-                    back_10pct_min: None,
-                    line: 0,
+                    ..Peak::at(
+                        n,
+                        gradient_elution(p, &program, &sys)
+                            .unwrap()
+                            .retention_time_min,
+                    )
                 })
                 .collect();
             ScoutRun {

@@ -40,18 +40,9 @@ fn invented_sample() -> Vec<(String, LssParameters)> {
 
 fn peak(name: &str, tr: f64) -> Peak {
     Peak {
-        name: name.to_string(),
-        retention_time_min: tr,
         width_half_min: Some(0.04),
-        width_base_min: None,
         area: Some(100.0),
-        height: None,
-        usp_tailing: None,
-        width_5pct_min: None,
-        front_5pct_min: None,
-        front_10pct_min: None,
-        back_10pct_min: None,
-        line: 0,
+        ..Peak::at(name, tr)
     }
 }
 

@@ -973,18 +973,8 @@ mod tests {
         PeakTable::from_peaks(
             rows.iter()
                 .map(|(n, t, w)| Peak {
-                    name: n.to_string(),
-                    retention_time_min: *t,
-                    width_half_min: None,
                     width_base_min: Some(*w),
-                    area: None,
-                    height: None,
-                    usp_tailing: None,
-                    width_5pct_min: None,
-                    front_5pct_min: None,
-                    front_10pct_min: None,
-                    back_10pct_min: None,
-                    line: 0,
+                    ..Peak::at(n, *t)
                 })
                 .collect(),
         )

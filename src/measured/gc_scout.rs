@@ -850,18 +850,8 @@ mod tests {
         PeakTable::from_peaks(
             rows.iter()
                 .map(|(n, t)| Peak {
-                    name: n.to_string(),
-                    retention_time_min: *t,
                     width_half_min: Some(0.02),
-                    width_base_min: None,
-                    area: None,
-                    height: None,
-                    usp_tailing: None,
-                    width_5pct_min: None,
-                    front_5pct_min: None,
-                    front_10pct_min: None,
-                    back_10pct_min: None,
-                    line: 0,
+                    ..Peak::at(n, *t)
                 })
                 .collect(),
         )

@@ -432,20 +432,13 @@ mod tests {
                 let peaks = TRUTH
                     .iter()
                     .map(|row| Peak {
-                        name: row.0.to_string(),
-                        retention_time_min: gradient_elution(&lss(row, t_c), &program, &sys)
-                            .unwrap()
-                            .retention_time_min,
                         width_half_min: Some(0.05),
-                        width_base_min: None,
-                        area: None,
-                        height: None,
-                        usp_tailing: None,
-                        width_5pct_min: None,
-                        front_5pct_min: None,
-                        front_10pct_min: None,
-                        back_10pct_min: None,
-                        line: 0,
+                        ..Peak::at(
+                            row.0,
+                            gradient_elution(&lss(row, t_c), &program, &sys)
+                                .unwrap()
+                                .retention_time_min,
+                        )
                     })
                     .collect();
                 ScoutRun {

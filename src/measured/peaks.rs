@@ -234,6 +234,27 @@ pub struct Peak {
     pub line: usize,
 }
 
+impl Peak {
+    /// A peak with only a name and a retention time (min), no widths or other inputs, as built
+    /// in code (line 0); set the widths with struct-update syntax.
+    pub fn at(name: &str, retention_time_min: f64) -> Peak {
+        Peak {
+            name: name.to_string(),
+            retention_time_min,
+            width_half_min: None,
+            width_base_min: None,
+            area: None,
+            height: None,
+            usp_tailing: None,
+            width_5pct_min: None,
+            front_5pct_min: None,
+            front_10pct_min: None,
+            back_10pct_min: None,
+            line: 0,
+        }
+    }
+}
+
 /// Field delimiter of a peak table.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
 #[serde(rename_all = "snake_case")]

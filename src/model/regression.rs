@@ -1380,25 +1380,12 @@ impl TrainingSystem {
 }
 
 /// Flow (mL/min) at time t of a piecewise-linear flow program, held before the first and after
-/// the last point.
+/// the last point (the same interpolation as a calibration map); 1 mL/min without a program.
 fn flow_at(program: &[(f64, f64)], t: f64) -> f64 {
-    let Some(&(t_first, f_first)) = program.first() else {
+    if program.is_empty() {
         return 1.0;
-    };
-    if t <= t_first {
-        return f_first;
     }
-    for w in program.windows(2) {
-        let ((ta, fa), (tb, fb)) = (w[0], w[1]);
-        if t <= tb {
-            return if tb > ta {
-                fa + (fb - fa) * (t - ta) / (tb - ta)
-            } else {
-                fb
-            };
-        }
-    }
-    program[program.len() - 1].1
+    apply_map(program, t)
 }
 
 /// `∫₀ᵗ F dt / F_nominal` for a piecewise-linear flow program (exact: between the program's

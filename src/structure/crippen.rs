@@ -213,8 +213,13 @@ pub struct CrippenAtom {
 
 /// Crippen contributions of every atom (implicit hydrogens folded into their heavy atom).
 pub fn crippen_atoms(g: &MolGraph) -> Vec<CrippenAtom> {
+    crippen_atoms_with(&AtomFacts::new(g))
+}
+
+/// [`crippen_atoms`] with the molecule's atom facts already computed.
+pub fn crippen_atoms_with(facts: &AtomFacts<'_>) -> Vec<CrippenAtom> {
+    let g = facts.graph();
     let c = compiled();
-    let facts = AtomFacts::new(g);
     let mut out = Vec::with_capacity(g.atoms.len());
     for i in 0..g.atoms.len() {
         let z = g.atoms[i].atomic_number;
@@ -233,7 +238,7 @@ pub fn crippen_atoms(g: &MolGraph) -> Vec<CrippenAtom> {
             };
         } else {
             for &k in &c.by_element[usize::from(z)] {
-                if c.patterns[k].matches_at_with(&facts, i) {
+                if c.patterns[k].matches_at_with(facts, i) {
                     let (label, _, lp, mr) = HEAVY_TYPES[k];
                     entry.atom_type = Some(label);
                     entry.logp = lp;
@@ -265,7 +270,12 @@ pub fn crippen_atoms(g: &MolGraph) -> Vec<CrippenAtom> {
 /// assert!((mr - 26.442).abs() < 1e-3);
 /// ```
 pub fn crippen_logp_mr(g: &MolGraph) -> (f64, f64) {
-    crippen_atoms(g)
+    crippen_logp_mr_with(&AtomFacts::new(g))
+}
+
+/// [`crippen_logp_mr`] with the molecule's atom facts already computed.
+pub fn crippen_logp_mr_with(facts: &AtomFacts<'_>) -> (f64, f64) {
+    crippen_atoms_with(facts)
         .iter()
         .fold((0.0, 0.0), |(l, m), a| (l + a.logp, m + a.mr_cm3_mol))
 }

@@ -8,6 +8,7 @@ use serde::{Deserialize, Serialize};
 
 use super::adapter::{StructureError, parse_smiles};
 use super::graph::{BondOrder, MolGraph};
+use super::smarts::AtomFacts;
 use super::{crippen, formula, lipinski, mcgowan, tpsa};
 
 /// Descriptors of one molecule (RDKit 2026.09.1-compatible where RDKit has the descriptor).
@@ -113,7 +114,9 @@ pub fn describe(smiles: &str) -> Result<Description, StructureError> {
 /// Only on an inconsistent hand-built graph (a bond or neighbour index out of
 /// range); graphs from [`parse_smiles`] are always consistent.
 pub fn describe_graph(g: &MolGraph) -> Descriptors {
-    let (logp, mr) = crippen::crippen_logp_mr(g);
+    // hydrogen counts and valences for every SMARTS-typed descriptor, computed once
+    let facts = AtomFacts::new(g);
+    let (logp, mr) = crippen::crippen_logp_mr_with(&facts);
     let mcgowan = mcgowan::mcgowan_volume_cm3_mol(g);
     Descriptors {
         molecular_formula: formula::molecular_formula(g),
@@ -122,11 +125,11 @@ pub fn describe_graph(g: &MolGraph) -> Descriptors {
         crippen_logp: logp,
         crippen_molar_refractivity_cm3_mol: mr,
         tpsa_a2: tpsa::tpsa_a2(g),
-        hbond_donors: lipinski::hbond_donors(g),
-        hbond_acceptors: lipinski::hbond_acceptors(g),
+        hbond_donors: lipinski::hbond_donors_with(&facts),
+        hbond_acceptors: lipinski::hbond_acceptors_with(&facts),
         lipinski_nhoh_count: lipinski::lipinski_nhoh_count(g),
         lipinski_no_count: lipinski::lipinski_no_count(g),
-        rotatable_bonds: lipinski::rotatable_bonds(g),
+        rotatable_bonds: lipinski::rotatable_bonds_with(&facts),
         ring_count: g.rings.len() as u32,
         sssr_count: sssr_count(g),
         aromatic_ring_count: aromatic_ring_count(g),

@@ -53,24 +53,34 @@ fn compiled() -> &'static Compiled {
 /// Counts atoms matching `p`. Every alternative of the donor and acceptor
 /// SMARTS is rooted on N, O or S, so only those atoms are tried (a shortcut
 /// that cannot change the count).
-fn count_atoms(p: Option<&Pattern>, g: &MolGraph) -> u32 {
+fn count_atoms(p: Option<&Pattern>, facts: &AtomFacts<'_>) -> u32 {
+    let g = facts.graph();
     p.map_or(0, |p| {
-        let facts = AtomFacts::new(g);
         (0..g.atoms.len())
             .filter(|&i| matches!(g.atoms[i].atomic_number, 7 | 8 | 16))
-            .filter(|&i| p.matches_at_with(&facts, i))
+            .filter(|&i| p.matches_at_with(facts, i))
             .count() as u32
     })
 }
 
 /// H-bond donors, RDKit `CalcNumHBD` definition.
 pub fn hbond_donors(g: &MolGraph) -> u32 {
-    count_atoms(compiled().hbd.as_ref(), g)
+    hbond_donors_with(&AtomFacts::new(g))
+}
+
+/// [`hbond_donors`] with the molecule's atom facts already computed.
+pub fn hbond_donors_with(facts: &AtomFacts<'_>) -> u32 {
+    count_atoms(compiled().hbd.as_ref(), facts)
 }
 
 /// H-bond acceptors, RDKit `CalcNumHBA` definition.
 pub fn hbond_acceptors(g: &MolGraph) -> u32 {
-    count_atoms(compiled().hba.as_ref(), g)
+    hbond_acceptors_with(&AtomFacts::new(g))
+}
+
+/// [`hbond_acceptors`] with the molecule's atom facts already computed.
+pub fn hbond_acceptors_with(facts: &AtomFacts<'_>) -> u32 {
+    count_atoms(compiled().hba.as_ref(), facts)
 }
 
 /// Lipinski donors: hydrogens on nitrogen and oxygen (RDKit `NHOHCount`).
@@ -99,6 +109,12 @@ pub fn lipinski_no_count(g: &MolGraph) -> u32 {
 /// assert_eq!(rotatable_bonds(&parse_smiles("CC(=O)NC").unwrap().graph), 0);
 /// ```
 pub fn rotatable_bonds(g: &MolGraph) -> u32 {
+    rotatable_bonds_with(&AtomFacts::new(g))
+}
+
+/// [`rotatable_bonds`] with the molecule's atom facts already computed.
+pub fn rotatable_bonds_with(facts: &AtomFacts<'_>) -> u32 {
+    let g = facts.graph();
     let Some(p) = compiled().rot.as_ref() else {
         return 0;
     };
@@ -111,7 +127,7 @@ pub fn rotatable_bonds(g: &MolGraph) -> u32 {
             && g.degree(bond.a) > 1
             && g.degree(bond.b) > 1
     });
-    p.count_bond_matches(&AtomFacts::new(g), candidates) as u32
+    p.count_bond_matches(facts, candidates) as u32
 }
 
 #[cfg(test)]

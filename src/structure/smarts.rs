@@ -238,6 +238,11 @@ impl<'a> AtomFacts<'a> {
             valence: (0..n).map(|i| g.total_valence(i)).collect(),
         }
     }
+
+    /// The molecule these facts describe.
+    pub fn graph(&self) -> &'a MolGraph {
+        self.graph
+    }
 }
 
 /// The molecule being matched, with its precomputed facts when the caller has them.

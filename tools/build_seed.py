@@ -96,11 +96,14 @@ def main():
     os.makedirs(OUT, exist_ok=True)
 
     def write_gz(path, header, rows):
+        # Raw fields, no escaping: the Rust reader splits on tabs and takes every byte as data.
+        # (A csv writer with an escape character used to double every backslash and escape every
+        # double quote, so a stereo SMILES with a backslash bond arrived with the backslash doubled
+        # and did not parse; names with quotes carried a stray backslash.)
         buf = io.StringIO()
-        w = csv.writer(buf, delimiter="\t", lineterminator="\n", quoting=csv.QUOTE_NONE, escapechar="\\")
-        w.writerow(header)
-        for r in rows:
-            w.writerow([str(x).replace("\t", " ").replace("\n", " ") for x in r])
+        for r in [header] + rows:
+            cells = [str(x).replace("\t", " ").replace("\r", " ").replace("\n", " ") for x in r]
+            buf.write("\t".join(cells) + "\n")
         with open(path, "wb") as fh:
             with gzip.GzipFile(fileobj=fh, mode="wb", compresslevel=9, mtime=0, filename="") as g:
                 g.write(buf.getvalue().encode("utf-8"))

@@ -1,11 +1,11 @@
-//! Gas-chromatography candidates: retention indices from boiling point and structure on each
-//! phase (McReynolds-type constants), an oven program from the predicted index range, times
+//! Gas-chromatography candidates: retention indices on each phase from the solvation-parameter
+//! model (`model::gc::solvation`; boiling-point route as fallback), an oven program from the predicted index range, times
 //! through the n-alkane ladder, co-elution from the index uncertainty.
 
 use super::profile::AnalyteProfile;
 use super::{AdviseRequest, Detector, coelution, unscored_recommendation};
 use crate::model::gc::{
-    GcColumn, OvenSuggestion, alkane_ladder, predict_retention_index, suggest_oven_program,
+    GcColumn, OvenSuggestion, alkane_ladder, predict_analyte_index, suggest_oven_program,
 };
 use crate::phase::{Catalogue, StationaryPhase};
 use crate::report::advice::{Conditions, PredictionRow, ProgramStep, Reason, Recommendation};
@@ -71,11 +71,9 @@ pub fn candidate(
             not_predicted.push(format!("{}: not suitable for GC", p.name()));
             continue;
         }
-        let Some(a) = p.gc_analyte() else {
-            not_predicted.push(format!("{}: no boiling point", p.name()));
-            continue;
-        };
-        match predict_retention_index(&a, phase) {
+        // solvation-parameter route from the structure, boiling-point route as fallback
+        let graph = p.estimate.as_ref().map(|e| &e.graph);
+        match predict_analyte_index(graph, p.gc_analyte().as_ref(), phase) {
             Ok(ri) => ris.push((p, ri)),
             Err(e) => not_predicted.push(format!("{}: {e}", p.name())),
         }
@@ -269,7 +267,7 @@ pub fn candidate(
         unscored_recommendation("gc", phase, conditions, preds, coelutions);
     let mut reasons = vec![Reason {
         source: "model:gc-retention-index".into(),
-        text: "retention indices from boiling point and functional groups with the phase's McReynolds-type constants, times through the n-alkane ladder (docs/phases.md)".into(),
+        text: "retention indices from the solvation-parameter model (solute descriptors from structure, the phase's system constants; boiling-point route when the structure cannot be read), times through the n-alkane ladder (docs/gc-retention.md)".into(),
         weight: None,
     }];
     reasons.extend(oven.reasons.iter().map(|r| Reason {

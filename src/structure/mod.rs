@@ -12,6 +12,7 @@
 //! Joback normal boiling point ([`joback`]) and GC suitability flags ([`volatility`]);
 //! [`query`] is the checked view of the graph those three use.
 
+pub mod abraham;
 pub mod adapter;
 pub mod crippen;
 pub mod descriptors;

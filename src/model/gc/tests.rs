@@ -1,8 +1,10 @@
 //! Tests of the GC retention model. Reference values are boiling points and indices from memory
 //! of handbook tables and McReynolds (1970), as stated beside each check.
 
+use super::boiling_point::*;
+use super::ladder::*;
 use super::*;
-use crate::phase::Catalogue;
+use crate::phase::{Catalogue, McReynoldsConstants, StationaryPhase};
 use proptest::prelude::*;
 
 fn phase(id: &str) -> &'static StationaryPhase {

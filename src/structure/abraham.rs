@@ -1,0 +1,607 @@
+//! Abraham solute descriptors estimated from structure by fragment additivity.
+//!
+//! The solvation-parameter model (M. H. Abraham, Chem. Soc. Rev. 22 (1993) 73) describes a
+//! solute by its excess molar refraction E, dipolarity/polarisability S, overall hydrogen-bond
+//! acidity A and basicity B, the gas-hexadecane partition coefficient L at 25 C and the McGowan
+//! volume V. Fragment (group-contribution) schemes for E, S, A, B and L were published by Platts,
+//! Butina, Abraham and Hersey (J. Chem. Inf. Comput. Sci. 39 (1999) 835); this module follows
+//! the same idea with its own, smaller set of atom-centred fragments ([`Fragment`]) whose
+//! values live in `data/gc_solute_fragments.tsv` (values and their provenance documented
+//! there and in `docs/gc-retention.md`). V is the exact McGowan volume ([`super::mcgowan`]).
+//!
+//! The typing is this project's own: every heavy atom gets one fragment; the atoms of a
+//! functional group (the two oxygens of an ester, the oxygens of a nitro group, the nitrile
+//! carbon) are folded into the group's fragment on one atom and count as [`Fragment::InGroup`].
+//! One non-additive correction is typed as a pseudo-fragment: a phenolic OH next to a
+//! hydrogen-bond acceptor on the neighbouring ring atom (intramolecular hydrogen bond, which
+//! removes most of its acidity: 2-nitrophenol A = 0.05 against phenol 0.60, from memory of
+//! Abraham's descriptor tables).
+
+use super::graph::{BondOrder, MolGraph};
+use super::mcgowan;
+
+/// Atom-centred fragments of the descriptor scheme. The text ids (see [`Fragment::id`]) are the
+/// keys of `data/gc_solute_fragments.tsv`.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord)]
+pub enum Fragment {
+    /// sp3 carbon with 3 H.
+    Ch3,
+    /// sp3 carbon with 2 H.
+    Ch2,
+    /// sp3 carbon with 1 H.
+    Ch,
+    /// sp3 carbon without H.
+    C,
+    /// sp3 carbon in a small ring (3- or 4-membered) or a bridged cage atom, any H count.
+    CRingStrained,
+    /// Non-aromatic C=C carbon with 2 H.
+    AlkeneCh2,
+    /// Non-aromatic C=C carbon with 1 H.
+    AlkeneCh,
+    /// Non-aromatic C=C carbon without H.
+    AlkeneC,
+    /// Triple-bonded carbon (not nitrile).
+    AlkyneC,
+    /// Aromatic carbon with H.
+    AromaticCh,
+    /// Aromatic carbon bearing a substituent.
+    AromaticCSubstituted,
+    /// Aromatic carbon shared by fused rings (bonded to three aromatic atoms).
+    AromaticCFused,
+    /// Ketone carbonyl (C and O).
+    Ketone,
+    /// Aldehyde carbonyl (C, H and O).
+    Aldehyde,
+    /// Ester or lactone (C(=O)O: both oxygens included).
+    Ester,
+    /// Carboxylic acid (C(=O)OH).
+    CarboxylicAcid,
+    /// Amide (C(=O)N with the nitrogen).
+    Amide,
+    /// Aliphatic hydroxyl.
+    AlcoholOh,
+    /// Hydroxyl on an aromatic ring.
+    PhenolOh,
+    /// Ether oxygen between aliphatic carbons.
+    EtherO,
+    /// Ether oxygen on at least one aromatic carbon.
+    ArylEtherO,
+    /// Aromatic oxygen (furan-type).
+    AromaticO,
+    /// Primary amine on aliphatic carbon.
+    AmineNh2,
+    /// Primary amine on an aromatic ring (aniline-type).
+    AnilineNh2,
+    /// Secondary amine (aliphatic or aryl).
+    AmineNh,
+    /// Tertiary amine (aliphatic or aryl).
+    AmineN,
+    /// Pyridine-type aromatic nitrogen.
+    PyridineN,
+    /// Pyrrole-type aromatic nitrogen with H.
+    PyrroleNh,
+    /// Nitro group (N and both O).
+    Nitro,
+    /// Nitrile group (C and N).
+    Nitrile,
+    /// Fluorine.
+    F,
+    /// Chlorine on aliphatic carbon.
+    Cl,
+    /// Chlorine on an aromatic ring.
+    ClAromatic,
+    /// Bromine.
+    Br,
+    /// Iodine.
+    I,
+    /// Divalent sulfur (thiol, thioether).
+    S,
+    /// Aromatic sulfur (thiophene-type).
+    AromaticS,
+    /// Phosphorus (phosphate, thiophosphate esters; with its double-bonded O or S).
+    P,
+    /// Silicon.
+    Si,
+    /// Phenolic OH with an acceptor on the neighbouring ring atom (intramolecular H-bond
+    /// correction, counted in addition to [`Fragment::PhenolOh`]).
+    OrthoHBond,
+    /// Atom folded into another atom's group fragment.
+    InGroup,
+}
+
+/// Every fragment in table order (the order of `data/gc_solute_fragments.tsv`).
+pub const ALL_FRAGMENTS: [Fragment; 41] = [
+    Fragment::Ch3,
+    Fragment::Ch2,
+    Fragment::Ch,
+    Fragment::C,
+    Fragment::CRingStrained,
+    Fragment::AlkeneCh2,
+    Fragment::AlkeneCh,
+    Fragment::AlkeneC,
+    Fragment::AlkyneC,
+    Fragment::AromaticCh,
+    Fragment::AromaticCSubstituted,
+    Fragment::AromaticCFused,
+    Fragment::Ketone,
+    Fragment::Aldehyde,
+    Fragment::Ester,
+    Fragment::CarboxylicAcid,
+    Fragment::Amide,
+    Fragment::AlcoholOh,
+    Fragment::PhenolOh,
+    Fragment::EtherO,
+    Fragment::ArylEtherO,
+    Fragment::AromaticO,
+    Fragment::AmineNh2,
+    Fragment::AnilineNh2,
+    Fragment::AmineNh,
+    Fragment::AmineN,
+    Fragment::PyridineN,
+    Fragment::PyrroleNh,
+    Fragment::Nitro,
+    Fragment::Nitrile,
+    Fragment::F,
+    Fragment::Cl,
+    Fragment::ClAromatic,
+    Fragment::Br,
+    Fragment::I,
+    Fragment::S,
+    Fragment::AromaticS,
+    Fragment::P,
+    Fragment::Si,
+    Fragment::OrthoHBond,
+    Fragment::InGroup,
+];
+
+impl Fragment {
+    /// The fragment's key in `data/gc_solute_fragments.tsv`.
+    pub fn id(self) -> &'static str {
+        match self {
+            Fragment::Ch3 => "CH3",
+            Fragment::Ch2 => "CH2",
+            Fragment::Ch => "CH",
+            Fragment::C => "C",
+            Fragment::CRingStrained => "C-strained-or-bridged",
+            Fragment::AlkeneCh2 => "=CH2",
+            Fragment::AlkeneCh => "=CH-",
+            Fragment::AlkeneC => "=C<",
+            Fragment::AlkyneC => "#C",
+            Fragment::AromaticCh => "aCH",
+            Fragment::AromaticCSubstituted => "aC-substituted",
+            Fragment::AromaticCFused => "aC-fused",
+            Fragment::Ketone => "ketone C=O",
+            Fragment::Aldehyde => "aldehyde CH=O",
+            Fragment::Ester => "ester C(=O)O",
+            Fragment::CarboxylicAcid => "acid C(=O)OH",
+            Fragment::Amide => "amide C(=O)N",
+            Fragment::AlcoholOh => "alcohol OH",
+            Fragment::PhenolOh => "phenol OH",
+            Fragment::EtherO => "ether O",
+            Fragment::ArylEtherO => "aryl ether O",
+            Fragment::AromaticO => "aromatic o",
+            Fragment::AmineNh2 => "amine NH2",
+            Fragment::AnilineNh2 => "aryl NH2",
+            Fragment::AmineNh => "amine NH",
+            Fragment::AmineN => "amine N",
+            Fragment::PyridineN => "pyridine n",
+            Fragment::PyrroleNh => "pyrrole nH",
+            Fragment::Nitro => "nitro NO2",
+            Fragment::Nitrile => "nitrile C#N",
+            Fragment::F => "F",
+            Fragment::Cl => "Cl",
+            Fragment::ClAromatic => "aCl",
+            Fragment::Br => "Br",
+            Fragment::I => "I",
+            Fragment::S => "S",
+            Fragment::AromaticS => "aromatic s",
+            Fragment::P => "P",
+            Fragment::Si => "Si",
+            Fragment::OrthoHBond => "ortho OH...acceptor",
+            Fragment::InGroup => "in-group",
+        }
+    }
+
+    /// Fragment with this id.
+    pub fn from_id(id: &str) -> Option<Fragment> {
+        ALL_FRAGMENTS.iter().copied().find(|f| f.id() == id)
+    }
+}
+
+/// Abraham solute descriptors.
+#[derive(Debug, Clone, Copy, PartialEq, Default, serde::Serialize, serde::Deserialize)]
+pub struct SoluteDescriptors {
+    /// Excess molar refraction E, (cm3/mol)/10.
+    pub e: f64,
+    /// Dipolarity/polarisability S.
+    pub s: f64,
+    /// Overall hydrogen-bond acidity A.
+    pub a: f64,
+    /// Overall hydrogen-bond basicity B.
+    pub b: f64,
+    /// log10 of the gas-hexadecane partition coefficient at 25 C, L.
+    pub l: f64,
+    /// McGowan characteristic volume V, (cm3/mol)/100.
+    pub v: f64,
+}
+
+/// Why a structure gets no descriptors.
+#[derive(Debug, Clone, PartialEq, Eq, thiserror::Error)]
+pub enum FragmentError {
+    /// An atom the scheme has no fragment for.
+    #[error(
+        "atom {index} ({element}) has no fragment in the solute-descriptor scheme (charged or unusual atom)"
+    )]
+    UntypedAtom {
+        /// Atom index in the graph.
+        index: usize,
+        /// Element symbol or atomic number.
+        element: String,
+    },
+    /// No heavy atoms.
+    #[error("the structure has no heavy atoms")]
+    Empty,
+}
+
+fn symbol(z: u8) -> String {
+    super::elements::element(z).map_or_else(|| format!("Z={z}"), |e| e.symbol.to_string())
+}
+
+/// Fragment counts of a structure, in [`ALL_FRAGMENTS`] order.
+///
+/// # Errors
+/// [`FragmentError`] when an atom cannot be typed.
+pub fn fragment_counts(g: &MolGraph) -> Result<Vec<(Fragment, u32)>, FragmentError> {
+    let types = type_atoms(g)?;
+    let mut counts: Vec<(Fragment, u32)> = ALL_FRAGMENTS.iter().map(|&f| (f, 0)).collect();
+    for t in types {
+        if let Some(slot) = counts.iter_mut().find(|(f, _)| *f == t) {
+            slot.1 += 1;
+        }
+    }
+    counts.retain(|(_, n)| *n > 0);
+    Ok(counts)
+}
+
+fn order(g: &MolGraph, bond: usize) -> BondOrder {
+    g.bonds[bond].order
+}
+
+/// Atoms in a 3- or 4-membered ring, or shared by two rings of a bridged (non-fused) system.
+fn strained_or_bridged(g: &MolGraph, atom: usize) -> bool {
+    let rings: Vec<&Vec<usize>> = g.rings.iter().filter(|r| r.contains(&atom)).collect();
+    if rings.iter().any(|r| r.len() <= 4) {
+        return true;
+    }
+    // bridged: two rings through this atom sharing more than two atoms (norbornane-type)
+    for (i, r1) in rings.iter().enumerate() {
+        for r2 in rings.iter().skip(i + 1) {
+            if r1.iter().filter(|a| r2.contains(a)).count() > 2 {
+                return true;
+            }
+        }
+    }
+    false
+}
+
+fn type_atoms(g: &MolGraph) -> Result<Vec<Fragment>, FragmentError> {
+    let n = g.atoms.len();
+    if n == 0 {
+        return Err(FragmentError::Empty);
+    }
+    let z = |i: usize| g.atoms[i].atomic_number;
+    let mut types: Vec<Option<Fragment>> = vec![None; n];
+    let double_o = |c: usize| -> Option<usize> {
+        g.neighbours[c]
+            .iter()
+            .find(|&&(m, b)| z(m) == 8 && order(g, b) == BondOrder::Double)
+            .map(|&(m, _)| m)
+    };
+    // 1. groups first: nitro, nitrile, carbonyl groups, phosphorus groups
+    for i in 0..n {
+        let a = &g.atoms[i];
+        match a.atomic_number {
+            7 => {
+                let oxygens: Vec<usize> = g.neighbours[i]
+                    .iter()
+                    .filter(|&&(m, _)| z(m) == 8 && g.degree(m) == 1)
+                    .map(|&(m, _)| m)
+                    .collect();
+                if oxygens.len() == 2 {
+                    types[i] = Some(Fragment::Nitro);
+                    for o in oxygens {
+                        types[o] = Some(Fragment::InGroup);
+                    }
+                    continue;
+                }
+                if let Some(&(c, _)) = g.neighbours[i]
+                    .iter()
+                    .find(|&&(m, b)| z(m) == 6 && order(g, b) == BondOrder::Triple)
+                {
+                    types[i] = Some(Fragment::Nitrile);
+                    types[c] = Some(Fragment::InGroup);
+                }
+            }
+            15 => {
+                types[i] = Some(Fragment::P);
+                for &(m, b) in &g.neighbours[i] {
+                    if order(g, b) == BondOrder::Double && matches!(z(m), 8 | 16) {
+                        types[m] = Some(Fragment::InGroup);
+                    }
+                }
+            }
+            6 if !a.aromatic => {
+                let Some(o) = double_o(i) else { continue };
+                let others: Vec<(usize, usize)> = g.neighbours[i]
+                    .iter()
+                    .copied()
+                    .filter(|&(m, _)| m != o)
+                    .collect();
+                let hetero_o = others
+                    .iter()
+                    .find(|&&(m, b)| z(m) == 8 && order(g, b) == BondOrder::Single)
+                    .map(|&(m, _)| m);
+                let hetero_n = others
+                    .iter()
+                    .find(|&&(m, b)| z(m) == 7 && order(g, b) == BondOrder::Single)
+                    .map(|&(m, _)| m);
+                types[o] = Some(Fragment::InGroup);
+                if let Some(os) = hetero_o {
+                    if g.atoms[os].hydrogens >= 1 {
+                        types[i] = Some(Fragment::CarboxylicAcid);
+                    } else {
+                        types[i] = Some(Fragment::Ester);
+                    }
+                    types[os] = Some(Fragment::InGroup);
+                } else if let Some(ns) = hetero_n {
+                    types[i] = Some(Fragment::Amide);
+                    if types[ns].is_none() {
+                        types[ns] = Some(Fragment::InGroup);
+                    }
+                } else if a.hydrogens >= 1 {
+                    types[i] = Some(Fragment::Aldehyde);
+                } else {
+                    types[i] = Some(Fragment::Ketone);
+                }
+            }
+            _ => {}
+        }
+    }
+    // 2. every other atom
+    for i in 0..n {
+        if types[i].is_some() {
+            continue;
+        }
+        let a = &g.atoms[i];
+        let nb = &g.neighbours[i];
+        let aromatic_neighbours = nb.iter().filter(|&&(m, _)| g.atoms[m].aromatic).count();
+        let t = match a.atomic_number {
+            6 if a.formal_charge == 0 => {
+                if a.aromatic {
+                    if a.hydrogens > 0 {
+                        Fragment::AromaticCh
+                    } else if aromatic_neighbours >= 3 {
+                        Fragment::AromaticCFused
+                    } else {
+                        Fragment::AromaticCSubstituted
+                    }
+                } else if nb.iter().any(|&(_, b)| order(g, b) == BondOrder::Triple) {
+                    Fragment::AlkyneC
+                } else if nb.iter().any(|&(_, b)| order(g, b) == BondOrder::Double) {
+                    match a.hydrogens {
+                        0 => Fragment::AlkeneC,
+                        1 => Fragment::AlkeneCh,
+                        _ => Fragment::AlkeneCh2,
+                    }
+                } else if a.in_ring && strained_or_bridged(g, i) {
+                    Fragment::CRingStrained
+                } else {
+                    match a.hydrogens {
+                        0 => Fragment::C,
+                        1 => Fragment::Ch,
+                        2 => Fragment::Ch2,
+                        _ => Fragment::Ch3,
+                    }
+                }
+            }
+            8 if a.formal_charge == 0 => {
+                if a.aromatic {
+                    Fragment::AromaticO
+                } else if a.hydrogens >= 1 {
+                    if aromatic_neighbours > 0 {
+                        Fragment::PhenolOh
+                    } else {
+                        Fragment::AlcoholOh
+                    }
+                } else if aromatic_neighbours > 0 {
+                    Fragment::ArylEtherO
+                } else {
+                    Fragment::EtherO
+                }
+            }
+            7 if a.formal_charge == 0 => {
+                if a.aromatic {
+                    if a.hydrogens > 0 {
+                        Fragment::PyrroleNh
+                    } else {
+                        Fragment::PyridineN
+                    }
+                } else {
+                    match a.hydrogens {
+                        2.. if aromatic_neighbours > 0 => Fragment::AnilineNh2,
+                        2.. => Fragment::AmineNh2,
+                        1 => Fragment::AmineNh,
+                        _ => Fragment::AmineN,
+                    }
+                }
+            }
+            9 => Fragment::F,
+            17 if aromatic_neighbours > 0 => Fragment::ClAromatic,
+            17 => Fragment::Cl,
+            35 => Fragment::Br,
+            53 => Fragment::I,
+            16 if a.formal_charge == 0 => {
+                if a.aromatic {
+                    Fragment::AromaticS
+                } else {
+                    Fragment::S
+                }
+            }
+            14 => Fragment::Si,
+            _ => {
+                return Err(FragmentError::UntypedAtom {
+                    index: i,
+                    element: symbol(a.atomic_number),
+                });
+            }
+        };
+        types[i] = Some(t);
+    }
+    let mut out: Vec<Fragment> = Vec::with_capacity(n + 1);
+    for (i, t) in types.iter().enumerate() {
+        let t = t.ok_or_else(|| FragmentError::UntypedAtom {
+            index: i,
+            element: symbol(z(i)),
+        })?;
+        out.push(t);
+    }
+    // intramolecular hydrogen bond of a phenolic OH with an acceptor on the neighbouring ring atom
+    for i in 0..n {
+        if out[i] != Fragment::PhenolOh {
+            continue;
+        }
+        let Some(&(ring_c, _)) = g.neighbours[i].first() else {
+            continue;
+        };
+        let ortho_acceptor = g.neighbours[ring_c]
+            .iter()
+            .filter(|&&(m, _)| m != i && g.atoms[m].aromatic)
+            .any(|&(m, _)| {
+                g.neighbours[m].iter().any(|&(x, _)| {
+                    !g.atoms[x].aromatic
+                        && matches!(
+                            out[x],
+                            Fragment::Nitro
+                                | Fragment::Ketone
+                                | Fragment::Aldehyde
+                                | Fragment::Ester
+                                | Fragment::ArylEtherO
+                                | Fragment::ClAromatic
+                                | Fragment::Br
+                        )
+                })
+            });
+        if ortho_acceptor {
+            out.push(Fragment::OrthoHBond);
+        }
+    }
+    Ok(out)
+}
+
+/// True for an unbranched acyclic alkane (CnH2n+2, n >= 1): its descriptors are exact by the
+/// ladder definition.
+pub fn is_n_alkane(g: &MolGraph) -> bool {
+    !g.atoms.is_empty()
+        && g.rings.is_empty()
+        && g.atoms.iter().enumerate().all(|(i, a)| {
+            a.atomic_number == 6
+                && !a.aromatic
+                && a.formal_charge == 0
+                && g.degree(i) <= 2
+                && usize::from(a.hydrogens) + g.degree(i) == 4
+        })
+}
+
+/// Values of one fragment: contributions to E, S, A, B and L.
+#[derive(Debug, Clone, Copy, PartialEq, Default)]
+pub struct FragmentValues {
+    /// Contribution to E.
+    pub e: f64,
+    /// Contribution to S.
+    pub s: f64,
+    /// Contribution to A.
+    pub a: f64,
+    /// Contribution to B.
+    pub b: f64,
+    /// Contribution to L.
+    pub l: f64,
+}
+
+/// Sums fragment values over the counts and adds the McGowan volume of `g`.
+pub fn descriptors_from_counts(
+    g: &MolGraph,
+    counts: &[(Fragment, u32)],
+    table: &dyn Fn(Fragment) -> FragmentValues,
+) -> SoluteDescriptors {
+    let mut d = SoluteDescriptors {
+        v: mcgowan::mcgowan_volume_cm3_mol(g).map_or(0.0, |v| v / 100.0),
+        ..SoluteDescriptors::default()
+    };
+    for &(f, n) in counts {
+        let v = table(f);
+        let n = f64::from(n);
+        d.e += n * v.e;
+        d.s += n * v.s;
+        d.a += n * v.a;
+        d.b += n * v.b;
+        d.l += n * v.l;
+    }
+    // descriptors A and B are not negative (Abraham's definitions)
+    d.a = d.a.max(0.0);
+    d.b = d.b.max(0.0);
+    d.s = d.s.max(0.0);
+    d
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::structure::parse_smiles;
+
+    fn counts(smiles: &str) -> Vec<(&'static str, u32)> {
+        let g = parse_smiles(smiles).unwrap().graph;
+        fragment_counts(&g)
+            .unwrap()
+            .into_iter()
+            .map(|(f, n)| (f.id(), n))
+            .collect()
+    }
+
+    #[test]
+    fn groups_are_typed_once() {
+        assert_eq!(counts("CCCCCC"), vec![("CH3", 2), ("CH2", 4)]);
+        assert_eq!(
+            counts("CCOC(C)=O"),
+            vec![("CH3", 2), ("CH2", 1), ("ester C(=O)O", 1), ("in-group", 2)]
+        );
+        assert_eq!(
+            counts("Cc1ccccc1[N+](=O)[O-]"),
+            vec![
+                ("CH3", 1),
+                ("aCH", 4),
+                ("aC-substituted", 2),
+                ("nitro NO2", 1),
+                ("in-group", 2)
+            ]
+        );
+        assert_eq!(
+            counts("Oc1ccccc1[N+](=O)[O-]").last(),
+            Some(&("ortho OH...acceptor", 1))
+        );
+        assert_eq!(counts("c1ccc2ccccc2c1"), vec![("aCH", 8), ("aC-fused", 2)]);
+        assert_eq!(
+            counts("CC#N"),
+            vec![("CH3", 1), ("nitrile C#N", 1), ("in-group", 1)]
+        );
+        assert_eq!(counts("c1ccncc1"), vec![("aCH", 5), ("pyridine n", 1)]);
+    }
+
+    #[test]
+    fn unusual_atoms_are_named() {
+        let g = parse_smiles("[Na+].[Cl-]").map(|p| p.graph);
+        if let Ok(g) = g {
+            let err = fragment_counts(&g).unwrap_err().to_string();
+            assert!(err.contains("no fragment"), "{err}");
+        }
+    }
+}

@@ -166,6 +166,32 @@ fn main() {
             }
         }
     }
+    if std::env::args().any(|a| a == "--counts") {
+        for r in &rows {
+            let Ok(p) = parse_smiles(&r.smiles) else {
+                continue;
+            };
+            let Ok(counts) = fragment_counts(&p.graph) else {
+                continue;
+            };
+            let cells: Vec<String> = counts
+                .iter()
+                .map(|(f, n)| format!("{}={n}", f.id()))
+                .collect();
+            let ri: Vec<String> =
+                r.ri.iter()
+                    .map(|v| v.map_or(String::new(), |v| format!("{v}")))
+                    .collect();
+            println!(
+                "COUNTS\t{}\t{:?}\t{}\t{}\t{}",
+                r.name,
+                r.split,
+                r.class,
+                ri.join("\t"),
+                cells.join(";")
+            );
+        }
+    }
     if write {
         let dir = env!("CARGO_MANIFEST_DIR");
         let fragments = render_fragments(&fitted);

@@ -72,8 +72,10 @@ pub enum Fragment {
     AmineNh2,
     /// Primary amine on an aromatic ring (aniline-type).
     AnilineNh2,
-    /// Secondary amine (aliphatic or aryl).
+    /// Secondary amine on aliphatic carbons.
     AmineNh,
+    /// Secondary amine on an aromatic ring (N-alkylaniline-type).
+    ArylNh,
     /// Tertiary amine (aliphatic or aryl).
     AmineN,
     /// Pyridine-type aromatic nitrogen.
@@ -105,12 +107,15 @@ pub enum Fragment {
     /// Phenolic OH with an acceptor on the neighbouring ring atom (intramolecular H-bond
     /// correction, counted in addition to [`Fragment::PhenolOh`]).
     OrthoHBond,
+    /// Hydrogen-bond-acidic C-H of a carbon carrying two or more Cl or Br (dichloromethane,
+    /// chloroform: A 0.10-0.15; counted in addition to the carbon's own fragment).
+    AcidicCh,
     /// Atom folded into another atom's group fragment.
     InGroup,
 }
 
 /// Every fragment in table order (the order of `data/gc_solute_fragments.tsv`).
-pub const ALL_FRAGMENTS: [Fragment; 41] = [
+pub const ALL_FRAGMENTS: [Fragment; 43] = [
     Fragment::Ch3,
     Fragment::Ch2,
     Fragment::Ch,
@@ -136,6 +141,7 @@ pub const ALL_FRAGMENTS: [Fragment; 41] = [
     Fragment::AmineNh2,
     Fragment::AnilineNh2,
     Fragment::AmineNh,
+    Fragment::ArylNh,
     Fragment::AmineN,
     Fragment::PyridineN,
     Fragment::PyrroleNh,
@@ -151,6 +157,7 @@ pub const ALL_FRAGMENTS: [Fragment; 41] = [
     Fragment::P,
     Fragment::Si,
     Fragment::OrthoHBond,
+    Fragment::AcidicCh,
     Fragment::InGroup,
 ];
 
@@ -183,6 +190,7 @@ impl Fragment {
             Fragment::AmineNh2 => "amine NH2",
             Fragment::AnilineNh2 => "aryl NH2",
             Fragment::AmineNh => "amine NH",
+            Fragment::ArylNh => "aryl NH",
             Fragment::AmineN => "amine N",
             Fragment::PyridineN => "pyridine n",
             Fragment::PyrroleNh => "pyrrole nH",
@@ -198,6 +206,7 @@ impl Fragment {
             Fragment::P => "P",
             Fragment::Si => "Si",
             Fragment::OrthoHBond => "ortho OH...acceptor",
+            Fragment::AcidicCh => "acidic CHX2",
             Fragment::InGroup => "in-group",
         }
     }
@@ -430,6 +439,7 @@ fn type_atoms(g: &MolGraph) -> Result<Vec<Fragment>, FragmentError> {
                     match a.hydrogens {
                         2.. if aromatic_neighbours > 0 => Fragment::AnilineNh2,
                         2.. => Fragment::AmineNh2,
+                        1 if aromatic_neighbours > 0 => Fragment::ArylNh,
                         1 => Fragment::AmineNh,
                         _ => Fragment::AmineN,
                     }
@@ -493,6 +503,19 @@ fn type_atoms(g: &MolGraph) -> Result<Vec<Fragment>, FragmentError> {
             });
         if ortho_acceptor {
             out.push(Fragment::OrthoHBond);
+        }
+    }
+    // acidic C-H next to two or more heavy halogens
+    for i in 0..n {
+        let a = &g.atoms[i];
+        if a.atomic_number == 6 && !a.aromatic && a.hydrogens > 0 {
+            let halogens = g.neighbours[i]
+                .iter()
+                .filter(|&&(m, _)| matches!(z(m), 17 | 35))
+                .count();
+            if halogens >= 2 {
+                out.push(Fragment::AcidicCh);
+            }
         }
     }
     Ok(out)

@@ -180,15 +180,17 @@ fn held_out_figures_do_not_regress() {
             f.median_abs_error
         );
         assert!(
-            f.close_pairs_right >= HELD_OUT_CLOSE_PAIR_BOUND,
+            f.close_pairs_right >= HELD_OUT_CLOSE_PAIR_BOUND[pi],
             "{id}: close pairs {:.2}",
             f.close_pairs_right
         );
     }
 }
 
-const HELD_OUT_MEDIAN_BOUND: [f64; 3] = [1000.0, 1000.0, 1000.0];
-const HELD_OUT_CLOSE_PAIR_BOUND: f64 = 0.0;
+// measured 2026-12-04 (docs/gc-retention.md): held-out medians 16, 15, 48; close pairs in the
+// right order 76 %, 74 %, 58 %
+const HELD_OUT_MEDIAN_BOUND: [f64; 3] = [19.0, 18.0, 52.0];
+const HELD_OUT_CLOSE_PAIR_BOUND: [f64; 3] = [0.72, 0.70, 0.54];
 
 #[test]
 fn structure_route_wins_and_boiling_point_route_is_the_fallback() {

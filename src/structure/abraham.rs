@@ -377,6 +377,7 @@ fn type_atoms(g: &MolGraph) -> Result<Vec<Fragment>, FragmentError> {
         }
     }
     // 2. every other atom
+    #[allow(clippy::needless_range_loop)] // i indexes the graph's atoms and neighbours too
     for i in 0..n {
         if types[i].is_some() {
             continue;

@@ -235,8 +235,9 @@ fn solve(mut a: Vec<Vec<f64>>, mut b: Vec<f64>) -> Option<Vec<f64>> {
             if factor == 0.0 {
                 continue;
             }
-            for k in col..n {
-                a[row][k] -= factor * a[col][k];
+            let (upper, lower) = a.split_at_mut(row);
+            for (target, source) in lower[0][col..n].iter_mut().zip(&upper[col][col..n]) {
+                *target -= factor * source;
             }
             b[row] -= factor * b[col];
         }

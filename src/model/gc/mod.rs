@@ -33,6 +33,7 @@ mod boiling_point;
 pub mod calibration;
 mod ladder;
 mod oven;
+pub mod panel;
 pub mod solvation;
 
 pub use analyte::{GcAnalyte, MAX_CARBON, RingSubstitution};

@@ -107,6 +107,10 @@ pub enum Fragment {
     /// Phenolic OH with an acceptor on the neighbouring ring atom (intramolecular H-bond
     /// correction, counted in addition to [`Fragment::PhenolOh`]).
     OrthoHBond,
+    /// Two substituents on neighbouring aromatic ring atoms (ortho pair; o-xylene against m- and
+    /// p-xylene: E +0.04, S +0.04, L +0.10, from memory of Abraham's tables), counted once per
+    /// pair.
+    OrthoPair,
     /// Hydrogen-bond-acidic C-H of a carbon carrying two or more Cl or Br (dichloromethane,
     /// chloroform: A 0.10-0.15; counted in addition to the carbon's own fragment).
     AcidicCh,
@@ -115,7 +119,7 @@ pub enum Fragment {
 }
 
 /// Every fragment in table order (the order of `data/gc_solute_fragments.tsv`).
-pub const ALL_FRAGMENTS: [Fragment; 43] = [
+pub const ALL_FRAGMENTS: [Fragment; 44] = [
     Fragment::Ch3,
     Fragment::Ch2,
     Fragment::Ch,
@@ -157,6 +161,7 @@ pub const ALL_FRAGMENTS: [Fragment; 43] = [
     Fragment::P,
     Fragment::Si,
     Fragment::OrthoHBond,
+    Fragment::OrthoPair,
     Fragment::AcidicCh,
     Fragment::InGroup,
 ];
@@ -206,6 +211,7 @@ impl Fragment {
             Fragment::P => "P",
             Fragment::Si => "Si",
             Fragment::OrthoHBond => "ortho OH...acceptor",
+            Fragment::OrthoPair => "ortho pair",
             Fragment::AcidicCh => "acidic CHX2",
             Fragment::InGroup => "in-group",
         }
@@ -506,6 +512,19 @@ fn type_atoms(g: &MolGraph) -> Result<Vec<Fragment>, FragmentError> {
             out.push(Fragment::OrthoHBond);
         }
     }
+    // substituents on neighbouring aromatic atoms (not across a ring fusion)
+    for bond in &g.bonds {
+        let substituted = |i: usize| {
+            g.atoms[i].aromatic
+                && g.atoms[i].hydrogens == 0
+                && g.neighbours[i]
+                    .iter()
+                    .any(|&(m, _)| !g.atoms[m].aromatic || !g.atoms[m].in_ring)
+        };
+        if bond.order == BondOrder::Aromatic && substituted(bond.a) && substituted(bond.b) {
+            out.push(Fragment::OrthoPair);
+        }
+    }
     // acidic C-H next to two or more heavy halogens
     for i in 0..n {
         let a = &g.atoms[i];
@@ -605,13 +624,25 @@ mod tests {
                 ("aCH", 4),
                 ("aC-substituted", 2),
                 ("nitro NO2", 1),
+                ("ortho pair", 1),
                 ("in-group", 2)
             ]
         );
-        assert_eq!(
-            counts("Oc1ccccc1[N+](=O)[O-]").last(),
-            Some(&("ortho OH...acceptor", 1))
+        assert!(counts("Oc1ccccc1[N+](=O)[O-]").contains(&("ortho OH...acceptor", 1)));
+        assert!(!counts("Oc1ccc(cc1)[N+](=O)[O-]").contains(&("ortho OH...acceptor", 1)));
+        assert!(counts("ClC(Cl)Cl").contains(&("acidic CHX2", 1)));
+        assert!(counts("Cc1ccccc1C").contains(&("ortho pair", 1)));
+        assert!(
+            !counts("Cc1cccc(C)c1")
+                .iter()
+                .any(|(f, _)| *f == "ortho pair")
         );
+        assert!(
+            !counts("c1ccc2ccccc2c1")
+                .iter()
+                .any(|(f, _)| *f == "ortho pair")
+        );
+        assert!(counts("CNc1ccccc1").contains(&("aryl NH", 1)));
         assert_eq!(counts("c1ccc2ccccc2c1"), vec![("aCH", 8), ("aC-fused", 2)]);
         assert_eq!(
             counts("CC#N"),
@@ -622,10 +653,8 @@ mod tests {
 
     #[test]
     fn unusual_atoms_are_named() {
-        let g = parse_smiles("[Na+].[Cl-]").map(|p| p.graph);
-        if let Ok(g) = g {
-            let err = fragment_counts(&g).unwrap_err().to_string();
-            assert!(err.contains("no fragment"), "{err}");
-        }
+        let g = parse_smiles("C[Hg]C").unwrap().graph;
+        let err = fragment_counts(&g).unwrap_err().to_string();
+        assert!(err.contains("Hg") && err.contains("no fragment"), "{err}");
     }
 }

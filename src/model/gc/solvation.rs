@@ -248,9 +248,14 @@ pub fn predict_retention_index_from_structure(
 ) -> Result<RetentionIndexPrediction, GcError> {
     let constants = system_constants(phase)?;
     let d = solute_descriptors(g)?;
-    let retention_index = constants.retention_index(&d);
-    let dispersion = 100.0 / L_PER_CH2 * (d.l - L_ALKANE_OFFSET);
     let is_alkane = crate::structure::abraham::is_n_alkane(g);
+    // n-alkanes are 100 n by definition (methane included, whose L the fragments do not give)
+    let retention_index = if is_alkane {
+        100.0 * g.atoms.len() as f64
+    } else {
+        constants.retention_index(&d)
+    };
+    let dispersion = 100.0 / L_PER_CH2 * (d.l - L_ALKANE_OFFSET);
     let sigma_ri = if is_alkane {
         0.0
     } else {

@@ -187,10 +187,10 @@ fn held_out_figures_do_not_regress() {
     }
 }
 
-// measured 2026-12-04 (docs/gc-retention.md): held-out medians 16, 15, 48; close pairs in the
-// right order 76 %, 74 %, 58 %
-const HELD_OUT_MEDIAN_BOUND: [f64; 3] = [19.0, 18.0, 52.0];
-const HELD_OUT_CLOSE_PAIR_BOUND: [f64; 3] = [0.72, 0.70, 0.54];
+// measured 2026-12-04 (docs/gc-retention.md): held-out medians 15, 17, 45; close pairs in the
+// right order 76 %, 75 %, 59 %
+const HELD_OUT_MEDIAN_BOUND: [f64; 3] = [18.0, 20.0, 49.0];
+const HELD_OUT_CLOSE_PAIR_BOUND: [f64; 3] = [0.73, 0.72, 0.56];
 
 #[test]
 fn structure_route_wins_and_boiling_point_route_is_the_fallback() {

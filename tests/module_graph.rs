@@ -114,7 +114,7 @@ fn references(s: &Source) -> BTreeSet<Vec<String>> {
     let is_ident = |c: u8| c.is_ascii_alphanumeric() || c == b'_';
     let mut i = 0;
     while i < bytes.len() {
-        let starts_word = i == 0 || !is_ident(bytes[i - 1]) && bytes[i - 1] != b':';
+        let starts_word = i == 0 || (!is_ident(bytes[i - 1]) && bytes[i - 1] != b':');
         let rest = &bytes[i..];
         let prefix = ["crate::", "phasewise::", "super::"]
             .into_iter()

@@ -193,8 +193,9 @@ phasewise nonsense-command
 phasewise lookup --format nonsense caffeine
 phasewise --kb /nonexistent/dir/kb.sqlite lookup caffeine
 LIST
-} | sed 's#/nonexistent/#/nonexistent-phasewise-compare/#g' > "$cmds"
-# (a directory that surely does not exist: the documented example writes into /nonexistent/dir)
+} | sed 's#/nonexistent/dir/#missing-directory/dir/#g' > "$cmds"
+# (the documented example writes into /nonexistent/dir; a directory of the scratch area that
+# surely does not exist keeps the check independent of the machine)
 
 run_side() { # $1 binary, $2 where its results go
   # Both sides run at the same paths (binary, base, overlay, working directory), so that paths

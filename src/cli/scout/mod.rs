@@ -1,7 +1,7 @@
 //! `phasewise scout`: fit retention models to two or more scouting runs and optimise the
-//! method. LC (`--mode rp|hilic`, log k = log kw − S φ, then the gradient) is in [`lc`], GC
-//! (`--mode gc`, ln k = A + B/T, then the oven program) in [`gc`]; `--store` (the fits into
-//! the user overlay) in [`store`]. This file holds the options and what both share.
+//! method. LC (`--mode rp|hilic`, log k = log kw − S φ, then the gradient) is in `lc.rs`, GC
+//! (`--mode gc`, ln k = A + B/T, then the oven program) in `gc.rs`; `--store` (the fits into
+//! the user overlay) in `store.rs`. This file holds the options and what both share.
 
 mod gc;
 mod lc;

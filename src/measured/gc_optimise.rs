@@ -33,9 +33,9 @@ use thiserror::Error;
 use crate::measured::gc_scout::{
     GcScoutError, GcScoutFit, OvenPhase, VantHoffParameters, programmed_elution,
 };
-use crate::measured::optimise::{
-    PlotPoint, PredictedPair, Score, Selection, WindowPlot, render_window_plot,
-};
+use crate::measured::optimise::{PredictedPair, Selection};
+use crate::measured::search::Score;
+use crate::measured::window_plot::{PlotPoint, WindowPlot, render_window_plot};
 use crate::model::gc::OvenProgram;
 
 /// Clean-out hold at the final temperature, min (common practice, no source).

@@ -38,6 +38,10 @@ use serde::{Deserialize, Serialize};
 use thiserror::Error;
 
 use crate::measured::peaks::PeakTable;
+use crate::measured::scouting::{
+    RunSetProblem, check_identifiable, check_run_names, levenberg_marquardt, retention_times,
+    rms_and_sigma,
+};
 use crate::model::gc::{GcError, OvenProgram};
 
 /// Largest temperature step of the ramp integration, K (see the module docs).
@@ -136,6 +140,25 @@ pub enum GcScoutError {
     /// A GC condition failed validation.
     #[error(transparent)]
     Gc(#[from] GcError),
+}
+
+impl From<RunSetProblem> for GcScoutError {
+    fn from(p: RunSetProblem) -> Self {
+        match p {
+            RunSetProblem::TooFewRuns { count } => GcScoutError::TooFewRuns { count },
+            RunSetProblem::DuplicateRun { name } => GcScoutError::DuplicateRun { name },
+            RunSetProblem::NotIdentifiable { runs } => GcScoutError::NotIdentifiable { runs },
+            RunSetProblem::MissingPeak {
+                peak,
+                run,
+                present_in,
+            } => GcScoutError::MissingPeak {
+                peak,
+                run,
+                present_in,
+            },
+        }
+    }
 }
 
 /// The retention–temperature relation ln k = A + B/T of one analyte on one column.
@@ -561,92 +584,6 @@ fn jacobian(x: [f64; 2], obs: &Obs, tm: f64, fr: &Frame) -> Vec<[f64; 2]> {
     (0..obs.len()).map(|i| [cols[0][i], cols[1][i]]).collect()
 }
 
-fn jtj_of(j: &[[f64; 2]]) -> [f64; 3] {
-    let mut a = [0.0; 3];
-    for r in j {
-        a[0] += r[0] * r[0];
-        a[1] += r[0] * r[1];
-        a[2] += r[1] * r[1];
-    }
-    a
-}
-
-struct LmOutcome {
-    x: [f64; 2],
-    iterations: usize,
-    converged: bool,
-    jtj: [f64; 3],
-}
-
-fn levenberg_marquardt(start: [f64; 2], obs: &Obs, tm: f64, fr: &Frame) -> LmOutcome {
-    let cost = |r: &[f64]| r.iter().map(|v| v * v).sum::<f64>();
-    let mut x = start;
-    let mut r = residuals(x, obs, tm, fr);
-    let mut c = cost(&r);
-    let mut lambda = 1e-3;
-    let mut converged = false;
-    let mut it = 0;
-    while it < 200 {
-        it += 1;
-        if c < 1e-24 {
-            converged = true;
-            break;
-        }
-        let j = jacobian(x, obs, tm, fr);
-        let a = jtj_of(&j);
-        let g = [
-            j.iter().zip(&r).map(|(jr, ri)| jr[0] * ri).sum::<f64>(),
-            j.iter().zip(&r).map(|(jr, ri)| jr[1] * ri).sum::<f64>(),
-        ];
-        let mut improved = false;
-        for _ in 0..30 {
-            let a00 = a[0] * (1.0 + lambda) + 1e-300;
-            let a11 = a[2] * (1.0 + lambda) + 1e-300;
-            let det = a00 * a11 - a[1] * a[1];
-            if det.abs() < 1e-300 || !det.is_finite() {
-                lambda *= 10.0;
-                continue;
-            }
-            let dx = [
-                -(a11 * g[0] - a[1] * g[1]) / det,
-                -(-a[1] * g[0] + a00 * g[1]) / det,
-            ];
-            let xn = clamp([x[0] + dx[0], x[1] + dx[1]]);
-            let rn = residuals(xn, obs, tm, fr);
-            let cn = cost(&rn);
-            if cn.is_finite() && cn < c {
-                let step = ((xn[0] - x[0]).abs() / x[0].abs().max(1.0))
-                    .max((xn[1] - x[1]).abs() / x[1].abs().max(1.0));
-                let rel_drop = (c - cn) / c.max(1e-300);
-                x = xn;
-                r = rn;
-                c = cn;
-                lambda = (lambda / 10.0).max(1e-12);
-                improved = true;
-                if step < 1e-12 || rel_drop < 1e-14 {
-                    converged = true;
-                }
-                break;
-            }
-            lambda *= 10.0;
-        }
-        if !improved {
-            // No downhill step at any damping: at a (local) minimum.
-            converged = true;
-            break;
-        }
-        if converged {
-            break;
-        }
-    }
-    LmOutcome {
-        x,
-        iterations: it,
-        converged,
-        jtj: jtj_of(&jacobian(x, obs, tm, fr)),
-    }
-}
-
 /// Fits A and B for every analyte of the GC scouting runs.
 ///
 /// # Errors
@@ -660,65 +597,51 @@ pub fn fit_gc(req: &GcScoutRequest) -> Result<GcScoutFit, GcScoutError> {
             holdup_time_min: tm,
         });
     }
-    if req.runs.len() < 2 {
-        return Err(GcScoutError::TooFewRuns {
-            count: req.runs.len(),
-        });
-    }
-    for (i, r) in req.runs.iter().enumerate() {
-        if req.runs[..i].iter().any(|q| q.name == r.name) {
-            return Err(GcScoutError::DuplicateRun {
-                name: r.name.clone(),
-            });
-        }
-        if let Some(t_max) = req.max_temperature_c
-            && r.program.final_c() > t_max
-        {
-            return Err(GcScoutError::AbovePhaseLimit {
-                run: r.name.clone(),
-                final_c: r.program.final_c(),
-                t_max_c: t_max,
-            });
-        }
-    }
+    let names: Vec<&str> = req.runs.iter().map(|r| r.name.as_str()).collect();
+    check_run_names(
+        &names,
+        |i| {
+            let r = &req.runs[i];
+            match req.max_temperature_c {
+                Some(t_max) if r.program.final_c() > t_max => Err(GcScoutError::AbovePhaseLimit {
+                    run: r.name.clone(),
+                    final_c: r.program.final_c(),
+                    t_max_c: t_max,
+                }),
+                _ => Ok(()),
+            }
+        },
+        GcScoutError::from,
+    )?;
     let sigs: Vec<(f64, f64, f64)> = req.runs.iter().map(|r| signature(&r.program)).collect();
-    if super::all_signatures_equal(&sigs) {
-        return Err(GcScoutError::NotIdentifiable {
-            runs: req.runs.iter().map(|r| r.name.clone()).collect(),
-        });
-    }
-    let tables: Vec<(&str, &crate::measured::peaks::PeakTable)> = req
+    let tables: Vec<(&str, &PeakTable)> = req
         .runs
         .iter()
         .map(|r| (r.name.as_str(), &r.peaks))
         .collect();
-    if let Some((peak, run, present_in)) = super::first_missing_peak(&tables) {
-        return Err(GcScoutError::MissingPeak {
-            peak,
-            run,
-            present_in,
-        });
-    }
-    let mut analytes = Vec::new();
-    for peak in req.runs[0].peaks.peaks() {
-        let mut obs = Vec::with_capacity(req.runs.len());
-        for run in &req.runs {
-            let tr = run
-                .peaks
-                .get(&peak.name)
-                .map_or(f64::NAN, |p| p.retention_time_min);
-            if tr.is_nan() || tr <= tm {
-                return Err(GcScoutError::PeakBeforeHoldup {
-                    peak: peak.name.clone(),
-                    run: run.name.clone(),
-                    retention_time_min: tr,
-                    holdup_time_min: tm,
-                });
-            }
-            obs.push((&run.program, tr));
-        }
-        analytes.push(fit_one(&peak.name, &obs, req));
-    }
+    check_identifiable(&sigs, &tables)?;
+    let times = retention_times(
+        &tables,
+        |tr| tr <= tm,
+        |peak, run, tr| GcScoutError::PeakBeforeHoldup {
+            peak: peak.to_string(),
+            run: names[run].to_string(),
+            retention_time_min: tr,
+            holdup_time_min: tm,
+        },
+    )?;
+    let analytes = times
+        .iter()
+        .map(|(name, trs)| {
+            let obs: Vec<(&OvenProgram, f64)> = req
+                .runs
+                .iter()
+                .map(|r| &r.program)
+                .zip(trs.iter().copied())
+                .collect();
+            fit_one(name, &obs, req)
+        })
+        .collect();
     Ok(GcScoutFit {
         holdup_time_min: tm,
         runs: req.runs.iter().map(|r| r.name.clone()).collect(),
@@ -738,7 +661,13 @@ fn fit_one(name: &str, obs: &Obs, req: &GcScoutRequest) -> GcAnalyteFit {
         t_ref_k: measured_t.iter().sum::<f64>() / measured_t.len() as f64,
     };
     let start = start_estimate(obs, tm, &fr);
-    let out = levenberg_marquardt(start, obs, tm, &fr);
+    let out = levenberg_marquardt(
+        start,
+        1e-24,
+        |x| residuals(x, obs, tm, &fr),
+        |x| jacobian(x, obs, tm, &fr),
+        clamp,
+    );
     let p = fr.params(out.x);
     let mut flags = Vec::new();
     let mut res = Vec::with_capacity(obs.len());
@@ -761,16 +690,10 @@ fn fit_one(name: &str, obs: &Obs, req: &GcScoutRequest) -> GcAnalyteFit {
             phase,
         });
     }
-    let n = res.len() as f64;
-    let rms = (res.iter().map(|r| r.residual_min.powi(2)).sum::<f64>() / n).sqrt();
     // Cov = σ² (JᵀJ)⁻¹ in (L, B/1000); σ the larger of the assumed error and the residual
-    // scatter (n − 2 degrees of freedom, only with more than 2 runs).
-    let sigma = if res.len() > 2 {
-        let ss: f64 = res.iter().map(|r| r.residual_min.powi(2)).sum();
-        (ss / (n - 2.0)).sqrt().max(RETENTION_ERROR_MIN)
-    } else {
-        RETENTION_ERROR_MIN
-    };
+    // scatter.
+    let residual_min: Vec<f64> = res.iter().map(|r| r.residual_min).collect();
+    let (rms, sigma) = rms_and_sigma(&residual_min, RETENTION_ERROR_MIN);
     let a = out.jtj;
     let det = a[0] * a[2] - a[1] * a[1];
     let (se_a, se_b, corr) = if det > 0.0 && det.is_finite() {

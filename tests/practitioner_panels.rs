@@ -196,7 +196,11 @@ fn practitioner_panels_pass_at_least_the_floor() {
     let all = panels();
     assert!(all.len() >= 40, "at least 40 panels");
     for p in &all {
-        assert!(!p.source.trim().is_empty(), "{}: every panel names its source", p.id);
+        assert!(
+            !p.source.trim().is_empty(),
+            "{}: every panel names its source",
+            p.id
+        );
         assert!(!p.modes.is_empty(), "{}: an expected mode", p.id);
     }
     let ctx = Ctx::new();

@@ -3,7 +3,7 @@
 //! through the n-alkane ladder, co-elution from the index uncertainty.
 
 use super::profile::AnalyteProfile;
-use super::{AdviseRequest, Detector, coelution, unscored_recommendation};
+use super::{AdviseRequest, coelution, unscored_recommendation};
 use crate::model::gc::{
     GcColumn, OvenSuggestion, alkane_ladder, predict_retention_index, suggest_oven_program,
 };
@@ -69,6 +69,13 @@ pub fn candidate(
     for p in profiles {
         if p.gc_verdict() == Some(GcVerdict::Unsuitable) || p.permanently_charged() {
             not_predicted.push(format!("{}: not suitable for GC", p.name()));
+            continue;
+        }
+        if matches!(p.gc_verdict(), None | Some(GcVerdict::Unknown)) {
+            not_predicted.push(format!(
+                "{}: volatility unknown (no structure or boiling point)",
+                p.name()
+            ));
             continue;
         }
         let Some(a) = p.gc_analyte() else {
@@ -194,14 +201,19 @@ pub fn candidate(
         .iter()
         .filter(|p| p.gc_verdict() == Some(GcVerdict::SuitableAfterDerivatisation))
         .map(|p| {
-            let how: Vec<String> =
-                p.gc.iter()
-                    .flat_map(|g| {
-                        g.flags.iter().filter_map(|f| {
-                            f.derivatisation.map(|d| format!("{d:?}").to_lowercase())
-                        })
-                    })
-                    .collect();
+            let mut how: Vec<String> = Vec::new();
+            if let Some(g) = &p.gc {
+                for f in &g.flags {
+                    if f.severity == crate::structure::volatility::Severity::Caution {
+                        continue;
+                    }
+                    if let Some(d) = f.derivatisation
+                        && !how.iter().any(|h| h == d.describe())
+                    {
+                        how.push(d.describe().to_string());
+                    }
+                }
+            }
             format!(
                 "{}: {}",
                 p.name(),
@@ -233,11 +245,7 @@ pub fn candidate(
             value: prog.final_c(),
         },
     ];
-    let detection = match req.detector {
-        Detector::Ecd => "electron capture (halogenated analytes)".to_string(),
-        Detector::Ms => "mass spectrometry (electron ionisation, scan 35-350 m/z)".to_string(),
-        _ => "flame ionisation, 280 °C".to_string(),
-    };
+    let (detection, detector_reason) = super::detection::for_gc(profiles, req.detector);
     let conditions = Conditions {
         column_length_mm: column.length_m() * 1000.0,
         column_id_mm: column.inner_diameter_mm(),
@@ -286,6 +294,7 @@ pub fn candidate(
     }
     let rules = rules(profiles, phase);
     let rule_sum: f64 = rules.iter().filter_map(|r| r.weight).sum();
+    reasons.push(detector_reason);
     reasons.push(sep_reason);
     reasons.extend(rules);
     rec.reasons = reasons;

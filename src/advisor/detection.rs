@@ -61,27 +61,46 @@ pub fn mode_words(m: PhaseMode) -> &'static str {
     }
 }
 
-/// Whether an analyte carries a charge at some pH between 2 and 12 (electrospray sees it).
+/// Whether an analyte carries a charge somewhere between pH 1 and 13 (electrospray sees it):
+/// an acid below pKa 13, a base above pKa 1, or a permanent charge.
 fn ionises(p: &AnalyteProfile) -> bool {
+    use crate::structure::ionisable::SiteKind;
     p.inorganic_ion
-        || p.sites.iter().any(|s| {
-            s.pka.is_some_and(|k| (1.0..=13.0).contains(&k))
-                || matches!(
-                    s.kind,
-                    crate::structure::ionisable::SiteKind::PermanentAnion
-                        | crate::structure::ionisable::SiteKind::PermanentCation
-                )
+        || p.sites.iter().any(|s| match s.kind {
+            SiteKind::Acid => s.pka.is_some_and(|k| k < 13.0),
+            SiteKind::Base => s.pka.is_some_and(|k| k > 1.0),
+            SiteKind::PermanentAnion | SiteKind::PermanentCation => true,
         })
 }
 
 /// The LC detector: the user's, with a warning reason when some analytes have no chromophore
 /// for UV, or one chosen from structure.
 pub fn for_lc(profiles: &[AnalyteProfile], named: Detector) -> (Detector, Reason) {
-    let without: Vec<&str> = profiles
+    // analytes without a structure have an unknown chromophore: the choice rests on the
+    // others, and the reason names them (unknown is not taken as "no chromophore" either)
+    let unknown: Vec<&str> = profiles
         .iter()
-        .filter(|p| !p.chromophore.is_some_and(ChromophoreClass::uv_suitable))
+        .filter(|p| p.chromophore.is_none())
         .map(AnalyteProfile::name)
         .collect();
+    let known: Vec<&AnalyteProfile> = profiles
+        .iter()
+        .filter(|p| p.chromophore.is_some())
+        .collect();
+    let without: Vec<&str> = known
+        .iter()
+        .filter(|p| !p.chromophore.is_some_and(ChromophoreClass::uv_suitable))
+        .map(|p| p.name())
+        .collect();
+    let unknown_note = if unknown.is_empty() {
+        String::new()
+    } else {
+        format!(
+            "; chromophore unknown for {} (no structure read): check that the detector sees {}",
+            unknown.join(", "),
+            if unknown.len() == 1 { "it" } else { "them" }
+        )
+    };
     let rule = |text: String| Reason {
         source: "rule:detector-from-structure".into(),
         text,
@@ -97,7 +116,7 @@ pub fn for_lc(profiles: &[AnalyteProfile], named: Detector) -> (Detector, Reason
             ),
             _ => format!("{} named by the user", named.describe()),
         };
-        return (named, rule(text));
+        return (named, rule(format!("{text}{unknown_note}")));
     }
     if without.is_empty() {
         // the weakest chromophore sets the wavelength, so that every analyte absorbs
@@ -114,16 +133,16 @@ pub fn for_lc(profiles: &[AnalyteProfile], named: Detector) -> (Detector, Reason
         return (
             Detector::Uv(nm),
             rule(format!(
-                "no detector named: UV absorbance at {nm:.0} nm, chosen from structure: every analyte has a UV chromophore, the weakest being {} (common practice, no source)",
+                "no detector named: UV absorbance at {nm:.0} nm, chosen from structure: every analyte has a UV chromophore, the weakest being {} (common practice, no source){unknown_note}",
                 weakest.describe()
             )),
         );
     }
-    if profiles.iter().all(ionises) {
+    if known.iter().all(|p| ionises(p)) {
         (
             Detector::Ms,
             rule(format!(
-                "no detector named: {} ha{} no UV chromophore, and every analyte ionises, so mass spectrometry (electrospray, volatile buffer) is chosen; charged-aerosol detection or a derivatisation are the alternatives (common practice, no source)",
+                "no detector named: {} ha{} no UV chromophore, and every analyte ionises, so mass spectrometry (electrospray, volatile buffer) is chosen; charged-aerosol detection or a derivatisation are the alternatives (common practice, no source){unknown_note}",
                 without.join(", "),
                 if without.len() == 1 { "s" } else { "ve" }
             )),
@@ -132,7 +151,7 @@ pub fn for_lc(profiles: &[AnalyteProfile], named: Detector) -> (Detector, Reason
         (
             Detector::ChargedAerosol,
             rule(format!(
-                "no detector named: {} ha{} no UV chromophore and not every analyte ionises, so a charged-aerosol detector (volatile buffer; non-volatile analytes) is chosen; evaporative light scattering, refractive index (isocratic only), mass spectrometry or a derivatisation are the alternatives (common practice, no source)",
+                "no detector named: {} ha{} no UV chromophore and not every analyte ionises, so a charged-aerosol detector (volatile buffer; non-volatile analytes) is chosen; evaporative light scattering, refractive index (isocratic only), mass spectrometry or a derivatisation are the alternatives (common practice, no source){unknown_note}",
                 without.join(", "),
                 if without.len() == 1 { "s" } else { "ve" }
             )),

@@ -313,6 +313,17 @@ fn rules(profiles: &[AnalyteProfile], phase: &StationaryPhase) -> Vec<Reason> {
         })
         .count() as f64
         / n;
+    // esters and alcohols (flavour esters, fatty-acid methyl esters, fusel alcohols) are
+    // separated by polarity on polyethylene glycol or cyanopropyl phases (common practice, no
+    // source)
+    let oxygenates = profiles
+        .iter()
+        .filter(|p| {
+            p.gc_analyte()
+                .is_some_and(|a| a.n_hydroxyl + a.n_ester > 0 && a.n_carboxylic_acid == 0)
+        })
+        .count() as f64
+        / n;
     let acids = profiles
         .iter()
         .filter(|p| p.gc_analyte().is_some_and(|a| a.n_carboxylic_acid > 0))
@@ -336,7 +347,7 @@ fn rules(profiles: &[AnalyteProfile], phase: &StationaryPhase) -> Vec<Reason> {
         "gc-5-phenyl" => rule("rule:gc-general-purpose", "5 % phenyl is the usual general-purpose first GC column".into(), 0.1),
         "gc-dimethyl" => rule("rule:gc-boiling-point-order", "100 % dimethylpolysiloxane separates mainly by boiling point".into(), 0.06),
         "gc-6-cyanopropylphenyl" => rule("rule:gc-volatile-solvent-screen", "6 % cyanopropylphenyl with a thick film is the usual phase for volatile solvent screens".into(), if volatile { 0.15 } else { 0.0 }),
-        "gc-wax" => rule("rule:gc-polar-analytes", format!("{:.0} % of analytes carry OH/NH/acid groups: polyethylene glycol retains and shapes them better", polar * 100.0), if polar > 0.25 { 0.12 } else { 0.0 }),
+        "gc-wax" => rule("rule:gc-polar-analytes", format!("{:.0} % of analytes carry OH/NH/acid groups and {:.0} % are esters or alcohols: polyethylene glycol retains and shapes them better, and separates esters by polarity", polar * 100.0, oxygenates * 100.0), if oxygenates >= 0.5 { 0.18 } else if polar > 0.25 { 0.12 } else { 0.0 }),
         "gc-wax-acid" => rule("rule:gc-free-acids", "free carboxylic acids tail less on acid-modified polyethylene glycol".into(), if acids > 0 { 0.15 } else { -0.05 }),
         id if id.starts_with("gc-plot") => rule("rule:gc-porous-layer", "porous-layer phases are for permanent gases and very light analytes".into(), if gases { 0.3 } else { -0.3 }),
         _ => {}

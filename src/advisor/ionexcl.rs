@@ -16,6 +16,7 @@ use super::profile::AnalyteProfile;
 use super::{Detector, coelution, unscored_recommendation};
 use crate::phase::StationaryPhase;
 use crate::report::advice::{Conditions, PredictionRow, ProgramStep, Reason, Recommendation};
+use crate::structure::chromophore::ChromophoreClass;
 
 /// Eluent pH of 5 mM sulfuric acid, about 2.1 (from memory).
 pub const ELUENT_PH: f64 = 2.1;
@@ -52,7 +53,11 @@ fn detection(profiles: &[AnalyteProfile], detector: Detector) -> (String, Reason
         Detector::RefractiveIndex => "refractive index (isocratic run)".to_string(),
         Detector::Uv(nm) => format!("UV absorbance at {nm:.0} nm"),
         _ => {
-            if profiles.iter().all(|p| p.chromophore.is_some()) {
+            // carboxylic acids absorb at 210 nm; a structure not read is not taken as blind
+            if profiles
+                .iter()
+                .all(|p| p.chromophore != Some(ChromophoreClass::None))
+            {
                 "UV absorbance at 210 nm (carboxyl group)".to_string()
             } else {
                 "refractive index (isocratic run)".to_string()

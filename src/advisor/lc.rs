@@ -127,13 +127,19 @@ pub fn choose_ph(
     let any_meets = options
         .iter()
         .any(|&(ph, _, _)| ph >= lo && ph <= hi && meets(ph));
+    // when no buffer meets the limits, only the nearest ones are considered
+    let least = options
+        .iter()
+        .filter(|&&(ph, _, _)| ph >= lo && ph <= hi)
+        .map(|&(ph, _, _)| limits.violation(ph))
+        .fold(f64::INFINITY, f64::min);
     type Choice = (f64, &'static str, &'static str);
     let mut best: Option<(f64, Choice, f64, f64)> = None;
     for &(ph, buf, prep) in &options {
         if ph < lo || ph > hi {
             continue;
         }
-        if any_meets && !meets(ph) {
+        if (any_meets && !meets(ph)) || limits.violation(ph) > least + 1e-9 {
             continue;
         }
         if let Ok(b) = catalogue.buffer(buf) {
@@ -799,7 +805,10 @@ pub fn rules(
         }
         if polar > 0.0 {
             let w = match id {
-                "rp-c18-aq" | "rp-pgc" => 0.12 * polar / 0.3_f64.max(polar),
+                "rp-c18-aq" => 0.12 * polar / 0.3_f64.max(polar),
+                // porous graphitic carbon is a specialist phase (strong, sometimes
+                // irreversible retention, slow equilibration): half the weight
+                "rp-pgc" => 0.06 * polar / 0.3_f64.max(polar),
                 "rp-c18" | "rp-c8" => -0.05,
                 _ => 0.0,
             };

@@ -362,14 +362,15 @@ pub fn advise(
             }
         )));
     }
-    // Rank: the mode's fit for the whole list first, then the phase's own score, both scaled
-    // by the share of analytes the candidate predicts: a method covering fewer analytes never
-    // outranks one that covers all with comparable separation (rule:coverage).
+    // Rank: the mode's fit for the whole list first (every analyte counted, unknowns against
+    // it), then the phase's own score, already scaled by the share of analytes the candidate
+    // predicts (rule:coverage): a method covering fewer analytes never outranks one that covers
+    // all with comparable separation in a mode that fits as well.
     candidates.sort_by(|a, b| {
-        let sa = (0.6 * a.mode_score + 0.4 * a.rec.score) * coverage(&a.rec);
-        let sb = (0.6 * b.mode_score + 0.4 * b.rec.score) * coverage(&b.rec);
+        let sa = 0.6 * a.mode_score + 0.4 * a.rec.score;
+        let sb = 0.6 * b.mode_score + 0.4 * b.rec.score;
+        // ties keep the catalogue order (common chemistries first; the sort is stable)
         sb.total_cmp(&sa)
-            .then_with(|| a.rec.phase.id.cmp(&b.rec.phase.id))
     });
     for (i, c) in candidates.iter_mut().enumerate() {
         c.rec.rank = i as u32 + 1;

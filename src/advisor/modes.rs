@@ -6,7 +6,7 @@ use super::profile::AnalyteProfile;
 use crate::phase::PhaseMode;
 use crate::report::advice::{Excluded, ModeScore, Reason};
 use crate::structure::ionisable::SiteKind;
-use crate::structure::volatility::{GC_HIGH_TB_K, GcVerdict};
+use crate::structure::volatility::{GC_HIGH_TB_K, GC_MAX_TB_K, GcVerdict};
 
 /// Analytes scoring below this in a mode are listed as not fitting it.
 pub const FIT_THRESHOLD: f64 = 0.4;
@@ -17,7 +17,7 @@ fn logistic(x: f64) -> f64 {
 
 /// A neutral, low-polarity analyte that GC handles as is: no H-bond donor, polar surface
 /// area at most 40 Å², no group ionised between pH 2 and 12, GC-suitable and boiling below
-/// [`GC_HIGH_TB_K`] (hydrocarbons, halogenated pesticides and PCBs, esters including fatty-acid
+/// [`GC_MAX_TB_K`] (hydrocarbons, halogenated pesticides and PCBs, esters including fatty-acid
 /// methyl esters, ethers, ketones). GC is the usual technique for these classes (rule
 /// `rule:gc-volatile-neutral-class`; common practice, no source).
 pub fn gc_neutral_class(p: &AnalyteProfile) -> bool {
@@ -28,7 +28,7 @@ pub fn gc_neutral_class(p: &AnalyteProfile) -> bool {
         && !p.inorganic_ion
         && e.descriptors.hbond_donors == 0
         && e.descriptors.tpsa_a2 <= 40.0
-        && p.tb_k.is_some_and(|(t, _)| t <= GC_HIGH_TB_K)
+        && p.tb_k.is_some_and(|(t, _)| t <= GC_MAX_TB_K)
         && !p.sites.iter().any(|s| {
             matches!(s.kind, SiteKind::PermanentAnion | SiteKind::PermanentCation)
                 || s.pka.is_some_and(|k| (2.0..=12.0).contains(&k))
@@ -71,17 +71,17 @@ pub fn fit(p: &AnalyteProfile, mode: PhaseMode) -> (f64, String) {
                         0.0,
                         "unknown: no boiling point, so volatility is unknown".into(),
                     ),
+                    Some((tb, _)) if gc_neutral_class(p) => (
+                        if tb > GC_HIGH_TB_K { 0.9 } else { 1.0 },
+                        format!(
+                            "neutral, low-polarity and boiling at about {tb:.0} K: GC is the usual technique for this class (rule:gc-volatile-neutral-class)"
+                        ),
+                    ),
                     // high-boiling analytes need high oven temperatures and thin films
                     Some((tb, _)) if tb > GC_HIGH_TB_K => (
                         0.45,
                         format!(
                             "boiling point about {tb:.0} K: elutes only at high oven temperature"
-                        ),
-                    ),
-                    Some((tb, _)) if gc_neutral_class(p) => (
-                        1.0,
-                        format!(
-                            "neutral, low-polarity and boiling at about {tb:.0} K: GC is the usual technique for this class (rule:gc-volatile-neutral-class)"
                         ),
                     ),
                     Some((tb, _)) if tb > 520.0 => (0.75, format!("boiling point about {tb:.0} K")),
@@ -123,11 +123,12 @@ pub fn fit(p: &AnalyteProfile, mode: PhaseMode) -> (f64, String) {
             let volatile = p.tb_k.is_some_and(|(t, _)| t < 450.0)
                 && p.gc_verdict() == Some(GcVerdict::Suitable);
             let gc_class = gc_neutral_class(p);
-            match p.max_log_d(2.0, 8.0) {
+            // pH 2-11: bases are neutral and retained at high pH on a high-pH-stable phase
+            match p.max_log_d(2.0, 11.0) {
                 Some(d) if volatile || gc_class => (
                     0.6 * logistic(2.0 * (d + 1.5)),
                     format!(
-                        "highest logD over pH 2-8 is {d:.1}, but {} (rule:gc-volatile-neutral-class)",
+                        "highest logD over pH 2-11 is {d:.1}, but {} (rule:gc-volatile-neutral-class)",
                         if volatile {
                             "volatile enough for GC"
                         } else {
@@ -137,7 +138,9 @@ pub fn fit(p: &AnalyteProfile, mode: PhaseMode) -> (f64, String) {
                 ),
                 Some(d) => (
                     logistic(2.0 * (d + 1.5)),
-                    format!("highest logD over pH 2-8 is {d:.1}"),
+                    format!(
+                        "highest logD over pH 2-11 is {d:.1} (pH above 8 only on a high-pH-stable phase)"
+                    ),
                 ),
                 None => (0.3, "unknown: no logP known".into()),
             }

@@ -40,6 +40,21 @@ impl PhLimits {
         bases_ok && acids_ok
     }
 
+    /// How far a pH is from meeting the limits, in pH units (0 when it meets them): used to
+    /// take the nearest buffer when none meets them.
+    pub fn violation(&self, ph: f64) -> f64 {
+        let base = if !self.bases.is_empty() && ph > BASE_LOW_PH_MAX && ph < BASE_HIGH_PH_MIN {
+            (ph - BASE_LOW_PH_MAX).min(BASE_HIGH_PH_MIN - ph)
+        } else {
+            0.0
+        };
+        let acid = self
+            .lowest_acid
+            .as_ref()
+            .map_or(0.0, |(_, k)| (ph - (k - ACID_UNITS_BELOW)).max(0.0));
+        base + acid
+    }
+
     /// The reasons for a chosen pH.
     pub fn reasons(&self, ph: f64, met: bool, lo: f64, hi: f64) -> Vec<Reason> {
         let mut out = Vec::new();

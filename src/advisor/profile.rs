@@ -142,6 +142,35 @@ impl AnalyteProfile {
     /// Build the profile of a resolved analyte.
     pub fn new(mut analyte: Analyte) -> AnalyteProfile {
         let mut notes = Vec::new();
+        // a doubled backslash is never valid SMILES: it is an escaping error (about 3 % of the
+        // shipped structures, those with cis/trans double bonds, carry it); read the structure
+        // with single backslashes and fill the estimates the knowledge base could not make
+        if let Some(s) = analyte.smiles.clone()
+            && s.contains("\\\\")
+            && estimate(&s).is_err()
+        {
+            let fixed = s.replace("\\\\", "\\");
+            if let Ok(e) = estimate(&fixed) {
+                notes.push(
+                    "the stored SMILES has doubled backslashes (an escaping error); read with single ones".into(),
+                );
+                let mut filled = analyte.clone();
+                filled.properties.clear();
+                crate::property::estimate::attach_estimates(&mut filled, &e);
+                for p in filled.properties {
+                    if analyte.best(&p.property).is_none() {
+                        analyte.properties.push(p);
+                    }
+                }
+                if analyte.formula.is_none() {
+                    analyte.formula = filled.formula;
+                }
+                if analyte.molar_mass_g_mol.is_none() {
+                    analyte.molar_mass_g_mol = filled.molar_mass_g_mol;
+                }
+                analyte.smiles = Some(fixed);
+            }
+        }
         let est = analyte.smiles.as_deref().and_then(|s| match estimate(s) {
             Ok(e) => Some(e),
             Err(err) => {
@@ -606,5 +635,34 @@ mod tests {
         assert_eq!(c("c1ccccc1[N+](=O)[O-]").nitro, 1);
         assert_eq!(n_alkane(&parse_smiles("CCCCCC").unwrap().graph), Some(6));
         assert_eq!(n_alkane(&parse_smiles("CC(C)C").unwrap().graph), None);
+    }
+}
+
+#[cfg(test)]
+mod repair_tests {
+    use super::*;
+
+    #[test]
+    fn a_doubled_backslash_smiles_is_read_and_its_estimates_filled() {
+        // methyl oleate as stored with an escaping error (cis double bond)
+        let p = AnalyteProfile::new(Analyte {
+            query: "methyl oleate".into(),
+            name: "methyl oleate".into(),
+            inchikey: None,
+            smiles: Some("CCCCCCCC/C=C\\\\CCCCCCCC(=O)OC".into()),
+            formula: None,
+            molar_mass_g_mol: None,
+            cid: None,
+            cas: None,
+            origin: Origin::Shipped,
+            matched_by: "test".into(),
+            properties: Vec::new(),
+        });
+        assert!(p.estimate.is_some(), "{:?}", p.notes);
+        assert!(p.log_p.is_some() && p.tb_k.is_some());
+        assert_eq!(
+            p.analyte.smiles.as_deref(),
+            Some("CCCCCCCC/C=C\\CCCCCCCC(=O)OC")
+        );
     }
 }

@@ -803,6 +803,16 @@ pub fn rules(
                 w,
             );
         }
+        // porous graphitic carbon is a specialist phase (very strong retention, strong
+        // eluents, slow equilibration, a redox-active surface): chosen first for very polar
+        // lists or positional isomers, not as a general start (common practice, no source)
+        if id == "rp-pgc" && polar < 0.3 && !isomers {
+            rule(
+                "rule:pgc-specialist",
+                "porous graphitic carbon is a specialist phase for very polar analytes and positional isomers; neither dominates this list".into(),
+                -0.08,
+            );
+        }
         if polar > 0.0 {
             let w = match id {
                 "rp-c18-aq" => 0.12 * polar / 0.3_f64.max(polar),

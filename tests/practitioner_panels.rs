@@ -14,10 +14,9 @@ use serde_json::Value;
 /// Panels that passed when this floor was last raised (see docs/science.md).
 const FLOOR: usize = 49;
 
-/// What "no detector named" is on the command line: the advisor then chooses the detector
-/// from structure. Until the command layer's default becomes `auto` (wiring after the
-/// command-layer refactor), the suite says so explicitly.
-const NO_DETECTOR_NAMED: &[&str] = &["--detector", "auto"];
+/// What "no detector named" is on the command line: nothing (the default `auto` chooses the
+/// detector from structure).
+const NO_DETECTOR_NAMED: &[&str] = &[];
 
 struct Panel {
     id: String,

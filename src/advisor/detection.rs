@@ -14,12 +14,10 @@ use crate::phase::PhaseMode;
 use crate::report::advice::Reason;
 use crate::structure::chromophore::ChromophoreClass;
 
-/// Interim, until the command line's `--detector` default becomes `auto`: the command line
-/// still names `uv:220` when the user names nothing, so a UV detector does not exclude GC;
-/// a GC recommendation then chooses its own detector from structure and says that UV does
-/// not apply. Set to `false` when the default is `auto` (a UV detector with GC is then
-/// refused like every other impossible pair).
-pub const UV_NAMED_ALLOWS_GC: bool = true;
+/// Whether a named UV detector still admits GC (then GC chooses its own detector and says UV
+/// does not apply). It was `true` while the command line's default was `uv:220`; with the
+/// default `auto` a UV detector with GC is refused like every other impossible pair.
+pub const UV_NAMED_ALLOWS_GC: bool = false;
 
 /// Modes a detector works with; `None` when no detector was named (every mode).
 pub fn compatible_modes(d: Detector) -> Option<&'static [PhaseMode]> {

@@ -3,7 +3,7 @@
 //! through the n-alkane ladder, co-elution from the index uncertainty.
 
 use super::profile::AnalyteProfile;
-use super::{AdviseRequest, Detector, coelution, unscored_recommendation};
+use super::{AdviseRequest, coelution, unscored_recommendation};
 use crate::model::gc::{
     GcColumn, OvenSuggestion, alkane_ladder, predict_analyte_index, suggest_oven_program,
 };
@@ -69,6 +69,13 @@ pub fn candidate(
     for p in profiles {
         if p.gc_verdict() == Some(GcVerdict::Unsuitable) || p.permanently_charged() {
             not_predicted.push(format!("{}: not suitable for GC", p.name()));
+            continue;
+        }
+        if matches!(p.gc_verdict(), None | Some(GcVerdict::Unknown)) {
+            not_predicted.push(format!(
+                "{}: volatility unknown (no structure or boiling point)",
+                p.name()
+            ));
             continue;
         }
         // solvation-parameter route from the structure, boiling-point route as fallback
@@ -192,14 +199,19 @@ pub fn candidate(
         .iter()
         .filter(|p| p.gc_verdict() == Some(GcVerdict::SuitableAfterDerivatisation))
         .map(|p| {
-            let how: Vec<String> =
-                p.gc.iter()
-                    .flat_map(|g| {
-                        g.flags.iter().filter_map(|f| {
-                            f.derivatisation.map(|d| format!("{d:?}").to_lowercase())
-                        })
-                    })
-                    .collect();
+            let mut how: Vec<String> = Vec::new();
+            if let Some(g) = &p.gc {
+                for f in &g.flags {
+                    if f.severity == crate::structure::volatility::Severity::Caution {
+                        continue;
+                    }
+                    if let Some(d) = f.derivatisation
+                        && !how.iter().any(|h| h == d.describe())
+                    {
+                        how.push(d.describe().to_string());
+                    }
+                }
+            }
             format!(
                 "{}: {}",
                 p.name(),
@@ -231,11 +243,7 @@ pub fn candidate(
             value: prog.final_c(),
         },
     ];
-    let detection = match req.detector {
-        Detector::Ecd => "electron capture (halogenated analytes)".to_string(),
-        Detector::Ms => "mass spectrometry (electron ionisation, scan 35-350 m/z)".to_string(),
-        _ => "flame ionisation, 280 °C".to_string(),
-    };
+    let (detection, detector_reason) = super::detection::for_gc(profiles, req.detector);
     let conditions = Conditions {
         column_length_mm: column.length_m() * 1000.0,
         column_id_mm: column.inner_diameter_mm(),
@@ -284,6 +292,7 @@ pub fn candidate(
     }
     let rules = rules(profiles, phase);
     let rule_sum: f64 = rules.iter().filter_map(|r| r.weight).sum();
+    reasons.push(detector_reason);
     reasons.push(sep_reason);
     reasons.extend(rules);
     rec.reasons = reasons;
@@ -299,6 +308,17 @@ fn rules(profiles: &[AnalyteProfile], phase: &StationaryPhase) -> Vec<Reason> {
         .filter(|p| {
             p.gc_analyte()
                 .is_some_and(|a| a.n_hydroxyl + a.n_carboxylic_acid + a.n_amine > 0)
+        })
+        .count() as f64
+        / n;
+    // esters and alcohols (flavour esters, fatty-acid methyl esters, fusel alcohols) are
+    // separated by polarity on polyethylene glycol or cyanopropyl phases (common practice, no
+    // source)
+    let oxygenates = profiles
+        .iter()
+        .filter(|p| {
+            p.gc_analyte()
+                .is_some_and(|a| a.n_hydroxyl + a.n_ester > 0 && a.n_carboxylic_acid == 0)
         })
         .count() as f64
         / n;
@@ -325,7 +345,7 @@ fn rules(profiles: &[AnalyteProfile], phase: &StationaryPhase) -> Vec<Reason> {
         "gc-5-phenyl" => rule("rule:gc-general-purpose", "5 % phenyl is the usual general-purpose first GC column".into(), 0.1),
         "gc-dimethyl" => rule("rule:gc-boiling-point-order", "100 % dimethylpolysiloxane separates mainly by boiling point".into(), 0.06),
         "gc-6-cyanopropylphenyl" => rule("rule:gc-volatile-solvent-screen", "6 % cyanopropylphenyl with a thick film is the usual phase for volatile solvent screens".into(), if volatile { 0.15 } else { 0.0 }),
-        "gc-wax" => rule("rule:gc-polar-analytes", format!("{:.0} % of analytes carry OH/NH/acid groups: polyethylene glycol retains and shapes them better", polar * 100.0), if polar > 0.25 { 0.12 } else { 0.0 }),
+        "gc-wax" => rule("rule:gc-polar-analytes", format!("{:.0} % of analytes carry OH/NH/acid groups and {:.0} % are esters or alcohols: polyethylene glycol retains and shapes them better, and separates esters by polarity", polar * 100.0, oxygenates * 100.0), if oxygenates >= 0.5 { 0.18 } else if polar > 0.25 { 0.12 } else { 0.0 }),
         "gc-wax-acid" => rule("rule:gc-free-acids", "free carboxylic acids tail less on acid-modified polyethylene glycol".into(), if acids > 0 { 0.15 } else { -0.05 }),
         id if id.starts_with("gc-plot") => rule("rule:gc-porous-layer", "porous-layer phases are for permanent gases and very light analytes".into(), if gases { 0.3 } else { -0.3 }),
         _ => {}

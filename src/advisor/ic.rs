@@ -21,6 +21,7 @@ pub fn candidate(
     phase: &StationaryPhase,
     mode: PhaseMode,
     catalogue: &Catalogue,
+    detector: super::Detector,
 ) -> Result<Recommendation, String> {
     // (eluent id, eluent text, suppression, program value in mM, program unit, preparation);
     // eluent strengths are common starting points (common practice, no source)
@@ -56,7 +57,18 @@ pub fn candidate(
     let mut names: Vec<&str> = Vec::new();
     let mut owners: Vec<&AnalyteProfile> = Vec::new();
     for (p, q) in profiles.iter().zip(&queries) {
-        if catalogue.ic_ion(q).is_ok() {
+        // an analyte matched to the ion table (by name, salt name or salt structure) is
+        // predicted as that ion; only ions of this mode's charge sign
+        if let Some(ion) = &p.ion {
+            let sign_ok = match mode {
+                PhaseMode::IcAnion => ion.charge < 0,
+                _ => ion.charge > 0,
+            };
+            if sign_ok {
+                names.push(&ion.id);
+                owners.push(p);
+            }
+        } else if catalogue.ic_ion(q).is_ok() {
             names.push(q);
             owners.push(p);
         } else if catalogue.ic_ion(&p.analyte.query).is_ok() {
@@ -161,7 +173,7 @@ pub fn candidate(
         derivatisation: None,
         suppression: Some(suppression.to_string()),
         injection: "10-25 µL of the filtered (0.2 µm) aqueous sample".into(),
-        detection: "suppressed conductivity".into(),
+        detection: super::detection::for_ic(detector),
         dead_time_min: t0,
         plate_number: n_plates,
         run_time_min: run_time,

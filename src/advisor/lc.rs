@@ -120,10 +120,26 @@ pub fn choose_ph(
     if !detector.needs_volatile() {
         options.push(PHOSPHATE);
     }
+    let limits = super::ph::ph_limits(profiles, mode);
+    // the class rules first; when no buffer meets them inside the phase's range, the
+    // pKa-distance costs alone decide (and the reason says so)
+    let meets = |ph: f64| limits.allows(ph);
+    let any_meets = options
+        .iter()
+        .any(|&(ph, _, _)| ph >= lo && ph <= hi && meets(ph));
+    // when no buffer meets the limits, only the nearest ones are considered
+    let least = options
+        .iter()
+        .filter(|&&(ph, _, _)| ph >= lo && ph <= hi)
+        .map(|&(ph, _, _)| limits.violation(ph))
+        .fold(f64::INFINITY, f64::min);
     type Choice = (f64, &'static str, &'static str);
     let mut best: Option<(f64, Choice, f64, f64)> = None;
     for &(ph, buf, prep) in &options {
         if ph < lo || ph > hi {
+            continue;
+        }
+        if (any_meets && !meets(ph)) || limits.violation(ph) > least + 1e-9 {
             continue;
         }
         if let Ok(b) = catalogue.buffer(buf) {
@@ -168,13 +184,24 @@ pub fn choose_ph(
     let Some((_, (ph, buf, prep), near, retention)) = best else {
         return (3.0, "formic-acid", "0.1 % (v/v) formic acid", vec![]);
     };
-    let reasons = vec![Reason {
+    let mut reasons = limits.reasons(ph, any_meets, lo, hi);
+    if detector.needs_volatile() {
+        reasons.push(Reason {
+            source: "rule:volatile-buffer-for-ms".into(),
+            text: format!(
+                "{} needs a volatile mobile phase: only formic acid and ammonium formate, acetate or bicarbonate buffers were considered, no phosphate (common practice, no source)",
+                detector.describe()
+            ),
+            weight: None,
+        });
+    }
+    reasons.push(Reason {
         source: "rule:ph-two-units-from-pka".into(),
         text: format!(
             "pH {ph:.1} inside the phase's range {lo:.0}-{hi:.0}; sum of pKa proximity penalties {near:.1} and retention-loss penalty {retention:.1} is the lowest of the buffers tried (keep pH at least 2 units from analyte pKa where possible; common practice, no source)"
         ),
         weight: None,
-    }];
+    });
     (ph, buf, prep, reasons)
 }
 
@@ -337,8 +364,10 @@ pub fn candidate(
     }
     let temperature_c = fixed.and_then(|f| f.temperature_c).unwrap_or(35.0);
     let n_plates = theory::estimated_plate_number(l, dp).map_err(|e| e.to_string())?;
-    let (mut ph, buffer, prep, mut reasons) =
-        choose_ph(profiles, phase, mode, req.detector, catalogue);
+    // the detector first: the buffer depends on it (volatile for MS and aerosol detectors,
+    // transparent at the UV wavelength)
+    let (detector, detector_reason) = super::detection::for_lc(profiles, req.detector);
+    let (mut ph, buffer, prep, mut reasons) = choose_ph(profiles, phase, mode, detector, catalogue);
     let (mut buffer, mut prep) = (buffer.to_string(), prep.to_string());
     if let Some(user_ph) = fixed.and_then(|f| f.ph) {
         let (lo, hi) = (
@@ -353,7 +382,7 @@ pub fn candidate(
         }
         ph = user_ph;
         // the buffer must serve the user's pH, not the one the advisor would have chosen
-        (buffer, prep) = buffer_for_ph(ph, req.detector, catalogue)?;
+        (buffer, prep) = buffer_for_ph(ph, detector, catalogue)?;
         reasons = vec![Reason {
             source: "user".into(),
             text: if buffer == "formic-acid" {
@@ -595,7 +624,7 @@ pub fn candidate(
             (vm * 10.0).clamp(1.0, 20.0),
             vm
         ),
-        detection: req.detector.describe(),
+        detection: detector.describe(),
         dead_time_min: t0,
         plate_number: n_plates,
         run_time_min: run_time,
@@ -614,11 +643,14 @@ pub fn candidate(
     let (sep, support_reason) = match support {
         Some(n) if !all_measured_here => {
             let trust = n as f64 / (n as f64 + TRAINING_SUPPORT_HALF);
-            let used = 0.5 + trust * (sep - 0.5);
+            // an uncertain prediction never scores better than it predicts: it is pulled
+            // towards the lower of itself and neutral 0.5, less 0.1 for the uncertainty
+            let anchor = sep.min(0.5) - 0.1;
+            let used = anchor + trust * (sep - anchor);
             let reason = (trust < 0.9).then(|| Reason {
                 source: "model:training-support".into(),
                 text: format!(
-                    "the model was trained on {n} {} system(s) of this chemistry ({}): predicted separation {sep:.2} counted as {used:.2} (weight n/(n + {TRAINING_SUPPORT_HALF:.0}) = {trust:.2} towards neutral 0.5; common practice, no source)",
+                    "the model was trained on {n} {} system(s) of this chemistry ({}): predicted separation {sep:.2} counted as {used:.2} (weight n/(n + {TRAINING_SUPPORT_HALF:.0}) = {trust:.2}, the rest towards the lower of the prediction and neutral 0.5, less 0.1; an uncertain prediction never scores better than it predicts; common practice, no source)",
                     sys.mode.label(),
                     sys.chem_class.name()
                 ),
@@ -663,6 +695,7 @@ pub fn candidate(
             weight: None,
         });
     }
+    reasons.push(detector_reason);
     reasons.push(sep_reason);
     reasons.extend(support_reason);
     reasons.push(window);
@@ -770,9 +803,22 @@ pub fn rules(
                 w,
             );
         }
+        // porous graphitic carbon is a specialist phase (very strong retention, strong
+        // eluents, slow equilibration, a redox-active surface): chosen first for very polar
+        // lists or positional isomers, not as a general start (common practice, no source)
+        if id == "rp-pgc" && polar < 0.3 && !isomers {
+            rule(
+                "rule:pgc-specialist",
+                "porous graphitic carbon is a specialist phase for very polar analytes and positional isomers; neither dominates this list".into(),
+                -0.08,
+            );
+        }
         if polar > 0.0 {
             let w = match id {
-                "rp-c18-aq" | "rp-pgc" => 0.12 * polar / 0.3_f64.max(polar),
+                "rp-c18-aq" => 0.12 * polar / 0.3_f64.max(polar),
+                // porous graphitic carbon is a specialist phase (strong, sometimes
+                // irreversible retention, slow equilibration): half the weight
+                "rp-pgc" => 0.06 * polar / 0.3_f64.max(polar),
                 "rp-c18" | "rp-c8" => -0.05,
                 _ => 0.0,
             };

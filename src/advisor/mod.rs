@@ -9,10 +9,13 @@
 //! first choice's risky pairs. Every score carries its reasons, each naming its rule
 //! (`rule:...`, common practice unless a source is given) or model (`model:...`).
 
+pub mod detection;
 pub mod gc;
 pub mod ic;
+pub mod ionexcl;
 pub mod lc;
 pub mod modes;
+pub mod ph;
 pub mod profile;
 
 use serde::{Deserialize, Serialize};
@@ -35,18 +38,28 @@ pub enum Detector {
     Ms,
     /// Fluorescence.
     Fluorescence,
-    /// Evaporative light scattering or charged aerosol (volatile buffers only).
+    /// Evaporative light scattering (volatile buffers only).
     Elsd,
+    /// Charged-aerosol detection (volatile buffers only).
+    ChargedAerosol,
+    /// Refractive index (isocratic runs only).
+    RefractiveIndex,
+    /// Pulsed amperometry (carbohydrates on anion exchange; electroactive analytes).
+    PulsedAmperometry,
     /// GC flame ionisation.
     Fid,
     /// GC electron capture.
     Ecd,
     /// Conductivity (IC).
     Conductivity,
+    /// No detector named: the advisor chooses one per mode from the analytes' structures
+    /// ([`detection`]).
+    FromStructure,
 }
 
 impl Detector {
-    /// Parse `uv`, `uv:254`, `ms`, `fluorescence`, `elsd`, `fid`, `ecd`, `conductivity`.
+    /// Parse `uv`, `uv:254`, `ms`, `fluorescence`, `elsd`, `cad`, `ri`, `pad`, `fid`, `ecd`,
+    /// `conductivity`, or `auto` (choose from structure).
     ///
     /// # Errors
     /// A message naming the value.
@@ -66,13 +79,17 @@ impl Detector {
         Ok(match l.as_str() {
             "ms" => Detector::Ms,
             "fluorescence" | "fld" => Detector::Fluorescence,
-            "elsd" | "cad" => Detector::Elsd,
+            "elsd" => Detector::Elsd,
+            "cad" | "charged-aerosol" => Detector::ChargedAerosol,
+            "ri" | "refractive-index" => Detector::RefractiveIndex,
+            "pad" | "amperometry" | "pulsed-amperometry" => Detector::PulsedAmperometry,
+            "auto" => Detector::FromStructure,
             "fid" => Detector::Fid,
             "ecd" => Detector::Ecd,
             "conductivity" => Detector::Conductivity,
             _ => {
                 return Err(format!(
-                    "unknown detector `{s}`; use uv[:nm], ms, fluorescence, elsd, fid, ecd or conductivity"
+                    "unknown detector `{s}`; use uv[:nm], ms, fluorescence, elsd, cad, ri, pad, fid, ecd, conductivity or auto"
                 ));
             }
         })
@@ -80,7 +97,10 @@ impl Detector {
 
     /// Whether the detector needs a volatile mobile phase.
     pub fn needs_volatile(self) -> bool {
-        matches!(self, Detector::Ms | Detector::Elsd)
+        matches!(
+            self,
+            Detector::Ms | Detector::Elsd | Detector::ChargedAerosol
+        )
     }
 
     /// A short description.
@@ -92,9 +112,13 @@ impl Detector {
                 "fluorescence (set excitation/emission for the analytes)".into()
             }
             Detector::Elsd => "evaporative light scattering (volatile buffer)".into(),
+            Detector::ChargedAerosol => "charged-aerosol detection (volatile buffer)".into(),
+            Detector::RefractiveIndex => "refractive index (isocratic run only)".into(),
+            Detector::PulsedAmperometry => "pulsed amperometry".into(),
             Detector::Fid => "flame ionisation".into(),
             Detector::Ecd => "electron capture (halogenated analytes)".into(),
             Detector::Conductivity => "suppressed conductivity".into(),
+            Detector::FromStructure => "chosen from the analytes' structures".into(),
         }
     }
 }
@@ -102,7 +126,9 @@ impl Detector {
 /// What the user asked for.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct AdviseRequest {
-    /// LC detector (GC uses FID unless ECD or MS is asked for).
+    /// Detector named by the user, or [`Detector::FromStructure`] to let the advisor choose
+    /// one per mode from the analytes' structures. A named detector restricts the modes to
+    /// those it works with ([`detection::compatible_modes`]).
     pub detector: Detector,
     /// LC column length and inner diameter, mm.
     pub column_mm: Option<(f64, f64)>,
@@ -231,7 +257,56 @@ pub fn advise(
             ));
         }
     }
-    let mode_scores = modes::score_modes(profiles, &req.modes);
+    // a named detector works with some modes only: restrict to them, and refuse a mode the
+    // user asked for that the detector cannot serve (rule:detector-mode-pair)
+    let allowed: Vec<PhaseMode> = match detection::compatible_modes(req.detector) {
+        None => req.modes.clone(),
+        Some(ok) if req.modes.is_empty() => ok.to_vec(),
+        Some(ok) => {
+            let both: Vec<PhaseMode> = req
+                .modes
+                .iter()
+                .copied()
+                .filter(|m| ok.contains(m))
+                .collect();
+            if both.is_empty() {
+                let asked = req.modes[0];
+                return Err(AdviseError::BadRequest(
+                    detection::check_pair(req.detector, asked)
+                        .err()
+                        .unwrap_or_default(),
+                ));
+            }
+            both
+        }
+    };
+    let mode_scores = modes::score_modes(profiles, &allowed);
+    if detection::compatible_modes(req.detector).is_some()
+        && mode_scores.iter().all(|m| m.fitting == 0)
+    {
+        let best = modes::score_modes(profiles, &req.modes)
+            .into_iter()
+            .next()
+            .and_then(|m| PhaseMode::parse(&m.mode));
+        return Err(AdviseError::BadRequest(format!(
+            "detector {} works with {} only, and none of the analytes fits {}{}; name a detector for the mode the analytes fit, or none to have one chosen from structure",
+            req.detector.describe(),
+            allowed
+                .iter()
+                .map(|m| detection::mode_words(*m))
+                .collect::<Vec<_>>()
+                .join(", "),
+            if allowed.len() == 1 {
+                "it"
+            } else {
+                "any of them"
+            },
+            best.map_or(String::new(), |m| format!(
+                " (they fit {})",
+                detection::mode_words(m)
+            ))
+        )));
+    }
     let mut candidates: Vec<Candidate> = Vec::new();
     for ms in &mode_scores {
         if ms.score < 0.3 && !candidates.is_empty() {
@@ -248,13 +323,14 @@ pub fn advise(
                 }
                 PhaseMode::Gc => gc::candidate(profiles, phase, req, catalogue),
                 PhaseMode::IcAnion | PhaseMode::IcCation => {
-                    ic::candidate(profiles, phase, mode, catalogue)
+                    ic::candidate(profiles, phase, mode, catalogue, req.detector)
                 }
-                _ => Err("no retention model for this mode yet".to_string()),
+                PhaseMode::IonExclusion => ionexcl::candidate(profiles, phase, req.detector),
             };
             match made {
                 Ok(mut rec) => {
                     rec.excluded = modes::excluded(profiles, &ms.mode, &mode_scores);
+                    apply_coverage(&mut rec, profiles.len());
                     candidates.push(Candidate {
                         rec,
                         mode_score: ms.score,
@@ -286,12 +362,15 @@ pub fn advise(
             }
         )));
     }
-    // Rank: the mode's fit for the whole list first, then the phase's own score.
+    // Rank: the mode's fit for the whole list first (every analyte counted, unknowns against
+    // it), then the phase's own score, already scaled by the share of analytes the candidate
+    // predicts (rule:coverage): a method covering fewer analytes never outranks one that covers
+    // all with comparable separation in a mode that fits as well.
     candidates.sort_by(|a, b| {
         let sa = 0.6 * a.mode_score + 0.4 * a.rec.score;
         let sb = 0.6 * b.mode_score + 0.4 * b.rec.score;
+        // ties keep the catalogue order (common chemistries first; the sort is stable)
         sb.total_cmp(&sa)
-            .then_with(|| a.rec.phase.id.cmp(&b.rec.phase.id))
     });
     for (i, c) in candidates.iter_mut().enumerate() {
         c.rec.rank = i as u32 + 1;
@@ -313,7 +392,7 @@ pub fn advise(
             .retain(|c| c.probability >= req.risk_threshold);
     }
     if backup.is_none() && !req.no_backup {
-        warnings.push(no_backup_reason(&candidates[0].rec));
+        warnings.push(no_backup_reason(&candidates[0].rec, &candidates));
     }
     let first_mode = candidates[0].rec.mode.clone();
     let first_ph = candidates[0].rec.conditions.ph;
@@ -372,15 +451,16 @@ fn summary(p: &AnalyteProfile, ph: Option<f64>, mode: &str) -> AnalyteSummary {
     }
     let (gc_suitability, gc_reasons) = match &p.gc {
         Some(g) => (
-            match g.verdict {
-                crate::structure::volatility::GcVerdict::Suitable => "suitable",
-                crate::structure::volatility::GcVerdict::SuitableAfterDerivatisation => {
-                    "suitable after derivatisation"
-                }
-                crate::structure::volatility::GcVerdict::Unsuitable => "unsuitable",
-            }
-            .to_string(),
-            g.flags.iter().map(|f| f.reason.clone()).collect(),
+            g.verdict.label().to_string(),
+            g.flags
+                .iter()
+                .map(|f| match f.derivatisation {
+                    Some(d) if f.severity != crate::structure::volatility::Severity::Caution => {
+                        format!("{}; derivatisation option: {}", f.reason, d.describe())
+                    }
+                    _ => f.reason.clone(),
+                })
+                .collect(),
         ),
         None => (
             "unknown".to_string(),
@@ -397,6 +477,48 @@ fn summary(p: &AnalyteProfile, ph: Option<f64>, mode: &str) -> AnalyteSummary {
         gc_suitability,
         gc_reasons,
     }
+}
+
+/// Share of the request's analytes a recommendation predicts (1 when not yet counted).
+pub fn coverage(rec: &Recommendation) -> f64 {
+    if rec.total_analytes == 0 {
+        1.0
+    } else {
+        rec.predicted_analytes as f64 / rec.total_analytes as f64
+    }
+}
+
+/// Score a recommendation on all analytes of the request (rule:coverage): the score is scaled
+/// by the share predicted, and a separation that rests on fewer than two predicted analytes of
+/// a longer list is unknown, not perfect (common practice, no source: unknown is unknown).
+pub fn apply_coverage(rec: &mut Recommendation, total: usize) {
+    rec.total_analytes = total;
+    rec.predicted_analytes = rec.predictions.len();
+    let n = rec.predicted_analytes;
+    if n >= total {
+        return;
+    }
+    let share = n as f64 / total.max(1) as f64;
+    let mut factor = share;
+    if n < 2 && total >= 2 {
+        factor *= 0.5;
+        for r in &mut rec.reasons {
+            if r.source == "model:predicted-separation" {
+                r.text = format!(
+                    "only {n} of {total} analytes predicted: the separation is unknown, not perfect (counted at half)"
+                );
+            }
+        }
+    }
+    let before = rec.score;
+    rec.score = (rec.score * factor).clamp(0.0, 1.0);
+    rec.reasons.push(Reason {
+        source: "rule:coverage".into(),
+        text: format!(
+            "predicted for {n} of {total} analytes: the analytes this method cannot predict or handle count against it (score x {factor:.2}; common practice, no source)"
+        ),
+        weight: Some(rec.score - before),
+    });
 }
 
 /// Resolution of the pair (a, b) in a recommendation, from its predictions.
@@ -436,8 +558,11 @@ pub fn unscored_recommendation(
         excluded: Vec::new(),
         critical_resolution: None,
         critical_pair: None,
+        predicted_analytes: 0,
+        total_analytes: 0,
     };
     finish_predictions(&mut rec);
+    rec.predicted_analytes = rec.predictions.len();
     let (sep, reason) = separation_score(&rec);
     (rec, sep, reason)
 }
@@ -553,7 +678,14 @@ pub fn family(id: &str) -> &str {
 const OTHER_MODE_MARGIN: f64 = 0.2;
 
 /// Why no back-up was chosen, when none was.
-fn no_backup_reason(first: &Recommendation) -> String {
+fn no_backup_reason(first: &Recommendation, cands: &[Candidate]) -> String {
+    if let (Some((a, b)), Some(r1)) = (&first.critical_pair, first.critical_resolution)
+        && cands.len() > 1
+    {
+        return format!(
+            "no back-up: no other evaluated phase predicts a better resolution than {r1:.2} for the first choice's critical pair {a} / {b} (rule:backup-for-critical-pair)"
+        );
+    }
     format!(
         "no orthogonal back-up: no other evaluated phase in a mode that at least half of the analytes fit (and that scores within 0.2 of the first choice's mode), and of another selectivity family than {} ({})",
         first.phase.id,
@@ -601,6 +733,18 @@ fn choose_backup(
         if c.rec.phase.id == first.phase.id || !fits(&c.rec.mode) {
             continue;
         }
+        // a back-up must cover the analytes the first choice covers, and predict a better
+        // resolution for its critical pair (rule:backup-for-critical-pair; common practice,
+        // no source: a back-up that leaves the critical pair as it is does not help)
+        if c.rec.predicted_analytes < first.predicted_analytes {
+            continue;
+        }
+        if let (Some((a, b)), Some(r1)) = (&first.critical_pair, first.critical_resolution) {
+            match pair_resolution(&c.rec, a, b) {
+                Some(r2) if r2 > r1 + 0.05 => {}
+                _ => continue,
+            }
+        }
         // another mode only when the list fits it nearly as well as the first choice's mode;
         // otherwise the back-up is a phase of another family in the same mode (for volatile
         // analytes a second GC column of another polarity, not an LC method; common practice,
@@ -639,7 +783,7 @@ fn choose_backup(
         .collect();
     let mut rec = c.rec.clone();
     rec.rank = 0;
-    let why = if rec.mode != first.mode {
+    let mut why = if rec.mode != first.mode {
         format!(
             "a different separation mode ({} instead of {}) changes the retention mechanism",
             rec.mode, first.mode
@@ -650,6 +794,13 @@ fn choose_backup(
             rec.phase.name
         )
     };
+    if let (Some((a, b)), Some(r1)) = (&first.critical_pair, first.critical_resolution)
+        && let Some(r2) = pair_resolution(&rec, a, b)
+    {
+        why.push_str(&format!(
+            "; it predicts resolution {r2:.2} for the first choice's critical pair {a} / {b} (first choice {r1:.2}; rule:backup-for-critical-pair)"
+        ));
+    }
     Some(Backup {
         recommendation: rec,
         changes,
@@ -695,6 +846,12 @@ fn cautions(
                 add("gas", "hydrogen carrier gas is flammable: use a leak-checked system with hydrogen sensor or shut-off, and follow the lab's gas-safety procedure".into());
             }
             add("gas", "secure gas cylinders, use proper regulators and check for leaks after every column change".into());
+        }
+        if rec.mode == "ion-exclusion" {
+            add(
+                "solvent",
+                "dilute sulfuric acid eluent is corrosive: wear eye protection and add acid to water, never water to acid".into(),
+            );
         }
         if rec.mode.starts_with("ic") {
             let eluent = c.mobile_phase_a.as_deref().unwrap_or("");

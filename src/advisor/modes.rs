@@ -5,7 +5,8 @@
 use super::profile::AnalyteProfile;
 use crate::phase::PhaseMode;
 use crate::report::advice::{Excluded, ModeScore, Reason};
-use crate::structure::volatility::GcVerdict;
+use crate::structure::ionisable::SiteKind;
+use crate::structure::volatility::{GC_HIGH_TB_K, GC_MAX_TB_K, GcVerdict};
 
 /// Analytes scoring below this in a mode are listed as not fitting it.
 pub const FIT_THRESHOLD: f64 = 0.4;
@@ -14,18 +15,70 @@ fn logistic(x: f64) -> f64 {
     1.0 / (1.0 + (-x).exp())
 }
 
-/// The fit of one analyte to one mode, with the reason.
+/// A neutral, low-polarity analyte that GC handles as is: no H-bond donor, polar surface
+/// area at most 40 Å², no group ionised between pH 2 and 12, GC-suitable and boiling below
+/// [`GC_MAX_TB_K`] (hydrocarbons, halogenated pesticides and PCBs, esters including fatty-acid
+/// methyl esters, ethers, ketones). GC is the usual technique for these classes (rule
+/// `rule:gc-volatile-neutral-class`; common practice, no source).
+pub fn gc_neutral_class(p: &AnalyteProfile) -> bool {
+    let Some(e) = p.estimate.as_ref() else {
+        return false;
+    };
+    p.gc_verdict() == Some(GcVerdict::Suitable)
+        && !p.inorganic_ion
+        && e.descriptors.hbond_donors == 0
+        && e.descriptors.tpsa_a2 <= 40.0
+        && p.tb_k.is_some_and(|(t, _)| t <= GC_MAX_TB_K)
+        && !p.sites.iter().any(|s| {
+            matches!(s.kind, SiteKind::PermanentAnion | SiteKind::PermanentCation)
+                || s.pka.is_some_and(|k| (2.0..=12.0).contains(&k))
+        })
+}
+
+/// A small organic acid that ion exclusion serves: a carboxylic acid (pKa below 6), no basic
+/// group above pKa 8 (not an amino acid), molar mass below 250 g/mol and logP below 1.5
+/// (rule `rule:ion-exclusion-organic-acids`; common practice, no source).
+pub fn small_organic_acid(p: &AnalyteProfile) -> bool {
+    let mw = p.molar_mass_g_mol.unwrap_or(f64::INFINITY);
+    !p.inorganic_ion
+        && p.sites
+            .iter()
+            .any(|s| s.kind == SiteKind::Acid && s.pka.is_some_and(|k| k < 6.0))
+        && !p.strong_base(8.0)
+        && mw < 250.0
+        && p.log_p.is_some_and(|(l, _)| l < 1.5)
+}
+
+/// The fit of one analyte to one mode, with the reason. Missing evidence is never favourable:
+/// an analyte whose structure, boiling point or logP is unknown scores low in the modes that
+/// need it, and the reason says "unknown".
 pub fn fit(p: &AnalyteProfile, mode: PhaseMode) -> (f64, String) {
     let mw = p.molar_mass_g_mol.unwrap_or(200.0);
     match mode {
         PhaseMode::Gc => {
+            if let Some(ion) = &p.ion {
+                return (
+                    0.0,
+                    format!("{}; an ion in solution is not volatile", ion.how),
+                );
+            }
             if p.permanently_charged() {
                 return (0.0, "an ion is not volatile".into());
             }
             match p.gc_verdict() {
                 Some(GcVerdict::Suitable) => match p.tb_k {
+                    None => (
+                        0.0,
+                        "unknown: no boiling point, so volatility is unknown".into(),
+                    ),
+                    Some((tb, _)) if gc_neutral_class(p) => (
+                        if tb > GC_HIGH_TB_K { 0.9 } else { 1.0 },
+                        format!(
+                            "neutral, low-polarity and boiling at about {tb:.0} K: GC is the usual technique for this class (rule:gc-volatile-neutral-class)"
+                        ),
+                    ),
                     // high-boiling analytes need high oven temperatures and thin films
-                    Some((tb, _)) if tb > 600.0 => (
+                    Some((tb, _)) if tb > GC_HIGH_TB_K => (
                         0.45,
                         format!(
                             "boiling point about {tb:.0} K: elutes only at high oven temperature"
@@ -35,48 +88,84 @@ pub fn fit(p: &AnalyteProfile, mode: PhaseMode) -> (f64, String) {
                     _ => (1.0, "volatile and thermally stable enough for GC".into()),
                 },
                 Some(GcVerdict::SuitableAfterDerivatisation) => {
-                    (0.45, "needs derivatisation before GC (polar groups)".into())
+                    let how: Vec<&str> = p
+                        .gc
+                        .iter()
+                        .flat_map(|g| g.flags.iter())
+                        .filter_map(|f| f.derivatisation.map(|d| d.describe()))
+                        .take(1)
+                        .collect();
+                    (
+                        0.45,
+                        format!(
+                            "needs derivatisation before GC (polar or labile groups): {}",
+                            how.first().copied().unwrap_or("derivatise")
+                        ),
+                    )
                 }
                 Some(GcVerdict::Unsuitable) => (0.05, "not volatile or thermally labile".into()),
-                None => match p.tb_k {
-                    Some((tb, _)) if tb < 550.0 => (0.6, format!("boiling point {tb:.0} K")),
-                    _ => (0.1, "volatility unknown".into()),
-                },
+                Some(GcVerdict::Unknown) => (
+                    0.0,
+                    "unknown: no boiling point could be estimated, so volatility is unknown (counted against GC, never for it)".into(),
+                ),
+                None => (
+                    0.0,
+                    "unknown: no structure to assess volatility and thermal stability (counted against GC, never for it)".into(),
+                ),
             }
         }
         PhaseMode::Rp => {
-            if p.permanently_charged() && p.inorganic_ion {
+            if p.inorganic_ion {
                 return (0.05, "a small ion is not retained by reversed phase".into());
             }
-            // small volatile neutrals (solvents, BTEX) are usually run by GC (common practice)
+            // small volatile neutrals (solvents, BTEX) and the neutral low-polarity classes GC
+            // serves are usually run by GC (common practice)
             let volatile = p.tb_k.is_some_and(|(t, _)| t < 450.0)
                 && p.gc_verdict() == Some(GcVerdict::Suitable);
-            match p.max_log_d(2.0, 8.0) {
-                Some(d) if volatile => (
+            let gc_class = gc_neutral_class(p);
+            // pH 2-11: bases are neutral and retained at high pH on a high-pH-stable phase
+            match p.max_log_d(2.0, 11.0) {
+                Some(d) if volatile || gc_class => (
                     0.6 * logistic(2.0 * (d + 1.5)),
-                    format!("highest logD over pH 2-8 is {d:.1}, but volatile enough for GC"),
+                    format!(
+                        "highest logD over pH 2-11 is {d:.1}, but {} (rule:gc-volatile-neutral-class)",
+                        if volatile {
+                            "volatile enough for GC"
+                        } else {
+                            "a neutral, low-polarity analyte that GC serves"
+                        }
+                    ),
                 ),
                 Some(d) => (
                     logistic(2.0 * (d + 1.5)),
-                    format!("highest logD over pH 2-8 is {d:.1}"),
+                    format!(
+                        "highest logD over pH 2-11 is {d:.1} (pH above 8 only on a high-pH-stable phase)"
+                    ),
                 ),
-                None => (0.5, "no logP known".into()),
+                None => (0.3, "unknown: no logP known".into()),
             }
         }
         PhaseMode::Hilic => match p.log_d(3.0) {
-            Some(d) if !p.inorganic_ion => (
-                logistic(2.0 * (-0.5 - d)),
-                format!("logD at pH 3 is {d:.1}"),
-            ),
-            Some(_) | None if p.inorganic_ion => (
+            _ if p.inorganic_ion => (
                 0.3,
                 "small ions are retained in HILIC but IC is the usual choice".into(),
             ),
-            _ => (0.4, "no logP known".into()),
+            Some(d) => (
+                logistic(2.0 * (-0.5 - d)),
+                format!("logD at pH 3 is {d:.1}"),
+            ),
+            None => (0.3, "unknown: no logP known".into()),
         },
         PhaseMode::IcAnion => {
             if p.inorganic_ion && p.formal_charge < 0 {
-                (1.0, "inorganic or small anion".into())
+                (
+                    1.0,
+                    p.ion
+                        .as_ref()
+                        .map_or("inorganic or small anion".into(), |i| {
+                            format!("{} (rule:ions-to-ic)", i.how)
+                        }),
+                )
             } else if p.has_acid() && mw < 200.0 && p.log_p.is_some_and(|(l, _)| l < 1.0) {
                 (
                     0.6,
@@ -88,7 +177,14 @@ pub fn fit(p: &AnalyteProfile, mode: PhaseMode) -> (f64, String) {
         }
         PhaseMode::IcCation => {
             if p.inorganic_ion && p.formal_charge > 0 {
-                (1.0, "inorganic or small cation".into())
+                (
+                    1.0,
+                    p.ion
+                        .as_ref()
+                        .map_or("inorganic or small cation".into(), |i| {
+                            format!("{} (rule:ions-to-ic)", i.how)
+                        }),
+                )
             } else if p.strong_base(8.0) && mw < 150.0 && p.log_p.is_some_and(|(l, _)| l < 1.0) {
                 (
                     0.6,
@@ -99,12 +195,11 @@ pub fn fit(p: &AnalyteProfile, mode: PhaseMode) -> (f64, String) {
             }
         }
         PhaseMode::IonExclusion => {
-            if p.has_acid()
-                && !p.inorganic_ion
-                && mw < 250.0
-                && p.log_p.is_some_and(|(l, _)| l < 1.0)
-            {
-                (0.7, "small organic acid".into())
+            if small_organic_acid(p) {
+                (
+                    1.0,
+                    "small organic acid: separated by its pKa and size on an ion-exclusion resin with a dilute acid eluent (rule:ion-exclusion-organic-acids)".into(),
+                )
             } else {
                 (0.0, "not a small organic acid".into())
             }
@@ -199,4 +294,103 @@ pub fn excluded(_profiles: &[AnalyteProfile], mode: &str, scores: &[ModeScore]) 
         .find(|s| s.mode == mode)
         .map(|s| s.not_fitting.clone())
         .unwrap_or_default()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::advisor::profile::{AnalyteProfile, test_profile};
+    use crate::property::{Analyte, Origin};
+
+    // Expectations: common practice, no source.
+    #[test]
+    fn missing_evidence_never_favours_gc() {
+        // no structure at all: volatility unknown
+        let p = AnalyteProfile::new(Analyte {
+            query: "mystery".into(),
+            name: "mystery".into(),
+            inchikey: None,
+            smiles: None,
+            formula: None,
+            molar_mass_g_mol: None,
+            cid: None,
+            cas: None,
+            origin: Origin::Shipped,
+            matched_by: "test".into(),
+            properties: Vec::new(),
+        });
+        let (f, why) = fit(&p, PhaseMode::Gc);
+        assert_eq!(f, 0.0);
+        assert!(why.starts_with("unknown"), "{why}");
+        // no boiling point (Joback has no silicon group)
+        let (f, why) = fit(&test_profile("tms", "C[Si](C)(C)C"), PhaseMode::Gc);
+        assert_eq!(f, 0.0, "{why}");
+        // ions of the ion table, whatever the name: not GC, IC
+        for (name, smi) in [
+            ("sodium", "[Na]"),
+            ("fluoride", "[F-]"),
+            ("sodium nitrate", "[Na+].[O-][N+]([O-])=O"),
+        ] {
+            let p = test_profile(name, smi);
+            assert_eq!(fit(&p, PhaseMode::Gc).0, 0.0, "{name}");
+            let best = best_mode(&p, &[]).expect("a mode");
+            assert!(
+                matches!(best, PhaseMode::IcAnion | PhaseMode::IcCation),
+                "{name}: {best:?}"
+            );
+        }
+    }
+
+    #[test]
+    fn neutral_low_polarity_classes_favour_gc_over_reversed_phase() {
+        for (name, smi) in [
+            ("methyl palmitate", "CCCCCCCCCCCCCCCC(=O)OC"),
+            ("hexachlorobenzene", "Clc1c(Cl)c(Cl)c(Cl)c(Cl)c1Cl"),
+            ("PCB 52", "Clc1ccc(Cl)c(c1)-c1cc(Cl)ccc1Cl"),
+            ("lindane", "ClC1C(Cl)C(Cl)C(Cl)C(Cl)C1Cl"),
+        ] {
+            let p = test_profile(name, smi);
+            assert!(gc_neutral_class(&p), "{name}");
+            assert!(
+                fit(&p, PhaseMode::Gc).0 > fit(&p, PhaseMode::Rp).0 + 0.1,
+                "{name}"
+            );
+        }
+        // a basic drug and a sulfonamide are not in the class
+        assert!(!gc_neutral_class(&test_profile(
+            "amitriptyline",
+            "CN(C)CCC=C1c2ccccc2CCc2ccccc12"
+        )));
+        assert!(!gc_neutral_class(&test_profile(
+            "sulfamethoxazole",
+            "Cc1cc(NS(=O)(=O)c2ccc(N)cc2)no1"
+        )));
+    }
+
+    #[test]
+    fn small_organic_acids_fit_ion_exclusion_and_amino_acids_do_not() {
+        for smi in ["OC(=O)CC(O)C(=O)O", "CC(O)C(=O)O", "OC(=O)C(O)C(O)C(=O)O"] {
+            assert_eq!(
+                fit(&test_profile("acid", smi), PhaseMode::IonExclusion).0,
+                1.0,
+                "{smi}"
+            );
+        }
+        assert_eq!(
+            fit(
+                &test_profile("alanine", "CC(N)C(=O)O"),
+                PhaseMode::IonExclusion
+            )
+            .0,
+            0.0
+        );
+        assert_eq!(
+            fit(
+                &test_profile("palmitic acid", "CCCCCCCCCCCCCCCC(=O)O"),
+                PhaseMode::IonExclusion
+            )
+            .0,
+            0.0
+        );
+    }
 }

@@ -6,9 +6,93 @@ use crate::model::gc::{GcAnalyte, RingSubstitution};
 use crate::property::estimate::{StructureEstimate, estimate};
 use crate::property::ionisation;
 use crate::property::{Analyte, Origin, PropertyKind};
+use crate::structure::chromophore::{ChromophoreClass, classify};
 use crate::structure::graph::{BondOrder, MolGraph};
 use crate::structure::ionisable::{AcidBase, IonisableSite, SiteKind, apply_experimental};
 use crate::structure::volatility::{GcAssessment, GcVerdict, assess_gc};
+
+/// The ion of the ion-chromatography table an analyte is, or is analysed as (a salt by its
+/// ion), whatever name the user gave it.
+#[derive(Debug, Clone, PartialEq)]
+pub struct IonMatch {
+    /// Ion id in the ion table (`data/ic_ions.tsv`).
+    pub id: String,
+    /// Charge of the ion.
+    pub charge: i8,
+    /// How the match was made, in plain words.
+    pub how: String,
+}
+
+/// Counter-ions that a salt is rarely analysed for: a salt of one of them is analysed by its
+/// other ion (sodium nitrate by nitrate); common practice, no source.
+const COMMON_COUNTER_IONS: [&str; 3] = ["sodium", "potassium", "chloride"];
+
+/// Match an analyte to the ion table: by the name or query as typed (`fluoride`, `methylamine`),
+/// by the words of a salt name (`potassium nitrate`), or by the components of a salt SMILES.
+pub fn match_ion(analyte: &Analyte) -> Option<IonMatch> {
+    let cat = crate::phase::Catalogue::builtin().ok()?;
+    for q in [&analyte.query, &analyte.name] {
+        if let Ok(ion) = cat.ic_ion(q.trim()) {
+            return Some(IonMatch {
+                id: ion.id().to_string(),
+                charge: ion.charge(),
+                how: format!("`{}` is the {} ion of the ion table", q.trim(), ion.name()),
+            });
+        }
+    }
+    let pick = |ions: Vec<&crate::phase::IcIon>, what: &str| -> Option<IonMatch> {
+        if ions.len() < 2 {
+            return None;
+        }
+        let analysed: Vec<&&crate::phase::IcIon> = ions
+            .iter()
+            .filter(|i| !COMMON_COUNTER_IONS.contains(&i.id()))
+            .collect();
+        let ion = match analysed.as_slice() {
+            [one] => **one,
+            _ => *ions.iter().find(|i| i.charge() < 0).unwrap_or(&ions[0]),
+        };
+        let others: Vec<&str> = ions
+            .iter()
+            .filter(|i| i.id() != ion.id())
+            .map(|i| i.name())
+            .collect();
+        Some(IonMatch {
+            id: ion.id().to_string(),
+            charge: ion.charge(),
+            how: format!(
+                "{what}: analysed as its {} ion ({} the counter-ion)",
+                ion.name(),
+                others.join(", ")
+            ),
+        })
+    };
+    for q in [&analyte.query, &analyte.name] {
+        let words: Vec<&str> = q
+            .split(|c: char| c.is_whitespace() || c == ',')
+            .filter(|w| !w.is_empty() && !w.eq_ignore_ascii_case("ion"))
+            .collect();
+        let ions: Vec<&crate::phase::IcIon> =
+            words.iter().filter_map(|w| cat.ic_ion(w).ok()).collect();
+        if ions.len() == words.len()
+            && let Some(m) = pick(ions, &format!("`{}` is a salt", q.trim()))
+        {
+            return Some(m);
+        }
+    }
+    let smiles = analyte.smiles.as_deref()?;
+    if smiles.contains('.') {
+        let parts: Vec<&str> = smiles.split('.').collect();
+        let ions: Vec<&crate::phase::IcIon> = parts
+            .iter()
+            .filter_map(|p| cat.ic_ions().iter().find(|i| i.smiles() == *p))
+            .collect();
+        if ions.len() == parts.len() {
+            return pick(ions, "a salt of table ions");
+        }
+    }
+    None
+}
 
 /// Standard uncertainty taken for an experimental boiling point, K (handbook and database
 /// values; assumption, from memory).
@@ -48,12 +132,45 @@ pub struct AnalyteProfile {
     pub molar_mass_g_mol: Option<f64>,
     /// Things the advisor should say about this analyte.
     pub notes: Vec<String>,
+    /// The ion-table ion the analyte is analysed as, when it is one (or a salt of one).
+    pub ion: Option<IonMatch>,
+    /// The strongest UV chromophore of the structure (`None` without a structure).
+    pub chromophore: Option<ChromophoreClass>,
 }
 
 impl AnalyteProfile {
     /// Build the profile of a resolved analyte.
     pub fn new(mut analyte: Analyte) -> AnalyteProfile {
         let mut notes = Vec::new();
+        // a doubled backslash is never valid SMILES: it is an escaping error (about 3 % of the
+        // shipped structures, those with cis/trans double bonds, carry it); read the structure
+        // with single backslashes and fill the estimates the knowledge base could not make
+        if let Some(s) = analyte.smiles.clone()
+            && s.contains("\\\\")
+            && estimate(&s).is_err()
+        {
+            let fixed = s.replace("\\\\", "\\");
+            if let Ok(e) = estimate(&fixed) {
+                notes.push(
+                    "the stored SMILES has doubled backslashes (an escaping error); read with single ones".into(),
+                );
+                let mut filled = analyte.clone();
+                filled.properties.clear();
+                crate::property::estimate::attach_estimates(&mut filled, &e);
+                for p in filled.properties {
+                    if analyte.best(&p.property).is_none() {
+                        analyte.properties.push(p);
+                    }
+                }
+                if analyte.formula.is_none() {
+                    analyte.formula = filled.formula;
+                }
+                if analyte.molar_mass_g_mol.is_none() {
+                    analyte.molar_mass_g_mol = filled.molar_mass_g_mol;
+                }
+                analyte.smiles = Some(fixed);
+            }
+        }
         let est = analyte.smiles.as_deref().and_then(|s| match estimate(s) {
             Ok(e) => Some(e),
             Err(err) => {
@@ -146,8 +263,19 @@ impl AnalyteProfile {
         let molar_mass_g_mol = analyte
             .molar_mass_g_mol
             .or_else(|| est.as_ref().and_then(|e| e.descriptors.molar_mass_g_mol));
-        let inorganic_ion =
-            formal_charge != 0 && (!carbon || molar_mass_g_mol.is_some_and(|m| m < 90.0));
+        let ion = match_ion(&analyte);
+        // a salt (charged components summing to zero) is ionic too
+        let salt = est.as_ref().is_some_and(|e| {
+            e.graph.atoms.iter().any(|a| a.formal_charge != 0)
+                && analyte.smiles.as_deref().is_some_and(|s| s.contains('.'))
+        });
+        // an ion of the ion table (or a salt of one) is treated as that ion, whatever the
+        // name (common practice, no source: ions are analysed by IC)
+        let inorganic_ion = ion.is_some()
+            || ((formal_charge != 0 || salt)
+                && (!carbon || molar_mass_g_mol.is_some_and(|m| m < 90.0)));
+        let formal_charge = ion.as_ref().map_or(formal_charge, |i| i32::from(i.charge));
+        let chromophore = est.as_ref().map(|e| classify(&e.graph));
         AnalyteProfile {
             analyte,
             estimate: est,
@@ -160,6 +288,8 @@ impl AnalyteProfile {
             inorganic_ion,
             molar_mass_g_mol,
             notes,
+            ion,
+            chromophore,
         }
     }
 
@@ -273,6 +403,25 @@ impl AnalyteProfile {
             is_n_alkane_carbon_count: e.and_then(|e| n_alkane(&e.graph)),
         })
     }
+}
+
+/// A profile from a name and a SMILES string alone (structure-based estimates only), for
+/// tests of the advisor's rules.
+#[cfg(test)]
+pub(crate) fn test_profile(name: &str, smiles: &str) -> AnalyteProfile {
+    AnalyteProfile::new(Analyte {
+        query: name.into(),
+        name: name.into(),
+        inchikey: None,
+        smiles: Some(smiles.into()),
+        formula: None,
+        molar_mass_g_mol: None,
+        cid: None,
+        cas: None,
+        origin: Origin::Structure,
+        matched_by: "test".into(),
+        properties: Vec::new(),
+    })
 }
 
 /// Functional-group counts used by the GC retention-index model.
@@ -486,5 +635,34 @@ mod tests {
         assert_eq!(c("c1ccccc1[N+](=O)[O-]").nitro, 1);
         assert_eq!(n_alkane(&parse_smiles("CCCCCC").unwrap().graph), Some(6));
         assert_eq!(n_alkane(&parse_smiles("CC(C)C").unwrap().graph), None);
+    }
+}
+
+#[cfg(test)]
+mod repair_tests {
+    use super::*;
+
+    #[test]
+    fn a_doubled_backslash_smiles_is_read_and_its_estimates_filled() {
+        // methyl oleate as stored with an escaping error (cis double bond)
+        let p = AnalyteProfile::new(Analyte {
+            query: "methyl oleate".into(),
+            name: "methyl oleate".into(),
+            inchikey: None,
+            smiles: Some("CCCCCCCC/C=C\\\\CCCCCCCC(=O)OC".into()),
+            formula: None,
+            molar_mass_g_mol: None,
+            cid: None,
+            cas: None,
+            origin: Origin::Shipped,
+            matched_by: "test".into(),
+            properties: Vec::new(),
+        });
+        assert!(p.estimate.is_some(), "{:?}", p.notes);
+        assert!(p.log_p.is_some() && p.tb_k.is_some());
+        assert_eq!(
+            p.analyte.smiles.as_deref(),
+            Some("CCCCCCCC/C=C\\CCCCCCCC(=O)OC")
+        );
     }
 }

@@ -23,8 +23,10 @@ pub struct AdviseOptions {
     /// Analytes.
     #[command(flatten)]
     pub input: AnalyteInput,
-    /// Detector: uv[:nm] (default uv:220), ms, fluorescence, elsd, fid, ecd, conductivity.
-    #[arg(long, default_value = "uv:220")]
+    /// Detector: auto (default: chosen per mode from the analytes' structures), uv[:nm], ms,
+    /// fluorescence, elsd, cad, ri, pad, fid, ecd, conductivity. A named detector limits the
+    /// modes to those it works with.
+    #[arg(long, default_value = "auto")]
     pub detector: String,
     /// LC column as LENGTHxID in mm, e.g. 100x2.1 (default 150x4.6).
     #[arg(long, value_name = "LxID")]

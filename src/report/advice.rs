@@ -130,6 +130,13 @@ pub struct Recommendation {
     pub critical_resolution: Option<f64>,
     /// The critical pair (names).
     pub critical_pair: Option<(String, String)>,
+    /// Analytes this recommendation predicts; with `total_analytes` the table shows
+    /// "predicted for n of m analytes". Analytes not predicted count against the method.
+    #[serde(default)]
+    pub predicted_analytes: usize,
+    /// Analytes in the request.
+    #[serde(default)]
+    pub total_analytes: usize,
 }
 
 /// A stationary phase as shown in reports.

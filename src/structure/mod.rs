@@ -10,10 +10,12 @@
 //!
 //! Read from the same graph: ionisable groups with typical pKa values ([`ionisable`]), the
 //! Joback normal boiling point ([`joback`]) and GC suitability flags ([`volatility`]);
-//! [`query`] is the checked view of the graph those three use.
+//! [`query`] is the checked view of the graph those three use. [`chromophore`] classes the
+//! conjugated pi systems for UV detection.
 
 pub mod abraham;
 pub mod adapter;
+pub mod chromophore;
 pub mod crippen;
 pub mod descriptors;
 pub mod elements;

@@ -26,9 +26,21 @@ pub const VERY_VOLATILE_BELOW_K: f64 = 373.15;
 pub const VOLATILE_BELOW_K: f64 = 533.15;
 /// Semi-volatile below this Tb, K (400 °C); non-volatile at or above.
 pub const SEMI_VOLATILE_BELOW_K: f64 = 673.15;
-/// Estimated Tb above which elution by GC is doubtful, K (about 377 °C, typical upper column
-/// temperatures 320–380 °C; common practice, no source).
-pub const GC_MAX_TB_K: f64 = 650.0;
+/// Estimated Tb above which elution by GC is doubtful, K (about 477 °C). A compound elutes
+/// when its vapour pressure at the oven temperature is a small fraction of an atmosphere, so
+/// compounds boiling well above the upper column temperature (320–350 °C) still elute: five-
+/// and six-ring aromatic hydrocarbons (Tb 490–530 °C) and hexachlorobiphenyls are routine on
+/// thin-film low-polarity columns (common practice, no source).
+pub const GC_MAX_TB_K: f64 = 750.0;
+/// Estimated Tb above which GC needs a high final oven temperature and a thin film, K (about
+/// 377 °C; common practice, no source): a caution, not a verdict.
+pub const GC_HIGH_TB_K: f64 = 650.0;
+/// Number of hydrogens on N and O at which H-bonding makes a molecule adsorb and tail in GC
+/// unless the donors are capped (common practice, no source): an NH2 and an NH, or three OH.
+pub const MANY_DONOR_HYDROGENS: u32 = 3;
+/// A free monocarboxylic acid boiling below this runs as is on an acid-modified polyethylene
+/// glycol phase (short-chain fatty acids, C2–C7; common practice, no source), K (about 247 °C).
+pub const VOLATILE_ACID_MAX_TB_K: f64 = 520.0;
 /// Molar mass above which GC is doubtful, g/mol (common practice, no source).
 pub const GC_MAX_MOLAR_MASS_G_MOL: f64 = 600.0;
 /// Hydroxyl count at which a molecule needs silylation for GC (common practice, no source).
@@ -62,6 +74,27 @@ pub enum Derivatisation {
     EsterificationAndAcylation,
 }
 
+impl Derivatisation {
+    /// Plain words for reports: what the reaction makes and what it costs (time, conditions,
+    /// handling; typical figures, common practice, no source).
+    pub fn describe(self) -> &'static str {
+        match self {
+            Derivatisation::Silylation => {
+                "silylation (trimethylsilyl ethers, esters and amines; about 30-60 min at 60-80 °C with a silylating reagent, sample and solvent dry; derivatives hydrolyse, inject the same day)"
+            }
+            Derivatisation::Esterification => {
+                "methylation / esterification (methyl esters; about 10-30 min heating with acidic methanol or another alkylating reagent, then extraction into an organic solvent)"
+            }
+            Derivatisation::Acylation => {
+                "acylation (fluoroacyl amides and esters; about 15-30 min at 60 °C with an anhydride, excess reagent and acid removed before injection; also gives an electron-capture response)"
+            }
+            Derivatisation::EsterificationAndAcylation => {
+                "two steps: esterify the acid, then acylate the amine (about 1-2 h in all), or silylate both groups in one step"
+            }
+        }
+    }
+}
+
 /// What a flag is about.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Serialize, Deserialize)]
 #[serde(rename_all = "snake_case")]
@@ -92,6 +125,14 @@ pub enum GcIssue {
     HighBoilingPoint,
     /// No boiling point available.
     UnknownBoilingPoint,
+    /// Three or more hydrogens on N and O (strong H-bond donor).
+    ManyHbondDonors,
+    /// Aromatic 1,2-diol (catechol): oxidises and adsorbs.
+    Catechol,
+    /// Sulfonamide N-H: polar, thermally labile.
+    Sulfonamide,
+    /// Lactam or imide N-H in an aromatic ring (nucleobases, uracils, xanthines).
+    AromaticLactam,
 }
 
 /// How serious a flag is.
@@ -131,6 +172,20 @@ pub enum GcVerdict {
     SuitableAfterDerivatisation,
     /// Prefer LC (or another technique).
     Unsuitable,
+    /// No boiling point could be had, so volatility is unknown (never taken as suitable).
+    Unknown,
+}
+
+impl GcVerdict {
+    /// Plain words for reports.
+    pub fn label(self) -> &'static str {
+        match self {
+            GcVerdict::Suitable => "suitable",
+            GcVerdict::SuitableAfterDerivatisation => "suitable after derivatisation",
+            GcVerdict::Unsuitable => "unsuitable",
+            GcVerdict::Unknown => "unknown (no boiling point)",
+        }
+    }
 }
 
 /// Where the boiling point came from.
@@ -257,11 +312,16 @@ pub fn assess_gc(
     };
     let molar_mass_g_mol = v.molar_mass_g_mol();
 
-    acid_flags(&sites, &mut flags);
+    let donor_h: u32 = (0..v.len())
+        .filter(|&i| matches!(v.z(i), 7 | 8))
+        .map(|i| u32::from(v.h(i)))
+        .sum();
+    acid_flags(&sites, tb_k, donor_h, &mut flags);
     charge_flags(&sites, &mut flags);
     hydroxyl_flags(&v, &mut flags);
     amide_flags(&v, &mut flags);
     amine_flags(&sites, &mut flags);
+    polarity_flags(&v, &sites, &mut flags);
 
     let derivatisable = flags.iter().any(|f| f.derivatisation.is_some())
         || (0..v.len()).any(|i| matches!(v.z(i), 7 | 8 | 16) && v.h(i) > 0);
@@ -279,6 +339,16 @@ pub fn assess_gc(
         });
     }
     match tb_k {
+        Some(t) if t > GC_HIGH_TB_K && t <= GC_MAX_TB_K => flags.push(GcFlag {
+            issue: GcIssue::HighBoilingPoint,
+            severity: Severity::Caution,
+            atoms: Vec::new(),
+            derivatisation: None,
+            reason: format!(
+                "boiling point {t:.0} K ({:.0} °C): elutes only near the top of the oven program; use a thin film (0.1-0.25 µm) and a final temperature of 300-330 °C",
+                t - 273.15
+            ),
+        }),
         Some(t) if t > GC_MAX_TB_K => {
             let (severity, derivatisation, extra) = if derivatisable {
                 (
@@ -330,6 +400,9 @@ pub fn assess_gc(
         .any(|f| f.severity == Severity::NeedsDerivatisation)
     {
         GcVerdict::SuitableAfterDerivatisation
+    } else if tb_k.is_none() {
+        // unknown is unknown: without a boiling point nothing says the analyte is volatile
+        GcVerdict::Unknown
     } else {
         GcVerdict::Suitable
     };
@@ -345,11 +418,36 @@ pub fn assess_gc(
     })
 }
 
-fn acid_flags(sites: &[IonisableSite], flags: &mut Vec<GcFlag>) {
+fn acid_flags(sites: &[IonisableSite], tb_k: Option<f64>, donor_h: u32, flags: &mut Vec<GcFlag>) {
     let has_strong_base = sites
         .iter()
         .any(|s| s.kind == SiteKind::Base && s.pka.is_some_and(|p| p > 8.0));
+    // a short-chain monocarboxylic acid with no other ionisable group runs as is on an
+    // acid-modified polyethylene glycol phase (volatile fatty acids; common practice, no source)
+    let carboxyls = sites
+        .iter()
+        .filter(|s| {
+            matches!(
+                s.class,
+                GroupClass::CarboxylicAcid | GroupClass::AromaticCarboxylicAcid
+            )
+        })
+        .count();
+    let volatile_monoacid = carboxyls == 1
+        && sites.len() == 1
+        && donor_h == 1
+        && tb_k.is_some_and(|t| t < VOLATILE_ACID_MAX_TB_K);
     for s in sites {
+        if volatile_monoacid && s.class == GroupClass::CarboxylicAcid {
+            flags.push(GcFlag {
+                issue: GcIssue::CarboxylicAcid,
+                severity: Severity::Caution,
+                atoms: s.atoms.clone(),
+                derivatisation: Some(Derivatisation::Esterification),
+                reason: "free short-chain carboxylic acid: runs as is on an acid-modified polyethylene glycol phase (it tails on other phases); or esterify".into(),
+            });
+            continue;
+        }
         let (issue, derivatisation, reason) = match s.class {
             GroupClass::CarboxylicAcid | GroupClass::AromaticCarboxylicAcid => (
                 GcIssue::CarboxylicAcid,
@@ -392,10 +490,7 @@ fn charge_flags(sites: &[IonisableSite], flags: &mut Vec<GcFlag>) {
                 severity: Severity::Unsuitable,
                 atoms: s.atoms.clone(),
                 derivatisation: None,
-                reason: format!(
-                    "permanent charge ({:?}): ions do not vaporise; use LC or CE",
-                    s.class
-                ),
+                reason: "permanent charge: ions do not vaporise; use LC, IC or capillary electrophoresis".into(),
             });
         }
     }
@@ -492,10 +587,10 @@ fn amide_flags(v: &GraphView<'_>, flags: &mut Vec<GcFlag>) {
             atoms.extend(&ns);
             flags.push(GcFlag {
                 issue: GcIssue::Urea,
-                severity: Severity::Caution,
+                severity: Severity::NeedsDerivatisation,
                 atoms,
                 derivatisation: Some(Derivatisation::Silylation),
-                reason: "urea: often thermally labile in a hot injector (may decompose); prefer cool on-column injection, alkylation/silylation, or LC"
+                reason: "urea: thermally labile, decomposes in a hot injector (to an isocyanate and an amine); alkylate or silylate, use cool on-column injection, or prefer LC"
                     .into(),
             });
         } else if ns.len() == 1 && v.h(ns[0]) == 2 {
@@ -528,6 +623,96 @@ fn amine_flags(sites: &[IonisableSite], flags: &mut Vec<GcFlag>) {
             atoms,
             derivatisation: Some(Derivatisation::Acylation),
             reason: "primary/secondary amine: adsorbs on active sites and tails; use a base-deactivated column or acylate".into(),
+        });
+    }
+}
+
+/// Polarity and lability flags from structure: many H-bond donors, catechols, sulfonamides and
+/// aromatic lactams (nucleobases). Common practice, no source.
+fn polarity_flags(v: &GraphView<'_>, sites: &[IonisableSite], flags: &mut Vec<GcFlag>) {
+    let donors: Vec<usize> = (0..v.len())
+        .filter(|&i| matches!(v.z(i), 7 | 8) && v.h(i) > 0)
+        .collect();
+    let donor_h: u32 = donors.iter().map(|&i| u32::from(v.h(i))).sum();
+    let already = |issue: GcIssue, flags: &[GcFlag]| flags.iter().any(|f| f.issue == issue);
+    if donor_h >= MANY_DONOR_HYDROGENS
+        && !already(GcIssue::ManyHydroxyls, flags)
+        && !already(GcIssue::Zwitterion, flags)
+    {
+        flags.push(GcFlag {
+            issue: GcIssue::ManyHbondDonors,
+            severity: Severity::NeedsDerivatisation,
+            atoms: donors,
+            derivatisation: Some(Derivatisation::Silylation),
+            reason: format!(
+                "{donor_h} hydrogens on N and O: strong H-bonding, adsorbs and tails or does not elute; silylate (or acylate the amines)"
+            ),
+        });
+    }
+    // catechol: two OH on adjacent aromatic carbons
+    let aromatic_oh = |c: usize| {
+        v.aromatic(c)
+            && v.z(c) == 6
+            && v.heavy(c)
+                .any(|(o, ord)| ord == BondOrder::Single && v.z(o) == 8 && v.h(o) > 0)
+    };
+    let catechol: Vec<usize> = (0..v.len())
+        .filter(|&c| aromatic_oh(c) && v.heavy(c).any(|(n, _)| n != c && aromatic_oh(n)))
+        .collect();
+    if !catechol.is_empty() {
+        flags.push(GcFlag {
+            issue: GcIssue::Catechol,
+            severity: Severity::NeedsDerivatisation,
+            atoms: catechol,
+            derivatisation: Some(Derivatisation::Acylation),
+            reason: "catechol (aromatic 1,2-diol): oxidises and adsorbs in a hot inlet; acylate or silylate".into(),
+        });
+    }
+    // lactam N-H in an aromatic ring, from the graph (uracils, thymine, guanine, xanthines):
+    // an aromatic N with H next to an aromatic carbon that carries an exocyclic C=O
+    let lactam: Vec<usize> = (0..v.len())
+        .filter(|&n| {
+            v.z(n) == 7
+                && v.aromatic(n)
+                && v.h(n) > 0
+                && v.heavy(n)
+                    .any(|(c, _)| v.z(c) == 6 && v.aromatic(c) && v.double_to(c, 8))
+        })
+        .collect();
+    if !lactam.is_empty() {
+        flags.push(GcFlag {
+            issue: GcIssue::AromaticLactam,
+            severity: Severity::NeedsDerivatisation,
+            atoms: lactam,
+            derivatisation: Some(Derivatisation::Silylation),
+            reason: "lactam N-H in an aromatic ring (nucleobase-like): strong H-bonding, high melting and poorly volatile; silylate".into(),
+        });
+    }
+    for s in sites {
+        let (issue, derivatisation, reason) = match s.class {
+            GroupClass::Sulfonamide
+            | GroupClass::SulfonamideNAryl
+            | GroupClass::AcylSulfonamide => (
+                GcIssue::Sulfonamide,
+                Derivatisation::Esterification,
+                "sulfonamide N-H: polar and thermally labile; methylate, or prefer LC",
+            ),
+            GroupClass::AromaticLactam => (
+                GcIssue::AromaticLactam,
+                Derivatisation::Silylation,
+                "lactam N-H in an aromatic ring (nucleobase-like): strong H-bonding, high melting and poorly volatile; silylate",
+            ),
+            _ => continue,
+        };
+        if flags.iter().any(|f| f.issue == issue) {
+            continue;
+        }
+        flags.push(GcFlag {
+            issue,
+            severity: Severity::NeedsDerivatisation,
+            atoms: s.atoms.clone(),
+            derivatisation: Some(derivatisation),
+            reason: reason.into(),
         });
     }
 }
@@ -578,9 +763,12 @@ mod tests {
 
     #[test]
     fn acids_and_sugars_need_derivatisation() {
-        let a = assess("CCCCCCCC(=O)O");
+        // palmitic acid: too high-boiling to run free; octanoic acid (Tb about 512 K) runs as is
+        // on acid-modified PEG since issue 15 (short-chain acid rule)
+        let a = assess("CCCCCCCCCCCCCCCC(=O)O");
         assert_eq!(a.verdict, GcVerdict::SuitableAfterDerivatisation);
         assert!(issues(&a).contains(&GcIssue::CarboxylicAcid));
+        assert_eq!(assess("CCCCCCCC(=O)O").verdict, GcVerdict::Suitable);
         let g = assess("OCC(O)CO");
         assert!(issues(&g).contains(&GcIssue::ManyHydroxyls));
         let z = assess("CC(N)C(=O)O");
@@ -605,5 +793,101 @@ mod tests {
         assert_eq!(a.tb_source, TbSource::Experimental);
         assert_eq!(a.volatility_class, Some(VolatilityClass::VeryVolatile));
         assert!(assess_gc(&g, Some(f64::NAN)).is_err());
+    }
+}
+
+#[cfg(test)]
+mod polarity_tests {
+    use super::*;
+    use crate::structure::adapter::parse_smiles;
+
+    fn assess(smiles: &str) -> GcAssessment {
+        assess_gc(&parse_smiles(smiles).expect("parses").graph, None).expect("valid graph")
+    }
+
+    fn has(a: &GcAssessment, issue: GcIssue) -> bool {
+        a.flags.iter().any(|f| f.issue == issue)
+    }
+
+    // Expectations: common practice, no source (these classes are run by LC, or by GC only
+    // after derivatisation).
+    #[test]
+    fn nucleobases_sulfonamides_and_catechols_need_derivatisation() {
+        for (smi, what) in [
+            ("Nc1ncnc2[nH]cnc12", "adenine"),
+            ("O=c1cc[nH]c(=O)[nH]1", "uracil"),
+            ("Cc1cc(NS(=O)(=O)c2ccc(N)cc2)no1", "sulfamethoxazole"),
+            ("NCCc1ccc(O)c(O)c1", "dopamine"),
+            ("CN(C)C(=O)Nc1ccc(Cl)c(Cl)c1", "diuron (urea)"),
+        ] {
+            let a = assess(smi);
+            assert_eq!(
+                a.verdict,
+                GcVerdict::SuitableAfterDerivatisation,
+                "{what}: {a:?}"
+            );
+            assert!(
+                a.flags
+                    .iter()
+                    .any(|f| f.severity == Severity::NeedsDerivatisation
+                        && f.derivatisation.is_some()),
+                "{what}: a derivatisation is named"
+            );
+        }
+        assert!(has(
+            &assess("Cc1cc(NS(=O)(=O)c2ccc(N)cc2)no1"),
+            GcIssue::Sulfonamide
+        ));
+        assert!(has(&assess("NCCc1ccc(O)c(O)c1"), GcIssue::Catechol));
+        assert!(has(
+            &assess("O=c1cc[nH]c(=O)[nH]1"),
+            GcIssue::AromaticLactam
+        ));
+        assert!(has(&assess("Nc1ncnc2[nH]cnc12"), GcIssue::ManyHbondDonors));
+    }
+
+    #[test]
+    fn short_chain_acids_run_as_is_but_hydroxy_and_diacids_do_not() {
+        // volatile fatty acids: GC on acid-modified PEG without derivatisation
+        for smi in ["CC(=O)O", "CCCC(=O)O", "CC(C)C(=O)O"] {
+            let a = assess(smi);
+            assert_eq!(a.verdict, GcVerdict::Suitable, "{smi}: {a:?}");
+            assert!(has(&a, GcIssue::CarboxylicAcid), "{smi}: still flagged");
+        }
+        for smi in ["CC(O)C(=O)O", "OC(=O)CCC(=O)O", "CCCCCCCCCCCCCCCC(=O)O"] {
+            assert_eq!(
+                assess(smi).verdict,
+                GcVerdict::SuitableAfterDerivatisation,
+                "{smi}"
+            );
+        }
+    }
+
+    #[test]
+    fn a_missing_boiling_point_is_unknown_never_suitable() {
+        // Joback has no silicon group: no boiling point can be estimated
+        let a = assess("C[Si](C)(C)C");
+        assert!(a.tb_k.is_none());
+        assert_eq!(a.verdict, GcVerdict::Unknown);
+        assert_eq!(a.verdict.label(), "unknown (no boiling point)");
+    }
+
+    #[test]
+    fn high_boiling_neutrals_are_a_caution_not_a_verdict() {
+        // a hexachlorobiphenyl (Tb about 650-700 K) is routine GC on a thin film
+        let a = assess("Clc1ccc(c(Cl)c1Cl)-c1cc(Cl)c(Cl)cc1Cl");
+        assert_eq!(a.verdict, GcVerdict::Suitable, "{a:?}");
+    }
+
+    #[test]
+    fn every_derivatisation_states_its_cost() {
+        for d in [
+            Derivatisation::Silylation,
+            Derivatisation::Esterification,
+            Derivatisation::Acylation,
+            Derivatisation::EsterificationAndAcylation,
+        ] {
+            assert!(d.describe().contains("min") || d.describe().contains(" h "));
+        }
     }
 }

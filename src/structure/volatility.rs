@@ -393,8 +393,8 @@ fn charge_flags(sites: &[IonisableSite], flags: &mut Vec<GcFlag>) {
                 atoms: s.atoms.clone(),
                 derivatisation: None,
                 reason: format!(
-                    "permanent charge ({:?}): ions do not vaporise; use LC or CE",
-                    s.class
+                    "permanent charge ({}): ions do not vaporise; use LC or CE",
+                    crate::plain::words(&s.class)
                 ),
             });
         }

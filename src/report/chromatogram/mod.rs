@@ -133,12 +133,25 @@ pub fn render_svg(rec: &Recommendation, title: &str) -> String {
             run_time_min: rec.conditions.run_time_min,
             dead_time_min: rec.conditions.dead_time_min,
             id: format!("{}-{}-{}", rec.rank, rec.mode, rec.phase.id),
-            subtitle: format!("{} on {}", rec.mode, rec.phase.name),
+            subtitle: format!("{} on {}", mode_words(&rec.mode), rec.phase.name),
             risk_legend: "pair at risk of co-elution (see Risks), predicted Rs".to_string(),
             program: (points.len() >= 2).then_some(ProgramTrace { points, label }),
         },
         title,
     )
+}
+
+/// Plain name of a mode id for the subtitle.
+fn mode_words(mode: &str) -> String {
+    match mode {
+        "rp" => "reversed-phase LC".to_string(),
+        "hilic" => "HILIC".to_string(),
+        "gc" => "GC".to_string(),
+        "ic-anion" => "anion-exchange IC".to_string(),
+        "ic-cation" => "cation-exchange IC".to_string(),
+        "ion-exclusion" => "ion-exclusion chromatography".to_string(),
+        other => other.replace(['-', '_'], " "),
+    }
 }
 
 /// A gradient or oven program drawn against the right-hand axis.

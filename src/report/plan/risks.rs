@@ -56,31 +56,34 @@ pub(super) fn risks_and_rest(
                     "The back-up phase changes none of the flagged pairs.".to_string(),
                 ));
             } else {
+                // one sentence per pair: what moving to the back-up would do for it
                 b.push(Block::Para(format!(
-                    "What the back-up ({}) changes for the risky pairs:",
+                    "If the risky pairs stay unresolved, the back-up ({}) is predicted to change \
+                     them as follows:",
                     bk.recommendation.phase.name
                 )));
-                b.push(Block::Table {
-                    header: vec![
-                        "pair".to_string(),
-                        "Rs, first choice".to_string(),
-                        "Rs, back-up".to_string(),
-                        "change".to_string(),
-                    ],
-                    rows: bk
-                        .changes
+                b.push(Block::List(
+                    bk.changes
                         .iter()
                         .map(|c| {
                             let d = c.resolution_backup - c.resolution_first;
-                            vec![
-                                format!("{} / {}", c.a, c.b),
+                            let outcome = if c.resolution_backup >= 1.5 {
+                                "resolved on the back-up"
+                            } else if d > 0.0 {
+                                "better on the back-up, still below 1.5"
+                            } else {
+                                "no better on the back-up"
+                            };
+                            format!(
+                                "{} / {}: Rs {} now, {} on the back-up ({outcome})",
+                                c.a,
+                                c.b,
                                 num(c.resolution_first, 2),
-                                num(c.resolution_backup, 2),
-                                format!("{}{}", if d >= 0.0 { "+" } else { "" }, num(d, 2)),
-                            ]
+                                num(c.resolution_backup, 2)
+                            )
                         })
                         .collect(),
-                });
+                ));
             }
         }
 
@@ -241,7 +244,7 @@ pub(super) fn risks_and_rest(
          (with the reason)."
             .to_string(),
     ));
-    b.push(suitability::targets_block(first));
+    b.extend(suitability::targets_blocks(first));
 
     // 8 Robustness and validation.
     b.extend(control::validation_outline(first));

@@ -194,29 +194,49 @@ pub fn target_rows(first: Option<&Recommendation>) -> Vec<TargetRow> {
     rows
 }
 
-/// The section's table block.
-pub fn targets_block(first: Option<&Recommendation>) -> Block {
-    Block::Table {
-        header: vec![
-            "quantity".to_string(),
-            "target".to_string(),
-            "predicted".to_string(),
-            "verdict".to_string(),
-            "why".to_string(),
-            "where the target comes from".to_string(),
-        ],
-        rows: target_rows(first)
-            .into_iter()
-            .map(|r| {
-                vec![
-                    r.quantity,
-                    r.target,
-                    r.predicted,
-                    r.verdict.label().to_string(),
-                    r.reason,
-                    r.source,
-                ]
-            })
-            .collect(),
-    }
+/// The section's blocks: the targets table (sources as numbered notes, so a long citation is
+/// written once, not on every row) and the notes.
+pub fn targets_blocks(first: Option<&Recommendation>) -> Vec<Block> {
+    let mut notes: Vec<String> = Vec::new();
+    let rows = target_rows(first)
+        .into_iter()
+        .map(|r| {
+            let n = match notes.iter().position(|x| *x == r.source) {
+                Some(i) => i + 1,
+                None => {
+                    notes.push(r.source.clone());
+                    notes.len()
+                }
+            };
+            vec![
+                r.quantity,
+                r.target,
+                r.predicted,
+                r.verdict.label().to_string(),
+                r.reason,
+                format!("[{n}]"),
+            ]
+        })
+        .collect();
+    vec![
+        Block::Table {
+            header: vec![
+                "quantity".to_string(),
+                "target".to_string(),
+                "predicted".to_string(),
+                "verdict".to_string(),
+                "why".to_string(),
+                "source".to_string(),
+            ],
+            rows,
+        },
+        Block::Para("Where the targets come from:".to_string()),
+        Block::List(
+            notes
+                .iter()
+                .enumerate()
+                .map(|(i, n)| format!("[{}] {n}", i + 1))
+                .collect(),
+        ),
+    ]
 }

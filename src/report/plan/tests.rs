@@ -261,3 +261,21 @@ fn cautions_are_plain_sentences_without_topic_ids_and_never_twice() {
     );
     assert_eq!(cautions.matches("take precedence").count(), 1, "{cautions}");
 }
+
+#[test]
+fn backup_changes_are_sentences_not_a_side_by_side_table() {
+    let r = lc_report();
+    assert!(r.backup.as_ref().is_some_and(|b| !b.changes.is_empty()));
+    let md = render_markdown(&r, &PlanOptions::default());
+    assert!(!md.contains("Rs, first choice") && !md.contains("Rs, back-up"));
+    assert!(md.contains("on the back-up ("), "{md}");
+    // the targets table names its sources once, as numbered notes
+    let st = &md[md.find("## 7 System").unwrap()..md.find("## 8 Robustness").unwrap()];
+    assert!(st.contains("| \\[1\\] |"), "{st}");
+    assert_eq!(
+        st.matches("- \\[1\\] general chromatography chapters")
+            .count(),
+        1,
+        "{st}"
+    );
+}

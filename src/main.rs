@@ -1,6 +1,7 @@
-//! The phasewise command-line program: parse arguments, call the library, print, and map the
-//! outcome to an exit code. Exit codes: 0 success; 1 partial (some analytes unresolved);
-//! 2 bad input or usage; 3 knowledge-base trouble (missing, damaged, newer schema, locked).
+//! The phasewise command-line program: parse arguments, run the command (`src/cli/`), print
+//! errors and map the outcome to an exit code. Exit codes: 0 success; 1 partial (some analytes
+//! unresolved); 2 bad input or usage; 3 knowledge-base trouble (missing, damaged, newer schema,
+//! locked).
 // No `unwrap`/`expect`/`panic!` outside tests (see src/lib.rs).
 #![cfg_attr(
     not(test),
@@ -8,10 +9,7 @@
 )]
 
 mod cli;
-mod commands;
-mod run_measured;
 
-use std::io::Write;
 use std::process::ExitCode;
 
 use clap::Parser;
@@ -26,22 +24,13 @@ static GLOBAL: mimalloc::MiMalloc = mimalloc::MiMalloc;
 
 fn main() -> ExitCode {
     let cli = cli::Cli::parse();
-    match commands::run(cli) {
+    match cli::run(&cli) {
         Ok(code) => code,
+        // a closed pipe (`phasewise lookup ... | head`) is not an error
+        Err(e) if cli::exit::is_broken_pipe(&e) => ExitCode::SUCCESS,
         Err(e) => {
-            // a closed pipe (`phasewise lookup ... | head`) is not an error
-            if e.chain().any(|c| {
-                c.downcast_ref::<std::io::Error>()
-                    .is_some_and(|io| io.kind() == std::io::ErrorKind::BrokenPipe)
-            }) {
-                return ExitCode::SUCCESS;
-            }
-            let mut err = std::io::stderr().lock();
-            let _ = writeln!(err, "phasewise: error: {e}");
-            for cause in e.chain().skip(1) {
-                let _ = writeln!(err, "  caused by: {cause}");
-            }
-            ExitCode::from(commands::exit_code_for(&e))
+            cli::output::print_error(&e);
+            ExitCode::from(cli::exit::exit_code_for(&e))
         }
     }
 }

@@ -660,7 +660,30 @@ fn fits_stored_before_migration_3_stay_readable_and_old_hilic_rows_are_converted
     let rt = p["retention_time_min"].as_f64().unwrap();
     let want = hilic_rt(1.9, 8.0, third);
     assert!((rt - want).abs() < 1e-6, "{rt} vs {want}");
-    // The overlay is now at version 3: the old row reads as organic basis without a buffer.
+    // `predict` only reads (issue 17): the overlay is still at version 2. A command that
+    // writes migrates it to version 3, where the old row reads as organic basis without a
+    // buffer.
+    let c = rusqlite::Connection::open(ctx.user_kb()).unwrap();
+    let version: i64 = c
+        .query_row("SELECT version FROM schema_version", [], |r| r.get(0))
+        .unwrap();
+    assert_eq!(version, 2);
+    drop(c);
+    let out = ctx.run(&[
+        "kb",
+        "add",
+        "--name",
+        "migration trigger (invented)",
+        "--prop",
+        "logp=1",
+        "--source",
+        "invented",
+    ]);
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
     let c = rusqlite::Connection::open(ctx.user_kb()).unwrap();
     let (basis, buffer): (String, Option<String>) = c
         .query_row("SELECT basis, buffer FROM retention_fit", [], |r| {

@@ -17,8 +17,8 @@ pub mod profile;
 
 use serde::{Deserialize, Serialize};
 
-use crate::kb::resolve::Unresolved;
 use crate::phase::{Catalogue, PhaseMode};
+use crate::property::Unresolved;
 use crate::report::SCHEMA_VERSION;
 use crate::report::advice::{
     AdviceReport, AnalyteSummary, Backup, Caution, Coelution, IonisationSummary, PairChange,

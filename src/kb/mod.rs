@@ -173,6 +173,12 @@ pub struct Kb {
     pub(crate) shipped_path: PathBuf,
     pub(crate) user: Option<Connection>,
     pub(crate) user_path: PathBuf,
+    /// Whether `user` was opened for writing (WAL, migrated); a read-only opening is replaced
+    /// by a writable one on the first write.
+    pub(crate) user_writable: bool,
+    /// Schema version of the overlay as found (older than [`SCHEMA_VERSION`] only when it was
+    /// opened for reading).
+    pub(crate) user_version: i64,
 }
 
 impl std::fmt::Debug for Kb {
@@ -182,6 +188,18 @@ impl std::fmt::Debug for Kb {
             .field("user", &self.user_path)
             .finish()
     }
+}
+
+/// How a command uses the user overlay.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Access {
+    /// Read only (`lookup`, `advise`, `predict`, `plan`, `describe`, `kb stats`, `kb export`):
+    /// the overlay is opened read-only, never created, switched to WAL or migrated, so a reader
+    /// never waits behind a writer; an overlay of an older schema is read as it is.
+    Read,
+    /// Read and write (`kb add`, `kb import`, `scout --store`): the overlay is opened in WAL
+    /// mode and migrated to the current schema.
+    Write,
 }
 
 /// Whether a missing or stale shipped base may be built on open.
@@ -207,6 +225,20 @@ impl Kb {
         policy: BuildPolicy,
         progress: &mut dyn FnMut(f64, &str),
     ) -> Result<Kb, KbError> {
+        Kb::open_with(paths, policy, Access::Write, progress)
+    }
+
+    /// Open the knowledge base with the user overlay opened for `access` (see [`Access`]);
+    /// otherwise as [`Kb::open`].
+    ///
+    /// # Errors
+    /// As [`Kb::open`]; an overlay of a newer schema is an error for readers too.
+    pub fn open_with(
+        paths: &KbPaths,
+        policy: BuildPolicy,
+        access: Access,
+        progress: &mut dyn FnMut(f64, &str),
+    ) -> Result<Kb, KbError> {
         let needs_build = match build::shipped_status(&paths.shipped)? {
             build::Status::Current => false,
             build::Status::Missing => {
@@ -224,16 +256,36 @@ impl Kb {
         }
         let shipped = open_read_only(&paths.shipped)?;
         check_schema(&shipped, &paths.shipped)?;
-        let user = if paths.user.exists() {
-            Some(user::open_user(&paths.user)?)
-        } else {
-            None
+        let (user, user_version) = match access {
+            Access::Write if paths.user.exists() => {
+                (Some(user::open_user(&paths.user)?), SCHEMA_VERSION)
+            }
+            Access::Write => (None, SCHEMA_VERSION),
+            Access::Read => match user::open_user_for_reading(&paths.user)? {
+                Some((conn, version)) => (Some(conn), version),
+                None => (None, SCHEMA_VERSION),
+            },
         };
         Ok(Kb {
             shipped,
             shipped_path: paths.shipped.clone(),
+            user_writable: access == Access::Write,
             user,
             user_path: paths.user.clone(),
+            user_version,
+        })
+    }
+
+    /// A note for the user when the overlay was read as an older schema (nothing was changed;
+    /// the next command that writes upgrades it); `None` otherwise.
+    pub fn user_overlay_note(&self) -> Option<String> {
+        (self.user.is_some() && self.user_version < SCHEMA_VERSION).then(|| {
+            format!(
+                "note: the user overlay {} has schema version {}, older than version {} of this program; it was read as it is and left unchanged (the next command that writes to it, such as `kb add`, `kb import` or `scout --store`, upgrades it)",
+                self.user_path.display(),
+                self.user_version,
+                SCHEMA_VERSION
+            )
         })
     }
 

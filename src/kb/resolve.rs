@@ -6,7 +6,6 @@
 use std::collections::HashMap;
 
 use rusqlite::{Connection, OptionalExtension, params};
-use serde::{Deserialize, Serialize};
 
 use super::identifier::{Query, classify, could_be_smiles};
 use super::normalise::normalise_name;
@@ -16,27 +15,9 @@ use crate::property::{Analyte, Origin, Property, PropertyKind};
 /// Most suggestions offered for an unresolved query.
 pub const MAX_SUGGESTIONS: usize = 5;
 
-/// A near-miss offered for an unresolved query.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
-pub struct Suggestion {
-    /// A name or synonym in the knowledge base.
-    pub name: String,
-    /// The compound's preferred name (differs when the suggestion is a synonym).
-    pub compound: String,
-    /// Similarity 0–1 (normalised Damerau–Levenshtein on normalised names).
-    pub similarity: f64,
-}
-
-/// A query that did not resolve.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
-pub struct Unresolved {
-    /// What the user typed.
-    pub query: String,
-    /// Why it did not resolve.
-    pub reason: String,
-    /// Near misses, best first (never used automatically).
-    pub suggestions: Vec<Suggestion>,
-}
+// The plain records live in `property` so that the advisor and reports need not import the
+// knowledge base; re-exported here so `kb::resolve::{Suggestion, Unresolved}` keep working.
+pub use crate::property::unresolved::{Suggestion, Unresolved};
 
 /// Outcome of resolving one query.
 #[derive(Debug, Clone, PartialEq)]

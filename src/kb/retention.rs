@@ -171,14 +171,25 @@ impl Kb {
             return Ok(Vec::new());
         };
         let sql = |e| KbError::sql(&self.user_path, e);
-        let mut st = conn
-            .prepare_cached(
+        // An overlay read as an older schema (see `Access::Read`): version 1 has no stored
+        // fits; version 2 lacks `basis` and `buffer`, which migration 3 fills with `organic`
+        // and NULL, so the same values are read without migrating.
+        let query = match self.user_version {
+            ..=1 => return Ok(Vec::new()),
+            2 => {
+                "SELECT analyte, inchikey, phase_id, mode, chem_class, modifier, ph, temperature_c,
+                 log_kw, s, log_kw_sd, s_sd, correlation, rms_residual_min, gradients, t0_min,
+                 dwell_min, flow_ml_min, source, stored_on, 'organic', NULL
+                 FROM retention_fit WHERE inchikey = ?1 ORDER BY id"
+            }
+            _ => {
                 "SELECT analyte, inchikey, phase_id, mode, chem_class, modifier, ph, temperature_c,
                  log_kw, s, log_kw_sd, s_sd, correlation, rms_residual_min, gradients, t0_min,
                  dwell_min, flow_ml_min, source, stored_on, basis, buffer
-                 FROM retention_fit WHERE inchikey = ?1 ORDER BY id",
-            )
-            .map_err(sql)?;
+                 FROM retention_fit WHERE inchikey = ?1 ORDER BY id"
+            }
+        };
+        let mut st = conn.prepare_cached(query).map_err(sql)?;
         let rows = st
             .query_map([inchikey], |r| {
                 let gradients: String = r.get(14)?;

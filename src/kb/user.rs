@@ -13,7 +13,7 @@ use serde::{Deserialize, Serialize};
 
 use super::identifier::{parse_cas, parse_inchikey};
 use super::normalise::normalise_name;
-use super::{Kb, KbError, busy_timeout, migrate};
+use super::{Kb, KbError, SCHEMA_VERSION, busy_timeout, migrate, schema_version};
 use crate::property::{PropertyKind, canonical_unit};
 
 /// Open (creating if needed) the user overlay for reading and writing.
@@ -37,6 +37,36 @@ pub fn open_user(path: &Path) -> Result<Connection, KbError> {
     conn.execute_batch("PRAGMA foreign_keys=ON;").map_err(sql)?;
     migrate(&mut conn, path)?;
     Ok(conn)
+}
+
+/// Open an existing user overlay for reading only: no file or directory is created, the journal
+/// mode is left as it is and nothing is migrated, so a reader never takes a write lock and never
+/// waits behind a running `kb import` (in WAL mode readers and a writer do not block each
+/// other). Returns the connection and the overlay's schema version; `None` when there is no
+/// overlay yet, or when it is still being created by another process (no schema table yet).
+///
+/// # Errors
+/// Corruption, a newer schema, locks held past the busy timeout.
+pub fn open_user_for_reading(path: &Path) -> Result<Option<(Connection, i64)>, KbError> {
+    if !path.exists() {
+        return Ok(None);
+    }
+    let sql = |e| KbError::sql(path, e);
+    let conn = Connection::open_with_flags(
+        path,
+        rusqlite::OpenFlags::SQLITE_OPEN_READ_ONLY | rusqlite::OpenFlags::SQLITE_OPEN_NO_MUTEX,
+    )
+    .map_err(sql)?;
+    conn.busy_timeout(busy_timeout()).map_err(sql)?;
+    match schema_version(&conn, path)? {
+        None => Ok(None),
+        Some(v) if v > SCHEMA_VERSION => Err(KbError::NewerSchema {
+            path: path.to_path_buf(),
+            found: v,
+            supported: SCHEMA_VERSION,
+        }),
+        Some(v) => Ok(Some((conn, v))),
+    }
 }
 
 /// One property value supplied by the user.
@@ -201,8 +231,12 @@ pub struct SkippedRow {
 impl Kb {
     /// The user overlay for writing, opened (and created) on demand.
     pub(crate) fn user_mut(&mut self) -> Result<&mut Connection, KbError> {
-        if self.user.is_none() {
+        if self.user.is_none() || !self.user_writable {
+            // drop a read-only connection first, then open for writing (WAL, migrated)
+            self.user = None;
             self.user = Some(open_user(&self.user_path)?);
+            self.user_writable = true;
+            self.user_version = SCHEMA_VERSION;
         }
         self.user.as_mut().ok_or_else(|| KbError::Missing {
             path: self.user_path.clone(),

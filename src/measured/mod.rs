@@ -12,8 +12,11 @@ pub mod lc_temperature;
 pub mod optimise;
 pub mod peaks;
 pub mod scout;
+mod scouting;
+mod search;
 pub mod suitability;
 pub mod transfer;
+mod window_plot;
 
 use serde::{Deserialize, Serialize};
 

@@ -29,6 +29,8 @@ use serde::{Deserialize, Serialize};
 use thiserror::Error;
 
 use crate::measured::scout::ScoutFit;
+use crate::measured::search::{Score, compass_search};
+use crate::measured::window_plot::{PlotPoint, WindowPlot, render_window_plot};
 use crate::model::gradient::{
     ElutionPhase, GradientError, GradientPoint, GradientProgram, GradientSystem, LssParameters,
     gradient_elution, gradient_peak_width_min,
@@ -421,11 +423,6 @@ pub enum Selection {
     LargestMinResolution,
 }
 
-/// Rounds to the 0.1 step (min or %) in which programs are written and evaluated.
-pub fn round_to_tenth(x: f64) -> f64 {
-    (x * 10.0).round() / 10.0
-}
-
 /// One analyte's predicted elution: (index, tR min, base width min, % organic at elution, phase).
 type El = (usize, f64, f64, f64, ElutionPhase);
 
@@ -438,68 +435,6 @@ struct Ctx<'a> {
     max_run: f64,
     target: f64,
     min_k: f64,
-}
-
-/// Score for comparison; see the module documentation for the rule.
-/// Also used by the GC optimiser ([`crate::measured::gc_optimise`]), so both apply one rule.
-#[derive(Clone, Copy, PartialEq)]
-pub(crate) struct Score {
-    /// Every peak out within the maximum run time and a finite smallest resolution.
-    pub(crate) feasible: bool,
-    /// First peak at k ≥ the minimum.
-    pub(crate) retained: bool,
-    /// Smallest resolution meets the target.
-    pub(crate) meets: bool,
-    pub(crate) min_rs: f64,
-    pub(crate) run: f64,
-}
-
-/// Run times closer than this count as equal, min (well below the 0.1 min program step).
-const RUN_TIE_MIN: f64 = 1e-9;
-
-impl Score {
-    pub(crate) fn better_than(&self, o: &Score) -> bool {
-        if self.feasible != o.feasible {
-            return self.feasible;
-        }
-        if !self.feasible {
-            return self.run < o.run;
-        }
-        if self.retained != o.retained {
-            return self.retained;
-        }
-        if self.meets != o.meets {
-            return self.meets;
-        }
-        if self.meets {
-            // Shortest adequate run, then the larger smallest resolution.
-            if (self.run - o.run).abs() > RUN_TIE_MIN {
-                return self.run < o.run;
-            }
-            return self.min_rs > o.min_rs + 1e-9;
-        }
-        if (self.min_rs - o.min_rs).abs() > 1e-9 {
-            return self.min_rs > o.min_rs;
-        }
-        self.run < o.run - RUN_TIE_MIN
-    }
-
-    /// Better by a margin worth a harder-to-run program (two-segment gradient): 0.1 min shorter
-    /// when both meet the target, 0.01 higher smallest Rs when neither does (common practice,
-    /// no source).
-    fn clearly_better_than(&self, o: &Score) -> bool {
-        if !self.better_than(o) {
-            return false;
-        }
-        if self.feasible != o.feasible || self.retained != o.retained || self.meets != o.meets {
-            return true;
-        }
-        if self.meets {
-            self.run < o.run - 0.1
-        } else {
-            self.min_rs > o.min_rs + 0.01
-        }
-    }
 }
 
 impl Ctx<'_> {
@@ -641,124 +576,6 @@ impl Ctx<'_> {
             first_peak_retention_factor: self.first_k(&el),
         })
     }
-}
-
-fn check_range(name: &'static str, r: Range, lo: f64, hi: f64) -> Result<(), OptimiseError> {
-    if !r.min.is_finite() || !r.max.is_finite() {
-        return Err(OptimiseError::BadRange {
-            name,
-            min: r.min,
-            max: r.max,
-            reason: "not finite",
-        });
-    }
-    if r.min > r.max {
-        return Err(OptimiseError::BadRange {
-            name,
-            min: r.min,
-            max: r.max,
-            reason: "min is above max",
-        });
-    }
-    if r.min < lo || r.max > hi {
-        return Err(OptimiseError::BadRange {
-            name,
-            min: r.min,
-            max: r.max,
-            reason: if lo == 0.0 && hi == 100.0 {
-                "compositions must lie in 0–100 %"
-            } else {
-                "must be positive"
-            },
-        });
-    }
-    Ok(())
-}
-
-/// The range with its ends moved inwards onto the 0.1 grid of programs.
-fn tenth_range(name: &'static str, r: Range) -> Result<Range, OptimiseError> {
-    let min = ((r.min * 10.0 - 1e-9).ceil() / 10.0).max(if name == "gradient_time_min" {
-        0.1
-    } else {
-        0.0
-    });
-    let max = (r.max * 10.0 + 1e-9).floor() / 10.0;
-    if min > max {
-        return Err(OptimiseError::BadRange {
-            name,
-            min: r.min,
-            max: r.max,
-            reason: "narrower than the 0.1 step in which programs are written",
-        });
-    }
-    Ok(Range { min, max })
-}
-
-fn linspace(r: Range, n: usize) -> Vec<f64> {
-    if n < 2 || r.max == r.min {
-        return vec![r.min];
-    }
-    (0..n)
-        .map(|i| r.min + (r.max - r.min) * i as f64 / (n - 1) as f64)
-        .collect()
-}
-
-fn steps(r: Range, step: f64) -> Vec<f64> {
-    let mut v = Vec::new();
-    let mut x = r.min;
-    while x < r.max - 1e-9 {
-        v.push(x);
-        x += step;
-    }
-    v.push(r.max);
-    v
-}
-
-/// Linear program on the 0.1 min / 0.1 % grid, or None when the composition would not rise.
-fn linear(initial: f64, final_: f64, tg: f64) -> Option<GradientProgram> {
-    let (initial, final_, tg) = (
-        round_to_tenth(initial),
-        round_to_tenth(final_),
-        round_to_tenth(tg),
-    );
-    if final_ <= initial || tg <= 0.0 {
-        return None;
-    }
-    GradientProgram::linear(initial, final_, tg).ok()
-}
-
-fn two_segment(
-    initial: f64,
-    knee_frac_t: f64,
-    knee_pct: f64,
-    final_: f64,
-    tg: f64,
-) -> Option<GradientProgram> {
-    let (initial, knee_pct, final_, tg) = (
-        round_to_tenth(initial),
-        round_to_tenth(knee_pct),
-        round_to_tenth(final_),
-        round_to_tenth(tg),
-    );
-    let tk = round_to_tenth(tg * knee_frac_t);
-    if !(initial <= knee_pct && knee_pct <= final_ && final_ > initial && tk > 0.0 && tk < tg) {
-        return None;
-    }
-    GradientProgram::from_points(&[
-        GradientPoint {
-            time_min: 0.0,
-            organic_pct: initial,
-        },
-        GradientPoint {
-            time_min: tk,
-            organic_pct: knee_pct,
-        },
-        GradientPoint {
-            time_min: tg,
-            organic_pct: final_,
-        },
-    ])
-    .ok()
 }
 
 /// Optimises a gradient for the analytes of the request.
@@ -917,38 +734,20 @@ pub fn optimise(req: &OptimiseRequest) -> Result<OptimiseReport, OptimiseError> 
     ];
     let mut best_lin: Option<(Score, [f64; 3])> = None;
     for &gi in order.iter().take(5) {
-        let (mut s, mut x) = grid[gi];
+        let (s, x) = grid[gi];
         if !s.feasible {
             continue;
         }
-        let mut step = init_step;
-        for _ in 0..200 {
-            let mut moved = false;
-            for d in 0..3 {
-                for sign in [1.0, -1.0] {
-                    let mut y = x;
-                    y[d] = (y[d] + sign * step[d]).clamp(lo[d], hi[d]);
-                    if y == x {
-                        continue;
-                    }
-                    if let Some(p) = linear(y[1], y[2], y[0])
-                        && let Some(sy) = eval(&p)
-                        && sy.better_than(&s)
-                    {
-                        s = sy;
-                        x = y;
-                        moved = true;
-                    }
-                }
-            }
-            if !moved {
-                step.iter_mut().for_each(|v| *v /= 2.0);
-                // Below half the 0.1 program step no move can change the program.
-                if step[0] < 0.05 && step[1] < 0.05 {
-                    break;
-                }
-            }
-        }
+        // Below half the 0.1 program step no move can change the program.
+        let (s, x) = compass_search(
+            (s, x),
+            &lo,
+            &hi,
+            init_step,
+            200,
+            |y| linear(y[1], y[2], y[0]).and_then(|p| eval(&p)),
+            |step| step[0] < 0.05 && step[1] < 0.05,
+        );
         if best_lin.as_ref().is_none_or(|(b, _)| s.better_than(b)) {
             best_lin = Some((s, x));
         }
@@ -980,37 +779,22 @@ pub fn optimise(req: &OptimiseRequest) -> Result<OptimiseReport, OptimiseError> 
                 }
             }
         }
-        if let Some((mut s, mut x)) = best2 {
+        if let Some(start) = best2 {
             let lo5 = [lo[0], lo[1], lo[2], 0.02, 0.0];
             let hi5 = [hi[0], hi[1], hi[2], 0.98, 1.0];
-            let mut step = [init_step[0], init_step[1], init_step[2], 0.05, 0.05];
-            for _ in 0..300 {
-                let mut moved = false;
-                for d in 0..5 {
-                    for sign in [1.0, -1.0] {
-                        let mut y = x;
-                        y[d] = (y[d] + sign * step[d]).clamp(lo5[d], hi5[d]);
-                        if y == x {
-                            continue;
-                        }
-                        let kp = y[1] + y[4] * (y[2] - y[1]);
-                        if let Some(p) = two_segment(y[1], y[3], kp, y[2], y[0])
-                            && let Some(sy) = eval(&p)
-                            && sy.better_than(&s)
-                        {
-                            s = sy;
-                            x = y;
-                            moved = true;
-                        }
-                    }
-                }
-                if !moved {
-                    step.iter_mut().for_each(|v| *v /= 2.0);
-                    if step[0] < 0.05 && step[1] < 0.05 && step[3] < 1e-3 && step[4] < 1e-3 {
-                        break;
-                    }
-                }
-            }
+            let step = [init_step[0], init_step[1], init_step[2], 0.05, 0.05];
+            let (s, x) = compass_search(
+                start,
+                &lo5,
+                &hi5,
+                step,
+                300,
+                |y| {
+                    let kp = y[1] + y[4] * (y[2] - y[1]);
+                    two_segment(y[1], y[3], kp, y[2], y[0]).and_then(|p| eval(&p))
+                },
+                |step| step[0] < 0.05 && step[1] < 0.05 && step[3] < 1e-3 && step[4] < 1e-3,
+            );
             // Keep the two-segment gradient only if clearly better, since it is harder to
             // transfer and to run.
             if s.feasible && s.clearly_better_than(&lin_score) {
@@ -1144,29 +928,6 @@ pub fn optimise(req: &OptimiseRequest) -> Result<OptimiseReport, OptimiseError> 
     })
 }
 
-fn esc(s: &str) -> String {
-    s.replace('&', "&amp;")
-        .replace('<', "&lt;")
-        .replace('>', "&gt;")
-        .replace('"', "&quot;")
-}
-
-fn nice_step(range: f64) -> f64 {
-    let raw = range / 5.0;
-    let mag = 10f64.powf(raw.log10().floor());
-    let n = raw / mag;
-    let m = if n < 1.5 {
-        1.0
-    } else if n < 3.5 {
-        2.0
-    } else if n < 7.5 {
-        5.0
-    } else {
-        10.0
-    };
-    m * mag
-}
-
 /// Renders the window diagram as a standalone SVG: a polyline of smallest resolution versus
 /// gradient time, axis labels with units, a dashed target line labelled in text, the chosen
 /// condition marked with a labelled vertical line and a filled circle at its smallest
@@ -1216,480 +977,10 @@ pub fn render_window_svg(diagram: &WindowDiagram) -> String {
     })
 }
 
-/// What a window diagram draws, whatever the swept variable (gradient time in LC, ramp rate in
-/// GC); the texts are given in full by the caller.
-pub(crate) struct WindowPlot {
-    /// `<title>` text.
-    pub(crate) title: String,
-    /// x-axis label with its unit.
-    pub(crate) x_label: String,
-    /// Two legend lines above the plot.
-    pub(crate) legend: [String; 2],
-    /// Label of the chosen condition's vertical line.
-    pub(crate) chosen_label: String,
-    /// Dashed target line.
-    pub(crate) target_resolution: f64,
-    /// x of the chosen condition.
-    pub(crate) optimum_x: f64,
-    /// Smallest resolution of the chosen condition.
-    pub(crate) optimum_min_resolution: f64,
-    /// The series.
-    pub(crate) points: Vec<PlotPoint>,
-}
+mod programs;
 
-/// One point of a [`WindowPlot`].
-pub(crate) struct PlotPoint {
-    pub(crate) x: f64,
-    pub(crate) min_resolution: f64,
-    pub(crate) within_run_time: bool,
-    pub(crate) meets_min_retention: bool,
-}
-
-/// The SVG of a [`WindowPlot`] (see [`render_window_svg`] for what is drawn).
-pub(crate) fn render_window_plot(diagram: &WindowPlot) -> String {
-    let (w, h) = (640.0, 400.0);
-    let (ml, mr, mt, mb) = (70.0, 20.0, 40.0, 60.0);
-    let pw = w - ml - mr;
-    let ph = h - mt - mb;
-    let pts = &diagram.points;
-    let (x0, x1) = pts
-        .iter()
-        .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), p| {
-            (a.min(p.x), b.max(p.x))
-        });
-    let (x0, x1) = if x0.is_finite() && x1 > x0 {
-        (x0, x1)
-    } else {
-        (0.0, 1.0)
-    };
-    let ymax = pts
-        .iter()
-        .map(|p| p.min_resolution)
-        .filter(|v| v.is_finite())
-        .fold(diagram.target_resolution, f64::max)
-        .max(0.5)
-        * 1.1;
-    let sx = |x: f64| ml + (x - x0) / (x1 - x0) * pw;
-    let sy = |y: f64| mt + ph - (y.clamp(0.0, ymax) / ymax) * ph;
-    let mut s = String::new();
-    s.push_str(&format!(
-        "<svg xmlns=\"http://www.w3.org/2000/svg\" width=\"{w}\" height=\"{h}\" viewBox=\"0 0 {w} {h}\" font-family=\"sans-serif\" font-size=\"12\">\n"
-    ));
-    s.push_str(&format!("<title>{}</title>\n", esc(&diagram.title)));
-    s.push_str("<rect width=\"100%\" height=\"100%\" fill=\"white\"/>\n");
-    // Axes.
-    s.push_str(&format!(
-        "<line x1=\"{ml}\" y1=\"{}\" x2=\"{}\" y2=\"{}\" stroke=\"black\"/>\n<line x1=\"{ml}\" y1=\"{mt}\" x2=\"{ml}\" y2=\"{}\" stroke=\"black\"/>\n",
-        mt + ph, ml + pw, mt + ph, mt + ph
-    ));
-    let xs = nice_step(x1 - x0);
-    let mut t = (x0 / xs).ceil() * xs;
-    while t <= x1 + 1e-9 {
-        let x = sx(t);
-        s.push_str(&format!(
-            "<line x1=\"{x:.1}\" y1=\"{}\" x2=\"{x:.1}\" y2=\"{}\" stroke=\"black\"/><text x=\"{x:.1}\" y=\"{}\" text-anchor=\"middle\">{}</text>\n",
-            mt + ph, mt + ph + 5.0, mt + ph + 18.0, fmt_tick(t)
-        ));
-        t += xs;
-    }
-    let ys = nice_step(ymax);
-    let mut t = 0.0;
-    while t <= ymax + 1e-9 {
-        let y = sy(t);
-        s.push_str(&format!(
-            "<line x1=\"{}\" y1=\"{y:.1}\" x2=\"{ml}\" y2=\"{y:.1}\" stroke=\"black\"/><text x=\"{}\" y=\"{:.1}\" text-anchor=\"end\">{}</text>\n",
-            ml - 5.0, ml - 8.0, y + 4.0, fmt_tick(t)
-        ));
-        t += ys;
-    }
-    s.push_str(&format!(
-        "<text x=\"{:.1}\" y=\"{}\" text-anchor=\"middle\">{}</text>\n",
-        ml + pw / 2.0,
-        h - 15.0,
-        esc(&diagram.x_label)
-    ));
-    s.push_str(&format!(
-        "<text x=\"18\" y=\"{:.1}\" text-anchor=\"middle\" transform=\"rotate(-90 18 {:.1})\">Smallest resolution Rs (dimensionless)</text>\n",
-        mt + ph / 2.0,
-        mt + ph / 2.0
-    ));
-    s.push_str(&format!(
-        "<text x=\"{ml}\" y=\"16\">{}</text>\n",
-        esc(&diagram.legend[0])
-    ));
-    s.push_str(&format!(
-        "<text x=\"{ml}\" y=\"31\">{}</text>\n",
-        esc(&diagram.legend[1])
-    ));
-    // Target line.
-    let yt = sy(diagram.target_resolution);
-    s.push_str(&format!(
-        "<line x1=\"{ml}\" y1=\"{yt:.1}\" x2=\"{}\" y2=\"{yt:.1}\" stroke=\"black\" stroke-dasharray=\"6 4\"/><text x=\"{}\" y=\"{:.1}\" text-anchor=\"end\">target Rs = {}</text>\n",
-        ml + pw, ml + pw - 4.0, yt - 4.0, diagram.target_resolution
-    ));
-    // Series.
-    let poly: Vec<String> = pts
-        .iter()
-        .filter(|p| p.min_resolution.is_finite())
-        .map(|p| format!("{:.1},{:.1}", sx(p.x), sy(p.min_resolution)))
-        .collect();
-    s.push_str(&format!(
-        "<polyline fill=\"none\" stroke=\"black\" stroke-width=\"1.5\" points=\"{}\"/>\n",
-        poly.join(" ")
-    ));
-    for p in pts
-        .iter()
-        .filter(|p| !p.within_run_time && p.min_resolution.is_finite())
-    {
-        s.push_str(&format!(
-            "<circle cx=\"{:.1}\" cy=\"{:.1}\" r=\"3\" fill=\"white\" stroke=\"black\"/>\n",
-            sx(p.x),
-            sy(p.min_resolution)
-        ));
-    }
-    for p in pts
-        .iter()
-        .filter(|p| !p.meets_min_retention && p.min_resolution.is_finite())
-    {
-        s.push_str(&format!(
-            "<rect x=\"{:.1}\" y=\"{:.1}\" width=\"6\" height=\"6\" fill=\"white\" stroke=\"black\"/>\n",
-            sx(p.x) - 3.0,
-            sy(p.min_resolution) - 3.0
-        ));
-    }
-    let xo = sx(diagram.optimum_x.clamp(x0, x1));
-    // Put the label on the side of the line with room for it.
-    let (lx, anchor) = if xo > ml + 0.6 * pw {
-        (xo - 4.0, "end")
-    } else {
-        (xo + 4.0, "start")
-    };
-    s.push_str(&format!(
-        "<line x1=\"{xo:.1}\" y1=\"{mt}\" x2=\"{xo:.1}\" y2=\"{}\" stroke=\"black\" stroke-dasharray=\"2 3\"/><text x=\"{lx:.1}\" y=\"{}\" text-anchor=\"{anchor}\">{}</text>\n",
-        mt + ph,
-        mt + 12.0,
-        esc(&diagram.chosen_label)
-    ));
-    if diagram.optimum_min_resolution.is_finite() {
-        s.push_str(&format!(
-            "<circle id=\"chosen\" cx=\"{xo:.1}\" cy=\"{:.1}\" r=\"4.5\" fill=\"black\"/>\n",
-            sy(diagram.optimum_min_resolution)
-        ));
-    }
-    s.push_str(&format!("<desc>{}</desc>\n", esc("generated by phasewise")));
-    s.push_str("</svg>\n");
-    s
-}
-
-fn fmt_tick(v: f64) -> String {
-    if (v - v.round()).abs() < 1e-9 {
-        format!("{}", v.round())
-    } else {
-        format!("{v:.2}")
-            .trim_end_matches('0')
-            .trim_end_matches('.')
-            .to_string()
-    }
-}
+pub use programs::round_to_tenth;
+use programs::{check_range, linear, linspace, steps, tenth_range, two_segment};
 
 #[cfg(test)]
-mod tests {
-    use super::*;
-
-    // Invented analytes, chosen so that two of them cross over as tG changes.
-    fn analytes() -> Vec<NamedAnalyte> {
-        [
-            ("inv-a", 2.0, 3.0),
-            ("inv-b", 2.9, 4.4),
-            ("inv-c", 3.1, 4.0),
-            ("inv-d", 4.0, 5.0),
-        ]
-        .iter()
-        .map(|(n, lk, s)| NamedAnalyte {
-            name: n.to_string(),
-            log_kw: *lk,
-            s: *s,
-            uncertainty: None,
-        })
-        .collect()
-    }
-
-    fn request() -> OptimiseRequest {
-        OptimiseRequest {
-            analytes: analytes(),
-            dead_time_min: 1.0,
-            dwell_time_min: 0.5,
-            plates: PlateSource::Given { plates: 10_000.0 },
-            gradient_time_min: Range {
-                min: 5.0,
-                max: 40.0,
-            },
-            initial_pct: Range {
-                min: 5.0,
-                max: 30.0,
-            },
-            final_pct: Range {
-                min: 60.0,
-                max: 100.0,
-            },
-            max_run_time_min: 45.0,
-            critical_pairs: vec![],
-            two_segment: false,
-            target_resolution: 1.5,
-            min_retention_factor: 1.0,
-            gradient_time_steps: 12,
-            composition_step_pct: 5.0,
-        }
-    }
-
-    /// Brute force over a grid of linear programs with the same width and resolution formulas
-    /// (self-consistency): (run time, smallest Rs, first-peak k) or None past `max_run`.
-    fn brute(tg: f64, i: f64, f: f64, max_run: f64) -> Option<(f64, f64, f64)> {
-        let p = GradientProgram::linear(i, f, tg).unwrap();
-        let sys = GradientSystem {
-            dead_time_min: 1.0,
-            dwell_time_min: 0.5,
-        };
-        let mut el: Vec<(f64, f64)> = analytes()
-            .iter()
-            .map(|a| {
-                let e = gradient_elution(
-                    &LssParameters {
-                        log_kw: a.log_kw,
-                        s: a.s,
-                    },
-                    &p,
-                    &sys,
-                )
-                .unwrap();
-                (
-                    e.retention_time_min,
-                    4.0 * (1.0 + e.retention_factor_at_elution) / 100.0,
-                )
-            })
-            .collect();
-        el.sort_by(|a, b| a.0.total_cmp(&b.0));
-        let run = el.last().unwrap().0;
-        if run > max_run {
-            return None;
-        }
-        let m = el
-            .windows(2)
-            .map(|w| 2.0 * (w[1].0 - w[0].0) / (w[0].1 + w[1].1))
-            .fold(f64::INFINITY, f64::min);
-        Some((run, m, (el[0].0 - 1.0) / 1.0))
-    }
-
-    #[test]
-    fn the_shortest_adequate_run_is_chosen_not_the_largest_resolution() {
-        let r = optimise(&request()).unwrap();
-        assert!(r.meets_target && r.meets_min_retention, "{:?}", r.notes);
-        assert_eq!(r.selection, Selection::ShortestRunMeetingTarget);
-        assert!(r.optimum.min_resolution >= 1.5);
-        assert!(r.optimum.first_peak_retention_factor >= 1.0);
-        assert!(r.optimum.run_time_min <= 45.0);
-        assert_eq!(r.optimum.peaks.len(), 4);
-        assert_eq!(r.optimum.pairs.len(), 3);
-        // Some longer condition resolves better: the optimiser did not maximise Rs.
-        let better_but_longer = r
-            .window
-            .points
-            .iter()
-            .any(|p| p.within_run_time && p.min_resolution > r.optimum.min_resolution + 0.5);
-        assert!(better_but_longer, "{:?}", r.window.points);
-        // No adequate window point or brute-force grid point is shorter (self-consistency).
-        for p in &r.window.points {
-            if p.within_run_time && p.meets_min_retention && p.min_resolution >= 1.5 {
-                assert!(p.run_time_min >= r.optimum.run_time_min - 1e-9, "{p:?}");
-            }
-        }
-        for tg in [5.0, 7.5, 10.0, 20.0, 30.0, 40.0] {
-            for i in [5.0, 10.0, 15.0, 20.0, 25.0, 30.0] {
-                for f in [60.0, 70.0, 80.0, 90.0, 100.0] {
-                    if let Some((run, m, k)) = brute(tg, i, f, 45.0)
-                        && m >= 1.5
-                        && k >= 1.0
-                    {
-                        assert!(
-                            run >= r.optimum.run_time_min - 1e-9,
-                            "tg {tg} {i}-{f}: run {run} < {}",
-                            r.optimum.run_time_min
-                        );
-                    }
-                }
-            }
-        }
-        // The chosen point is on the window diagram.
-        assert!(r.window.points.iter().any(|p| {
-            p.gradient_time_min == r.gradient_time_min
-                && (p.min_resolution - r.optimum.min_resolution).abs() < 1e-12
-        }));
-    }
-
-    #[test]
-    fn an_unreachable_target_falls_back_to_the_largest_resolution_and_says_so() {
-        let mut q = request();
-        q.target_resolution = 1000.0;
-        let r = optimise(&q).unwrap();
-        assert!(!r.meets_target);
-        assert_eq!(r.selection, Selection::LargestMinResolution);
-        assert!(
-            r.notes
-                .iter()
-                .any(|n| n.contains("no condition") && n.contains("1000"))
-        );
-        for p in &r.window.points {
-            if p.within_run_time && p.meets_min_retention {
-                assert!(r.optimum.min_resolution >= p.min_resolution - 1e-9, "{p:?}");
-            }
-        }
-        for tg in [5.0, 10.0, 20.0, 30.0, 40.0] {
-            for i in [5.0, 15.0, 30.0] {
-                for f in [60.0, 80.0, 100.0] {
-                    if let Some((_, m, k)) = brute(tg, i, f, 45.0)
-                        && k >= 1.0
-                    {
-                        assert!(m <= r.optimum.min_resolution + 1e-6, "tg {tg} {i}-{f}: {m}");
-                    }
-                }
-            }
-        }
-    }
-
-    #[test]
-    fn the_first_peak_is_kept_above_the_minimum_retention_factor() {
-        // Without the limit the shortest adequate run starts at a high % organic and the first
-        // peak comes out early; a limit above that k pushes the start down.
-        let mut q = request();
-        q.final_pct = Range {
-            min: 60.0,
-            max: 100.0,
-        };
-        q.initial_pct = Range {
-            min: 5.0,
-            max: 59.0,
-        };
-        q.min_retention_factor = 0.0;
-        let free = optimise(&q).unwrap();
-        let k_free = free.optimum.first_peak_retention_factor;
-        let limit = (2.0 * k_free).max(k_free + 1.0);
-        q.min_retention_factor = limit;
-        let held = optimise(&q).unwrap();
-        assert!(held.meets_min_retention, "{:?}", held.notes);
-        assert!(held.optimum.first_peak_retention_factor >= limit);
-        assert!(held.optimum.run_time_min >= free.optimum.run_time_min - 1e-9);
-        assert!(
-            held.initial_pct < free.initial_pct,
-            "{} vs {}",
-            held.initial_pct,
-            free.initial_pct
-        );
-        // An impossible limit is reported, not silently ignored.
-        q.min_retention_factor = 1000.0;
-        let r = optimise(&q).unwrap();
-        assert!(!r.meets_min_retention);
-        assert!(
-            r.notes.iter().any(|n| n.contains("k ≥ 1000")),
-            "{:?}",
-            r.notes
-        );
-        q.min_retention_factor = -1.0;
-        assert!(optimise(&q).is_err());
-    }
-
-    #[test]
-    fn the_reported_program_is_the_rounded_one_that_was_evaluated() {
-        let mut q = request();
-        q.two_segment = true;
-        for q in [request(), q] {
-            let r = optimise(&q).unwrap();
-            for p in r.optimum.program.points() {
-                assert_eq!(p.time_min, round_to_tenth(p.time_min), "{p:?}");
-                assert_eq!(p.organic_pct, round_to_tenth(p.organic_pct), "{p:?}");
-            }
-            assert_eq!(r.gradient_time_min, round_to_tenth(r.gradient_time_min));
-            assert!(!r.optimum.program.to_spec().contains("000"));
-            // Retention is predicted for exactly that program.
-            let sys = GradientSystem {
-                dead_time_min: 1.0,
-                dwell_time_min: 0.5,
-            };
-            for pk in &r.optimum.peaks {
-                let a = analytes().into_iter().find(|a| a.name == pk.name).unwrap();
-                let e = gradient_elution(
-                    &LssParameters {
-                        log_kw: a.log_kw,
-                        s: a.s,
-                    },
-                    &r.optimum.program,
-                    &sys,
-                )
-                .unwrap();
-                assert_eq!(e.retention_time_min, pk.retention_time_min);
-            }
-        }
-    }
-
-    #[test]
-    fn critical_pair_and_two_segment() {
-        let mut q = request();
-        q.critical_pairs = vec![["inv-b".into(), "inv-c".into()]];
-        q.two_segment = true;
-        let r = optimise(&q).unwrap();
-        assert_eq!(r.optimum.pairs.len(), 1);
-        let mut names = r.optimum.critical_pair.clone();
-        names.sort();
-        assert_eq!(names, ["inv-b".to_string(), "inv-c".to_string()]);
-        // The two-segment result is kept only when it beats the linear ramp by the rule.
-        if r.knee.is_some() {
-            assert!(
-                r.notes
-                    .iter()
-                    .any(|n| n.contains("two-segment gradient beats"))
-            );
-        }
-        assert!(r.meets_target);
-    }
-
-    #[test]
-    fn bad_ranges_and_names_are_errors() {
-        let mut q = request();
-        q.initial_pct = Range {
-            min: 5.0,
-            max: 130.0,
-        };
-        assert!(optimise(&q).unwrap_err().to_string().contains("130"));
-        let mut q = request();
-        q.critical_pairs = vec![["inv-a".into(), "nope".into()]];
-        assert!(optimise(&q).unwrap_err().to_string().contains("nope"));
-        let mut q = request();
-        q.max_run_time_min = 1.2;
-        assert!(matches!(
-            optimise(&q),
-            Err(OptimiseError::NoFeasibleCondition { .. })
-        ));
-        let mut q = request();
-        q.gradient_time_min = Range {
-            min: -5.0,
-            max: 10.0,
-        };
-        assert!(optimise(&q).is_err());
-    }
-
-    #[test]
-    fn svg_has_axes_labels_and_polyline() {
-        let r = optimise(&request()).unwrap();
-        let svg = render_window_svg(&r.window);
-        assert!(svg.starts_with("<svg"));
-        assert!(svg.contains("Gradient time tG (min)"));
-        assert!(svg.contains("Smallest resolution Rs"));
-        assert!(svg.contains("<polyline"));
-        assert!(svg.contains("target Rs = 1.5"));
-        // The chosen point is marked where the curve has it.
-        let chosen = format!("chosen tG = {:.1} min", r.gradient_time_min);
-        assert!(svg.contains(&chosen), "{svg}");
-        assert_eq!(svg.matches("id=\"chosen\"").count(), 1);
-        assert_eq!(svg.matches("<svg").count(), 1);
-        assert!(svg.trim_end().ends_with("</svg>"));
-    }
-}
+mod tests;

@@ -19,6 +19,10 @@ use thiserror::Error;
 
 use crate::measured::DeadTimeInput;
 use crate::measured::peaks::PeakTable;
+use crate::measured::scouting::{
+    RunSetProblem, check_identifiable, check_run_names, levenberg_marquardt, retention_times,
+    rms_and_sigma,
+};
 use crate::model::gradient::{
     ElutionPhase, GradientError, GradientProgram, GradientSystem, LssParameters, gradient_elution,
 };
@@ -107,6 +111,25 @@ pub enum ScoutError {
     /// A gradient calculation failed.
     #[error(transparent)]
     Gradient(#[from] GradientError),
+}
+
+impl From<RunSetProblem> for ScoutError {
+    fn from(p: RunSetProblem) -> Self {
+        match p {
+            RunSetProblem::TooFewRuns { count } => ScoutError::TooFewRuns { count },
+            RunSetProblem::DuplicateRun { name } => ScoutError::DuplicateRun { name },
+            RunSetProblem::NotIdentifiable { runs } => ScoutError::NotIdentifiable { runs },
+            RunSetProblem::MissingPeak {
+                peak,
+                run,
+                present_in,
+            } => ScoutError::MissingPeak {
+                peak,
+                run,
+                present_in,
+            },
+        }
+    }
 }
 
 /// One scouting run: its gradient program and measured peaks.
@@ -391,13 +414,6 @@ fn start_estimate(obs: &[(&GradientProgram, f64)], sys: &GradientSystem) -> [f64
     clamp_params([lk, s])
 }
 
-struct LmOutcome {
-    x: [f64; 2],
-    iterations: usize,
-    converged: bool,
-    jtj: [f64; 3],
-}
-
 fn residuals(x: [f64; 2], obs: &[(&GradientProgram, f64)], sys: &GradientSystem) -> Vec<f64> {
     let p = LssParameters {
         log_kw: x[0],
@@ -427,90 +443,6 @@ fn jacobian(x: [f64; 2], obs: &[(&GradientProgram, f64)], sys: &GradientSystem) 
     (0..obs.len()).map(|i| [cols[0][i], cols[1][i]]).collect()
 }
 
-fn jtj_of(j: &[[f64; 2]]) -> [f64; 3] {
-    let mut a = [0.0; 3];
-    for r in j {
-        a[0] += r[0] * r[0];
-        a[1] += r[0] * r[1];
-        a[2] += r[1] * r[1];
-    }
-    a
-}
-
-fn levenberg_marquardt(
-    start: [f64; 2],
-    obs: &[(&GradientProgram, f64)],
-    sys: &GradientSystem,
-) -> LmOutcome {
-    let cost = |r: &[f64]| r.iter().map(|v| v * v).sum::<f64>();
-    let mut x = start;
-    let mut r = residuals(x, obs, sys);
-    let mut c = cost(&r);
-    let mut lambda = 1e-3;
-    let mut converged = false;
-    let mut it = 0;
-    while it < 200 {
-        it += 1;
-        if c < 1e-26 {
-            converged = true;
-            break;
-        }
-        let j = jacobian(x, obs, sys);
-        let a = jtj_of(&j);
-        let g = [
-            j.iter().zip(&r).map(|(jr, ri)| jr[0] * ri).sum::<f64>(),
-            j.iter().zip(&r).map(|(jr, ri)| jr[1] * ri).sum::<f64>(),
-        ];
-        let mut improved = false;
-        for _ in 0..30 {
-            let a00 = a[0] * (1.0 + lambda) + 1e-300;
-            let a11 = a[2] * (1.0 + lambda) + 1e-300;
-            let det = a00 * a11 - a[1] * a[1];
-            if det.abs() < 1e-300 || !det.is_finite() {
-                lambda *= 10.0;
-                continue;
-            }
-            let dx = [
-                -(a11 * g[0] - a[1] * g[1]) / det,
-                -(-a[1] * g[0] + a00 * g[1]) / det,
-            ];
-            let xn = clamp_params([x[0] + dx[0], x[1] + dx[1]]);
-            let rn = residuals(xn, obs, sys);
-            let cn = cost(&rn);
-            if cn.is_finite() && cn < c {
-                let step = ((xn[0] - x[0]).abs() / x[0].abs().max(1.0))
-                    .max((xn[1] - x[1]).abs() / x[1].abs().max(1.0));
-                x = xn;
-                r = rn;
-                let rel_drop = (c - cn) / c.max(1e-300);
-                c = cn;
-                lambda = (lambda / 10.0).max(1e-12);
-                improved = true;
-                if step < 1e-12 || rel_drop < 1e-14 {
-                    converged = true;
-                }
-                break;
-            }
-            lambda *= 10.0;
-        }
-        if !improved {
-            // No downhill step at any damping: at a (local) minimum.
-            converged = true;
-            break;
-        }
-        if converged {
-            break;
-        }
-    }
-    let a = jtj_of(&jacobian(x, obs, sys));
-    LmOutcome {
-        x,
-        iterations: it,
-        converged,
-        jtj: a,
-    }
-}
-
 /// Fits log kw and S for every analyte of the scouting runs.
 ///
 /// # Errors
@@ -532,18 +464,8 @@ pub fn fit(req: &ScoutRequest) -> Result<ScoutFit, ScoutError> {
 /// # Errors
 /// As [`fit`].
 pub fn fit_in(req: &ScoutRequest, basis: CompositionBasis) -> Result<ScoutFit, ScoutError> {
-    if req.runs.len() < 2 {
-        return Err(ScoutError::TooFewRuns {
-            count: req.runs.len(),
-        });
-    }
-    for (i, r) in req.runs.iter().enumerate() {
-        if req.runs[..i].iter().any(|q| q.name == r.name) {
-            return Err(ScoutError::DuplicateRun {
-                name: r.name.clone(),
-            });
-        }
-    }
+    let names: Vec<&str> = req.runs.iter().map(|r| r.name.as_str()).collect();
+    check_run_names(&names, |_| Ok(()), ScoutError::from)?;
     let sys = resolve_system(&req.dead_time, req.dwell_volume_ml, req.flow_ml_min)?;
     let strong: Vec<GradientProgram> = req
         .runs
@@ -551,45 +473,30 @@ pub fn fit_in(req: &ScoutRequest, basis: CompositionBasis) -> Result<ScoutFit, S
         .map(|r| basis.strong_program(&r.program))
         .collect();
     let sigs: Vec<(f64, f64, f64)> = strong.iter().map(signature).collect();
-    if super::all_signatures_equal(&sigs) {
-        return Err(ScoutError::NotIdentifiable {
-            runs: req.runs.iter().map(|r| r.name.clone()).collect(),
-        });
-    }
-    // Every peak of every run must be in every other run.
-    let tables: Vec<(&str, &crate::measured::peaks::PeakTable)> = req
+    let tables: Vec<(&str, &PeakTable)> = req
         .runs
         .iter()
         .map(|r| (r.name.as_str(), &r.peaks))
         .collect();
-    if let Some((peak, run, present_in)) = super::first_missing_peak(&tables) {
-        return Err(ScoutError::MissingPeak {
-            peak,
-            run,
-            present_in,
-        });
-    }
-    let mut analytes = Vec::new();
-    for peak in req.runs[0].peaks.peaks() {
-        let mut obs = Vec::with_capacity(req.runs.len());
-        for (run, program) in req.runs.iter().zip(&strong) {
-            let tr = run
-                .peaks
-                .get(&peak.name)
-                .map(|p| p.retention_time_min)
-                .unwrap_or(f64::NAN);
-            if tr.is_nan() || tr < sys.dead_time_min {
-                return Err(ScoutError::PeakBeforeDeadTime {
-                    peak: peak.name.clone(),
-                    run: run.name.clone(),
-                    retention_time_min: tr,
-                    dead_time_min: sys.dead_time_min,
-                });
-            }
-            obs.push((program, tr));
-        }
-        analytes.push(fit_one(&peak.name, &obs, req, &sys));
-    }
+    check_identifiable(&sigs, &tables)?;
+    let times = retention_times(
+        &tables,
+        |tr| tr < sys.dead_time_min,
+        |peak, run, tr| ScoutError::PeakBeforeDeadTime {
+            peak: peak.to_string(),
+            run: names[run].to_string(),
+            retention_time_min: tr,
+            dead_time_min: sys.dead_time_min,
+        },
+    )?;
+    let analytes = times
+        .iter()
+        .map(|(name, trs)| {
+            let obs: Vec<(&GradientProgram, f64)> =
+                strong.iter().zip(trs.iter().copied()).collect();
+            fit_one(name, &obs, req, &sys)
+        })
+        .collect();
     Ok(ScoutFit {
         basis,
         dead_time_min: sys.dead_time_min,
@@ -606,7 +513,13 @@ fn fit_one(
     sys: &GradientSystem,
 ) -> AnalyteFit {
     let start = start_estimate(obs, sys);
-    let out = levenberg_marquardt(start, obs, sys);
+    let out = levenberg_marquardt(
+        start,
+        1e-26,
+        |x| residuals(x, obs, sys),
+        |x| jacobian(x, obs, sys),
+        clamp_params,
+    );
     let p = LssParameters {
         log_kw: out.x[0],
         s: out.x[1],
@@ -635,16 +548,9 @@ fn fit_one(
             phase,
         });
     }
-    let n = res.len() as f64;
-    let rms = (res.iter().map(|r| r.residual_min.powi(2)).sum::<f64>() / n).sqrt();
-    // Uncertainty: Cov = σ² (JᵀJ)⁻¹; σ the larger of the assumed error and the residual scatter
-    // (residual scatter uses n − 2 degrees of freedom, only with more than 2 runs).
-    let sigma = if res.len() > 2 {
-        let ss: f64 = res.iter().map(|r| r.residual_min.powi(2)).sum();
-        (ss / (n - 2.0)).sqrt().max(RETENTION_ERROR_MIN)
-    } else {
-        RETENTION_ERROR_MIN
-    };
+    // Uncertainty: Cov = σ² (JᵀJ)⁻¹; σ the larger of the assumed error and the residual scatter.
+    let residual_min: Vec<f64> = res.iter().map(|r| r.residual_min).collect();
+    let (rms, sigma) = rms_and_sigma(&residual_min, RETENTION_ERROR_MIN);
     let a = out.jtj;
     let det = a[0] * a[2] - a[1] * a[1];
     let (se_lk, se_s, corr) = if det > 0.0 && det.is_finite() {

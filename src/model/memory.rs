@@ -13,11 +13,13 @@
 //! new system never has; the model-residual route needs none.
 
 use std::collections::BTreeMap;
-use std::io::Read;
+use std::io::{Read, Write};
 
 use serde::{Deserialize, Serialize};
 
-use super::regression::{Additive, ChemClass, LcSystem, Mode, ModelError, Modifier, parse_program};
+use super::prediction::{Prediction, PredictionPath};
+use super::system::{Additive, ChemClass, LcSystem, Mode, ModelError, Modifier};
+use super::training_data::{TrainingData, parse_program};
 
 /// How a source system relates to the target system.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Serialize, Deserialize)]
@@ -189,6 +191,20 @@ fn gunzip(bytes: &[u8], label: &str) -> Result<String, ModelError> {
 }
 
 /// One `system` record of the TSV form.
+/// Gzip with a fixed level and a zero timestamp, so the same bytes in give the same file out
+/// (model and memory files).
+pub(crate) fn gzip(bytes: &[u8]) -> Result<Vec<u8>, ModelError> {
+    let mut enc = flate2::GzBuilder::new()
+        .mtime(0)
+        .write(Vec::new(), flate2::Compression::new(9));
+    enc.write_all(bytes)
+        .and_then(|()| enc.finish())
+        .map_err(|e| ModelError::Io {
+            path: "gzip".into(),
+            reason: e.to_string(),
+        })
+}
+
 fn system_line(id: &str, s: &LcSystem) -> String {
     let g: Vec<String> = s
         .gradient
@@ -462,11 +478,11 @@ impl MemoryTable {
     /// # Errors
     /// `ModelError::Io` if compression fails.
     pub fn to_gz_bytes(&self) -> Result<Vec<u8>, ModelError> {
-        super::regression::gzip(self.to_tsv().as_bytes())
+        gzip(self.to_tsv().as_bytes())
     }
 
     /// Builds the table from training data: psi_k1 and rt averaged per (InChIKey, system).
-    pub fn from_training(data: &super::regression::TrainingData) -> Self {
+    pub fn from_training(data: &TrainingData) -> Self {
         let mut t = MemoryTable::default();
         for s in &data.systems {
             t.systems.insert(s.id.clone(), s.system.clone());
@@ -536,7 +552,7 @@ pub struct StoredFit {
     /// system's mode: the organic fraction in RP, the water fraction 1 − %organic/100 in HILIC
     /// (docs/model.md §1), so S is positive in both. Rows stored before the overlay's
     /// migration 3 were HILIC fits in the organic fraction; they are converted when read
-    /// (`commands::stored_fit_from`).
+    /// (`cli::knowledge::stored_fit_from` in the binary).
     pub lss: crate::model::gradient::LssParameters,
     /// 1σ uncertainty of log kw.
     pub log_kw_uncertainty: f64,
@@ -553,7 +569,7 @@ pub struct StoredFit {
 impl StoredFit {
     /// Strong-solvent fraction at which k = 1, the retention memory's `psi_k1`: log kw / S,
     /// since the parameters are written in the strong-solvent fraction of the mode (organic in
-    /// RP, water in HILIC; the model's convention, see `regression` module docs).
+    /// RP, water in HILIC; the model's convention, see `lss` module docs).
     pub fn psi_k1(&self) -> f64 {
         self.lss.log_kw / self.lss.s
     }
@@ -628,7 +644,7 @@ impl StoredFit {
         target: &LcSystem,
         coelution_map_memory: Vec<(f64, f64)>,
         coelution_map_descriptor: Vec<(f64, f64)>,
-    ) -> Result<super::regression::Prediction, ModelError> {
+    ) -> Result<Prediction, ModelError> {
         use crate::model::gradient::{
             GradientPoint as Point, GradientProgram, GradientSystem, LssParameters,
             gradient_elution,
@@ -687,14 +703,14 @@ impl StoredFit {
             0.05
         };
         let t_out = rt - target.t0_min - target.dwell_min;
-        Ok(super::regression::Prediction {
+        Ok(Prediction {
             rt_min: rt,
             interval_min: ((rt - Z90 * sigma).max(target.t0_min), rt + Z90 * sigma),
             organic_at_elution_pct: target.organic_at_pct(t_out),
             psi_k1: self.psi_k1(),
             lss_s: s,
             elutes_after_program: rt - target.t0_min > target.program_end_min(),
-            path: super::regression::PredictionPath::ScoutingFit {
+            path: PredictionPath::ScoutingFit {
                 source: self.source.clone(),
             },
             difference_sd_psi: vec![(10.0, sd_psi)],
@@ -712,7 +728,7 @@ mod tests {
     use crate::model::gradient::{
         GradientProgram, GradientSystem, LssParameters, gradient_elution,
     };
-    use crate::model::regression::GradientPoint;
+    use crate::model::system::GradientPoint;
 
     fn rp_system(ph: f64, temperature_c: Option<f64>, program: &[(f64, f64)]) -> LcSystem {
         LcSystem {

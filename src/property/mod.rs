@@ -9,6 +9,9 @@
 
 pub mod estimate;
 pub mod ionisation;
+pub mod unresolved;
+
+pub use unresolved::{Suggestion, Unresolved};
 
 use serde::{Deserialize, Serialize};
 

@@ -7,9 +7,12 @@
 pub mod advice;
 pub mod chromatogram;
 pub mod describe;
+pub mod kb_stats;
 pub mod lookup;
+pub mod measured;
 pub mod phases;
 pub mod plan;
+pub mod predict;
 pub mod table;
 
 use serde::{Deserialize, Serialize};

@@ -28,9 +28,36 @@ pub fn printable(s: &str) -> String {
         .collect()
 }
 
+/// A whole text (many lines) as [`printable`] would show it, line breaks and tabs kept: the one
+/// function every text the program prints passes through, so that a control character stored
+/// in a name (an escape sequence added with `kb add --name`, say) never reaches a terminal raw.
+pub fn printable_text(s: &str) -> String {
+    if !s.chars().any(|c| c.is_control() && c != '\n' && c != '\t') {
+        return s.to_string();
+    }
+    s.chars()
+        .flat_map(|c| {
+            if c.is_control() && c != '\n' && c != '\t' {
+                c.escape_default().collect::<Vec<_>>()
+            } else {
+                vec![c]
+            }
+        })
+        .collect()
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn whole_texts_keep_their_layout_but_lose_control_characters() {
+        let t = "name,logp\n\u{1b}[31mred\t1.2\r\n\u{7}";
+        let p = printable_text(t);
+        assert_eq!(p, "name,logp\n\\u{1b}[31mred\t1.2\\r\n\\u{7}");
+        assert!(!p.chars().any(|c| c.is_control() && c != '\n' && c != '\t'));
+        assert_eq!(printable_text("plain\ttext\n"), "plain\ttext\n");
+    }
 
     #[test]
     fn control_characters_are_escaped() {

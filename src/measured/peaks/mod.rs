@@ -59,6 +59,17 @@ pub enum PeakTableError {
         /// Header text.
         header: String,
     },
+    /// The header is separated by semicolons: the CSV a spreadsheet writes where the decimal
+    /// separator is a comma (`1,23`), which would otherwise be read wrongly.
+    #[error(
+        "line {line}: header `{header}` is separated by semicolons, as a spreadsheet saves CSV where the decimal separator is a comma (1,23); save the table with commas between fields and points in numbers (1.23), or as tab-separated text"
+    )]
+    SemicolonSeparated {
+        /// Line number.
+        line: usize,
+        /// Header text.
+        header: String,
+    },
     /// A required column is missing.
     #[error("peak table has no `{column}` column (accepted headers: {accepted})")]
     MissingColumn {
@@ -391,6 +402,11 @@ impl PeakTable {
             '\t'
         } else if header.contains(',') {
             ','
+        } else if header.contains(';') {
+            return Err(PeakTableError::SemicolonSeparated {
+                line: header_line,
+                header: header.to_string(),
+            });
         } else {
             return Err(PeakTableError::NoDelimiter {
                 line: header_line,
@@ -728,6 +744,32 @@ mod tests {
         assert_eq!(t.peaks()[0].name, "uracil-like, marker");
         assert_eq!(t.peaks()[1].line, 4);
         assert_eq!(t.ignored_columns(), ["Comment"]);
+    }
+
+    #[test]
+    fn semicolon_tables_with_decimal_commas_name_the_cause() {
+        // the CSV a spreadsheet writes in a locale with decimal commas (invented peaks)
+        for text in [
+            "name;rt;w50\nA;1,23;0,05\nB;2,5;0,06\n",
+            "\u{feff}peak;tR;width\r\nA;1,23;0,05\r\n",
+            "name;rt;w50\n",
+        ] {
+            let e = PeakTable::parse(text).unwrap_err();
+            assert!(
+                matches!(e, PeakTableError::SemicolonSeparated { line: 1, .. }),
+                "{text:?}: {e}"
+            );
+            let m = e.to_string();
+            assert!(
+                m.contains("semicolons") && m.contains("decimal separator"),
+                "{m}"
+            );
+        }
+        // a header with neither is still refused as before
+        assert!(matches!(
+            PeakTable::parse("name rt w50\n").unwrap_err(),
+            PeakTableError::NoDelimiter { .. }
+        ));
     }
 
     #[test]

@@ -1,0 +1,27 @@
+//! A query that named no analyte: the plain record that resolution hands on and that the
+//! advisor and the reports carry through unchanged. It lives here, beside [`super::Analyte`],
+//! so that the advisor never needs the knowledge base to speak of what did not resolve.
+
+use serde::{Deserialize, Serialize};
+
+/// A near-miss offered for an unresolved query.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Suggestion {
+    /// A name or synonym in the knowledge base.
+    pub name: String,
+    /// The compound's preferred name (differs when the suggestion is a synonym).
+    pub compound: String,
+    /// Similarity 0–1 (normalised Damerau–Levenshtein on normalised names).
+    pub similarity: f64,
+}
+
+/// A query that did not resolve.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Unresolved {
+    /// What the user typed.
+    pub query: String,
+    /// Why it did not resolve.
+    pub reason: String,
+    /// Near misses, best first (never used automatically).
+    pub suggestions: Vec<Suggestion>,
+}

@@ -1,0 +1,169 @@
+//! The `suitability` report: peaks, adjacent pairs and checks as tables or CSV blocks.
+
+use serde::Serialize;
+
+use super::{Render, csv_block, label, num};
+use crate::measured::suitability::{Criterion, Outcome, SuitabilityReport};
+use crate::report::table::render;
+
+/// JSON output of `suitability` (schema version 1: the library report plus the file name).
+#[derive(Serialize)]
+pub struct SuitabilityOutput<'a> {
+    /// Schema version (1).
+    pub schema_version: u32,
+    /// The peak table's file name as given.
+    pub peak_table: String,
+    /// The evaluation.
+    #[serde(flatten)]
+    pub report: &'a SuitabilityReport,
+}
+
+impl Render for SuitabilityOutput<'_> {
+    fn table(&self) -> String {
+        suitability_table(self.report)
+    }
+    fn csv(&self) -> Option<String> {
+        Some(suitability_csv(self.report))
+    }
+}
+
+const PEAK_HEADER: [&str; 9] = [
+    "peak",
+    "tR (min)",
+    "k (–)",
+    "N half-height (–)",
+    "N base (–)",
+    "H (µm)",
+    "USP tailing (–)",
+    "asymmetry (–)",
+    "area (%)",
+];
+const PAIR_HEADER: [&str; 5] = [
+    "first",
+    "second",
+    "selectivity α (–)",
+    "resolution Rs (–)",
+    "Rs from",
+];
+const CHECK_HEADER: [&str; 6] = [
+    "check",
+    "subject",
+    "value (–)",
+    "limit (–)",
+    "result",
+    "limit source",
+];
+
+fn criterion_text(c: Criterion) -> &'static str {
+    match c {
+        Criterion::MinResolution => "Rs ≥ limit",
+        Criterion::MinRetentionFactor => "k ≥ limit",
+        Criterion::MaxRetentionFactor => "k ≤ limit",
+        Criterion::MaxTailing => "tailing ≤ limit",
+        Criterion::MinPlates => "N ≥ limit",
+    }
+}
+
+fn outcome_text(o: Outcome) -> &'static str {
+    match o {
+        Outcome::Pass => "pass",
+        Outcome::Fail => "FAIL",
+        Outcome::NotEvaluated => "not evaluated",
+    }
+}
+
+fn suitability_rows(r: &SuitabilityReport) -> [Vec<Vec<String>>; 3] {
+    let peaks = r
+        .peaks
+        .iter()
+        .map(|p| {
+            vec![
+                p.name.clone(),
+                num(Some(p.retention_time_min), 3),
+                num(Some(p.retention_factor), 3),
+                num(p.plates_half_height, 0),
+                num(p.plates_base, 0),
+                num(p.plate_height_um, 2),
+                num(p.usp_tailing, 2),
+                num(p.asymmetry, 2),
+                num(p.area_pct, 2),
+            ]
+        })
+        .collect();
+    let pairs = r
+        .pairs
+        .iter()
+        .map(|p| {
+            vec![
+                p.first.clone(),
+                p.second.clone(),
+                num(p.selectivity, 3),
+                num(Some(p.resolution), 2),
+                label(&p.resolution_basis),
+            ]
+        })
+        .collect();
+    let checks = r
+        .checks
+        .iter()
+        .map(|c| {
+            vec![
+                criterion_text(c.criterion).into(),
+                c.subject.clone(),
+                num(c.value, 2),
+                num(Some(c.limit), 2),
+                outcome_text(c.outcome).into(),
+                c.limit_source.clone(),
+            ]
+        })
+        .collect();
+    [peaks, pairs, checks]
+}
+
+fn suitability_table(r: &SuitabilityReport) -> String {
+    let [peaks, pairs, checks] = suitability_rows(r);
+    let mut s = format!(
+        "Dead time t0 = {:.3} min ({})\n\nPeaks, in retention order ((–) = dimensionless):\n",
+        r.dead_time_min, r.dead_time_source
+    );
+    s.push_str(&render(&PEAK_HEADER, &peaks));
+    s.push_str("\n\nAdjacent pairs:\n");
+    if pairs.is_empty() {
+        s.push_str("(one peak only: no pairs)\n");
+    } else {
+        s.push_str(&render(&PAIR_HEADER, &pairs));
+        s.push('\n');
+    }
+    s.push_str("\nChecks:\n");
+    s.push_str(&render(&CHECK_HEADER, &checks));
+    let failed = r
+        .checks
+        .iter()
+        .filter(|c| c.outcome == Outcome::Fail)
+        .count();
+    s.push_str(&format!(
+        "\n\nResult: {} ({} checks, {} failed, {} not evaluated)\n",
+        if r.passed { "PASS" } else { "FAIL" },
+        r.checks.len(),
+        failed,
+        r.not_evaluated
+    ));
+    for n in &r.notes {
+        s.push_str(&format!("note: {n}\n"));
+    }
+    s.push_str(
+        "note: limits are starting points; the validated method, the lab's SOPs and the \
+         applicable pharmacopoeial chapter take precedence.\n",
+    );
+    s
+}
+
+fn suitability_csv(r: &SuitabilityReport) -> String {
+    let [peaks, pairs, checks] = suitability_rows(r);
+    let mut s = csv_block("peaks", &PEAK_HEADER, &peaks);
+    s.push('\n');
+    s.push_str(&csv_block("pairs", &PAIR_HEADER, &pairs));
+    s.push('\n');
+    s.push_str(&csv_block("checks", &CHECK_HEADER, &checks));
+    s
+}

@@ -17,6 +17,7 @@ pub mod kb;
 pub mod measured;
 pub mod model;
 pub mod phase;
+pub mod plain;
 pub mod property;
 pub mod report;
 pub mod structure;

@@ -451,24 +451,56 @@ fn plan_writes_one_self_contained_html_file_and_refuses_a_missing_directory_befo
     let out = ctx.run(&["plan", "toluene", "--output", missing.to_str().unwrap()]);
     assert_eq!(out.status.code(), Some(2));
     assert!(!missing.exists());
-    // same input, same bytes
-    let again = ctx.path("again.html");
-    assert!(
-        ctx.run(&[
-            "plan",
-            "toluene",
-            "p-xylene",
-            "m-xylene",
-            "--output",
-            again.to_str().unwrap()
-        ])
-        .status
-        .success()
-    );
+    // same input, same bytes with --no-date (the date is on by default)
+    let (first, again) = (ctx.path("first.html"), ctx.path("again.html"));
+    for p in [&first, &again] {
+        assert!(
+            ctx.run(&[
+                "plan",
+                "toluene",
+                "p-xylene",
+                "m-xylene",
+                "--no-date",
+                "--output",
+                p.to_str().unwrap()
+            ])
+            .status
+            .success()
+        );
+    }
     assert_eq!(
-        std::fs::read(&out_path).unwrap(),
+        std::fs::read(&first).unwrap(),
         std::fs::read(&again).unwrap()
     );
+    // the date is on by default; document-control entries go where they belong
+    assert!(
+        html.contains("<td>date written</td><td>20"),
+        "no date by default"
+    );
+    let ctl = ctx.path("ctl.md");
+    let out = ctx.run(&[
+        "plan",
+        "toluene",
+        "--document-id",
+        "INV-PLAN-042",
+        "--author",
+        "A. Analyst (invented)",
+        "--matrix",
+        "invented solvent blend",
+        "--output",
+        ctl.to_str().unwrap(),
+    ]);
+    assert!(out.status.success(), "{}", stderr(&out));
+    let md = std::fs::read_to_string(&ctl).unwrap();
+    for want in [
+        "| document identifier | INV-PLAN-042 |",
+        "| author | A. Analyst (invented) |",
+        "| sample matrix | invented solvent blend |",
+        "| retention model checksum | fnv1a64:",
+        "| reviewer | to be completed |",
+    ] {
+        assert!(md.contains(want), "{want} missing");
+    }
 }
 
 #[test]

@@ -450,6 +450,60 @@ fn scout_table_names_the_critical_pair_and_the_program() {
 }
 
 #[test]
+fn scout_accepts_retention_time_only_tables_with_lab_headings_and_says_where_widths_come_from() {
+    let dir = tempfile::tempdir().unwrap();
+    let mut paths = Vec::new();
+    for (name, program) in [("fast.csv", "0:5,10:95"), ("slow.csv", "0:5,30:95")] {
+        // the simulated table of the test above, re-headed as a data system might export it
+        // with no width column at all
+        let full = std::fs::read_to_string(simulated_run(dir.path(), name, program)).unwrap();
+        let text: String = full
+            .lines()
+            .map(|l| {
+                if l.starts_with('#') {
+                    l.to_string()
+                } else if l.starts_with("name,") {
+                    "Compound,Retention Time (min)".to_string()
+                } else {
+                    l.rsplit_once(',').map_or(l, |x| x.0).to_string()
+                }
+            })
+            .collect::<Vec<_>>()
+            .join("\n");
+        paths.push(write(dir.path(), &format!("rt-only-{name}"), &text));
+    }
+    phasewise()
+        .arg("scout")
+        .args(&paths)
+        .args([
+            "--gradients",
+            "0:5,10:95;0:5,30:95",
+            "--t0",
+            "1.5",
+            "--flow",
+            "1",
+            "--dwell",
+            "1",
+            "--plates",
+            "12000",
+        ])
+        .assert()
+        .code(0)
+        .stdout(
+            predicate::str::contains("Optimum: initial")
+                .and(predicate::str::contains("have no width"))
+                .and(predicate::str::contains("estimated from this plate number")),
+        );
+    // suitability still needs widths, and says so
+    phasewise()
+        .args(["suitability", "--t0", "1.5"])
+        .arg(&paths[0])
+        .assert()
+        .code(2)
+        .stderr(predicate::str::contains("no width column"));
+}
+
+#[test]
 fn two_runs_with_the_same_gradient_are_not_identifiable() {
     let dir = tempfile::tempdir().unwrap();
     let r1 = simulated_run(dir.path(), "run1.csv", "0:5,20:95");
@@ -521,6 +575,7 @@ fn transfer_to_a_narrow_short_column_matches_hand_computed_scaling() {
             "0.2",
             "--injection",
             "10",
+            "--constant-velocity",
             "--format",
             "json",
         ])
@@ -530,7 +585,7 @@ fn transfer_to_a_narrow_short_column_matches_hand_computed_scaling() {
         .stdout
         .clone();
     let j = json_of(&out);
-    // Same linear velocity: F2 = 1.0·(2.1/4.6)² = 0.2084121 mL/min.
+    // Same linear velocity (--constant-velocity): F2 = 1.0·(2.1/4.6)² = 0.2084121 mL/min.
     let f2 = (2.1f64 / 4.6).powi(2);
     close(f(&j["flow_ml_min"], "F2"), f2, "flow");
     assert!((f2 - 0.208_412).abs() < 1e-6);
@@ -582,7 +637,7 @@ fn transfer_to_a_narrow_short_column_matches_hand_computed_scaling() {
 }
 
 #[test]
-fn transfer_with_particle_adjustment_scales_flow_by_particle_ratio() {
+fn transfer_scales_flow_by_the_pharmacopoeial_formula_by_default() {
     let out = phasewise()
         .args([
             "transfer",
@@ -598,7 +653,6 @@ fn transfer_with_particle_adjustment_scales_flow_by_particle_ratio() {
             "1.0",
             "--gradient",
             "0:5,20:95",
-            "--scale-flow-for-particle",
             "--format",
             "json",
         ])
@@ -613,6 +667,59 @@ fn transfer_with_particle_adjustment_scales_flow_by_particle_ratio() {
     let f2 = (2.1f64 / 4.6).powi(2) * 5.0 / 1.8;
     close(f(&j["flow_ml_min"], "F2"), f2, "flow");
     close(f(&j["time_scale_factor"], "factor"), 0.24, "time factor");
+    assert_eq!(j["scaling"], "pharmacopoeial");
+    // the old opt-in flag is still accepted and gives the same answer
+    phasewise()
+        .args([
+            "transfer",
+            "--from",
+            "150x4.6",
+            "--from-particle",
+            "5",
+            "--to",
+            "100x2.1",
+            "--to-particle",
+            "1.8",
+            "--flow",
+            "1.0",
+            "--gradient",
+            "0:5,20:95",
+            "--scale-flow-for-particle",
+        ])
+        .assert()
+        .code(0)
+        .stdout(predicate::str::contains("0.579"));
+}
+
+#[test]
+fn transfer_of_the_issue_example_gives_the_pharmacopoeial_flow_and_gradient_time() {
+    // issue 16: 150x4.6 mm, 5 µm -> 100x2.1 mm, 1.7 µm at 1.0 mL/min, 0:5,20:95:
+    // F2 = 1.0 (2.1² · 5)/(4.6² · 1.7) = 0.613 mL/min, ramp 20 · (100 · 1.7)/(150 · 5) = 4.53 min
+    // (harmonised pharmacopoeial chapters, from memory); L/dp +96 %: outside the allowed range.
+    phasewise()
+        .args([
+            "transfer",
+            "--from",
+            "150x4.6",
+            "--from-particle",
+            "5",
+            "--to",
+            "100x2.1",
+            "--to-particle",
+            "1.7",
+            "--flow",
+            "1.0",
+            "--gradient",
+            "0:5,20:95",
+        ])
+        .assert()
+        .code(0)
+        .stdout(
+            predicate::str::contains("0.613")
+                .and(predicate::str::contains("4.53"))
+                .and(predicate::str::contains("outside the allowed adjustment"))
+                .and(predicate::str::contains("Allowed-adjustment checks")),
+        );
 }
 
 #[test]
@@ -637,8 +744,8 @@ fn transfer_table_shows_the_regulatory_note_and_the_program() {
         .code(0)
         .stdout(
             predicate::str::contains("flow (mL/min)")
-                .and(predicate::str::contains("0.208"))
-                .and(predicate::str::contains("13.33"))
+                .and(predicate::str::contains("0.579"))
+                .and(predicate::str::contains("4.80"))
                 .and(predicate::str::contains("pharmacopoeial")),
         );
 }

@@ -260,6 +260,7 @@ fn transfer_json_matches_the_documented_schema() {
             "0:5,20:95",
             "--injection",
             "10",
+            "--constant-velocity",
             "--format",
             "json",
         ])
@@ -270,6 +271,9 @@ fn transfer_json_matches_the_documented_schema() {
         .clone();
     let v = json(&out);
     check_against_docs("## `phasewise transfer", &v);
+    assert_eq!(v["scaling"], "constant_linear_velocity");
+    // L/dp 150/5 = 30 → 100/1.8 = 55.6 (+85 %): outside the −25 % to +50 % range
+    assert_eq!(v["limits"][0]["verdict"], "outside");
     let doc: TransferDoc = serde_json::from_value(v).expect("typed decode");
     assert_eq!(doc.schema_version, 1);
     assert_eq!(doc.original.column_length_mm, 150.0);

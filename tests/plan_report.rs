@@ -161,7 +161,7 @@ fn every_analyte_has_a_peak_apex_at_its_predicted_time_and_a_label() {
 }
 
 #[test]
-fn co_eluting_pairs_are_hatched_and_marked() {
+fn co_eluting_pairs_are_bracketed_drawn_heavy_and_shown_close_up() {
     let report = load("gc_solvent_panel.json");
     let svg = render_svg(&report.recommendations[0], "x");
     for name in ["p-xylene", "m-xylene"] {
@@ -169,21 +169,19 @@ fn co_eluting_pairs_are_hatched_and_marked() {
             .into_iter()
             .find(|e| attr(e, "data-analyte") == Some(name))
             .unwrap();
-        assert!(
-            attr(peak, "fill").unwrap().starts_with("url(#hatch"),
-            "{peak}"
-        );
-        assert!(
-            svg.contains(&format!(">{name} !</text>")),
-            "no ! marker on {name}"
-        );
+        assert_eq!(attr(peak, "data-risk"), Some("true"), "{peak}");
+        assert_eq!(attr(peak, "stroke-width"), Some("2.2"), "{peak}");
     }
+    assert!(svg.contains("class=\"risk-bracket\""));
+    assert!(svg.contains("close-up: "));
     let toluene = elements(&svg, "path", "peak")
         .into_iter()
         .find(|e| attr(e, "data-analyte") == Some("toluene"))
         .unwrap();
-    assert_eq!(attr(toluene, "fill"), Some("none"));
+    assert_eq!(attr(toluene, "data-risk"), Some("false"));
     assert!(svg.contains("retention time (min)") && svg.contains("relative response"));
+    // the oven program is drawn on the second axis
+    assert!(svg.contains("class=\"program\"") && svg.contains("oven temperature"));
 }
 
 const HOSTILE: &str = "<script>alert(1)</script> \"quotes\" & ampersands";
@@ -264,12 +262,19 @@ fn rendering_is_deterministic_apart_from_the_date_line() {
         let a = render_markdown(&report, &o);
         let b = render_markdown(&report, &dated);
         assert_ne!(a, b);
-        assert_eq!(b.replace("Date: 2026-12-01\n\n", ""), a);
+        // the date appears twice (date line, document-control row) and nowhere else
+        assert_eq!(
+            b.replace("Date: 2026-12-01\n\n", "").replace(
+                "| date written | 2026-12-01 |",
+                "| date written | not recorded (written with the date off) |"
+            ),
+            a
+        );
     }
 }
 
 #[test]
-fn both_formats_have_the_eight_sections() {
+fn both_formats_have_the_ten_sections() {
     let report = load("lc_impurity_panel.json");
     let md = render_markdown(&report, &opts("t"));
     let html = render_html(&report, &opts("t"));
@@ -278,8 +283,10 @@ fn both_formats_have_the_eight_sections() {
         "Decision",
         "Starting conditions",
         "Predicted chromatogram",
+        "Scouting design",
         "Risks",
         "System suitability targets",
+        "Robustness and validation outline",
         "Cautions",
         "References",
     ]

@@ -117,6 +117,13 @@ pub fn read_peaks(path: &Path) -> Result<PeakTable> {
     PeakTable::parse(&text).with_context(|| format!("peak table {}", path.display()))
 }
 
+/// A peak table for scouting fits, which need names and retention times only: widths may be
+/// missing (from a file or stdin, `-`).
+pub fn read_retention_peaks(path: &Path) -> Result<PeakTable> {
+    let text = read_text(path)?;
+    PeakTable::parse_retention_only(&text).with_context(|| format!("peak table {}", path.display()))
+}
+
 /// The dead time from `--t0`, or from `--column` with `--flow`.
 pub fn dead_time_input(
     t0: Option<f64>,

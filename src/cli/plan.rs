@@ -6,7 +6,9 @@ use std::process::ExitCode;
 use anyhow::{Result, bail};
 use clap::Args;
 
-use phasewise::report::plan::{PlanOptions, render_html, render_markdown};
+use phasewise::report::plan::{
+    DocumentControl, PlanOptions, render_html_with, render_markdown_with,
+};
 
 use super::Cli;
 use super::advising::{AdviseOptions, advice};
@@ -25,9 +27,55 @@ pub struct PlanArgs {
     /// Report format (default from the file extension).
     #[arg(long, value_parser = ["html", "md", "markdown"])]
     pub report_format: Option<String>,
-    /// Add a date line to the report (otherwise output is byte-for-byte reproducible).
-    #[arg(long)]
+    /// Date of the document (default: today, UTC, as YYYY-MM-DD).
+    #[arg(long, value_name = "DATE", conflicts_with = "no_date")]
     pub date: Option<String>,
+    /// Leave the date out, so the same input gives the same bytes.
+    #[arg(long)]
+    pub no_date: bool,
+    /// Document identifier in the lab's document system.
+    #[arg(long, value_name = "ID")]
+    pub document_id: Option<String>,
+    /// Document version (default "draft 0.1").
+    #[arg(long, value_name = "TEXT")]
+    pub doc_version: Option<String>,
+    /// Author's name (signature and date are left blank to sign).
+    #[arg(long, value_name = "NAME")]
+    pub author: Option<String>,
+    /// Reviewer's name.
+    #[arg(long, value_name = "NAME")]
+    pub reviewer: Option<String>,
+    /// Approver's name.
+    #[arg(long, value_name = "NAME")]
+    pub approver: Option<String>,
+    /// Sample matrix, for the analytical target profile.
+    #[arg(long, value_name = "TEXT")]
+    pub matrix: Option<String>,
+    /// Working range, e.g. "0.05-1.5 mg/mL".
+    #[arg(long, value_name = "TEXT")]
+    pub range: Option<String>,
+    /// Required precision, e.g. "RSD <= 2 % at 100 %".
+    #[arg(long, value_name = "TEXT")]
+    pub precision: Option<String>,
+}
+
+/// Today's date (UTC) as YYYY-MM-DD, from the system clock (civil-from-days conversion of
+/// the proleptic Gregorian calendar, H. Hinnant's published algorithm, from memory).
+fn today_utc() -> Option<String> {
+    let secs = std::time::SystemTime::now()
+        .duration_since(std::time::UNIX_EPOCH)
+        .ok()?
+        .as_secs();
+    let z = i64::try_from(secs / 86_400).ok()? + 719_468;
+    let era = z.div_euclid(146_097);
+    let doe = z - era * 146_097;
+    let yoe = (doe - doe / 1460 + doe / 36_524 - doe / 146_096) / 365;
+    let doy = doe - (365 * yoe + yoe / 4 - yoe / 100);
+    let mp = (5 * doy + 2) / 153;
+    let d = doy - (153 * mp + 2) / 5 + 1;
+    let m = if mp < 10 { mp + 3 } else { mp - 9 };
+    let y = yoe + era * 400 + i64::from(m <= 2);
+    Some(format!("{y:04}-{m:02}-{d:02}"))
 }
 
 /// Runs `phasewise plan`.
@@ -50,12 +98,28 @@ pub fn run(cli: &Cli, args: &PlanArgs) -> Result<ExitCode> {
     let (report, partial) = advice(cli, &args.opts, None)?;
     let opts = PlanOptions {
         title: "Method development plan".to_string(),
-        date: args.date.clone(),
+        date: if args.no_date {
+            None
+        } else {
+            args.date.clone().or_else(today_utc)
+        },
+    };
+    let ctl = DocumentControl {
+        document_id: args.document_id.clone(),
+        version: args.doc_version.clone(),
+        author: args.author.clone(),
+        reviewer: args.reviewer.clone(),
+        approver: args.approver.clone(),
+        kb_checksum: Some(phasewise::kb::SEED_HASH.to_string()),
+        model_checksum: Some(phasewise::model::fitted::builtin_checksum()),
+        matrix: args.matrix.clone(),
+        range: args.range.clone(),
+        precision: args.precision.clone(),
     };
     let text = if html {
-        render_html(&report, &opts)
+        render_html_with(&report, &opts, &ctl)
     } else {
-        render_markdown(&report, &opts)
+        render_markdown_with(&report, &opts, &ctl)
     };
     write_atomically(&args.output, &text)?;
     note(&format!("wrote {}", args.output.display()));

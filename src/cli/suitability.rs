@@ -8,7 +8,7 @@ use anyhow::Result;
 use clap::{Args, ValueEnum};
 
 use phasewise::measured::suitability::{
-    SuitabilityError, SuitabilityRequest, SuitabilityTargets, evaluate,
+    SuitabilityError, SuitabilityRequest, SuitabilityTargets, evaluate_with_progress,
 };
 use phasewise::report::measured::MeasuredFormat;
 use phasewise::report::measured::suitability::SuitabilityOutput;
@@ -106,7 +106,14 @@ pub fn run(a: &SuitabilityArgs) -> Result<ExitCode> {
             min_plates: a.min_plates,
         },
     };
-    let report = evaluate(&req).map_err(|e| suitability_error(e, a))?;
+    // progress on stderr, one line per step, only for tables long enough to take a while
+    let mut progress = |p: phasewise::measured::suitability::Progress| {
+        if p.total > phasewise::measured::suitability::PROGRESS_EVERY {
+            eprintln!("suitability: {} of {} peaks evaluated", p.done, p.total);
+        }
+    };
+    let report =
+        evaluate_with_progress(&req, &mut progress).map_err(|e| suitability_error(e, a))?;
     let output = SuitabilityOutput {
         schema_version: 1,
         peak_table: a.peaks.display().to_string(),

@@ -5,7 +5,9 @@ use std::process::ExitCode;
 use anyhow::{Context, Result};
 use clap::Args;
 
-use phasewise::measured::transfer::{ColumnGeometry, TransferError, TransferRequest, transfer};
+use phasewise::measured::transfer::{
+    ColumnGeometry, FlowScaling, TransferError, TransferRequest, transfer_with,
+};
 use phasewise::model::gradient::GradientProgram;
 use phasewise::report::measured::transfer::{REGULATORY_NOTE, TransferOutput};
 
@@ -14,7 +16,11 @@ use super::output::{ReportFormat, write_report};
 
 /// `transfer` help footer.
 pub const TRANSFER_HELP: &str = "\
-Check the predicted pressure against the column's and the system's limits before running.
+By default the flow follows the harmonised pharmacopoeial formula F2 = F1 (dc2² dp1)/(dc1² dp2)
+and the gradient times scale by (F1/F2)(L2 dc2²)/(L1 dc1²); --constant-velocity keeps the linear
+velocity instead. The allowed-adjustment checks (L/dp within -25 % to +50 %, from memory of the
+chapters) are printed with their verdict. Check the predicted pressure against the column's and
+the system's limits before running.
 
 Example:
   phasewise transfer --from 150x4.6 --from-particle 5 --to 100x2.1 --to-particle 1.8 \\
@@ -53,8 +59,11 @@ pub struct TransferArgs {
     /// Run time of the existing method, min (default: end of the program).
     #[arg(long, value_name = "MIN", value_parser = positive_arg, allow_negative_numbers = true)]
     pub run_time: Option<f64>,
-    /// Also scale the flow by dp1/dp2 (same reduced velocity) instead of the same linear velocity.
+    /// Keep the linear velocity (F2 = F1 (dc2/dc1)²) instead of the pharmacopoeial formula.
     #[arg(long)]
+    pub constant_velocity: bool,
+    /// Accepted for old scripts: the pharmacopoeial scaling it asked for is now the default.
+    #[arg(long, hide = true, conflicts_with = "constant_velocity")]
     pub scale_flow_for_particle: bool,
     /// Output format.
     #[arg(long, short, value_enum, default_value_t = ReportFormat::Table)]
@@ -79,14 +88,19 @@ pub fn run(a: &TransferArgs) -> Result<ExitCode> {
         original,
         target,
         flow_ml_min: a.flow,
-        adjust_flow_for_particle_size: a.scale_flow_for_particle,
+        adjust_flow_for_particle_size: !a.constant_velocity,
         program: program.clone(),
         injection_volume_ul: a.injection,
         dwell_volume_original_ml: a.dwell_from.unwrap_or(0.0),
         dwell_volume_target_ml: a.dwell_to.unwrap_or(0.0),
         run_time_min: a.run_time,
     };
-    let r = transfer(&req).map_err(|e| match e {
+    let scaling = if a.constant_velocity {
+        FlowScaling::ConstantLinearVelocity
+    } else {
+        FlowScaling::Pharmacopoeial
+    };
+    let r = transfer_with(&req, scaling).map_err(|e| match e {
         TransferError::RunTimeTooShort { .. } => anyhow::anyhow!("--run-time: {e}"),
         TransferError::Gradient(_) => anyhow::anyhow!("--gradient `{}`: {e}", a.gradient),
         other => anyhow::Error::new(other).context("scaling the method"),

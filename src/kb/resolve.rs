@@ -320,8 +320,25 @@ impl Kb {
                 true
             }
         });
+        keep_close_to_best(&mut all);
         all.truncate(MAX_SUGGESTIONS);
         Ok(all)
+    }
+}
+
+/// A suggestion at least this similar counts as a near-exact match (e.g. one swapped or
+/// missing letter in an eight-letter name: 1 − 1/8 = 0.875).
+const NEAR_EXACT: f64 = 0.8;
+/// Beside a near-exact match, only suggestions within this much of it are kept: an unrelated
+/// name of similarity 0.6 next to a 0.88 match only distracts.
+const CLOSE_TO_BEST: f64 = 0.1;
+
+/// Drops suggestions far below a near-exact best one (`all` sorted best first).
+fn keep_close_to_best(all: &mut Vec<Suggestion>) {
+    if let Some(best) = all.first().map(|s| s.similarity)
+        && best >= NEAR_EXACT
+    {
+        all.retain(|s| s.similarity >= best - CLOSE_TO_BEST);
     }
 }
 
@@ -449,4 +466,34 @@ fn suggest_in(conn: &Connection, norm: &str) -> rusqlite::Result<Vec<Suggestion>
         }
     }
     Ok(out)
+}
+
+#[cfg(test)]
+mod suggestion_tests {
+    use super::*;
+
+    #[test]
+    fn unrelated_names_are_dropped_beside_a_near_exact_match() {
+        let sug = |name: &str, similarity: f64| Suggestion {
+            name: name.into(),
+            compound: name.into(),
+            similarity,
+        };
+        // "caffiene": caffeine is one transposition away (0.875); the others are unrelated
+        let mut v = vec![
+            sug("caffeine", 0.875),
+            sug("cafestol", 0.6),
+            sug("carbene", 0.55),
+        ];
+        keep_close_to_best(&mut v);
+        assert_eq!(v.len(), 1);
+        // without a near-exact match every candidate stays for the user to judge
+        let mut v = vec![sug("alpha", 0.6), sug("beta", 0.55)];
+        keep_close_to_best(&mut v);
+        assert_eq!(v.len(), 2);
+        // two near-exact matches are both kept
+        let mut v = vec![sug("xylol", 0.9), sug("xylene", 0.83)];
+        keep_close_to_best(&mut v);
+        assert_eq!(v.len(), 2);
+    }
 }

@@ -304,12 +304,37 @@ fn check_target(name: &'static str, v: f64, reason: &'static str) -> Result<(), 
     }
 }
 
+/// Progress of a long evaluation: peaks done out of the total.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct Progress {
+    /// Peaks evaluated so far.
+    pub done: usize,
+    /// Peaks to evaluate.
+    pub total: usize,
+}
+
+/// How often (in peaks) [`evaluate_with_progress`] reports.
+pub const PROGRESS_EVERY: usize = 10_000;
+
 /// Evaluates system suitability for one run.
 ///
 /// # Errors
 /// Invalid dead time or column length, a peak before t0, unknown names in the critical pair or
 /// exclusion list, invalid targets.
 pub fn evaluate(req: &SuitabilityRequest) -> Result<SuitabilityReport, SuitabilityError> {
+    evaluate_with_progress(req, &mut |_| {})
+}
+
+/// [`evaluate`], calling `progress` every [`PROGRESS_EVERY`] peaks and once at the end (the
+/// library never prints; the caller decides how to show it). Time is linear in the number of
+/// peaks.
+///
+/// # Errors
+/// As [`evaluate`].
+pub fn evaluate_with_progress(
+    req: &SuitabilityRequest,
+    progress: &mut dyn FnMut(Progress),
+) -> Result<SuitabilityReport, SuitabilityError> {
     let t0 = req.dead_time.dead_time_min()?;
     let tg = &req.targets;
     check_target("min_resolution", tg.min_resolution, "must be ≥ 0")?;
@@ -354,11 +379,13 @@ pub fn evaluate(req: &SuitabilityRequest) -> Result<SuitabilityReport, Suitabili
             });
         }
     }
+    let excluded: std::collections::HashSet<&str> =
+        req.exclude.iter().map(String::as_str).collect();
     let peaks: Vec<&Peak> = req
         .peaks
         .peaks_by_retention()
         .into_iter()
-        .filter(|p| !req.exclude.contains(&p.name))
+        .filter(|p| !excluded.contains(p.name.as_str()))
         .collect();
     if peaks.is_empty() {
         return Err(SuitabilityError::NoPeaks {
@@ -386,7 +413,11 @@ pub fn evaluate(req: &SuitabilityRequest) -> Result<SuitabilityReport, Suitabili
         notes.push("area % not computed: some peaks have no area".to_string());
     }
     let mut results = Vec::with_capacity(peaks.len());
-    for p in &peaks {
+    let total = peaks.len();
+    for (i, p) in peaks.iter().enumerate() {
+        if i > 0 && i % PROGRESS_EVERY == 0 {
+            progress(Progress { done: i, total });
+        }
         if p.retention_time_min < t0 {
             return Err(SuitabilityError::PeakBeforeDeadTime {
                 name: p.name.clone(),
@@ -437,6 +468,7 @@ pub fn evaluate(req: &SuitabilityRequest) -> Result<SuitabilityReport, Suitabili
             area_pct,
         });
     }
+    progress(Progress { done: total, total });
     let make_pair = |i: usize, j: usize| -> Result<PairResult, SuitabilityError> {
         let (a, b) = (peaks[i], peaks[j]);
         let (rs, basis) = pair_resolution(a, b)?;
@@ -711,5 +743,24 @@ mod tests {
         let j = serde_json::to_string(&r).unwrap();
         let back: SuitabilityReport = serde_json::from_str(&j).unwrap();
         assert_eq!(back, r);
+    }
+
+    #[test]
+    fn progress_is_reported_in_steps_and_at_the_end() {
+        // invented run of 25 000 evenly spaced peaks
+        let mut text = String::from("name,rt,w50\n");
+        for i in 0..25_000 {
+            text.push_str(&format!("p{i},{:.4},0.0005\n", 1.0 + f64::from(i) * 0.01));
+        }
+        let mut req = req();
+        req.peaks = PeakTable::parse(&text).unwrap();
+        req.targets.critical_pair = None;
+        req.exclude.clear();
+        let mut seen = Vec::new();
+        let r = evaluate_with_progress(&req, &mut |p| seen.push(p)).unwrap();
+        assert_eq!(r.peaks.len(), 25_000);
+        let done: Vec<usize> = seen.iter().map(|p| p.done).collect();
+        assert_eq!(done, [10_000, 20_000, 25_000]);
+        assert!(seen.iter().all(|p| p.total == 25_000));
     }
 }

@@ -60,6 +60,18 @@ const BUILTIN_MODEL: &[u8] = include_bytes!("../../data/lc_model.json.gz");
 /// Retention memory table bundled at build time.
 const BUILTIN_MEMORY: &[u8] = include_bytes!("../../data/retention_memory.tsv.gz");
 
+/// Checksum of the bundled model and retention-memory files, for a plan's document control:
+/// FNV-1a 64-bit over both files' bytes, as 16 hex digits (identifies the files, not a
+/// security hash).
+pub fn builtin_checksum() -> String {
+    let mut h: u64 = 0xcbf2_9ce4_8422_2325;
+    for b in BUILTIN_MODEL.iter().chain(BUILTIN_MEMORY) {
+        h ^= u64::from(*b);
+        h = h.wrapping_mul(0x0100_0000_01b3);
+    }
+    format!("fnv1a64:{h:016x}")
+}
+
 impl Model {
     /// Number of shipped training systems of one mode and chemistry class (from the retention
     /// memory's system records); `None` when no memory table is loaded. Classes with few

@@ -151,7 +151,11 @@ impl StructureEstimate {
                 _ => continue,
             };
             let mut e = v("pka", pka, "", METHOD_PKA);
-            e.detail = format!("type={kind};class={:?};spread={:.1}", s.class, s.spread_pka);
+            e.detail = format!(
+                "type={kind};class={};spread={:.1}",
+                crate::plain::words(&s.class),
+                s.spread_pka
+            );
             out.push(e);
         }
         out

@@ -121,8 +121,17 @@ impl DescribeReport {
             .ionisable_sites
             .iter()
             .map(|s| match s.pka {
-                Some(p) => format!("{:?} {:?} pKa {}", s.class, s.kind, num(p, 1)),
-                None => format!("{:?} {:?}", s.class, s.kind),
+                Some(p) => format!(
+                    "{} ({}) pKa {}",
+                    crate::plain::words(&s.class),
+                    crate::plain::words(&s.kind),
+                    num(p, 1)
+                ),
+                None => format!(
+                    "{} ({})",
+                    crate::plain::words(&s.class),
+                    crate::plain::words(&s.kind)
+                ),
             })
             .collect();
         vec![
@@ -140,14 +149,18 @@ impl DescribeReport {
             num(d.fraction_csp3, 3),
             d.heavy_atom_count.to_string(),
             opt(d.mcgowan_vx_100cm3_mol, 3),
-            opt(m.joback_tb_k, 1),
+            // °C first, to whole degrees: the Joback estimate's typical error is about 30 K
+            // (K kept in the JSON)
+            m.joback_tb_k
+                .filter(|t| t.is_finite())
+                .map_or("-".to_string(), |t| num(t - 273.15, 0)),
             if sites.is_empty() {
                 "none".into()
             } else {
                 sites.join("; ")
             },
             m.gc.as_ref()
-                .map_or("-".into(), |g| format!("{:?}", g.verdict)),
+                .map_or("-".into(), |g| crate::plain::words(&g.verdict)),
         ]
     }
 
@@ -166,7 +179,7 @@ impl DescribeReport {
         "fraction sp3 C",
         "heavy atoms",
         "McGowan Vx (cm³/mol/100)",
-        "Tb Joback (K)",
+        "Tb Joback (°C, ±30 K typical)",
         "ionisable sites (typical pKa)",
         "GC",
     ];

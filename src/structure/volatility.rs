@@ -490,7 +490,10 @@ fn charge_flags(sites: &[IonisableSite], flags: &mut Vec<GcFlag>) {
                 severity: Severity::Unsuitable,
                 atoms: s.atoms.clone(),
                 derivatisation: None,
-                reason: "permanent charge: ions do not vaporise; use LC, IC or capillary electrophoresis".into(),
+                reason: format!(
+                    "permanent charge ({}): ions do not vaporise; use LC, IC or capillary electrophoresis",
+                    crate::plain::words(&s.class)
+                ),
             });
         }
     }

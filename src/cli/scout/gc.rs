@@ -19,7 +19,7 @@ use phasewise::report::measured::gc_scout::{
 };
 
 use super::{ScoutArgs, per_run, refuse_options};
-use crate::cli::input::{NumberRange, check_option_range, parse_gc_column, read_peaks};
+use crate::cli::input::{NumberRange, check_option_range, parse_gc_column, read_retention_peaks};
 use crate::cli::output::{check_writable, write_atomically, write_out};
 
 /// Carrier velocity assumed for t_M from a GC `--column` when `--velocity` is not given, cm/s
@@ -185,7 +185,7 @@ pub(super) fn run(a: &ScoutArgs) -> Result<ExitCode> {
                 |n| n.to_string_lossy().into(),
             ),
             program,
-            peaks: read_peaks(path)?,
+            peaks: read_retention_peaks(path)?,
         });
     }
     let fitted = fit_gc(&GcScoutRequest {

@@ -26,7 +26,7 @@ use super::{ScoutArgs, ScoutMode, per_run, refuse_options};
 use crate::cli::Cli;
 use crate::cli::exit::success_unless_partial;
 use crate::cli::input::{
-    NumberRange, check_option_range, dead_time_input, parse_column, read_peaks,
+    NumberRange, check_option_range, dead_time_input, parse_column, read_retention_peaks,
 };
 use crate::cli::output::{check_writable, write_atomically, write_out};
 
@@ -161,9 +161,19 @@ pub(super) fn run(cli: &Cli, a: &ScoutArgs) -> Result<ExitCode> {
                 |n| n.to_string_lossy().into(),
             ),
             program,
-            peaks: read_peaks(path)?,
+            peaks: read_retention_peaks(path)?,
         });
     }
+    // retention-only tables are fine for the fit; say where predicted widths come from
+    let no_width: usize = runs.iter().map(|r| r.peaks.peaks_without_width()).sum();
+    let plates_source = if no_width > 0 {
+        format!(
+            "{plates_source}; {no_width} peak(s) in the tables have no width (not needed for the \
+             fit): every predicted peak width is estimated from this plate number"
+        )
+    } else {
+        plates_source
+    };
     let run_temperatures = match a.temperatures.as_deref() {
         Some(text) => {
             if a.store {

@@ -110,6 +110,37 @@ fn transfer_table(o: &TransferOutput) -> String {
         r.pressure_ratio,
         r.program_column_volumes
     ));
+    s.push_str(&format!("flow scaling: {}\n", r.scaling.label()));
+    s.push_str("\nAllowed-adjustment checks (harmonised pharmacopoeial chapters, from memory):\n");
+    let limit_rows: Vec<Vec<String>> = r
+        .limits
+        .iter()
+        .map(|c| {
+            vec![
+                c.quantity.clone(),
+                num(Some(c.original), 3),
+                num(Some(c.target), 3),
+                format!("{:+.1} %", c.change * 100.0),
+                if c.allowed_min == 0.0 && c.allowed_max == 0.0 {
+                    "formula".to_string()
+                } else {
+                    format!(
+                        "{:+.0} % to {:+.0} %",
+                        c.allowed_min * 100.0,
+                        c.allowed_max * 100.0
+                    )
+                },
+                c.verdict.label().to_string(),
+            ]
+        })
+        .collect();
+    s.push_str(&render(
+        &[
+            "check", "original", "target", "change", "allowed", "verdict",
+        ],
+        &limit_rows,
+    ));
+    s.push('\n');
     for n in &r.notes {
         s.push_str(&format!("note: {n}\n"));
     }

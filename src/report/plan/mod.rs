@@ -1,11 +1,15 @@
 //! The method plan: a reviewable write-up of an [`AdviceReport`] as one self-contained
 //! Markdown or HTML file.
 //!
-//! The plan has eight numbered parts: scope (the analytes and every property value with its
-//! unit and provenance), decision (mode, phase, runners-up, reasons with their rule or model
-//! id), starting conditions as a set-up table, the predicted chromatogram (inline SVG from
-//! [`super::chromatogram`]), risks, system-suitability targets with where each comes from,
-//! cautions and references. Both formats are built from one list of [`Block`]s, so the two
+//! The plan is a controlled document: a document-control block (identifier, version, date,
+//! software and data checksums, author/reviewer/approver to sign) and an analytical target
+//! profile come first, then ten numbered parts: scope (the analytes and every property value
+//! with its unit and provenance), decision (mode, phase, runners-up, reasons with their rule or
+//! model id), starting conditions as a set-up table with sample and standard preparation and
+//! the equilibration/blank/carry-over steps, the predicted chromatogram (inline SVG from
+//! [`super::chromatogram`]), the scouting design, risks, system-suitability targets each with a
+//! verdict (meets, misses, not evaluated, with the reason), a robustness and validation
+//! outline named after the ICH Q2(R2) characteristics, cautions and references. Both formats are built from one list of [`Block`]s, so the two
 //! files always say the same thing. Every string that came from the user or the knowledge base
 //! is escaped for the target format. The output is deterministic: the same report gives the
 //! same bytes, apart from the optional date line.
@@ -19,7 +23,7 @@ use std::io::Write as _;
 use std::path::{Path, PathBuf};
 
 use super::advice::{AdviceReport, AnalyteSummary, Recommendation};
-use super::chromatogram::{escape_xml, render_svg};
+use super::chromatogram::render_svg;
 use super::num;
 use crate::property::{Property, PropertyKind};
 
@@ -279,22 +283,28 @@ impl Provenance {
     }
 }
 
-/// A value with its unit and provenance note, e.g. `2.1 [3]` or `351.4 K (78.3 °C) [1]`.
+/// A value with its unit and provenance note, e.g. `2.1 (exp. [3])`, or for temperatures
+/// `78.3 °C (351.4 K) (exp. [1])`: °C first as practitioners read it; an estimated temperature
+/// (Joback, typical error about 30 K) to whole degrees, a measured one to 0.1.
 fn value_cell(p: &Property, prov: &mut Provenance) -> String {
     let n = prov.cite_property(p);
     let kind = match p.kind {
         PropertyKind::Experimental => "exp.",
         PropertyKind::Estimated => "est.",
     };
-    let mut v = if p.unit.is_empty() {
+    let mut v = if p.unit == "K" {
+        let d = match p.kind {
+            PropertyKind::Experimental => 1,
+            PropertyKind::Estimated => 0,
+        };
+        format!("{} °C ({} K)", num(p.value - 273.15, d), num(p.value, d))
+    } else if p.unit.is_empty() {
         num(p.value, 2)
     } else {
         format!("{} {}", num(p.value, 2), p.unit)
     };
-    if p.unit == "K" {
-        let _ = write!(v, " ({} °C)", num(p.value - 273.15, 1));
-    }
-    if let Some(t) = p.detail_value("type") {
+    // "unspecified" says nothing a reader can use
+    if let Some(t) = p.detail_value("type").filter(|t| *t != "unspecified") {
         let _ = write!(v, " {t}");
     }
     format!("{v} ({kind} [{n}])")
@@ -355,116 +365,6 @@ fn ionisation_cell(a: &AnalyteSummary) -> String {
         }
         None => "not applicable (no aqueous mobile phase)".to_string(),
     }
-}
-
-/// Reference catalogue: key, the words that show the method or data set was used, citation.
-struct RefEntry {
-    key: &'static str,
-    needles: &'static [&'static str],
-    citation: &'static str,
-}
-
-const REFERENCES: &[RefEntry] = &[
-    RefEntry {
-        key: "pubchem-chemicals",
-        needles: &["chemicals", "pubchem"],
-        citation: "Compound identifiers, names and structures: PubChem (public domain, US \
-                   National Library of Medicine) as packaged in the `chemicals` Python package \
-                   by C. Bell and contributors (MIT licence).",
-    },
-    RefEntry {
-        key: "wikidata",
-        needles: &["wikidata"],
-        citation: "Wikidata property values (boiling point, logP), CC0 1.0, via the \
-                   `chemicals` package.",
-    },
-    RefEntry {
-        key: "pka-ccby",
-        needles: &["baltruschat", "czodrowski", "pka-ccby"],
-        citation: "Experimental pKa: M. Baltruschat, P. Czodrowski, \"Machine learning meets \
-                   pKa\", F1000Research 9:113 (2020), data CC BY 4.0 (only rows under that \
-                   licence are used).",
-    },
-    RefEntry {
-        key: "crippen",
-        needles: &["crippen"],
-        citation: "logP and molar refractivity estimates: S. A. Wildman, G. M. Crippen, J. \
-                   Chem. Inf. Comput. Sci. 39 (1999) 868-873 (atom contributions).",
-    },
-    RefEntry {
-        key: "ertl",
-        needles: &["ertl", "tpsa"],
-        citation: "Polar surface area: P. Ertl, B. Rohde, P. Selzer, J. Med. Chem. 43 (2000) \
-                   3714-3717 (topological PSA).",
-    },
-    RefEntry {
-        key: "joback",
-        needles: &["joback"],
-        citation: "Boiling point estimates: K. G. Joback, R. C. Reid, Chem. Eng. Commun. 57 \
-                   (1987) 233-243 (group contributions).",
-    },
-    RefEntry {
-        key: "report",
-        needles: &["report", "memory", "descriptor", "lc-regression"],
-        citation: "Open retention data used to train and check the LC retention model: RepoRT, \
-                   F. Kretschmer et al., Nature Methods (2024), CC BY-SA 4.0.",
-    },
-    RefEntry {
-        key: "gradient",
-        needles: &["gradient", "lss", "snyder"],
-        citation: "Gradient retention and peak width from the linear-solvent-strength model: \
-                   L. R. Snyder, J. W. Dolan, High-Performance Gradient Elution, Wiley (2007).",
-    },
-    RefEntry {
-        key: "mcreynolds",
-        needles: &["mcreynolds", "retention-index", "gc-"],
-        citation: "GC phase polarity constants: W. O. McReynolds, J. Chromatogr. Sci. 8 (1970) \
-                   685-691.",
-    },
-    RefEntry {
-        key: "kovats",
-        needles: &["retention-index", "kovats", "van den dool"],
-        citation: "Retention indices: E. Kováts, Helv. Chim. Acta 41 (1958) 1915-1932; \
-                   temperature-programmed form: H. van den Dool, P. D. Kratz, J. Chromatogr. 11 \
-                   (1963) 463-471.",
-    },
-    RefEntry {
-        key: "ionisation",
-        needles: &["ionisation", "henderson", "logd"],
-        citation: "Ionisation and logD: Henderson-Hasselbalch relation with the pH-partition \
-                   hypothesis (independent sites); see A. Avdeef, Absorption and Drug \
-                   Development, Wiley (2012), ch. 3-4.",
-    },
-];
-
-/// Lower-cased text of everything in the report that can name a method or data source.
-fn provenance_haystack(report: &AdviceReport) -> String {
-    let mut h = String::new();
-    for a in &report.analytes {
-        for p in &a.properties {
-            let _ = write!(h, " {} {} {}", p.property, p.source, p.licence);
-        }
-        if a.ionisation.is_some() {
-            h.push_str(" ionisation");
-        }
-    }
-    let recs = report
-        .recommendations
-        .iter()
-        .chain(report.backup.as_ref().map(|b| &b.recommendation));
-    for r in recs {
-        let _ = write!(h, " {}-{}", r.mode, r.phase.id);
-        if is_lc(&r.mode) && r.conditions.program.len() > 1 {
-            h.push_str(" gradient");
-        }
-        for p in &r.predictions {
-            let _ = write!(h, " {}", p.path);
-        }
-        for reason in &r.reasons {
-            let _ = write!(h, " {}", reason.source);
-        }
-    }
-    h.to_lowercase()
 }
 
 /// Substructure patterns (SMARTS, the structure engine's subset: no ring closures) of common
@@ -679,6 +579,16 @@ fn prediction_table(rec: &Recommendation) -> Block {
 
 /// Build the plan as format-neutral blocks.
 pub fn plan_blocks(report: &AdviceReport, opts: &PlanOptions) -> Vec<Block> {
+    plan_blocks_with(report, opts, &DocumentControl::default())
+}
+
+/// The plan's blocks with a document-control block filled from `ctl` (blanks to fill where
+/// `ctl` has no entry).
+pub fn plan_blocks_with(
+    report: &AdviceReport,
+    opts: &PlanOptions,
+    ctl: &DocumentControl,
+) -> Vec<Block> {
     let mut b = Vec::new();
     b.push(Block::Heading(1, opts.title.clone()));
     if let Some(d) = &opts.date {
@@ -690,6 +600,8 @@ pub fn plan_blocks(report: &AdviceReport, opts: &PlanOptions) -> Vec<Block> {
          method development.",
         report.phasewise_version, report.schema_version
     )));
+    b.extend(control::document_control(report, ctl, opts.date.as_deref()));
+    b.extend(control::target_profile(report, ctl));
     let first = report.recommendations.iter().min_by_key(|r| r.rank);
     let mut prov = Provenance::default();
 
@@ -947,6 +859,8 @@ pub fn plan_blocks(report: &AdviceReport, opts: &PlanOptions) -> Vec<Block> {
     // 3 Starting conditions.
     b.push(Block::Heading(2, "3 Starting conditions".to_string()));
     conditions_blocks(first, &mut b);
+    b.extend(control::preparation(Some(first)));
+    b.extend(control::sequence_steps(first));
 
     // 4 Predicted chromatogram.
     b.push(Block::Heading(2, "4 Predicted chromatogram".to_string()));
@@ -987,604 +901,23 @@ pub fn plan_blocks(report: &AdviceReport, opts: &PlanOptions) -> Vec<Block> {
         b.push(prediction_table(&bk.recommendation));
     }
 
+    // 5 Scouting design.
+    b.extend(control::scouting_design(report, first));
+
     risks_and_rest(report, Some(first), &mut b);
     b
 }
 
-/// Sections 5 to 8.
-fn risks_and_rest(report: &AdviceReport, first: Option<&Recommendation>, b: &mut Vec<Block>) {
-    b.push(Block::Heading(2, "5 Risks".to_string()));
-    if let Some(first) = first {
-        b.push(Block::Heading(3, "Co-elution".to_string()));
-        match (&first.critical_pair, first.critical_resolution) {
-            (Some((x, y)), Some(rs)) if rs.is_finite() => b.push(Block::Para(format!(
-                "Critical pair: {x} / {y}, predicted resolution {}.",
-                num(rs, 2)
-            ))),
-            _ => {}
-        }
-        if first.coelutions.is_empty() {
-            b.push(Block::Para(
-                "No pair is flagged at risk of co-elution.".to_string(),
-            ));
-        } else {
-            b.push(Block::Table {
-                header: vec![
-                    "pair".to_string(),
-                    "probability not resolved (Rs < 1.0)".to_string(),
-                    "predicted Rs".to_string(),
-                    "why".to_string(),
-                ],
-                rows: first
-                    .coelutions
-                    .iter()
-                    .map(|c| {
-                        vec![
-                            format!("{} / {}", c.a, c.b),
-                            num(c.probability, 2),
-                            num(c.resolution, 2),
-                            c.note.clone().unwrap_or_else(|| "-".to_string()),
-                        ]
-                    })
-                    .collect(),
-            });
-        }
-        if let Some(bk) = &report.backup {
-            if bk.changes.is_empty() {
-                b.push(Block::Para(
-                    "The back-up phase changes none of the flagged pairs.".to_string(),
-                ));
-            } else {
-                b.push(Block::Para(format!(
-                    "What the back-up ({}) changes for the risky pairs:",
-                    bk.recommendation.phase.name
-                )));
-                b.push(Block::Table {
-                    header: vec![
-                        "pair".to_string(),
-                        "Rs, first choice".to_string(),
-                        "Rs, back-up".to_string(),
-                        "change".to_string(),
-                    ],
-                    rows: bk
-                        .changes
-                        .iter()
-                        .map(|c| {
-                            let d = c.resolution_backup - c.resolution_first;
-                            vec![
-                                format!("{} / {}", c.a, c.b),
-                                num(c.resolution_first, 2),
-                                num(c.resolution_backup, 2),
-                                format!("{}{}", if d >= 0.0 { "+" } else { "" }, num(d, 2)),
-                            ]
-                        })
-                        .collect(),
-                });
-            }
-        }
-
-        b.push(Block::Heading(3, "Peak shape".to_string()));
-        let mut shape = Vec::new();
-        let silica = is_lc(&first.mode);
-        let excluded = |a: &AnalyteSummary| first.excluded.iter().any(|e| e.analyte == a.name);
-        let kept: Vec<&AnalyteSummary> = report.analytes.iter().filter(|a| !excluded(a)).collect();
-        let ph_of = kept
-            .iter()
-            .find_map(|a| a.ionisation.as_ref().map(|i| i.ph))
-            .map(ph_str)
-            .unwrap_or_default();
-        let cations: Vec<String> = kept
-            .iter()
-            .filter_map(|a| {
-                let ion = a.ionisation.as_ref()?;
-                (silica && ion.net_charge_e > 0.2)
-                    .then(|| format!("{} ({} e)", a.name, num(ion.net_charge_e, 2)))
-            })
-            .collect();
-        if !cations.is_empty() {
-            shape.push(format!(
-                "Positively charged at pH {ph_of}: {}. Bases can interact with residual silanols \
-                 and tail on silica-based phases; keep the buffer strength up, or use a phase \
-                 described as base-deactivated (common practice, no source).",
-                cations.join(", ")
-            ));
-        }
-        let near: Vec<&str> = kept
-            .iter()
-            .filter(|a| a.ionisation.as_ref().is_some_and(|i| i.near_pka))
-            .map(|a| a.name.as_str())
-            .collect();
-        if !near.is_empty() {
-            shape.push(format!(
-                "A pKa within 1.5 units of pH {ph_of}: {}. Retention and peak shape move with \
-                 small pH errors; prepare the buffer by weighing and check the pH before adding \
-                 organic solvent (common practice, no source).",
-                near.join(", ")
-            ));
-        }
-        for a in &kept {
-            if let Some(g) = a.smiles.as_deref().and_then(chelating_group) {
-                shape.push(format!(
-                    "{}: {g} group (SMILES text match); chelating analytes can tail or lose \
-                     response on metal surfaces. Consider passivated or metal-free hardware or a \
-                     chelator additive (common practice, no source).",
-                    a.name
-                ));
-            }
-        }
-        if shape.is_empty() {
-            b.push(Block::Para(
-                "No peak-shape risk found in the data (charge at the pH, nearby pKa, chelating \
-                 groups)."
-                    .to_string(),
-            ));
-        } else {
-            b.push(Block::List(shape));
-        }
-
-        b.push(Block::Heading(3, "Detectability".to_string()));
-        let mut det = Vec::new();
-        let detection = first.conditions.detection.to_lowercase();
-        let words: Vec<&str> = detection
-            .split(|c: char| !c.is_alphanumeric())
-            .filter(|w| !w.is_empty())
-            .collect();
-        let has_word = |w: &str| words.contains(&w);
-        if has_word("uv") || has_word("absorbance") {
-            if let Some(cut) = first.conditions.modifier.as_deref().and_then(uv_cutoff_nm) {
-                det.push(format!(
-                    "UV: the modifier ({}) has a UV cutoff near {} nm (from memory); keep the \
-                     wavelength well above it and check the buffer's own absorbance.",
-                    first.conditions.modifier.as_deref().unwrap_or_default(),
-                    num(cut, 0)
-                ));
-            }
-            for a in report.analytes.iter().filter(|a| !excluded(a)) {
-                if let Some(smi) = &a.smiles
-                    && aromatic_ring_count(smi) == Some(0)
-                {
-                    det.push(format!(
-                        "{}: no aromatic ring in its structure, so UV absorbance may be weak; \
-                         use a low wavelength or a mass-sensitive detector (common practice, no \
-                         source).",
-                        a.name
-                    ));
-                }
-            }
-        }
-        if has_word("ms") || has_word("mass") {
-            let mut groups: [(&str, Vec<&str>); 3] = [
-                (
-                    "positive-ion electrospray should suit (charged as cations)",
-                    Vec::new(),
-                ),
-                (
-                    "negative-ion electrospray should suit (charged as anions)",
-                    Vec::new(),
-                ),
-                (
-                    "mostly neutral, electrospray response may be weak: check both polarities \
-                     or a chemical-ionisation source",
-                    Vec::new(),
-                ),
-            ];
-            for a in report.analytes.iter().filter(|a| !excluded(a)) {
-                if let Some(ion) = &a.ionisation {
-                    let g = if ion.net_charge_e > 0.2 {
-                        0
-                    } else if ion.net_charge_e < -0.2 {
-                        1
-                    } else {
-                        2
-                    };
-                    groups[g].1.push(a.name.as_str());
-                }
-            }
-            for (what, names) in groups.iter().filter(|g| !g.1.is_empty()) {
-                det.push(format!(
-                    "MS: {}: {what} (common practice, no source).",
-                    names.join(", ")
-                ));
-            }
-        }
-        if first.mode == "gc" && has_word("flame") {
-            det.push(
-                "Flame ionisation responds to nearly all organic analytes roughly by carbon \
-                 count; heavily halogenated or oxygenated analytes respond less (common \
-                 practice, no source)."
-                    .to_string(),
-            );
-        }
-        if det.is_empty() {
-            b.push(Block::Para(
-                "The report holds no data to judge detectability; check the response of each \
-                 analyte with a standard."
-                    .to_string(),
-            ));
-        } else {
-            b.push(Block::List(det));
-        }
-    }
-    if !report.warnings.is_empty() {
-        b.push(Block::Heading(3, "Advisor warnings".to_string()));
-        b.push(Block::List(report.warnings.clone()));
-    }
-
-    // 6 System suitability.
-    b.push(Block::Heading(
-        2,
-        "6 System suitability targets".to_string(),
-    ));
-    let pharmacopoeia = "general chromatography chapters of the major pharmacopoeias (USP <621>, \
-                         Ph. Eur. 2.2.46) define the quantity";
-    let mut rows = Vec::new();
-    let crit = first
-        .and_then(|f| f.critical_pair.as_ref())
-        .map(|(x, y)| format!("{x} / {y}"))
-        .unwrap_or_else(|| "the least resolved pair".to_string());
-    let pred_rs = first
-        .and_then(|f| f.critical_resolution)
-        .filter(|r| r.is_finite())
-        .map(|r| {
-            let verdict = if r >= 2.0 {
-                "meets the proposed target"
-            } else if r >= 1.5 {
-                "meets the minimum only"
-            } else {
-                "below the minimum: optimise, or try the back-up"
-            };
-            format!("{r:.2} ({verdict})")
-        })
-        .unwrap_or_else(|| "-".to_string());
-    rows.push(vec![
-        format!("Resolution of the critical pair ({crit})"),
-        "≥ 2.0 proposed, ≥ 1.5 minimum".to_string(),
-        pred_rs,
-        format!(
-            "{pharmacopoeia}; 1.5 is baseline separation of two equal Gaussian peaks (from \
-             memory); 2.0 leaves margin for column ageing (common practice, no source)"
-        ),
-    ]);
-    let ks: Vec<f64> = first
-        .map(|f| {
-            f.predictions
-                .iter()
-                .map(|p| p.retention_factor)
-                .filter(|k| k.is_finite())
-                .collect()
-        })
-        .unwrap_or_default();
-    let k_range = match (
-        ks.iter().copied().reduce(f64::min),
-        ks.iter().copied().reduce(f64::max),
-    ) {
-        (Some(lo), Some(hi)) => format!("{} to {}", num(lo, 2), num(hi, 2)),
-        _ => "-".to_string(),
-    };
-    rows.push(vec![
-        "Retention factor k of every analyte".to_string(),
-        "1 to 20; first peak ≥ 2 preferred".to_string(),
-        k_range,
-        "common practice, no source (peaks with k < 1 elute with unretained matrix; k > 20 \
-         wastes time and broadens peaks)"
-            .to_string(),
-    ]);
-    let n_est = first
-        .map(|f| f.conditions.plate_number)
-        .filter(|n| n.is_finite() && *n > 0.0);
-    rows.push(vec![
-        "Plate number N (critical-pair peak)".to_string(),
-        match n_est {
-            Some(n) => format!("≥ {} (half the estimated column value)", num(n / 2.0, 0)),
-            None => "≥ 2000".to_string(),
-        },
-        n_est.map(|n| num(n, 0)).unwrap_or_else(|| "-".to_string()),
-        format!("{pharmacopoeia}; the half-of-estimate target is common practice, no source"),
-    ]);
-    rows.push(vec![
-        "Tailing factor (symmetry factor) of every peak".to_string(),
-        "≤ 2.0".to_string(),
-        "not predicted".to_string(),
-        format!("{pharmacopoeia}; ≤ 2.0 is a common general limit (from memory)"),
-    ]);
-    rows.push(vec![
-        "Repeatability of retention time (replicate injections)".to_string(),
-        "RSD ≤ 1 %".to_string(),
-        "not predicted".to_string(),
-        "common practice, no source".to_string(),
-    ]);
-    b.push(Block::Table {
-        header: vec![
-            "quantity".to_string(),
-            "target".to_string(),
-            "predicted".to_string(),
-            "where the target comes from".to_string(),
-        ],
-        rows,
-    });
-
-    // 7 Cautions.
-    b.push(Block::Heading(2, "7 Cautions".to_string()));
-    let mut cautions: Vec<String> = report
-        .cautions
-        .iter()
-        .map(|c| format!("{}: {}", c.topic, c.text))
-        .collect();
-    cautions.push(
-        "This plan is a computed starting point, not a validated method. Verify every \
-         condition and prediction experimentally under the laboratory's own procedures; local \
-         regulations, the laboratory's SOPs and licensed practice take precedence over \
-         anything written here."
-            .to_string(),
-    );
-    b.push(Block::List(cautions));
-
-    // 8 References.
-    b.push(Block::Heading(2, "8 References".to_string()));
-    let hay = provenance_haystack(report);
-    let mut refs: Vec<String> = REFERENCES
-        .iter()
-        .filter(|r| r.needles.iter().any(|n| hay.contains(n)))
-        .map(|r| format!("[{}] {}", r.key, r.citation))
-        .collect();
-    refs.push(
-        "[suitability] System-suitability quantities as defined in the general chromatography \
-         chapters of the major pharmacopoeias (USP <621>, Ph. Eur. 2.2.46)."
-            .to_string(),
-    );
-    let mut ids: Vec<&str> = report
-        .recommendations
-        .iter()
-        .chain(report.backup.as_ref().map(|b| &b.recommendation))
-        .flat_map(|r| r.reasons.iter().map(|x| x.source.as_str()))
-        .collect();
-    ids.sort_unstable();
-    ids.dedup();
-    if !ids.is_empty() {
-        refs.push(format!(
-            "[rules] phasewise rule and model ids used in this plan (documented in the \
-             phasewise docs): {}.",
-            ids.join(", ")
-        ));
-    }
-    b.push(Block::List(refs));
-}
-
-/// Escape text for Markdown: HTML-significant characters become entities, Markdown
-/// punctuation is backslash-escaped, line breaks become spaces.
-fn md_escape(s: &str) -> String {
-    let mut out = String::with_capacity(s.len());
-    for c in s.chars() {
-        match c {
-            '&' => out.push_str("&amp;"),
-            '<' => out.push_str("&lt;"),
-            '>' => out.push_str("&gt;"),
-            '\\' | '`' | '*' | '_' | '[' | ']' | '|' | '#' => {
-                out.push('\\');
-                out.push(c);
-            }
-            '\n' | '\r' => out.push(' '),
-            c if c.is_control() => out.push(' '),
-            c => out.push(c),
-        }
-    }
-    out
-}
-
-/// Render the plan as one self-contained Markdown file (the chromatograms are inline SVG
-/// blocks; every table is also given as text).
-pub fn render_markdown(report: &AdviceReport, opts: &PlanOptions) -> String {
-    let mut s = String::new();
-    for block in plan_blocks(report, opts) {
-        match block {
-            Block::Heading(level, text) => {
-                let _ = writeln!(s, "{} {}\n", "#".repeat(level as usize), md_escape(&text));
-            }
-            Block::Para(text) => {
-                let _ = writeln!(s, "{}\n", md_escape(&text));
-            }
-            Block::List(items) => {
-                for i in items {
-                    let _ = writeln!(s, "- {}", md_escape(&i));
-                }
-                s.push('\n');
-            }
-            Block::Table { header, rows } => {
-                let h: Vec<String> = header.iter().map(|c| md_escape(c)).collect();
-                let _ = writeln!(s, "| {} |", h.join(" | "));
-                let _ = writeln!(s, "|{}", "---|".repeat(h.len()));
-                for r in rows {
-                    let cells: Vec<String> = r.iter().map(|c| md_escape(c)).collect();
-                    let _ = writeln!(s, "| {} |", cells.join(" | "));
-                }
-                s.push('\n');
-            }
-            Block::Svg { svg, caption } => {
-                // CommonMark HTML block: starts with the complete <svg> tag on its own line and
-                // runs to the next blank line, so the SVG must hold none.
-                let body: String = svg
-                    .lines()
-                    .filter(|l| !l.trim().is_empty())
-                    .collect::<Vec<_>>()
-                    .join("\n");
-                let _ = writeln!(s, "{body}\n");
-                let _ = writeln!(s, "*{}*\n", md_escape(&caption));
-            }
-        }
-    }
-    while s.ends_with("\n\n") {
-        s.pop();
-    }
-    s
-}
-
-/// Inline style sheet of the HTML plan: print-friendly, black on white.
-const CSS: &str = "body{font-family:sans-serif;max-width:1040px;margin:1.5em auto;padding:0 1em;\
-color:#000;background:#fff;line-height:1.4}\
-h1{font-size:1.6em;border-bottom:2px solid #000;padding-bottom:.2em}\
-h2{font-size:1.25em;border-bottom:1px solid #000;margin-top:1.6em}\
-h3{font-size:1.05em;margin-top:1.2em}\
-table{border-collapse:collapse;margin:.6em 0;font-size:.9em}\
-th,td{border:1px solid #000;padding:.25em .5em;text-align:left;vertical-align:top}\
-th{background:#eee}\
-figure{margin:1em 0}figcaption{font-style:italic;font-size:.9em}\
-svg{max-width:100%;height:auto}\
-@media print{h2{page-break-after:avoid}figure,table{page-break-inside:avoid}}";
-
-/// Render the plan as one self-contained HTML file (inline CSS and SVG, no scripts, no
-/// external resources).
-pub fn render_html(report: &AdviceReport, opts: &PlanOptions) -> String {
-    let mut s = String::new();
-    s.push_str("<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n");
-    let _ = writeln!(s, "<title>{}</title>", escape_xml(&opts.title));
-    let _ = writeln!(s, "<style>{CSS}</style>\n</head>\n<body>");
-    for block in plan_blocks(report, opts) {
-        match block {
-            Block::Heading(level, text) => {
-                let _ = writeln!(s, "<h{level}>{}</h{level}>", escape_xml(&text));
-            }
-            Block::Para(text) => {
-                let _ = writeln!(s, "<p>{}</p>", escape_xml(&text));
-            }
-            Block::List(items) => {
-                s.push_str("<ul>\n");
-                for i in items {
-                    let _ = writeln!(s, "<li>{}</li>", escape_xml(&i));
-                }
-                s.push_str("</ul>\n");
-            }
-            Block::Table { header, rows } => {
-                s.push_str("<table>\n<thead><tr>");
-                for h in header {
-                    let _ = write!(s, "<th>{}</th>", escape_xml(&h));
-                }
-                s.push_str("</tr></thead>\n<tbody>\n");
-                for r in rows {
-                    s.push_str("<tr>");
-                    for c in r {
-                        let _ = write!(s, "<td>{}</td>", escape_xml(&c));
-                    }
-                    s.push_str("</tr>\n");
-                }
-                s.push_str("</tbody>\n</table>\n");
-            }
-            Block::Svg { svg, caption } => {
-                let _ = writeln!(
-                    s,
-                    "<figure>\n{svg}<figcaption>{}</figcaption>\n</figure>",
-                    escape_xml(&caption)
-                );
-            }
-        }
-    }
-    s.push_str("</body>\n</html>\n");
-    s
-}
-
+mod control;
+mod references;
+mod render;
+mod risks;
+mod suitability;
 #[cfg(test)]
-mod tests {
-    use super::*;
+mod tests;
 
-    #[test]
-    fn markdown_escaping_keeps_tables_intact() {
-        assert_eq!(md_escape("a|b\nc"), "a\\|b c");
-        assert_eq!(md_escape("<b>*x*</b>"), "&lt;b&gt;\\*x\\*&lt;/b&gt;");
-    }
-
-    #[test]
-    fn aromatic_rings_come_from_the_structure_not_the_letters() {
-        // Aromatic and Kekulé forms of the same rings (benzene, N-methylpyrrole, aspirin as the
-        // knowledge base stores it): ring counts as RDKit's CalcNumAromaticRings gives them.
-        assert_eq!(aromatic_ring_count("c1ccccc1"), Some(1));
-        assert_eq!(aromatic_ring_count("C1=CC=CC=C1"), Some(1));
-        assert_eq!(aromatic_ring_count("Cn1cccc1"), Some(1));
-        assert_eq!(aromatic_ring_count("CN1C=CC=C1"), Some(1));
-        assert_eq!(aromatic_ring_count("CC(=O)OC1=CC=CC=C1C(=O)O"), Some(1));
-        // Two-letter elements and aliphatic rings are not aromatic.
-        assert_eq!(aromatic_ring_count("ClCCl"), Some(0));
-        assert_eq!(aromatic_ring_count("CCO"), Some(0));
-        assert_eq!(aromatic_ring_count("C1CCCCC1"), Some(0));
-        // Unreadable SMILES: no claim either way.
-        assert_eq!(aromatic_ring_count("C1CC"), None);
-    }
-
-    #[test]
-    fn chelating_groups_are_found_by_smiles_text() {
-        assert_eq!(chelating_group("Oc1ccccc1O"), Some("catechol"));
-        assert_eq!(chelating_group("CCO"), None);
-    }
-
-    #[test]
-    fn missing_directory_is_reported_before_writing() {
-        let dir = tempfile::tempdir().unwrap();
-        let target = dir.path().join("no-such-dir").join("plan.html");
-        let err = check_writable(&target).unwrap_err();
-        assert!(matches!(err, PlanError::MissingDirectory { .. }), "{err}");
-        assert!(write_atomically(&target, "x").is_err());
-        assert!(!target.exists());
-    }
-
-    #[test]
-    fn parent_that_is_a_file_is_reported() {
-        let dir = tempfile::tempdir().unwrap();
-        let file = dir.path().join("plain-file");
-        std::fs::write(&file, "not a directory").unwrap();
-        let target = file.join("plan.html");
-        let err = check_writable(&target).unwrap_err();
-        assert!(matches!(err, PlanError::NotADirectory { .. }), "{err}");
-        let err = write_atomically(&target, "x").unwrap_err();
-        assert!(err.to_string().contains("plain-file"), "{err}");
-        assert_eq!(std::fs::read_to_string(&file).unwrap(), "not a directory");
-    }
-
-    #[test]
-    fn atomic_write_replaces_and_leaves_no_temporary_file() {
-        let dir = tempfile::tempdir().unwrap();
-        let target = dir.path().join("plan.md");
-        std::fs::write(&target, "old").unwrap();
-        write_atomically(&target, "new contents").unwrap();
-        assert_eq!(std::fs::read_to_string(&target).unwrap(), "new contents");
-        let names: Vec<String> = std::fs::read_dir(dir.path())
-            .unwrap()
-            .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
-            .collect();
-        assert_eq!(names, vec!["plan.md".to_string()]);
-    }
-
-    #[test]
-    fn a_directory_as_target_is_refused() {
-        let dir = tempfile::tempdir().unwrap();
-        let err = check_writable(dir.path()).unwrap_err();
-        assert!(matches!(err, PlanError::TargetIsDirectory { .. }), "{err}");
-    }
-
-    #[test]
-    fn chelating_groups_are_found_in_kekule_and_aromatic_spellings() {
-        // every pattern compiles
-        for (p, _) in CHELATING_PATTERNS {
-            assert!(crate::structure::smarts::Pattern::new(p).is_ok(), "{p}");
-        }
-        // catechol, aromatic and Kekulé
-        assert_eq!(chelating_group("Oc1ccccc1O"), Some("catechol"));
-        assert_eq!(chelating_group("OC1=CC=CC=C1O"), Some("catechol"));
-        // phenol and anisole-like ethers are not catechols
-        assert_eq!(chelating_group("Oc1ccccc1"), None);
-        assert_eq!(chelating_group("COc1ccccc1OC"), None);
-        assert_eq!(
-            chelating_group("OP(=O)(O)OC"),
-            Some("phosphate or phosphonate")
-        );
-        assert_eq!(chelating_group("CC(=O)NO"), Some("hydroxamic acid"));
-        assert_eq!(
-            chelating_group("Oc1cccc2cccnc12"),
-            Some("8-hydroxyquinoline")
-        );
-        assert_eq!(
-            chelating_group("OC1=CC=CC2=C1N=CC=C2"),
-            Some("8-hydroxyquinoline")
-        );
-        // 3-hydroxypyridine has no fused carbon: not flagged
-        assert_eq!(chelating_group("Oc1cccnc1"), None);
-        assert_eq!(chelating_group("not a smiles"), None);
-    }
-}
+pub use control::DocumentControl;
+use references::{REFERENCES, provenance_haystack};
+pub use render::{render_html, render_html_with, render_markdown, render_markdown_with};
+use risks::risks_and_rest;
+pub use suitability::{TargetRow, Verdict, target_rows};

@@ -9,24 +9,41 @@
 //!
 //! | header(s) | meaning |
 //! | --- | --- |
-//! | `name` | analyte name (required, unique) |
-//! | `retention_time`, `rt`, `tr` | retention time (required) |
-//! | `width_half`, `w50`, `fwhm` | width at half height |
+//! | `name`, `compound`, `compound_name`, `peak`, `peak_name`, `analyte`, `component` | analyte name (required, unique) |
+//! | `retention_time`, `rt`, `tr`, `t_r`, `ret_time`, `ret._time`, `retention` | retention time (required) |
+//! | `width_half`, `w50`, `w_50`, `w0.5`, `w_0.5`, `w1/2`, `wh`, `w_h`, `fwhm`, `width_at_half_height`, `peak_width_at_half_height`, `half_height_width`, `width_50%` | width at half height |
 //! | `start_half`, `end_half` | times where the peak crosses half height; width = end − start |
-//! | `width_base`, `wb` | tangent baseline width |
-//! | `area` | peak area (any unit, used for area %) |
-//! | `height` | peak height (any unit) |
-//! | `tailing`, `usp_tailing` | USP tailing factor given directly |
+//! | `width_base`, `wb`, `w_b`, `base_width`, `width_at_base`, `peak_width_at_base` | tangent baseline width |
+//! | `area`, `peak_area` | peak area (any unit, used for area %) |
+//! | `height`, `peak_height` | peak height (any unit) |
+//! | `tailing`, `usp_tailing`, `tailing_factor`, `symmetry_factor` | USP tailing factor (the pharmacopoeial symmetry factor is the same ratio) given directly |
 //! | `w5`, `f5` | full width and front half-width at 5 % height (for USP tailing) |
 //! | `a10`, `b10` | front and back half-widths at 10 % height (for asymmetry) |
 //!
-//! At least one width column (`width_half`, the `start_half`/`end_half` pair, or `width_base`)
-//! is required, and every peak needs a width value. Other columns are listed in
+//! "Retention Time", "RT [min]", "Width at half height (min)" and "W0.5" therefore all
+//! match (spaces and hyphens become `_`, case is ignored, a unit in brackets is split off).
+//!
+//! For [`PeakTable::parse`] at least one width column (`width_half`, the
+//! `start_half`/`end_half` pair, or `width_base`) is required, and every peak needs a width
+//! value; [`PeakTable::parse_retention_only`] accepts tables of names and retention times only
+//! (scouting fits need no widths). Tables are limited to [`MAX_PEAKS`] rows. Parsing and
+//! lookups by name take time linear in the number of peaks. Other columns are listed in
 //! [`PeakTable::ignored_columns`], never silently dropped. A time column whose header carries a
 //! unit other than minutes (`rt (s)`, `rt_sec`) is rejected.
 
+use std::collections::HashMap;
+
 use serde::{Deserialize, Serialize};
 use thiserror::Error;
+
+mod headers;
+
+use headers::{Col, classify, split_fields, split_header};
+
+/// Largest peak table accepted (rows). Far beyond any chromatogram (a comprehensive
+/// two-dimensional run resolves a few thousand peaks); larger input is refused with a message
+/// rather than read into memory.
+pub const MAX_PEAKS: usize = 1_000_000;
 
 /// Errors reading or validating a peak table. Lines are 1-based as in a text editor.
 #[derive(Debug, Clone, PartialEq, Error)]
@@ -59,7 +76,7 @@ pub enum PeakTableError {
         /// The missing column.
         column: &'static str,
         /// Headers that would be accepted.
-        accepted: &'static str,
+        accepted: String,
     },
     /// No width column at all.
     #[error(
@@ -204,6 +221,17 @@ pub enum PeakTableError {
     /// No data rows.
     #[error("peak table has a header but no peaks")]
     NoPeaks,
+    /// More rows than any chromatogram has.
+    #[error(
+        "peak table has more than {max} peaks (stopped at line {line}); no chromatogram has that \
+         many: split the table or check that the file is a peak table"
+    )]
+    TooManyPeaks {
+        /// The limit, [`MAX_PEAKS`].
+        max: usize,
+        /// Line where reading stopped.
+        line: usize,
+    },
 }
 
 /// One peak as read from a table (times in minutes).
@@ -282,6 +310,10 @@ pub enum Delimiter {
 pub struct PeakTable {
     peaks: Vec<Peak>,
     ignored_columns: Vec<String>,
+    /// Widths were not required (a retention-time-only table for scouting).
+    retention_only: bool,
+    /// Position of each name in `peaks` (lookups in constant time).
+    index: HashMap<String, usize>,
 }
 
 /// Serialised form of [`PeakTable`], validated on the way in.
@@ -292,12 +324,15 @@ pub struct PeakTableData {
     /// Columns that were present but not used.
     #[serde(default)]
     pub ignored_columns: Vec<String>,
+    /// Widths were not required (retention times only, for scouting fits).
+    #[serde(default, skip_serializing_if = "std::ops::Not::not")]
+    pub retention_only: bool,
 }
 
 impl TryFrom<PeakTableData> for PeakTable {
     type Error = PeakTableError;
     fn try_from(d: PeakTableData) -> Result<Self, PeakTableError> {
-        let mut t = PeakTable::from_peaks(d.peaks)?;
+        let mut t = PeakTable::build(d.peaks, !d.retention_only)?;
         t.ignored_columns = d.ignored_columns;
         Ok(t)
     }
@@ -308,138 +343,9 @@ impl From<PeakTable> for PeakTableData {
         PeakTableData {
             peaks: t.peaks,
             ignored_columns: t.ignored_columns,
+            retention_only: t.retention_only,
         }
     }
-}
-
-/// Quantities a column can carry.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
-enum Col {
-    Name,
-    Rt,
-    WHalf,
-    StartHalf,
-    EndHalf,
-    WBase,
-    Area,
-    Height,
-    Tailing,
-    W5,
-    F5,
-    A10,
-    B10,
-}
-
-impl Col {
-    fn label(self) -> &'static str {
-        match self {
-            Col::Name => "name",
-            Col::Rt => "retention_time",
-            Col::WHalf => "width_half",
-            Col::StartHalf => "start_half",
-            Col::EndHalf => "end_half",
-            Col::WBase => "width_base",
-            Col::Area => "area",
-            Col::Height => "height",
-            Col::Tailing => "tailing",
-            Col::W5 => "w5",
-            Col::F5 => "f5",
-            Col::A10 => "a10",
-            Col::B10 => "b10",
-        }
-    }
-    fn is_time(self) -> bool {
-        !matches!(self, Col::Name | Col::Area | Col::Height | Col::Tailing)
-    }
-}
-
-fn classify(base: &str) -> Option<Col> {
-    Some(match base {
-        "name" => Col::Name,
-        "retention_time" | "rt" | "tr" => Col::Rt,
-        "width_half" | "w50" | "fwhm" => Col::WHalf,
-        "start_half" => Col::StartHalf,
-        "end_half" => Col::EndHalf,
-        "width_base" | "wb" => Col::WBase,
-        "area" => Col::Area,
-        "height" => Col::Height,
-        "tailing" | "usp_tailing" => Col::Tailing,
-        "w5" => Col::W5,
-        "f5" => Col::F5,
-        "a10" => Col::A10,
-        "b10" => Col::B10,
-        _ => return None,
-    })
-}
-
-/// Splits a header into (base name, unit) after normalising case, spaces and hyphens.
-fn split_header(raw: &str) -> (String, Option<String>) {
-    let h = raw.trim().to_lowercase();
-    let (mut base, mut unit) = (h.clone(), None);
-    for (open, close) in [('(', ')'), ('[', ']')] {
-        if h.ends_with(close)
-            && let Some(i) = h.rfind(open)
-        {
-            base = h[..i].trim().to_string();
-            unit = Some(h[i + 1..h.len() - 1].trim().to_string());
-            break;
-        }
-    }
-    let mut base: String = base
-        .chars()
-        .map(|c| if c == ' ' || c == '-' { '_' } else { c })
-        .collect();
-    if unit.is_none() {
-        for suffix in ["_min", "_s", "_sec", "_seconds", "_ms", "_h"] {
-            if let Some(stripped) = base.strip_suffix(suffix)
-                && classify(stripped).is_some()
-            {
-                unit = Some(suffix[1..].to_string());
-                base = stripped.to_string();
-                break;
-            }
-        }
-    }
-    (base, unit)
-}
-
-fn split_fields(line: &str, delim: char, line_no: usize) -> Result<Vec<String>, PeakTableError> {
-    let mut out = Vec::new();
-    let mut cur = String::new();
-    let mut chars = line.chars().peekable();
-    let mut in_quotes = false;
-    let mut at_field_start = true;
-    while let Some(c) = chars.next() {
-        if in_quotes {
-            if c == '"' {
-                if chars.peek() == Some(&'"') {
-                    cur.push('"');
-                    chars.next();
-                } else {
-                    in_quotes = false;
-                }
-            } else {
-                cur.push(c);
-            }
-        } else if c == '"' && at_field_start && cur.trim().is_empty() {
-            cur.clear();
-            in_quotes = true;
-            at_field_start = false;
-        } else if c == delim {
-            out.push(std::mem::take(&mut cur));
-            at_field_start = true;
-        } else {
-            cur.push(c);
-            if !c.is_whitespace() {
-                at_field_start = false;
-            }
-        }
-    }
-    if in_quotes {
-        return Err(PeakTableError::UnterminatedQuote { line: line_no });
-    }
-    out.push(cur);
-    Ok(out.into_iter().map(|f| f.trim().to_string()).collect())
 }
 
 impl PeakTable {
@@ -457,6 +363,32 @@ impl PeakTable {
     /// assert!(PeakTable::parse("name,rt,w50\nalpha-ol,3.2,0\n").is_err());
     /// ```
     pub fn parse(text: &str) -> Result<Self, PeakTableError> {
+        Self::parse_inner(text, true, MAX_PEAKS)
+    }
+
+    /// Parses a table that may lack widths: names and retention times are enough for
+    /// scouting fits. Widths present are read and checked as in [`PeakTable::parse`]; peaks
+    /// without one report it through [`PeakTable::peaks_without_width`].
+    ///
+    /// # Errors
+    /// As [`PeakTable::parse`], less the width requirement.
+    ///
+    /// # Examples
+    /// ```
+    /// use phasewise::measured::peaks::PeakTable;
+    /// // Invented demo table with the headings of a typical data-system export.
+    /// let t = PeakTable::parse_retention_only("Compound,Retention Time (min)\nalpha-ol,3.2\n").unwrap();
+    /// assert_eq!(t.peaks_without_width(), 1);
+    /// ```
+    pub fn parse_retention_only(text: &str) -> Result<Self, PeakTableError> {
+        Self::parse_inner(text, false, MAX_PEAKS)
+    }
+
+    fn parse_inner(
+        text: &str,
+        require_widths: bool,
+        max_peaks: usize,
+    ) -> Result<Self, PeakTableError> {
         let text = text.strip_prefix('\u{feff}').unwrap_or(text);
         let mut lines = text
             .lines()
@@ -516,13 +448,13 @@ impl PeakTable {
         if idx(Col::Name).is_none() {
             return Err(PeakTableError::MissingColumn {
                 column: "name",
-                accepted: "name",
+                accepted: headers::accepted(Col::Name),
             });
         }
         if idx(Col::Rt).is_none() {
             return Err(PeakTableError::MissingColumn {
                 column: "retention_time",
-                accepted: "retention_time, rt, tr",
+                accepted: headers::accepted(Col::Rt),
             });
         }
         match (idx(Col::StartHalf), idx(Col::EndHalf)) {
@@ -540,11 +472,21 @@ impl PeakTable {
             }
             _ => {}
         }
-        if idx(Col::WHalf).is_none() && idx(Col::StartHalf).is_none() && idx(Col::WBase).is_none() {
+        if require_widths
+            && idx(Col::WHalf).is_none()
+            && idx(Col::StartHalf).is_none()
+            && idx(Col::WBase).is_none()
+        {
             return Err(PeakTableError::NoWidthColumn);
         }
         let mut peaks = Vec::new();
         for (line_no, line) in lines {
+            if peaks.len() >= max_peaks {
+                return Err(PeakTableError::TooManyPeaks {
+                    max: max_peaks,
+                    line: line_no,
+                });
+            }
             let fields = split_fields(line, delim, line_no)?;
             if fields.len() != headers.len() {
                 return Err(PeakTableError::WrongFieldCount {
@@ -613,7 +555,7 @@ impl PeakTable {
                 line: line_no,
             });
         }
-        let mut table = Self::from_peaks(peaks)?;
+        let mut table = Self::build(peaks, require_widths)?;
         table.ignored_columns = ignored;
         Ok(table)
     }
@@ -623,9 +565,22 @@ impl PeakTable {
     /// # Errors
     /// Duplicate names, non-positive widths or retention times, missing widths.
     pub fn from_peaks(peaks: Vec<Peak>) -> Result<Self, PeakTableError> {
+        Self::build(peaks, true)
+    }
+
+    /// Validates peaks in one pass (time linear in the number of peaks: names are checked for
+    /// duplicates through a hash map, not by scanning the earlier rows).
+    fn build(peaks: Vec<Peak>, require_widths: bool) -> Result<Self, PeakTableError> {
         if peaks.is_empty() {
             return Err(PeakTableError::NoPeaks);
         }
+        if peaks.len() > MAX_PEAKS {
+            return Err(PeakTableError::TooManyPeaks {
+                max: MAX_PEAKS,
+                line: peaks[MAX_PEAKS].line,
+            });
+        }
+        let mut index: HashMap<String, usize> = HashMap::with_capacity(peaks.len());
         for (i, p) in peaks.iter().enumerate() {
             let line = p.line;
             if p.name.trim().is_empty() {
@@ -679,24 +634,65 @@ impl PeakTable {
                     front_min: f,
                 });
             }
-            if p.width_half_min.is_none() && p.width_base_min.is_none() {
+            if require_widths && p.width_half_min.is_none() && p.width_base_min.is_none() {
                 return Err(PeakTableError::NoWidthValue {
                     line,
                     name: p.name.clone(),
                 });
             }
-            if let Some(first) = peaks[..i].iter().find(|q| q.name == p.name) {
+            if let Some(&first) = index.get(&p.name) {
                 return Err(PeakTableError::DuplicateName {
                     name: p.name.clone(),
-                    first_line: first.line,
+                    first_line: peaks[first].line,
                     line,
                 });
             }
+            index.insert(p.name.clone(), i);
         }
         Ok(Self {
             peaks,
             ignored_columns: Vec::new(),
+            retention_only: !require_widths,
+            index,
         })
+    }
+
+    /// Number of peaks with neither a half-height nor a baseline width.
+    pub fn peaks_without_width(&self) -> usize {
+        self.peaks
+            .iter()
+            .filter(|p| p.width_half_min.is_none() && p.width_base_min.is_none())
+            .count()
+    }
+
+    /// A copy in which every peak without a width gets a half-height width estimated from
+    /// the plate number: w½ = 2.3548 tR/√N (Gaussian peak, σ = tR/√N; isocratic theory,
+    /// SKD 2010 ch. 2). Returns the table and the names of the peaks whose width was
+    /// estimated, so the output can say so.
+    ///
+    /// # Errors
+    /// A plate number that is not positive and finite.
+    pub fn with_estimated_widths(
+        &self,
+        plates: f64,
+    ) -> Result<(PeakTable, Vec<String>), PeakTableError> {
+        if !(plates.is_finite() && plates > 0.0) {
+            return Err(PeakTableError::NotPositive {
+                line: 0,
+                column: "plate number".into(),
+                value: plates,
+            });
+        }
+        let mut out = self.clone();
+        let mut estimated = Vec::new();
+        let factor = (8.0 * std::f64::consts::LN_2).sqrt() / plates.sqrt();
+        for p in &mut out.peaks {
+            if p.width_half_min.is_none() && p.width_base_min.is_none() {
+                p.width_half_min = Some(p.retention_time_min * factor);
+                estimated.push(p.name.clone());
+            }
+        }
+        Ok((out, estimated))
     }
 
     /// Peaks in table order.
@@ -717,7 +713,7 @@ impl PeakTable {
 
     /// The peak with this name, if any.
     pub fn get(&self, name: &str) -> Option<&Peak> {
-        self.peaks.iter().find(|p| p.name == name)
+        self.index.get(name).map(|&i| &self.peaks[i])
     }
 
     /// Header cells that matched no recognised column.
@@ -728,27 +724,7 @@ impl PeakTable {
 
 /// Every header the parser recognises, for documentation and help text.
 pub fn recognised_headers() -> Vec<&'static str> {
-    vec![
-        "name",
-        "retention_time",
-        "rt",
-        "tr",
-        "width_half",
-        "w50",
-        "fwhm",
-        "start_half",
-        "end_half",
-        "width_base",
-        "wb",
-        "area",
-        "height",
-        "tailing",
-        "usp_tailing",
-        "w5",
-        "f5",
-        "a10",
-        "b10",
-    ]
+    headers::SYNONYMS.iter().map(|(h, _)| *h).collect()
 }
 
 #[cfg(test)]
@@ -842,6 +818,92 @@ mod tests {
         assert_eq!(back, t);
         let bad = j.replace("0.2", "-0.2");
         assert!(serde_json::from_str::<PeakTable>(&bad).is_err());
+    }
+
+    #[test]
+    fn common_headings_of_lab_exports_are_recognised() {
+        // Invented tables with headings as data systems commonly export them.
+        for header in [
+            "Compound,Retention Time (min),Width at half height (min),Area,Height",
+            "Peak Name,RT [min],W0.5,Peak Area,Peak Height",
+            "name,tR,w1/2,area,height",
+            "Analyte,Ret. Time,W50,area,height",
+            "component,t_R,FWHM,area,height",
+        ] {
+            let t = PeakTable::parse(&format!("{header}\nalpha-ol,3.2,0.05,100,10\n"))
+                .unwrap_or_else(|e| panic!("{header}: {e}"));
+            let p = &t.peaks()[0];
+            assert_eq!(p.name, "alpha-ol", "{header}");
+            assert_eq!(p.width_half_min, Some(0.05), "{header}");
+            assert_eq!(p.area, Some(100.0), "{header}");
+            assert!(
+                t.ignored_columns().is_empty(),
+                "{header}: {:?}",
+                t.ignored_columns()
+            );
+        }
+        // every documented synonym is listed once
+        let h = recognised_headers();
+        let mut d = h.clone();
+        d.sort_unstable();
+        d.dedup();
+        assert_eq!(d.len(), h.len());
+        // the error for a missing retention column lists the synonyms
+        let e = PeakTable::parse("name,w50\nx,0.1\n")
+            .unwrap_err()
+            .to_string();
+        assert!(e.contains("ret_time") && e.contains("tr"), "{e}");
+    }
+
+    #[test]
+    fn retention_only_tables_are_accepted_for_scouting_and_widths_estimated_on_request() {
+        let text = "name,rt\ninv-a,2.0\ninv-b,4.0\n";
+        assert!(PeakTable::parse(text).is_err());
+        let t = PeakTable::parse_retention_only(text).unwrap();
+        assert_eq!(t.peaks_without_width(), 2);
+        // w½ = 2.3548 tR/√N; N = 10 000: 2.0 × 2.3548/100 = 0.047096 min
+        let (e, names) = t.with_estimated_widths(10_000.0).unwrap();
+        assert_eq!(names, ["inv-a", "inv-b"]);
+        assert!((e.peaks()[0].width_half_min.unwrap() - 0.047_096).abs() < 1e-6);
+        assert_eq!(e.peaks_without_width(), 0);
+        assert!(t.with_estimated_widths(0.0).is_err());
+        // given widths are kept and checked
+        let t = PeakTable::parse_retention_only("name,rt,w50\na,2.0,0.05\nb,3.0,\n").unwrap();
+        assert_eq!(t.peaks_without_width(), 1);
+        assert!(PeakTable::parse_retention_only("name,rt,w50\na,2.0,-1\n").is_err());
+        // a retention-only table survives a JSON round trip
+        let j = serde_json::to_string(&t).unwrap();
+        assert_eq!(serde_json::from_str::<PeakTable>(&j).unwrap(), t);
+    }
+
+    #[test]
+    fn lookups_and_duplicate_checks_use_the_index() {
+        let mut text = String::from("name,rt,w50\n");
+        for i in 0..5000 {
+            text.push_str(&format!("p{i},{},0.01\n", 1.0 + f64::from(i) * 0.01));
+        }
+        let t = PeakTable::parse(&text).unwrap();
+        assert_eq!(t.get("p4999").unwrap().line, 5001);
+        assert!(t.get("p5000").is_none());
+        text.push_str("p17,99,0.01\n");
+        let e = PeakTable::parse(&text).unwrap_err().to_string();
+        assert!(
+            e.contains("line 5002: peak name `p17` already used on line 19"),
+            "{e}"
+        );
+    }
+
+    #[test]
+    fn tables_beyond_the_limit_are_refused_with_a_message() {
+        let text = "name,rt,w50\na,1,0.1\nb,2,0.1\nc,3,0.1\n";
+        let e = PeakTable::parse_inner(text, true, 2)
+            .unwrap_err()
+            .to_string();
+        assert!(
+            e.contains("more than 2 peaks") && e.contains("line 4"),
+            "{e}"
+        );
+        assert!(PeakTable::parse_inner(text, true, 3).is_ok());
     }
 
     proptest! {

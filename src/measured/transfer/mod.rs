@@ -1,11 +1,15 @@
-//! Method transfer between column geometries and particle sizes: flow for constant linear
-//! velocity, gradient times for a constant gradient volume in column volumes, injection volume
-//! for constant load, dwell-volume correction, and the expected change in plate number,
-//! pressure and run time.
+//! Method transfer between column geometries and particle sizes: flow, gradient times for a
+//! constant gradient volume in column volumes, injection volume for constant load, dwell-volume
+//! correction, the expected change in plate number, pressure and run time, and the check of
+//! the allowed-adjustment limits ([`limits`]).
 //!
-//! Equations (SD 2007 ch. 5 on method transfer, SKD 2010 ch. 9):
-//! - F2 = F1 (dc2/dc1)² — same linear velocity; × dp1/dp2 optionally, to keep the reduced
-//!   velocity (same place on the van Deemter curve).
+//! Equations (SD 2007 ch. 5 on method transfer, SKD 2010 ch. 9; the harmonised pharmacopoeial
+//! chapters on chromatography, USP <621> and Ph. Eur. 2.2.46, from memory):
+//! - default ([`FlowScaling::Pharmacopoeial`]): F2 = F1 (dc2² dp1)/(dc1² dp2), the same reduced
+//!   velocity (same place on the van Deemter curve): the speed gain of small particles is the
+//!   reason to transfer;
+//! - option ([`FlowScaling::ConstantLinearVelocity`]): F2 = F1 (dc2/dc1)², the same linear
+//!   velocity.
 //! - tG2 = tG1 (Vm2/Vm1)(F1/F2), applied to every program time — same gradient volume in
 //!   column volumes, so the same gradient steepness b and the same band order.
 //! - Vinj2 = Vinj1 · Vm2/Vm1 — same load per column volume.
@@ -26,6 +30,34 @@ use thiserror::Error;
 
 use crate::model::gradient::{GradientError, GradientProgram};
 use crate::model::theory::{self, TheoryError};
+
+pub mod limits;
+
+pub use limits::{LimitCheck, LimitVerdict};
+
+/// How the flow is scaled to the new column.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum FlowScaling {
+    /// F2 = F1 (dc2² dp1)/(dc1² dp2): the harmonised pharmacopoeial formula (same reduced
+    /// velocity).
+    #[default]
+    Pharmacopoeial,
+    /// F2 = F1 (dc2/dc1)²: the same linear velocity (slower on smaller particles).
+    ConstantLinearVelocity,
+}
+
+impl FlowScaling {
+    /// Plain words for tables and reports.
+    pub fn label(self) -> &'static str {
+        match self {
+            FlowScaling::Pharmacopoeial => {
+                "pharmacopoeial formula F2 = F1 (dc2² dp1)/(dc1² dp2) (same reduced velocity)"
+            }
+            FlowScaling::ConstantLinearVelocity => "same linear velocity F2 = F1 (dc2/dc1)²",
+        }
+    }
+}
 
 /// Errors from method transfer.
 #[derive(Debug, Clone, PartialEq, Error)]
@@ -68,7 +100,8 @@ pub struct TransferRequest {
     pub target: ColumnGeometry,
     /// Flow of the existing method, mL/min.
     pub flow_ml_min: f64,
-    /// Also scale flow by dp1/dp2 (keeps the reduced velocity).
+    /// Also scale flow by dp1/dp2 (keeps the reduced velocity). Read only by [`transfer`];
+    /// [`transfer_with`] takes the scaling explicitly.
     #[serde(default)]
     pub adjust_flow_for_particle_size: bool,
     /// Gradient program of the existing method.
@@ -90,8 +123,15 @@ pub struct TransferRequest {
 /// Result of a method transfer.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct TransferReport {
+    /// How the flow was scaled.
+    pub scaling: FlowScaling,
     /// Flow on the target column, mL/min.
     pub flow_ml_min: f64,
+    /// Flow by the pharmacopoeial formula F1 (dc2² dp1)/(dc1² dp2), mL/min (equal to
+    /// `flow_ml_min` under the default scaling).
+    pub pharmacopoeial_flow_ml_min: f64,
+    /// Allowed-adjustment checks (L/dp, flow), each with its verdict and source.
+    pub limits: Vec<LimitCheck>,
     /// Target/original linear velocity.
     pub linear_velocity_ratio: f64,
     /// Dead volume of the original column, mL (Vm ≈ 0.5 L dc²).
@@ -130,12 +170,29 @@ fn geometry(prefix: &'static [&'static str; 3], g: &ColumnGeometry) -> Result<()
     Ok(())
 }
 
-/// Scales a method to a new column.
+/// Scales a method to a new column, reading the scaling from
+/// `req.adjust_flow_for_particle_size` (true: pharmacopoeial; false: same linear velocity).
+///
+/// # Errors
+/// As [`transfer_with`].
+pub fn transfer(req: &TransferRequest) -> Result<TransferReport, TransferError> {
+    let scaling = if req.adjust_flow_for_particle_size {
+        FlowScaling::Pharmacopoeial
+    } else {
+        FlowScaling::ConstantLinearVelocity
+    };
+    transfer_with(req, scaling)
+}
+
+/// Scales a method to a new column with the given flow scaling.
 ///
 /// # Errors
 /// Non-positive dimensions or flow, negative dwell or injection volumes, run time shorter than
 /// the program.
-pub fn transfer(req: &TransferRequest) -> Result<TransferReport, TransferError> {
+pub fn transfer_with(
+    req: &TransferRequest,
+    scaling: FlowScaling,
+) -> Result<TransferReport, TransferError> {
     geometry(
         &[
             "original column length (mm)",
@@ -175,10 +232,11 @@ pub fn transfer(req: &TransferRequest) -> Result<TransferReport, TransferError> 
     let (o, t) = (&req.original, &req.target);
     let d_ratio = t.inner_diameter_mm / o.inner_diameter_mm;
     let dp_ratio = o.particle_size_um / t.particle_size_um;
-    let mut f2 = f1 * d_ratio * d_ratio;
-    if req.adjust_flow_for_particle_size {
-        f2 *= dp_ratio;
-    }
+    let f_pharm = f1 * d_ratio * d_ratio * dp_ratio;
+    let f2 = match scaling {
+        FlowScaling::Pharmacopoeial => f_pharm,
+        FlowScaling::ConstantLinearVelocity => f1 * d_ratio * d_ratio,
+    };
     let u_ratio = (f2 / f1) / (d_ratio * d_ratio);
     let vm1 = theory::column_dead_volume_ml(o.column_length_mm, o.inner_diameter_mm)?;
     let vm2 = theory::column_dead_volume_ml(t.column_length_mm, t.inner_diameter_mm)?;
@@ -224,9 +282,49 @@ pub fn transfer(req: &TransferRequest) -> Result<TransferReport, TransferError> 
             "linear velocity changes by a factor {u_ratio:.3} (particle-size adjustment)"
         ));
     }
+    let mut limits = vec![limits::check_length_over_particle(o, t)];
+    let flow_change = f2 / f_pharm - 1.0;
+    let flow_ok = flow_change.abs() < 1e-9;
+    limits.push(LimitCheck {
+        quantity: "flow against the formula F1 (dc2² dp1)/(dc1² dp2) (mL/min)".into(),
+        original: f_pharm,
+        target: f2,
+        change: flow_change,
+        allowed_min: 0.0,
+        allowed_max: 0.0,
+        verdict: if flow_ok {
+            LimitVerdict::Within
+        } else {
+            LimitVerdict::Outside
+        },
+        source: format!(
+            "{}; a further ±50 % is allowed for isocratic methods only",
+            limits::LIMITS_SOURCE
+        ),
+    });
+    if limits[0].verdict == LimitVerdict::Outside {
+        notes.push(format!(
+            "L/dp changes by {:+.0} % (allowed {:+.0} % to {:+.0} %, from memory of the \
+             pharmacopoeial chapters): this transfer is a method change that needs the lab's \
+             change control and verification, not an allowed adjustment",
+            limits[0].change * 100.0,
+            limits::L_OVER_DP_MIN_CHANGE * 100.0,
+            limits::L_OVER_DP_MAX_CHANGE * 100.0
+        ));
+    }
+    if !flow_ok {
+        notes.push(format!(
+            "the flow keeps the linear velocity ({f2:.3} mL/min) instead of following the \
+             pharmacopoeial formula ({f_pharm:.3} mL/min); for a gradient method this is outside \
+             the allowed adjustments (from memory of the chapters)"
+        ));
+    }
     let ramp_volume_cv = req.program.end_time_min() * f1 / vm1;
     Ok(TransferReport {
+        scaling,
         flow_ml_min: f2,
+        pharmacopoeial_flow_ml_min: f_pharm,
+        limits,
         linear_velocity_ratio: u_ratio,
         dead_volume_original_ml: vm1,
         dead_volume_target_ml: vm2,
@@ -356,5 +454,92 @@ mod tests {
         let mut q = req();
         q.dwell_volume_target_ml = -1.0;
         assert!(transfer(&q).unwrap_err().to_string().contains("-1"));
+    }
+
+    fn col(l: f64, d: f64, dp: f64) -> ColumnGeometry {
+        ColumnGeometry {
+            column_length_mm: l,
+            inner_diameter_mm: d,
+            particle_size_um: dp,
+        }
+    }
+
+    fn plain(o: ColumnGeometry, t: ColumnGeometry, flow: f64, program: &str) -> TransferRequest {
+        TransferRequest {
+            original: o,
+            target: t,
+            flow_ml_min: flow,
+            adjust_flow_for_particle_size: true,
+            program: GradientProgram::parse(program).unwrap(),
+            injection_volume_ul: Some(10.0),
+            dwell_volume_original_ml: 0.0,
+            dwell_volume_target_ml: 0.0,
+            run_time_min: None,
+        }
+    }
+
+    #[test]
+    fn pharmacopoeial_formulas_issue_example() {
+        // Issue 16's example; formulas of the harmonised chapters (USP <621>, Ph. Eur. 2.2.46,
+        // from memory). F2 = 1.0 × (2.1² × 5)/(4.6² × 1.7) = 22.05/35.972 = 0.612976 mL/min.
+        // tG factor = (F1/F2)(L2 dc2²)/(L1 dc1²) = (L2 dp2)/(L1 dp1) = 170/750 = 0.226667,
+        // so the 20 min ramp becomes 4.5333 min.
+        let q = plain(col(150.0, 4.6, 5.0), col(100.0, 2.1, 1.7), 1.0, "0:5,20:95");
+        let r = transfer_with(&q, FlowScaling::default()).unwrap();
+        assert_eq!(r.scaling, FlowScaling::Pharmacopoeial);
+        assert!(
+            (r.flow_ml_min - 0.612_976).abs() < 1e-6,
+            "{}",
+            r.flow_ml_min
+        );
+        assert!((r.time_scale_factor - 0.226_667).abs() < 1e-6);
+        assert!((r.program.points()[1].time_min - 4.533_33).abs() < 1e-4);
+        // injection 10 µL × (100 × 2.1²)/(150 × 4.6²) = 10 × 441/3174 = 1.38941 µL.
+        assert!((r.injection_volume_ul.unwrap() - 1.389_414).abs() < 1e-5);
+        // L/dp 30 → 58.8 (+96 %): outside the −25 % to +50 % range, said in a note.
+        assert_eq!(r.limits[0].verdict, LimitVerdict::Outside);
+        assert_eq!(r.limits[1].verdict, LimitVerdict::Within);
+        assert!(r.notes.iter().any(|n| n.contains("method change")));
+        // the same request with constant linear velocity gives the old 0.208 mL/min, and the
+        // flow check reports the departure from the formula.
+        let r = transfer_with(&q, FlowScaling::ConstantLinearVelocity).unwrap();
+        assert!((r.flow_ml_min - 0.208_412).abs() < 1e-6);
+        assert!((r.pharmacopoeial_flow_ml_min - 0.612_976).abs() < 1e-6);
+        assert_eq!(r.limits[1].verdict, LimitVerdict::Outside);
+    }
+
+    #[test]
+    fn pharmacopoeial_formulas_second_case_by_hand() {
+        // Own case (invented method): 250 × 4.6 mm, 5 µm, 1.5 mL/min, 10→80 % in 30 min, 10 µL,
+        // moved to 150 × 3.0 mm, 3 µm. By hand:
+        // F2 = 1.5 × (3.0² × 5)/(4.6² × 3) = 1.5 × 45/63.48 = 1.063327 mL/min;
+        // time factor = (1.5/1.063327) × (150 × 9)/(250 × 21.16) = 1.410667 × 0.255198 = 0.36
+        //   (= (L2 dp2)/(L1 dp1) = 450/1250), so 30 min → 10.8 min;
+        // injection = 10 × 0.255198 = 2.55198 µL;
+        // L/dp: 250/5 = 50 and 150/3 = 50, change 0 %: within;
+        // ΔP2/ΔP1 = 0.708885 × 0.6 × (4.6/3.0)² × (5/3)² = 0.425331 × 2.351111 × 2.777778 = 2.7778.
+        let q = plain(
+            col(250.0, 4.6, 5.0),
+            col(150.0, 3.0, 3.0),
+            1.5,
+            "0:10,30:80",
+        );
+        let r = transfer_with(&q, FlowScaling::Pharmacopoeial).unwrap();
+        assert!(
+            (r.flow_ml_min - 1.063_327).abs() < 1e-6,
+            "{}",
+            r.flow_ml_min
+        );
+        assert!((r.time_scale_factor - 0.36).abs() < 1e-9);
+        assert!((r.program.points()[1].time_min - 10.8).abs() < 1e-9);
+        assert!((r.injection_volume_ul.unwrap() - 2.551_985).abs() < 1e-5);
+        assert!(r.limits[0].change.abs() < 1e-12);
+        assert!(r.limits.iter().all(|c| c.verdict == LimitVerdict::Within));
+        assert!(
+            (r.pressure_ratio - 2.777_778).abs() < 1e-5,
+            "{}",
+            r.pressure_ratio
+        );
+        assert!(!r.notes.iter().any(|n| n.contains("method change")));
     }
 }

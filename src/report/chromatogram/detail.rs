@@ -1,0 +1,206 @@
+//! Zoomed panels on the pairs at risk (the critical pair first).
+
+use std::fmt::Write as _;
+
+use super::{Peak, escape_xml, f2, nice_step};
+use crate::report::advice::Coelution;
+
+/// Width of one detail panel, px.
+pub(super) const DETAIL_WIDTH_PX: f64 = 250.0;
+/// Height of one detail panel's plotting area, px.
+pub(super) const DETAIL_HEIGHT_PX: f64 = 120.0;
+/// Gap between detail panels, px.
+pub(super) const DETAIL_GAP_PX: f64 = 55.0;
+/// At most this many detail panels fit across the image.
+const MAX_DETAILS: usize = 3;
+
+/// A zoomed window on one flagged pair.
+pub(super) struct DetailWindow {
+    a: String,
+    b: String,
+    resolution: f64,
+    t_lo: f64,
+    t_hi: f64,
+}
+
+/// Windows on the flagged pairs (most likely first, at most [`MAX_DETAILS`]), each wide
+/// enough for both peaks' tails: a pair a few pixels wide in the full run is unreadable.
+pub(super) fn detail_windows(coelutions: &[Coelution], peaks: &[Peak]) -> Vec<DetailWindow> {
+    let mut out = Vec::new();
+    for c in coelutions {
+        let find = |n: &str| peaks.iter().find(|p| p.row.analyte == n);
+        let (Some(pa), Some(pb)) = (find(&c.a), find(&c.b)) else {
+            continue;
+        };
+        let (ta, tb) = (pa.row.retention_time_min, pb.row.retention_time_min);
+        let sigma = pa.sigma_min.max(pb.sigma_min);
+        let mid = (ta + tb) / 2.0;
+        let half = ((ta - tb).abs() / 2.0 + 5.0 * sigma).max(1e-3);
+        out.push(DetailWindow {
+            a: c.a.clone(),
+            b: c.b.clone(),
+            resolution: c.resolution,
+            t_lo: (mid - half).max(0.0),
+            t_hi: mid + half,
+        });
+        if out.len() == MAX_DETAILS {
+            break;
+        }
+    }
+    out
+}
+
+/// Draw one detail panel with its own time axis; peaks use class `peak-detail`.
+pub(super) fn draw_detail(s: &mut String, peaks: &[Peak], w: &DetailWindow, left: f64, top: f64) {
+    let bottom = top + DETAIL_HEIGHT_PX;
+    let span = w.t_hi - w.t_lo;
+    let x_of = |t: f64| left + (t - w.t_lo) / span * DETAIL_WIDTH_PX;
+    let in_window: Vec<&Peak> = peaks
+        .iter()
+        .filter(|p| {
+            let rt = p.row.retention_time_min;
+            rt + 4.0 * p.sigma_min >= w.t_lo && rt - 4.0 * p.sigma_min <= w.t_hi
+        })
+        .collect();
+    let n = DETAIL_WIDTH_PX.round() as usize;
+    let grid: Vec<(f64, f64)> = (0..=n)
+        .map(|i| {
+            let t = w.t_lo + span * i as f64 / n as f64;
+            let v: f64 = in_window
+                .iter()
+                .map(|p| {
+                    let z = (t - p.row.retention_time_min) / p.sigma_min;
+                    (-0.5 * z * z).exp()
+                })
+                .sum();
+            (t, v)
+        })
+        .collect();
+    // Headroom above the apexes for the two labels.
+    let vmax = grid.iter().map(|g| g.1).fold(1.0_f64, f64::max) * 1.3;
+    let y_of = |v: f64| bottom - v / vmax * DETAIL_HEIGHT_PX;
+    let rs = if w.resolution.is_finite() {
+        format!(", predicted Rs {:.2}", w.resolution)
+    } else {
+        String::new()
+    };
+    let _ = writeln!(
+        s,
+        "<g class=\"detail\"><text x=\"{}\" y=\"{}\" font-size=\"11\" font-weight=\"bold\">close-up: {} / {}{}</text>",
+        f2(left),
+        f2(top - 8.0),
+        escape_xml(&w.a),
+        escape_xml(&w.b),
+        rs
+    );
+    let _ = writeln!(
+        s,
+        "<path d=\"M {l} {t} L {l} {b} L {r} {b}\" fill=\"none\" stroke=\"#000\"/>",
+        l = f2(left),
+        t = f2(top),
+        b = f2(bottom),
+        r = f2(left + DETAIL_WIDTH_PX)
+    );
+    let step = nice_step(span * 2.0);
+    let digits = if step >= 1.0 {
+        0
+    } else if step >= 0.1 {
+        1
+    } else if step >= 0.01 {
+        2
+    } else {
+        3
+    };
+    let mut k = (w.t_lo / step).ceil();
+    while k * step <= w.t_hi + 1e-9 {
+        let t = k * step;
+        let x = x_of(t);
+        let _ = writeln!(
+            s,
+            "<line x1=\"{x}\" y1=\"{b}\" x2=\"{x}\" y2=\"{b5}\" stroke=\"#000\"/><text x=\"{x}\" y=\"{bl}\" font-size=\"10\" text-anchor=\"middle\">{t:.digits$}</text>",
+            x = f2(x),
+            b = f2(bottom),
+            b5 = f2(bottom + 4.0),
+            bl = f2(bottom + 15.0),
+        );
+        k += 1.0;
+    }
+    let _ = writeln!(
+        s,
+        "<text x=\"{}\" y=\"{}\" font-size=\"10\" text-anchor=\"middle\">retention time (min)</text>",
+        f2(left + DETAIL_WIDTH_PX / 2.0),
+        f2(bottom + 29.0)
+    );
+    for p in &in_window {
+        let rt = p.row.retention_time_min;
+        let dt = (p.sigma_min / 8.0).min(span / DETAIL_WIDTH_PX);
+        let half = (4.0 * p.sigma_min / dt).ceil() as i64;
+        let pts: Vec<(f64, f64)> = (-half..=half)
+            .map(|i| rt + i as f64 * dt)
+            .filter(|t| (w.t_lo..=w.t_hi).contains(t))
+            .map(|t| {
+                let z = (t - rt) / p.sigma_min;
+                (t, (-0.5 * z * z).exp())
+            })
+            .collect();
+        if pts.is_empty() {
+            continue;
+        }
+        let mut d = String::new();
+        for (i, (t, v)) in pts.iter().enumerate() {
+            let _ = write!(
+                d,
+                "{}{} {}",
+                if i == 0 { "M " } else { " L " },
+                f2(x_of(*t)),
+                f2(y_of(*v))
+            );
+        }
+        let stroke_w = if p.flagged { "2.2" } else { "0.8" };
+        let _ = writeln!(
+            s,
+            "<path class=\"peak-detail\" data-analyte=\"{}\" d=\"{d}\" fill=\"none\" stroke=\"#000\" stroke-width=\"{stroke_w}\"/>",
+            escape_xml(&p.row.analyte)
+        );
+    }
+    let mut d = String::new();
+    for (i, (t, v)) in grid.iter().enumerate() {
+        let _ = write!(
+            d,
+            "{}{} {}",
+            if i == 0 { "M " } else { " L " },
+            f2(x_of(*t)),
+            f2(y_of(*v))
+        );
+    }
+    let _ = writeln!(
+        s,
+        "<path d=\"{d}\" fill=\"none\" stroke=\"#000\" stroke-width=\"1.6\"/>"
+    );
+    // The earlier peak's label goes to its left, the later one's to its right.
+    let mut named: Vec<&&Peak> = in_window
+        .iter()
+        .filter(|p| p.row.analyte == w.a || p.row.analyte == w.b)
+        .collect();
+    named.sort_by(|x, y| {
+        x.row
+            .retention_time_min
+            .total_cmp(&y.row.retention_time_min)
+    });
+    for (i, p) in named.iter().enumerate() {
+        let x = x_of(p.row.retention_time_min);
+        let (dx, anchor) = if i == 0 {
+            (-2.0, "end")
+        } else {
+            (2.0, "start")
+        };
+        let _ = writeln!(
+            s,
+            "<text x=\"{}\" y=\"{}\" font-size=\"10\" text-anchor=\"{anchor}\">{}</text>",
+            f2(x + dx),
+            f2(y_of(1.0) - 5.0),
+            escape_xml(&p.row.analyte)
+        );
+    }
+    s.push_str("</g>\n");
+}

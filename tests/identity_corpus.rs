@@ -41,6 +41,13 @@ fn check(kb: &Kb, query: &str, panel: &str, expect: &str) -> Result<(), String> 
             }
         }
         ("ambiguous", other) => Err(format!("not reported ambiguous: {other:?}")),
+        ("record", Resolution::Found(a)) => {
+            if a.name.eq_ignore_ascii_case(smiles) {
+                Ok(())
+            } else {
+                Err(format!("found `{}`", a.name))
+            }
+        }
         (_, Resolution::Found(a)) => {
             let want = structure_key(smiles).map_err(|e| format!("expected SMILES: {e}"))?;
             let got_smiles = a.smiles.clone().unwrap_or_default();

@@ -73,8 +73,12 @@ fn randomised_smiles_resolve_by_key_to_the_right_compound() {
                 .or_else(|| by_skeleton.get(&k.skeleton))
                 .cloned()
         });
+        // The key neutralises acids and bases (structure::canon), so a record of the anion and
+        // one of the acid are one analyte: InChIKeys that differ only in the final protonation
+        // flag denote the same molecule here.
+        let molecule = |k: &str| k[..k.len().saturating_sub(2)].to_string();
         match hit {
-            Some(keys) if keys == [r.inchikey.clone()] => right += 1,
+            Some(keys) if keys.iter().all(|k| molecule(k) == molecule(&r.inchikey)) => right += 1,
             Some(keys) if keys.contains(&r.inchikey) => {
                 wrong.push(format!("{} {} ambiguous {keys:?}", r.form, r.smiles))
             }
@@ -93,7 +97,6 @@ fn randomised_smiles_resolve_by_key_to_the_right_compound() {
         wrong.len(),
         missed.len()
     );
-    eprintln!("misses: {:#?}", &missed[..missed.len().min(60)]);
     assert!(wrong.is_empty(), "resolved to a wrong compound: {wrong:#?}");
     assert!(
         rate >= 0.995,

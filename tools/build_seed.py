@@ -331,6 +331,11 @@ def main():
                 continue
             seen.add(n.lower())
             names.append(n)
+        # The names the retention data measured the compound under go right after the first
+        # (systematic) synonym, so that the cap on synonyms never drops them.
+        ret = [n for n in c.get("retention_names", []) if n in names]
+        if ret:
+            names = names[:1] + ret + [n for n in names[1:] if n not in ret]
         names = names[:MAX_SYNONYMS]
         # "|" separates synonyms; drop it from names themselves (very rare)
         names = [n.replace("|", "/") for n in names]

@@ -226,8 +226,18 @@ fn build_into(tmp: &Path, progress: &mut dyn FnMut(f64, &str)) -> Result<BuildCo
                     let text = super::resolve::trigram_text(&norm);
                     trigram_rows.push((super::resolve::trigram_rowid(name_id, &text), text));
                 }
+                // The stereo-free spelling as well (rank 3): a name whose stereo descriptor the
+                // base does not hold still finds the compound, and says so (kb::resolve).
+                let free = super::normalise::normalise_name_stereo_free(n);
                 seen.push(norm);
                 counts.names += 1;
+                if !free.is_empty() && !seen.contains(&free) {
+                    name_id += 1;
+                    ins_n
+                        .execute(params![name_id, id, n, free, 3i64])
+                        .map_err(sql)?;
+                    seen.push(free);
+                }
             }
             if i % 2000 == 0 {
                 progress(

@@ -124,7 +124,7 @@ impl Kb {
     }
 
     fn resolve_as(&self, raw: &str, smiles: &str) -> Result<Resolution, KbError> {
-        Ok(match self.resolve(smiles)? {
+        Ok(match self.resolve(&format!("smiles:{smiles}"))? {
             Resolution::Found(mut a) => {
                 a.query = raw.trim().to_string();
                 a.matched_by = format!("ion ({smiles})");

@@ -14,6 +14,14 @@ use super::structure_match::{find_shipped, query_key};
 use super::{Kb, KbError};
 use crate::property::{Analyte, Origin, Property, PropertyKind};
 
+/// `matched_by` of a name found only without its stereo descriptor.
+pub const STEREO_DROPPED: &str =
+    "name without its stereo descriptor (the base does not hold that stereoisomer under this name)";
+
+/// `matched_by` of a name without stereo descriptor held only by a stereoisomer record.
+pub const STEREO_ISOMER_NAME: &str =
+    "name without stereo descriptor (the base holds this compound under a stereoisomer's name)";
+
 /// Most suggestions offered for an unresolved query.
 pub const MAX_SUGGESTIONS: usize = 5;
 
@@ -101,16 +109,42 @@ fn find(conn: &Connection, q: &Query) -> rusqlite::Result<Option<(CompoundRow, &
                 return Ok(None);
             }
             // one statement: the best-ranked name and its compound
-            conn.prepare_cached(
+            let hit = conn.prepare_cached(
                 "SELECT c.id, c.inchikey, c.preferred_name, c.smiles, c.formula, c.molar_mass_g_mol, c.cid, c.cas, n.rank
                  FROM name n JOIN compound c ON c.id = n.compound_id
                  WHERE n.norm = ?1 ORDER BY n.rank, c.cid IS NULL, c.cid, c.id LIMIT 1",
             )?
             .query_row([&norm], |r| {
                 let rank: i64 = r.get(8)?;
-                Ok((compound_from_row(r)?, if rank == 0 { "name" } else { "synonym" }))
+                Ok((
+                    compound_from_row(r)?,
+                    match rank {
+                        0 => "name",
+                        3 => STEREO_ISOMER_NAME,
+                        _ => "synonym",
+                    },
+                ))
             })
-            .optional()?
+            .optional()?;
+            // A stereo descriptor the base does not hold: the compound under its stereo-free
+            // name, said so (the caller sees `matched_by`).
+            match hit {
+                Some(h) => Some(h),
+                None => {
+                    let free = super::normalise::normalise_name_stereo_free(n);
+                    if free == norm || free.is_empty() {
+                        None
+                    } else {
+                        conn.prepare_cached(
+                            "SELECT c.id, c.inchikey, c.preferred_name, c.smiles, c.formula, c.molar_mass_g_mol, c.cid, c.cas
+                             FROM name n JOIN compound c ON c.id = n.compound_id
+                             WHERE n.norm = ?1 ORDER BY n.rank, c.cid IS NULL, c.cid, c.id LIMIT 1",
+                        )?
+                        .query_row([&free], |r| Ok((compound_from_row(r)?, STEREO_DROPPED)))
+                        .optional()?
+                    }
+                }
+            }
         }
     })
 }

@@ -11,7 +11,6 @@
 
 use rusqlite::{Connection, OptionalExtension, params};
 
-use super::KbError;
 use crate::structure::canon::{StructureKey, structure_key};
 
 /// DDL of the key table (shipped base only; created by the build, not a numbered migration,
@@ -153,9 +152,4 @@ impl OverlayKeys {
 /// The key of a query SMILES, or `None` when it does not parse (the caller reports why).
 pub(crate) fn query_key(smiles: &str) -> Option<StructureKey> {
     structure_key(smiles).ok()
-}
-
-/// Map an SQLite error on `path`.
-pub(crate) fn sql_err(path: &std::path::Path) -> impl Fn(rusqlite::Error) -> KbError + '_ {
-    move |e| KbError::sql(path, e)
 }

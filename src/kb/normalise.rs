@@ -73,7 +73,10 @@ fn normalise(name: &str, drop_stereo: bool) -> String {
     }
     let mut rest = lower.as_str();
     // Strip repeated stereo prefixes such as "(r)-(+)-".
-    while drop_stereo {
+    loop {
+        if !drop_stereo {
+            break;
+        }
         let before = rest.len();
         for p in STEREO_PREFIXES {
             if let Some(r) = rest.strip_prefix(p) {

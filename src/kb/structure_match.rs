@@ -90,18 +90,18 @@ pub(crate) fn find_shipped(
     Ok(pick("skeleton", &key.skeleton)?.map(|id| (id, KeyMatch::SkeletonOnly)))
 }
 
+/// (row id, key, parent form) of each overlay structure.
+type KeyRows = std::rc::Rc<Vec<(i64, StructureKey, bool)>>;
+
 /// Keys of the overlay's compounds, cached while the overlay is unchanged.
 #[derive(Debug, Default)]
 pub(crate) struct OverlayKeys {
     /// (row count, largest id) the cache was computed for, and (id, key, parent) rows.
-    cache: std::cell::RefCell<Option<((i64, i64), std::rc::Rc<Vec<(i64, StructureKey, bool)>>)>>,
+    cache: std::cell::RefCell<Option<((i64, i64), KeyRows)>>,
 }
 
 impl OverlayKeys {
-    fn rows(
-        &self,
-        conn: &Connection,
-    ) -> rusqlite::Result<std::rc::Rc<Vec<(i64, StructureKey, bool)>>> {
+    fn rows(&self, conn: &Connection) -> rusqlite::Result<KeyRows> {
         let stamp: (i64, i64) = conn
             .prepare_cached("SELECT count(*), coalesce(max(id), 0) FROM compound")?
             .query_row([], |r| Ok((r.get(0)?, r.get(1)?)))?;

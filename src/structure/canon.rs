@@ -267,7 +267,8 @@ fn refine(view: &View, mut classes: Vec<u32>, bond_codes: &[u8]) -> (Vec<u32>, u
 
 /// Symmetry classes (no tie breaking) with optional stereo codes.
 fn classes_of(view: &View, atom_codes: &[u8], bond_codes: &[u8]) -> Vec<u32> {
-    let init: Vec<(u8, u16, i8, u8, bool, u8, usize, u8)> = (0..view.atoms.len())
+    type Invariant = (u8, u16, i8, u8, bool, u8, usize, u8);
+    let init: Vec<Invariant> = (0..view.atoms.len())
         .map(|i| {
             let (z, iso, q, h, ar, rad) = view.atoms[i];
             let code = atom_codes.get(i).copied().unwrap_or(0);

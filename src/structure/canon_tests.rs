@@ -165,7 +165,11 @@ fn permuted(g: &MolGraph, perm: &[usize], rot: usize) -> MolGraph {
     for k in 0..m {
         let b = &g.bonds[(k + rot) % m.max(1)];
         let (a, c) = (perm[b.a], perm[b.b]);
-        let (a, c) = if (k + rot) % 2 == 0 { (a, c) } else { (c, a) };
+        let (a, c) = if (k + rot).is_multiple_of(2) {
+            (a, c)
+        } else {
+            (c, a)
+        };
         bonds.push(Bond {
             a,
             b: c,
@@ -249,12 +253,11 @@ fn shipped_structures_mostly_distinct() {
     let mut seen = std::collections::HashMap::new();
     let mut collisions = Vec::new();
     for s in all {
-        if let Ok(k) = structure_key(s) {
-            if let Some(prev) = seen.insert(k.stereo.clone(), s.clone())
-                && prev != *s
-            {
-                collisions.push((prev, s.clone()));
-            }
+        if let Ok(k) = structure_key(s)
+            && let Some(prev) = seen.insert(k.stereo.clone(), s.clone())
+            && prev != *s
+        {
+            collisions.push((prev, s.clone()));
         }
     }
     // Different records of one molecule (salt vs parent) may collide legitimately; print

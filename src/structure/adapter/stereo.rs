@@ -25,8 +25,8 @@ pub(super) fn marks(raw: &Smiles, local: &[usize], removed: &[bool]) -> Vec<Ster
         }
     };
     // Tetrahedral centres.
-    for i in 0..n {
-        if raw.nodes()[i].chirality().is_none() || local[i] == usize::MAX {
+    for (i, &li) in local.iter().enumerate().take(n) {
+        if raw.nodes()[i].chirality().is_none() || li == usize::MAX {
             continue;
         }
         let mut raw_nb: Vec<Option<usize>> = raw
@@ -59,7 +59,7 @@ pub(super) fn marks(raw: &Smiles, local: &[usize], removed: &[bool]) -> Vec<Ster
         }
         if ok && neighbours.iter().filter(|x| x.is_none()).count() <= 1 {
             out.push(StereoMark::Tetrahedral {
-                centre: local[i],
+                centre: li,
                 neighbours,
                 anticlockwise,
             });
@@ -70,8 +70,8 @@ pub(super) fn marks(raw: &Smiles, local: &[usize], removed: &[bool]) -> Vec<Ster
         raw.edges_for_node(i)
             .any(|e| matches!(e.bond(), RawBond::Up | RawBond::Down))
     };
-    for i in 0..n {
-        if local[i] == usize::MAX {
+    for (i, &li) in local.iter().enumerate().take(n) {
+        if li == usize::MAX {
             continue;
         }
         for e in raw.edges_for_node(i) {

@@ -108,11 +108,13 @@ fn find(conn: &Connection, q: &Query) -> rusqlite::Result<Option<(CompoundRow, &
             if norm.is_empty() {
                 return Ok(None);
             }
-            // one statement: the best-ranked name and its compound
+            // one statement: the best-ranked name and its compound; a stereoisomer's name
+            // without its descriptor (rank 3) ranks as a preferred name, as every name did
+            // before descriptors were kept, so a name without descriptor finds what it did
             let hit = conn.prepare_cached(
                 "SELECT c.id, c.inchikey, c.preferred_name, c.smiles, c.formula, c.molar_mass_g_mol, c.cid, c.cas, n.rank
                  FROM name n JOIN compound c ON c.id = n.compound_id
-                 WHERE n.norm = ?1 ORDER BY n.rank, c.cid IS NULL, c.cid, c.id LIMIT 1",
+                 WHERE n.norm = ?1 ORDER BY CASE n.rank WHEN 3 THEN 0 ELSE n.rank END, c.cid IS NULL, c.cid, c.id LIMIT 1",
             )?
             .query_row([&norm], |r| {
                 let rank: i64 = r.get(8)?;

@@ -137,7 +137,11 @@ fn inorganic_cations_go_to_cation_exchange_ic() {
 #[test]
 fn sugars_go_to_hilic_on_an_amide_phase() {
     let ctx = Ctx::new();
-    let (r, _) = advise(&ctx, &["glucose", "fructose", "sucrose", "lactose"], &[]);
+    let (r, _) = advise(
+        &ctx,
+        &["glucose", "fructose", "sucrose", "lactose=6134"],
+        &[],
+    );
     assert_eq!(first(&r).mode, "hilic");
     assert_eq!(first(&r).phase.id, "hilic-amide");
     assert!(
@@ -1052,7 +1056,11 @@ fn advise_writes_one_delimited_row_per_predicted_analyte() {
 #[test]
 fn reasons_rules_hilic_program_and_cautions_are_stated_once_and_in_their_units() {
     let ctx = Ctx::new();
-    let (r, _) = advise(&ctx, &["glucose", "fructose", "sucrose", "lactose"], &[]);
+    let (r, _) = advise(
+        &ctx,
+        &["glucose", "fructose", "sucrose", "lactose=6134"],
+        &[],
+    );
     let rec = first(&r);
     assert_eq!(rec.mode, "hilic");
     // eluent B is acetonitrile with 5 % aqueous buffer: the program is given in % B

@@ -50,9 +50,217 @@ def useful_name(s):
             return False
     return True
 
+STEREO_PREFIXES = ("(+)", "(-)", "(±)", "(r)", "(s)", "(e)", "(z)", "cis-", "trans-", "d-", "l-",
+                   "(2r", "(2s", "(1r", "(1s", "(3r", "(3s", "(4r", "(4s", "(5r", "(5s", "(6r", "(6s",
+                   "r-", "s-", "(r,", "(s,", "dl-", "rac-", "e-", "z-", "meso-", "endo-", "exo-", "alpha-d-", "beta-d-")
+
+
+def has_stereo_word(name):
+    low = name.lower()
+    return low.startswith(STEREO_PREFIXES) or "-(r)-" in low or "-(s)-" in low or "(e)-" in low or "(z)-" in low
+
+
+def clean_retention_name(n):
+    """A name from the retention data, or None when it is noise (codes, placeholders, mojibake)."""
+    n = n.strip().rstrip("*").strip()
+    if not n or len(n) > MAX_NAME_LEN or not useful_name(n):
+        return None
+    low = n.lower()
+    if "?" in n or "\ufffd" in n or "Ã" in n or "Î" in n or low.startswith(("putative", "unknown", "compound", "metabolite", "feature")):
+        return None
+    if any(ch.isdigit() for ch in n) and n.replace("-", "").replace("_", "").isalnum() and not any(ch.isalpha() for ch in n[:1]):
+        return None
+    return n
+
+
+def add_retention(compounds, order, path):
+    """Every compound of the open retention data (RepoRT-derived, CC BY-SA 4.0) enters the
+    base with its InChIKey, the data's SMILES and the names the data gives it.
+
+    Names are added only where they cannot mislead: a name the data gives to more than one
+    InChIKey is dropped (RepoRT rows carry some wrong names), a name already held by another
+    compound of the base stays with that compound, and a name that denotes a stereoisomer
+    (`(+)-`, `(R)-`, `cis-`, `L-` ...) is not given to a record without stereo (InChIKey
+    stereo block UHFFFAOYSA)."""
+    if not os.path.exists(path):
+        print(f"retention data not found at {path}; skipped", file=sys.stderr)
+        return
+    try:
+        from rdkit import Chem, RDLogger
+        from rdkit.Chem.rdMolDescriptors import CalcMolFormula
+        from rdkit.Chem.Descriptors import MolWt
+        RDLogger.DisableLog("rdApp.*")
+    except ImportError:
+        Chem = None
+    names_by_key, smiles_by_key = {}, {}
+    keys_by_name = {}
+    with open(path, encoding="utf-8", newline="") as fh:
+        for row in csv.DictReader(fh, delimiter="\t"):
+            key, smi = row["inchikey"], row["smiles"]
+            if not key or not smi:
+                continue
+            smiles_by_key.setdefault(key, smi)
+            n = clean_retention_name(row["name"])
+            if n:
+                names_by_key.setdefault(key, {}).setdefault(n.lower(), [n, 0])[1] += 1
+                keys_by_name.setdefault(n.lower(), set()).add(key)
+    held = {}
+    for k, c in compounds.items():
+        for n in [c["pref"]] + c["names"]:
+            held.setdefault(n.lower(), set()).add(k)
+    added = named = 0
+    for key in sorted(smiles_by_key):
+        # most datasets first; among equals the fuller short name (`Codeine` over `Codein`)
+        cands = sorted(names_by_key.get(key, {}).values(),
+                       key=lambda x: (-x[1], -len(x[0]) if len(x[0]) <= 30 else 0, x[0]))
+        stereo_less = key.split("-")[1:2] == ["UHFFFAOYSA"]
+        good = []
+        for n, _ in cands:
+            low = n.lower()
+            if len(keys_by_name[low]) > 1:
+                continue
+            if held.get(low, set()) - {key}:
+                continue
+            if stereo_less and has_stereo_word(n):
+                continue
+            good.append(n)
+        if key in compounds:
+            c = compounds[key]
+            for n in good:
+                if n not in c["names"]:
+                    c["names"].append(n)
+                    named += 1
+                c.setdefault("retention_names", []).append(n)
+            continue
+        smi = smiles_by_key[key]
+        formula, mw = "", ""
+        if Chem is not None:
+            m = Chem.MolFromSmiles(smi)
+            if m is None:
+                continue
+            formula, mw = CalcMolFormula(m), "%.5f" % MolWt(m)
+        compounds[key] = dict(cid="", cas="", formula=formula, mw=mw, smiles=smi, key=key,
+                              pref=good[0] if good else key, names=good, source="retention-report")
+        order.append(key)
+        added += 1
+        named += len(good)
+    print(f"retention data: {added} compounds added, {named} names added", file=sys.stderr)
+
+
+ABBREVIATION_NOISE = {"ci", "8ci", "9ci", "inn", "usan", "ban", "jan", "dcf", "usp", "nf", "tn", "van",
+                      "iso", "jp", "ep", "bp", "fcc", "mi", "ii", "iii", "iv", "vi", "acd", "iupac", "hplc",
+                      "gr", "ar", "ca", "na", "mart", "who", "rs", "pharm", "inci", "jis", "bsi", "uk",
+                      "us", "eu", "salt", "free", "base", "acid", "anhydrous", "solution", "hydrate", "std"}
+
+
+def abbreviation_of(name):
+    """`ABBR` from a name written `long name (ABBR)` when ABBR reads as the initials of the
+    long name (its letters appear in order in it, starting with its first letter), e.g.
+    `aminomethylphosphonic acid (ampa)` -> `ampa`; None otherwise."""
+    name = name.strip()
+    if not name.endswith(")") or " (" not in name:
+        return None
+    long, abbr = name[:-1].rsplit(" (", 1)
+    a = abbr.strip().lower()
+    if not (2 <= len(a) <= 8) or not a.replace("-", "").isalnum() or sum(ch.isalpha() for ch in a) < 2:
+        return None
+    if a in ABBREVIATION_NOISE or a.strip("0123456789") in ABBREVIATION_NOISE:
+        return None
+    letters = [ch for ch in long.lower() if ch.isalnum()]
+    if not letters or letters[0] != a[0]:
+        return None
+    it = iter(letters)
+    if not all(ch in it for ch in a if ch.isalnum()):
+        return None
+    return abbr.strip()
+
+
+def with_abbreviations(names):
+    """The names plus every abbreviation written in parentheses after a long name (class rule
+    for how abbreviations enter the synonym table)."""
+    out = list(names)
+    low = {n.lower() for n in names}
+    for n in names:
+        a = abbreviation_of(n)
+        if a and a.lower() not in low:
+            out.append(a)
+            low.add(a.lower())
+    return out
+
+
+def fix_tautomers(compounds):
+    """Stored structures as the usual tautomer: an imidic acid (`C(=N)O`, e.g. PubChem's
+    labetalol record) is written as its amide. The InChIKey does not change (standard InChI
+    treats the two as one mobile-hydrogen structure)."""
+    try:
+        from rdkit import Chem, RDLogger
+        from rdkit.Chem import AllChem
+        RDLogger.DisableLog("rdApp.*")
+    except ImportError:
+        print("RDKit not installed: imidic acids not fixed", file=sys.stderr)
+        return
+    patt = Chem.MolFromSmarts("[CX3;!a](=[NX2;H1;!a])[OX2;H1]")
+    rxn = AllChem.ReactionFromSmarts("[C;!a:1](=[N;H1;!a:2])[O;H1:3]>>[C:1](-[N:2])=[O:3]")
+    fixed = 0
+    for c in compounds.values():
+        smi = c["smiles"]
+        if "N" not in smi or "O" not in smi:
+            continue
+        m = Chem.MolFromSmiles(smi)
+        if m is None or not m.HasSubstructMatch(patt):
+            continue
+        for _ in range(4):
+            prods = rxn.RunReactants((m,))
+            if not prods:
+                break
+            p = prods[0][0]
+            try:
+                Chem.SanitizeMol(p)
+            except Exception:
+                break
+            m = p
+            if not m.HasSubstructMatch(patt):
+                break
+        new = Chem.MolToSmiles(m)
+        if Chem.MolToInchiKey(m) == c["key"]:
+            c["smiles"] = new
+            fixed += 1
+    print(f"imidic acids written as amides: {fixed}", file=sys.stderr)
+
+
+def fix_stereo_less_names(compounds):
+    """A stereo-less record (InChIKey stereo block UHFFFAOYSA) must not carry as its preferred
+    name the preferred name of a stereoisomer record of the same skeleton (PubChem's
+    stereo-less codeine record is titled `isocodeine`). It takes instead a name of its own:
+    the first of its names that no same-skeleton record uses as preferred name."""
+    by_skeleton = {}
+    for k, c in compounds.items():
+        by_skeleton.setdefault(k.split("-")[0], []).append(k)
+    renamed = 0
+    for block, keys in by_skeleton.items():
+        if len(keys) < 2:
+            continue
+        for k in keys:
+            if k.split("-")[1] != "UHFFFAOYSA":
+                continue
+            c = compounds[k]
+            others = {compounds[o]["pref"].lower() for o in keys if o != k}
+            if c["pref"].lower() not in others:
+                continue
+            # the names the retention data measured it under first, then its other names in
+            # source order (the IUPAC-style name first)
+            cands = [n for n in c.get("retention_names", []) + c["names"] if n.lower() not in others and useful_name(n)
+                     and not cas_ok(n) and not has_stereo_word(n)]
+            if cands:
+                c["pref"] = cands[0]
+                renamed += 1
+    print(f"stereo-less records renamed: {renamed}", file=sys.stderr)
+
+
 def main():
     ap = argparse.ArgumentParser()
     ap.add_argument("--chemicals-wheel")
+    ap.add_argument("--retention", default=os.path.join(ROOT, "..", "shared", "data", "retention", "retention.tsv"))
     ap.add_argument("--pka", default=os.path.join(ROOT, "..", "shared", "data", "pka", "pka_train.tsv"))
     a = ap.parse_args()
     wheel = a.chemicals_wheel or fetch_wheel()
@@ -92,18 +300,22 @@ def main():
     for f, s in (("Anion db.tsv", "ions-anion"), ("Cation db.tsv", "ions-cation"), ("Inorganic db.tsv", "inorganic")):
         add_rows(read_member(z, "Identifiers/" + f), s)
 
+    add_retention(compounds, order, a.retention)
+    fix_tautomers(compounds)
+    fix_stereo_less_names(compounds)
+    for c in compounds.values():
+        c["names"] = with_abbreviations(c["names"])
+
     by_cas = {c["cas"]: k for k, c in compounds.items() if c["cas"]}
     os.makedirs(OUT, exist_ok=True)
 
     def write_gz(path, header, rows):
-        # Raw fields, no escaping: the Rust reader splits on tabs and takes every byte as data.
-        # (A csv writer with an escape character used to double every backslash and escape every
-        # double quote, so a stereo SMILES with a backslash bond arrived with the backslash doubled
-        # and did not parse; names with quotes carried a stray backslash.)
+        # Plain tab-separated text, no escaping: the Rust reader splits on tabs, and an escape
+        # character would double every backslash of a SMILES (`C/C=C\\C`).
         buf = io.StringIO()
-        for r in [header] + rows:
-            cells = [str(x).replace("\t", " ").replace("\r", " ").replace("\n", " ") for x in r]
-            buf.write("\t".join(cells) + "\n")
+        buf.write("\t".join(header) + "\n")
+        for r in rows:
+            buf.write("\t".join(str(x).replace("\t", " ").replace("\n", " ").replace("\r", " ") for x in r) + "\n")
         with open(path, "wb") as fh:
             with gzip.GzipFile(fileobj=fh, mode="wb", compresslevel=9, mtime=0, filename="") as g:
                 g.write(buf.getvalue().encode("utf-8"))
@@ -119,6 +331,11 @@ def main():
                 continue
             seen.add(n.lower())
             names.append(n)
+        # The names the retention data measured the compound under go right after the first
+        # (systematic) synonym, so that the cap on synonyms never drops them.
+        ret = [n for n in c.get("retention_names", []) if n in names]
+        if ret:
+            names = names[:1] + ret + [n for n in names[1:] if n not in ret]
         names = names[:MAX_SYNONYMS]
         # "|" separates synonyms; drop it from names themselves (very rare)
         names = [n.replace("|", "/") for n in names]

@@ -13,8 +13,10 @@ use flate2::read::GzDecoder;
 use rusqlite::{Connection, params};
 
 use super::normalise::normalise_name;
+use super::structure_match::{KEY_INDEX_SQL, KEY_TABLE_SQL, is_parent};
 use super::{KbError, SEED_HASH, migrate, open_read_only};
 use crate::property::estimate::{EstimatedValue, estimate};
+use crate::structure::canon::{StructureKey, key_of_graph};
 
 /// The embedded compound table.
 const COMPOUNDS_GZ: &[u8] = include_bytes!("../../data/kb/compounds.tsv.gz");
@@ -128,6 +130,7 @@ fn build_into(tmp: &Path, progress: &mut dyn FnMut(f64, &str)) -> Result<BuildCo
     )
     .map_err(sql)?;
     migrate(&mut conn, tmp)?;
+    conn.execute_batch(KEY_TABLE_SQL).map_err(sql)?;
     progress(0.02, "reading seed tables");
     let compounds = gunzip(COMPOUNDS_GZ, "compounds.tsv.gz")?;
     let properties = gunzip(PROPERTIES_GZ, "properties.tsv.gz")?;
@@ -155,6 +158,11 @@ fn build_into(tmp: &Path, progress: &mut dyn FnMut(f64, &str)) -> Result<BuildCo
             .prepare(
                 "INSERT INTO property(compound_id, property, value, unit, kind, source, licence, detail)
                  VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8)",
+            )
+            .map_err(sql)?;
+        let mut ins_k = tx
+            .prepare(
+                "INSERT INTO structure_key(compound_id, skeleton, stereo, parent) VALUES (?1, ?2, ?3, ?4)",
             )
             .map_err(sql)?;
         let mut name_id: i64 = 0;
@@ -193,8 +201,13 @@ fn build_into(tmp: &Path, progress: &mut dyn FnMut(f64, &str)) -> Result<BuildCo
                 ])
                 .map_err(sql)?;
             counts.compounds += 1;
-            if let Some(values) = estimates.get(i) {
+            if let Some((values, key)) = estimates.get(i) {
                 counts.properties += insert_values(&mut ins_p, id, values).map_err(sql)?;
+                if let Some((key, parent)) = key {
+                    ins_k
+                        .execute(params![id, key.skeleton, key.stereo, i64::from(*parent)])
+                        .map_err(sql)?;
+                }
             }
             let mut seen: Vec<String> = Vec::new();
             let names = std::iter::once(f[6]).chain(f[8].split('|'));
@@ -213,8 +226,18 @@ fn build_into(tmp: &Path, progress: &mut dyn FnMut(f64, &str)) -> Result<BuildCo
                     let text = super::resolve::trigram_text(&norm);
                     trigram_rows.push((super::resolve::trigram_rowid(name_id, &text), text));
                 }
+                // The stereo-free spelling as well (rank 3): a name whose stereo descriptor the
+                // base does not hold still finds the compound, and says so (kb::resolve).
+                let free = super::normalise::normalise_name_stereo_free(n);
                 seen.push(norm);
                 counts.names += 1;
+                if !free.is_empty() && !seen.contains(&free) {
+                    name_id += 1;
+                    ins_n
+                        .execute(params![name_id, id, n, free, 3i64])
+                        .map_err(sql)?;
+                    seen.push(free);
+                }
             }
             if i % 2000 == 0 {
                 progress(
@@ -228,6 +251,8 @@ fn build_into(tmp: &Path, progress: &mut dyn FnMut(f64, &str)) -> Result<BuildCo
         for (rowid, text) in &trigram_rows {
             ins_t.execute(params![rowid, text]).map_err(sql)?;
         }
+        progress(0.88, "structure key index");
+        tx.execute_batch(KEY_INDEX_SQL).map_err(sql)?;
         progress(0.9, "properties");
         let mut by_key = tx
             .prepare("SELECT id FROM compound WHERE inchikey = ?1")
@@ -273,16 +298,17 @@ fn build_into(tmp: &Path, progress: &mut dyn FnMut(f64, &str)) -> Result<BuildCo
     Ok(counts)
 }
 
-/// Structure-based estimates for every line of the compound table (index = line number; the
+/// Structure-based estimates for every line of the compound table, with the canonical
+/// structure key and whether the record is its parent form (index = line number; the
 /// header and SMILES the engine cannot parse, such as exotic inorganics, get none), computed
 /// on all cores: this is the CPU-heavy part of a build.
-fn estimate_all(compounds: &str) -> Vec<Vec<EstimatedValue>> {
+fn estimate_all(compounds: &str) -> Vec<Estimated> {
     let lines: Vec<&str> = compounds.lines().collect();
     let threads = std::thread::available_parallelism()
         .map_or(1, |n| n.get())
         .clamp(1, 8);
     let chunk = lines.len().div_ceil(threads).max(1);
-    let mut out: Vec<Vec<EstimatedValue>> = Vec::with_capacity(lines.len());
+    let mut out: Vec<Estimated> = Vec::with_capacity(lines.len());
     std::thread::scope(|scope| {
         let handles: Vec<_> = lines
             .chunks(chunk)
@@ -295,9 +321,16 @@ fn estimate_all(compounds: &str) -> Vec<Vec<EstimatedValue>> {
                         .map(|(j, line)| {
                             let smiles = line.split('\t').nth(5).unwrap_or("");
                             if c == 0 && j == 0 || smiles.is_empty() {
-                                return Vec::new();
+                                return (Vec::new(), None);
                             }
-                            estimate(smiles).map(|e| e.values()).unwrap_or_default()
+                            match estimate(smiles) {
+                                Ok(e) => {
+                                    let key = key_of_graph(&e.graph);
+                                    let parent = is_parent(e.note.as_deref(), &key);
+                                    (e.values(), Some((key, parent)))
+                                }
+                                Err(_) => (Vec::new(), None),
+                            }
                         })
                         .collect::<Vec<_>>()
                 });
@@ -309,12 +342,15 @@ fn estimate_all(compounds: &str) -> Vec<Vec<EstimatedValue>> {
             // it happens, that chunk gets no estimates (keeping every index aligned).
             match h.join() {
                 Ok(v) => out.extend(v),
-                Err(_) => out.extend(std::iter::repeat_with(Vec::new).take(n)),
+                Err(_) => out.extend(std::iter::repeat_with(|| (Vec::new(), None)).take(n)),
             }
         }
     });
     out
 }
+
+/// Estimates of one compound, and its structure key with its parent flag.
+type Estimated = (Vec<EstimatedValue>, Option<(StructureKey, bool)>);
 
 /// Insert estimated rows of one compound. Returns the rows written.
 pub(crate) fn insert_values(

@@ -8,12 +8,16 @@
 //! over the shipped base and survives a rebuild. Both share one schema (`schema.sql`) with
 //! forward migrations recorded in `schema_version`.
 
+pub mod ambiguity;
 pub mod build;
 pub mod identifier;
+pub mod ions;
 pub mod normalise;
 pub mod resolve;
 pub mod retention;
+pub mod standardise;
 pub mod stats;
+pub mod structure_match;
 pub mod user;
 
 use std::path::{Path, PathBuf};
@@ -29,7 +33,7 @@ pub const SCHEMA_VERSION: i64 = 3;
 
 /// Fingerprint of the embedded seed data (set by `build.rs`) and of the way it is turned
 /// into a database: a base built by another version of either is stale and rebuilt.
-pub const SEED_HASH: &str = concat!(env!("PHASEWISE_SEED_HASH"), "-build4");
+pub const SEED_HASH: &str = concat!(env!("PHASEWISE_SEED_HASH"), "-build6");
 
 /// How long a writer waits for another process's lock before giving up.
 const BUSY_TIMEOUT_DEFAULT: Duration = Duration::from_secs(10);
@@ -179,6 +183,8 @@ pub struct Kb {
     /// Schema version of the overlay as found (older than [`SCHEMA_VERSION`] only when it was
     /// opened for reading).
     pub(crate) user_version: i64,
+    /// Canonical keys of the overlay's structures, computed when first needed.
+    pub(crate) user_keys: structure_match::OverlayKeys,
 }
 
 impl std::fmt::Debug for Kb {
@@ -273,6 +279,7 @@ impl Kb {
             user,
             user_path: paths.user.clone(),
             user_version,
+            user_keys: structure_match::OverlayKeys::default(),
         })
     }
 

@@ -1,8 +1,11 @@
 //! Name normalisation for matching what a chemist types against names and synonyms.
 //!
 //! Two spellings match when they differ only in case, Greek letters written as symbols or
-//! words (`α` = `alpha`), punctuation and white space, or a leading stereo descriptor
-//! (`(R)-`, `(S)-`, `(+)-`, `(-)-`, `(±)-`, `rac-`, `dl-`, `d-`, `l-`). Positional locants are
+//! words (`α` = `alpha`), punctuation and white space. A leading stereo descriptor (`(R)-`,
+//! `(S)-`, `(+)-`, `(-)-`, `(±)-`, `rac-`, `dl-`, `d-`, `l-`) is kept by [`normalise_name`]:
+//! `L-alanine` and `D-alanine` are different analytes (issue 13). [`normalise_name_stereo_free`]
+//! drops it; the knowledge base stores that form too (rank 3), so that a name whose stereo
+//! descriptor the base does not hold still finds the compound, and the answer says so. Positional locants are
 //! kept (they distinguish isomers), so `1,2-dichlorobenzene` and `1,3-dichlorobenzene` stay
 //! distinct, but the comma itself is dropped. Geometric descriptors (`(E)-`, `(Z)-`, `cis-`,
 //! `trans-`) are kept: they name different compounds that can separate.
@@ -45,12 +48,23 @@ const STEREO_PREFIXES: &[&str] = &[
 ///
 /// # Examples
 /// ```
-/// use phasewise::kb::normalise::normalise_name;
+/// use phasewise::kb::normalise::{normalise_name, normalise_name_stereo_free};
 /// assert_eq!(normalise_name("α-Pinene"), normalise_name("alpha-pinene"));
-/// assert_eq!(normalise_name("(S)-Ibuprofen"), normalise_name("ibuprofen"));
+/// assert_ne!(normalise_name("(S)-Ibuprofen"), normalise_name("ibuprofen"));
+/// assert_eq!(normalise_name_stereo_free("(S)-Ibuprofen"), normalise_name("ibuprofen"));
 /// assert_ne!(normalise_name("1,2-dichlorobenzene"), normalise_name("1,3-dichlorobenzene"));
 /// ```
 pub fn normalise_name(name: &str) -> String {
+    normalise(name, false)
+}
+
+/// As [`normalise_name`] with leading stereo descriptors dropped (`(R)-(+)-limonene` ->
+/// `limonene`).
+pub fn normalise_name_stereo_free(name: &str) -> String {
+    normalise(name, true)
+}
+
+fn normalise(name: &str, drop_stereo: bool) -> String {
     let mut lower = String::with_capacity(name.len());
     for c in name.trim().chars() {
         for l in c.to_lowercase() {
@@ -60,6 +74,9 @@ pub fn normalise_name(name: &str) -> String {
     let mut rest = lower.as_str();
     // Strip repeated stereo prefixes such as "(r)-(+)-".
     loop {
+        if !drop_stereo {
+            break;
+        }
         let before = rest.len();
         for p in STEREO_PREFIXES {
             if let Some(r) = rest.strip_prefix(p) {
@@ -106,10 +123,13 @@ mod tests {
 
     #[test]
     fn stereo_prefixes_are_dropped_but_bare_prefix_is_kept() {
-        assert_eq!(normalise_name("(R)-(+)-limonene"), "limonene");
-        assert_eq!(normalise_name("(±)-ibuprofen"), "ibuprofen");
-        assert_eq!(normalise_name("L-alanine"), "alanine");
-        assert_eq!(normalise_name("d-"), "d");
+        assert_eq!(normalise_name_stereo_free("(R)-(+)-limonene"), "limonene");
+        assert_eq!(normalise_name_stereo_free("(±)-ibuprofen"), "ibuprofen");
+        assert_eq!(normalise_name_stereo_free("L-alanine"), "alanine");
+        assert_eq!(normalise_name_stereo_free("d-"), "d");
+        // kept by the default form: the stereoisomers are different analytes
+        assert_eq!(normalise_name("L-alanine"), "lalanine");
+        assert_ne!(normalise_name("L-alanine"), normalise_name("D-alanine"));
     }
 
     #[test]

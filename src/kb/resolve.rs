@@ -9,8 +9,17 @@ use rusqlite::{Connection, OptionalExtension, params};
 
 use super::identifier::{Query, classify, could_be_smiles};
 use super::normalise::normalise_name;
+use super::structure_match::{find_shipped, query_key};
 use super::{Kb, KbError};
 use crate::property::{Analyte, Origin, Property, PropertyKind};
+
+/// `matched_by` of a name found only without its stereo descriptor.
+pub const STEREO_DROPPED: &str =
+    "name without its stereo descriptor (the base does not hold that stereoisomer under this name)";
+
+/// `matched_by` of a name without stereo descriptor held only by a stereoisomer record.
+pub const STEREO_ISOMER_NAME: &str =
+    "name without stereo descriptor (the base holds this compound under a stereoisomer's name)";
 
 /// Most suggestions offered for an unresolved query.
 pub const MAX_SUGGESTIONS: usize = 5;
@@ -80,17 +89,45 @@ fn find(conn: &Connection, q: &Query) -> rusqlite::Result<Option<(CompoundRow, &
             if norm.is_empty() {
                 return Ok(None);
             }
-            // one statement: the best-ranked name and its compound
-            conn.prepare_cached(
+            // one statement: the best-ranked name and its compound; a stereoisomer's name
+            // without its descriptor (rank 3) ranks as a preferred name, as every name did
+            // before descriptors were kept, so a name without descriptor finds what it did
+            let hit = conn.prepare_cached(
                 "SELECT c.id, c.inchikey, c.preferred_name, c.smiles, c.formula, c.molar_mass_g_mol, c.cid, c.cas, n.rank
                  FROM name n JOIN compound c ON c.id = n.compound_id
-                 WHERE n.norm = ?1 ORDER BY n.rank, c.cid IS NULL, c.cid, c.id LIMIT 1",
+                 WHERE n.norm = ?1 ORDER BY CASE n.rank WHEN 3 THEN 0 ELSE n.rank END, c.cid IS NULL, c.cid, c.id LIMIT 1",
             )?
             .query_row([&norm], |r| {
                 let rank: i64 = r.get(8)?;
-                Ok((compound_from_row(r)?, if rank == 0 { "name" } else { "synonym" }))
+                Ok((
+                    compound_from_row(r)?,
+                    match rank {
+                        0 => "name",
+                        3 => STEREO_ISOMER_NAME,
+                        _ => "synonym",
+                    },
+                ))
             })
-            .optional()?
+            .optional()?;
+            // A stereo descriptor the base does not hold: the compound under its stereo-free
+            // name, said so (the caller sees `matched_by`).
+            match hit {
+                Some(h) => Some(h),
+                None => {
+                    let free = super::normalise::normalise_name_stereo_free(n);
+                    if free == norm || free.is_empty() {
+                        None
+                    } else {
+                        conn.prepare_cached(
+                            "SELECT c.id, c.inchikey, c.preferred_name, c.smiles, c.formula, c.molar_mass_g_mol, c.cid, c.cas
+                             FROM name n JOIN compound c ON c.id = n.compound_id
+                             WHERE n.norm = ?1 ORDER BY n.rank, c.cid IS NULL, c.cid, c.id LIMIT 1",
+                        )?
+                        .query_row([&free], |r| Ok((compound_from_row(r)?, STEREO_DROPPED)))
+                        .optional()?
+                    }
+                }
+            }
         }
     })
 }
@@ -164,6 +201,12 @@ impl Kb {
     /// Malformed identifiers ([`KbError::BadIdentifier`]) are returned as
     /// [`Resolution::Unresolved`] with the reason; only database failures are errors.
     pub fn resolve(&self, raw: &str) -> Result<Resolution, KbError> {
+        let r = self.resolve_raw(raw)?;
+        self.standardise(r)
+    }
+
+    /// [`Kb::resolve`] without the standardisation of salts and stereo-less records.
+    pub(crate) fn resolve_raw(&self, raw: &str) -> Result<Resolution, KbError> {
         let q = match classify(raw) {
             Ok(q) => q,
             Err(KbError::BadIdentifier { why, .. }) => {
@@ -175,6 +218,17 @@ impl Kb {
             }
             Err(e) => return Err(e),
         };
+        if let Query::Name(n) = &q {
+            if let Some(r) = self.resolve_labelled(raw)? {
+                return Ok(r);
+            }
+            if let Some(r @ Resolution::Found(_)) = self.resolve_ion(raw)? {
+                return Ok(r);
+            }
+            if let Some(u) = self.ambiguous_name(raw, n)? {
+                return Ok(Resolution::Unresolved(u));
+            }
+        }
         if let Some(a) = self.find_anywhere(raw, &q)? {
             return Ok(Resolution::Found(Box::new(a)));
         }
@@ -185,6 +239,9 @@ impl Kb {
             if let Some(a) = self.find_anywhere(raw, &Query::Smiles(n.clone()))? {
                 return Ok(Resolution::Found(Box::new(a)));
             }
+            if let Some(a) = self.find_by_structure(raw, n)? {
+                return Ok(Resolution::Found(Box::new(a)));
+            }
             if crate::structure::is_valid_smiles(n) {
                 return Ok(Resolution::StructureOnly {
                     query: raw.to_string(),
@@ -193,6 +250,9 @@ impl Kb {
             }
         }
         if let Query::Smiles(s) = &q {
+            if let Some(a) = self.find_by_structure(raw, s)? {
+                return Ok(Resolution::Found(Box::new(a)));
+            }
             return Ok(match crate::structure::check_smiles(s) {
                 Ok(()) => Resolution::StructureOnly {
                     query: raw.to_string(),
@@ -221,6 +281,126 @@ impl Kb {
             reason,
             suggestions,
         }))
+    }
+
+    /// `label=SMILES` (or `label=CAS`, `label=CID`, `label=InChIKey`): the right-hand side
+    /// is resolved and the label kept as the query. `None` when `raw` is not of this form (a
+    /// valid SMILES with `=` bonds stays a SMILES).
+    fn resolve_labelled(&self, raw: &str) -> Result<Option<Resolution>, KbError> {
+        let Some((label, rhs)) = raw.split_once('=') else {
+            return Ok(None);
+        };
+        let (label, rhs) = (label.trim(), rhs.trim());
+        if label.is_empty() || rhs.is_empty() || crate::structure::is_valid_smiles(raw.trim()) {
+            return Ok(None);
+        }
+        if matches!(classify(rhs), Ok(Query::Name(_)) | Err(_)) && !could_be_smiles(rhs) {
+            return Ok(None);
+        }
+        Ok(Some(match self.resolve(rhs)? {
+            Resolution::Found(mut a) => {
+                a.query = label.to_string();
+                Resolution::Found(a)
+            }
+            Resolution::StructureOnly { smiles, .. } => Resolution::StructureOnly {
+                query: label.to_string(),
+                smiles,
+            },
+            Resolution::Unresolved(mut u) => {
+                u.query = raw.trim().to_string();
+                Resolution::Unresolved(u)
+            }
+        }))
+    }
+
+    /// An unresolved outcome when `name` denotes several different compounds in the shipped
+    /// base and the user overlay does not hold it (see [`super::ambiguity`]).
+    fn ambiguous_name(&self, raw: &str, name: &str) -> Result<Option<Unresolved>, KbError> {
+        let norm = normalise_name(name);
+        if norm.is_empty() {
+            return Ok(None);
+        }
+        if let Some(u) = &self.user {
+            let held: bool = u
+                .prepare_cached("SELECT 1 FROM name WHERE norm = ?1")
+                .and_then(|mut st| st.exists([&norm]))
+                .map_err(|e| KbError::sql(&self.user_path, e))?;
+            if held {
+                return Ok(None);
+            }
+        }
+        let decision = super::ambiguity::decide(&self.shipped, raw, &norm)
+            .map_err(|e| KbError::sql(&self.shipped_path, e))?;
+        Ok(match decision {
+            super::ambiguity::NameDecision::Ambiguous(c) => Some(Unresolved {
+                query: raw.trim().to_string(),
+                reason: super::ambiguity::ambiguity_reason(raw, &c),
+                suggestions: c
+                    .iter()
+                    .map(|c| Suggestion {
+                        name: c.smiles.clone().unwrap_or_default(),
+                        compound: c.name.clone(),
+                        similarity: 1.0,
+                    })
+                    .collect(),
+            }),
+            _ => None,
+        })
+    }
+
+    /// The record whose canonical structure key matches `smiles` (user overlay first, then
+    /// the shipped base; stereo key before skeleton key), with the shipped and user values
+    /// of the same compound merged as for any other match.
+    fn find_by_structure(&self, raw: &str, smiles: &str) -> Result<Option<Analyte>, KbError> {
+        let Some(key) = query_key(smiles) else {
+            return Ok(None);
+        };
+        if let Some(u) = &self.user
+            && let Some((id, how)) = self
+                .user_keys
+                .find(u, &key)
+                .map_err(|e| KbError::sql(&self.user_path, e))?
+        {
+            return self.find_anywhere_by_id(raw, id, Origin::User, &how.describe(&key));
+        }
+        match find_shipped(&self.shipped, &key).map_err(|e| KbError::sql(&self.shipped_path, e))? {
+            Some((id, how)) => {
+                self.find_anywhere_by_id(raw, id, Origin::Shipped, &how.describe(&key))
+            }
+            None => Ok(None),
+        }
+    }
+
+    /// As [`Kb::find_anywhere`] for a known row id of one base.
+    fn find_anywhere_by_id(
+        &self,
+        raw: &str,
+        id: i64,
+        origin: Origin,
+        how: &str,
+    ) -> Result<Option<Analyte>, KbError> {
+        let (conn, path) = match (origin, &self.user) {
+            (Origin::User, Some(u)) => (u, &self.user_path),
+            _ => (&self.shipped, &self.shipped_path),
+        };
+        let row = conn
+            .prepare_cached(&format!(
+                "SELECT {COMPOUND_COLUMNS} FROM compound WHERE id = ?1"
+            ))
+            .and_then(|mut st| st.query_row([id], compound_from_row).optional())
+            .map_err(|e| KbError::sql(path, e))?;
+        let Some(row) = row else { return Ok(None) };
+        // Reuse the identity merge of the InChIKey path when the record has one.
+        if let Some(key) = &row.inchikey
+            && let Some(mut a) = self.find_anywhere(raw, &Query::InchiKey(key.clone()))?
+            && a.name == row.name
+        {
+            a.matched_by = how.to_string();
+            return Ok(Some(a));
+        }
+        let mut a = self.analyte_from(raw, &row, how, origin)?;
+        a.sort_properties();
+        Ok(Some(a))
     }
 
     fn find_anywhere(&self, raw: &str, q: &Query) -> Result<Option<Analyte>, KbError> {

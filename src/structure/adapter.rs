@@ -29,6 +29,8 @@ use smiles_rs::bond::Bond as RawBond;
 
 use super::graph::{Atom, Bond, BondOrder, MolGraph};
 
+mod stereo;
+
 /// Largest number of heavy atoms accepted in one SMILES (all fragments together).
 ///
 /// The descriptors are linear or near-linear in size, but ring perception and
@@ -494,6 +496,7 @@ pub fn parse_smiles_with(smiles: &str, options: &ParseOptions) -> Result<Parsed,
         bonds: Vec::new(),
         neighbours: Vec::new(),
         rings: Vec::new(),
+        stereo: Vec::new(),
     };
     for &x in &components[keep] {
         local[x] = graph.atoms.len();
@@ -535,6 +538,7 @@ pub fn parse_smiles_with(smiles: &str, options: &ParseOptions) -> Result<Parsed,
     if perception.simple_cycles.is_none() {
         add_interchangeable_rings(&mut graph);
     }
+    graph.stereo = stereo::marks(&raw, &local, &removed);
 
     // --- dropped fragments as text -------------------------------------------
     let pieces = split_top_level_dots(text);

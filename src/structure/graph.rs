@@ -59,6 +59,41 @@ pub struct MolGraph {
     pub neighbours: Vec<Vec<(usize, usize)>>,
     /// Ring set as lists of atom indices (RDKit-compatible symmetrized SSSR where it matters for ring counts).
     pub rings: Vec<Vec<usize>>,
+    /// Stereo marks as written in the input (tetrahedral `@`/`@@`, double-bond `/` `\\`), in
+    /// terms of this graph's atoms. Whether a mark is a real stereo element is decided by
+    /// [`crate::structure::canon`], which also drops marks on centres that are not stereogenic.
+    #[serde(skip_serializing_if = "Vec::is_empty")]
+    pub stereo: Vec<StereoMark>,
+}
+
+/// One stereo mark of the input, relative to named neighbours.
+#[derive(Debug, Clone, PartialEq, Eq, Serialize)]
+pub enum StereoMark {
+    /// A tetrahedral centre: looking from `neighbours[0]`, the other three run anticlockwise
+    /// when `anticlockwise` (SMILES `@`), clockwise otherwise (`@@`). `None` is a hydrogen that
+    /// is not a graph node (implicit or folded).
+    Tetrahedral {
+        /// The centre atom.
+        centre: usize,
+        /// Its four neighbours in the order the parity refers to.
+        neighbours: [Option<usize>; 4],
+        /// Anticlockwise seen from the first neighbour.
+        anticlockwise: bool,
+    },
+    /// A double bond `a`=`b` with reference neighbours `ref_a` (of `a`) and `ref_b` (of `b`);
+    /// `None` is a hydrogen that is not a graph node.
+    DoubleBond {
+        /// First end.
+        a: usize,
+        /// Second end.
+        b: usize,
+        /// Reference neighbour of `a`.
+        ref_a: Option<usize>,
+        /// Reference neighbour of `b`.
+        ref_b: Option<usize>,
+        /// The two references are on the same side (Z-like relative to them).
+        same_side: bool,
+    },
 }
 
 impl MolGraph {

@@ -15,6 +15,7 @@
 
 pub mod abraham;
 pub mod adapter;
+pub mod canon;
 pub mod chromophore;
 pub mod crippen;
 pub mod descriptors;
@@ -36,8 +37,9 @@ pub use adapter::{
     MAX_HEAVY_ATOMS, MAX_SMILES_BYTES, ParseOptions, Parsed, StructureError, parse_smiles,
     parse_smiles_with,
 };
+pub use canon::{StructureKey, key_of_graph, structure_key};
 pub use descriptors::{Description, Descriptors, describe, describe_graph};
-pub use graph::{Atom, Bond, BondOrder, MolGraph};
+pub use graph::{Atom, Bond, BondOrder, MolGraph, StereoMark};
 
 /// Whether `smiles` parses as a SMILES string the structure engine accepts.
 pub fn is_valid_smiles(smiles: &str) -> bool {

@@ -1,0 +1,172 @@
+//! Names that denote more than one compound are never resolved to a guess.
+//!
+//! A name (or synonym, or abbreviation) is looked up in the shipped base with all the
+//! compounds that carry it. Records of one molecule (a salt and its parent, a hydrate, a
+//! record with and one without stereo) share a skeleton key (`structure::canon`) and count
+//! as one candidate. The name is *ambiguous* when
+//! - two or more different skeletons hold it at the same best rank (both as preferred name,
+//!   or both only as synonyms), or
+//! - it is written as an abbreviation (capitals and digits only, e.g. `AMPA`, `THF`) and more
+//!   than one skeleton holds it at any rank: abbreviations are reused across fields (AMPA is
+//!   a glutamate-receptor agonist and the glyphosate metabolite aminomethylphosphonic acid).
+//!
+//! Otherwise the skeleton holding the name at the best rank wins (a preferred name beats a
+//! synonym). An ambiguous name is reported with its candidates; `label=SMILES`, a CAS
+//! number or a PubChem CID settles it. Common practice, no source.
+
+use rusqlite::{Connection, params};
+use serde::{Deserialize, Serialize};
+
+/// One compound a name could mean.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Candidate {
+    /// The compound's preferred name.
+    pub name: String,
+    /// CAS number, when known.
+    pub cas: Option<String>,
+    /// PubChem CID, when known.
+    pub cid: Option<i64>,
+    /// SMILES as stored.
+    pub smiles: Option<String>,
+    /// How the name is held: `preferred name`, `systematic name` or `synonym`.
+    pub held_as: String,
+}
+
+struct Row {
+    id: i64,
+    rank: i64,
+    skeleton: String,
+    candidate: Candidate,
+}
+
+/// Whether `raw` is written as an abbreviation: 2–8 characters, capitals (and digits or
+/// hyphens) only, at least two capitals.
+pub fn looks_like_abbreviation(raw: &str) -> bool {
+    let t = raw.trim();
+    let n = t.chars().count();
+    (2..=8).contains(&n)
+        && t.chars()
+            .all(|c| c.is_ascii_uppercase() || c.is_ascii_digit() || c == '-')
+        && t.chars().filter(char::is_ascii_uppercase).count() >= 2
+}
+
+fn rows(conn: &Connection, norm: &str) -> rusqlite::Result<Vec<Row>> {
+    let has_keys: bool = conn
+        .prepare_cached(
+            "SELECT 1 FROM sqlite_master WHERE type = 'table' AND name = 'structure_key'",
+        )?
+        .exists([])?;
+    let sql = if has_keys {
+        "SELECT c.id, min(n.rank), coalesce(k.skeleton, 'id:' || c.id), c.preferred_name, c.cas, c.cid, c.smiles
+         FROM name n JOIN compound c ON c.id = n.compound_id
+         LEFT JOIN structure_key k ON k.compound_id = c.id
+         WHERE n.norm = ?1 GROUP BY c.id ORDER BY min(n.rank), c.cid IS NULL, c.cid, c.id LIMIT 50"
+    } else {
+        "SELECT c.id, min(n.rank), 'id:' || c.id, c.preferred_name, c.cas, c.cid, c.smiles
+         FROM name n JOIN compound c ON c.id = n.compound_id
+         WHERE n.norm = ?1 GROUP BY c.id ORDER BY min(n.rank), c.cid IS NULL, c.cid, c.id LIMIT 50"
+    };
+    let mut st = conn.prepare_cached(sql)?;
+    let out = st
+        .query_map(params![norm], |r| {
+            let rank: i64 = r.get(1)?;
+            Ok(Row {
+                id: r.get(0)?,
+                rank,
+                skeleton: r.get(2)?,
+                candidate: Candidate {
+                    name: r.get(3)?,
+                    cas: r.get(4)?,
+                    cid: r.get(5)?,
+                    smiles: r.get(6)?,
+                    held_as: match rank {
+                        0 => "preferred name",
+                        1 => "systematic name",
+                        _ => "synonym",
+                    }
+                    .to_string(),
+                },
+            })
+        })?
+        .collect::<Result<Vec<_>, _>>()?;
+    Ok(out)
+}
+
+/// The decision for a name in one base.
+#[derive(Debug, Clone, PartialEq)]
+pub enum NameDecision {
+    /// No compound holds the name.
+    None,
+    /// One compound (the row id of the best record of the winning skeleton).
+    One(i64),
+    /// Several different compounds: one candidate per skeleton, best first.
+    Ambiguous(Vec<Candidate>),
+}
+
+/// Decide what `norm` (a normalised name; `raw` as typed) denotes in `conn`.
+///
+/// # Errors
+/// SQLite failures.
+pub fn decide(conn: &Connection, raw: &str, norm: &str) -> rusqlite::Result<NameDecision> {
+    let rows = rows(conn, norm)?;
+    let Some(first) = rows.first() else {
+        return Ok(NameDecision::None);
+    };
+    // one entry per skeleton: its best rank and best row (rows come best first)
+    let mut groups: Vec<(&str, i64, &Row)> = Vec::new();
+    for r in &rows {
+        if !groups.iter().any(|(s, _, _)| *s == r.skeleton) {
+            groups.push((&r.skeleton, r.rank, r));
+        }
+    }
+    if groups.len() == 1 {
+        return Ok(NameDecision::One(first.id));
+    }
+    let best = groups.iter().map(|g| g.1).min().unwrap_or(0);
+    let at_best = groups.iter().filter(|g| g.1 == best).count();
+    if at_best > 1 || looks_like_abbreviation(raw) {
+        return Ok(NameDecision::Ambiguous(
+            groups.iter().map(|g| g.2.candidate.clone()).collect(),
+        ));
+    }
+    Ok(NameDecision::One(first.id))
+}
+
+/// The reason text of an ambiguous name.
+pub fn ambiguity_reason(raw: &str, candidates: &[Candidate]) -> String {
+    let list: Vec<String> = candidates
+        .iter()
+        .map(|c| {
+            let mut s = c.name.clone();
+            if let Some(cas) = &c.cas {
+                s.push_str(&format!(", CAS {cas}"));
+            }
+            if let Some(cid) = c.cid {
+                s.push_str(&format!(", CID {cid}"));
+            }
+            s
+        })
+        .collect();
+    format!(
+        "ambiguous: `{}` names {} different compounds ({}); give `{}=SMILES`, a CAS number or a CID",
+        raw.trim(),
+        candidates.len(),
+        list.join("; "),
+        raw.trim()
+    )
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn abbreviations() {
+        for a in ["AMPA", "THF", "DDT", "2,4-D", "MCPA", "PFOS", "EDTA"] {
+            assert_eq!(looks_like_abbreviation(a), a != "2,4-D", "{a}");
+        }
+        for a in ["ampa", "Caffeine", "A", "TOOLONGNAME", "Na+"] {
+            assert!(!looks_like_abbreviation(a), "{a}");
+        }
+    }
+}

@@ -1,0 +1,135 @@
+//! Standardisation of a resolved record, said out loud in `matched_by`:
+//!
+//! - a **salt** record (its SMILES has more than one fragment, e.g. `metformin
+//!   hydrochloride`) is replaced by the record of its parent when the base holds one (same
+//!   canonical key, single fragment), else kept with a note that its parent structure (the
+//!   largest organic fragment) is what is analysed; the counter-ions are named so that ion
+//!   chromatography can still see them;
+//! - a name that matched a record **without stereo** although the compound has
+//!   stereoisomers is flagged when the name was only a synonym of that record or itself
+//!   denotes a stereoisomer (`dieldrin` held as a synonym of the stereo-less `endrin`
+//!   record): the base cannot tell the stereoisomers apart.
+
+use rusqlite::OptionalExtension;
+
+use super::resolve::Resolution;
+use super::{Kb, KbError};
+use crate::property::{Analyte, Origin};
+use crate::structure::canon::{key_of_graph, possible_stereo_elements};
+
+/// Note appended when a stereo name meets a record without stereo.
+pub const STEREO_LESS_NOTE: &str =
+    "the base holds this compound without stereo, so its stereoisomers are not told apart";
+
+/// Words that mark a name as denoting one stereoisomer.
+fn has_stereo_word(name: &str) -> bool {
+    let low = name.trim().to_ascii_lowercase();
+    const PREFIXES: &[&str] = &[
+        "(+)", "(-)", "(r)", "(s)", "(e)", "(z)", "(r,", "(s,", "(1r", "(1s", "(2r", "(2s", "(3r",
+        "(3s", "cis-", "trans-", "l-", "d-", "r-", "s-", "e-", "z-", "dex", "lev", "meso-",
+        "endo-", "exo-",
+    ];
+    PREFIXES.iter().any(|p| low.starts_with(p))
+}
+
+impl Kb {
+    /// Apply the standardisation to a resolution (only found shipped records change).
+    ///
+    /// # Errors
+    /// Database failures.
+    pub(crate) fn standardise(&self, r: Resolution) -> Result<Resolution, KbError> {
+        let Resolution::Found(mut a) = r else {
+            return Ok(r);
+        };
+        if a.origin != Origin::Shipped {
+            return Ok(Resolution::Found(a));
+        }
+        let Some(smiles) = a.smiles.clone() else {
+            return Ok(Resolution::Found(a));
+        };
+        let Ok(parsed) = crate::structure::parse_smiles(&smiles) else {
+            return Ok(Resolution::Found(a));
+        };
+        let key = key_of_graph(&parsed.graph);
+        if !parsed.fragments_dropped.is_empty() && !a.matched_by.contains("salt") {
+            let dropped = parsed.fragments_dropped.join(", ");
+            let parent: Option<i64> = self
+                .shipped
+                .prepare_cached(
+                    "SELECT k.compound_id FROM structure_key k JOIN compound c ON c.id = k.compound_id
+                     WHERE k.stereo = ?1 AND k.parent = 1 ORDER BY c.cid IS NULL, c.cid, c.id LIMIT 1",
+                )
+                .and_then(|mut st| st.query_row([&key.stereo], |r| r.get(0)).optional())
+                .or_else(|e| match e {
+                    // bases built before the key table: no parent look-up
+                    rusqlite::Error::SqliteFailure(..) => Ok(None),
+                    other => Err(other),
+                })
+                .map_err(|e| KbError::sql(&self.shipped_path, e))?;
+            let salt = a.name.clone();
+            let how = a.matched_by.clone();
+            if let Some(id) = parent
+                && let Some(mut p) = self.analyte_by_id(&a.query, id)?
+            {
+                p.matched_by = format!(
+                    "{how} of the salt `{salt}`; the parent `{}` is the analyte (counter-ion {dropped})",
+                    p.name
+                );
+                return Ok(Resolution::Found(p));
+            }
+            a.matched_by = format!(
+                "{how}; salt record: its parent structure is the analyte (counter-ion {dropped})"
+            );
+        }
+        let by_name = a.matched_by.starts_with("name") || a.matched_by.starts_with("synonym");
+        if by_name
+            && key.stereo_elements == 0
+            && (a.matched_by.starts_with("synonym") || has_stereo_word(&a.query))
+            && !a.matched_by.contains(STEREO_LESS_NOTE)
+            && possible_stereo_elements(&parsed.graph) > 0
+        {
+            a.matched_by = format!("{}; {STEREO_LESS_NOTE}", a.matched_by);
+        }
+        Ok(Resolution::Found(a))
+    }
+
+    /// A shipped record as an analyte (with user values of the same compound merged).
+    fn analyte_by_id(&self, query: &str, id: i64) -> Result<Option<Box<Analyte>>, KbError> {
+        let key: Option<Option<String>> = self
+            .shipped
+            .prepare_cached("SELECT inchikey FROM compound WHERE id = ?1")
+            .and_then(|mut st| st.query_row([id], |r| r.get(0)).optional())
+            .map_err(|e| KbError::sql(&self.shipped_path, e))?;
+        match key.flatten() {
+            Some(k) => match self.resolve_raw(&format!("inchikey:{k}"))? {
+                Resolution::Found(mut a) => {
+                    a.query = query.to_string();
+                    Ok(Some(a))
+                }
+                _ => Ok(None),
+            },
+            None => Ok(None),
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn stereo_words() {
+        for n in [
+            "L-alanine",
+            "(R)-carvone",
+            "(+)-limonene",
+            "cis-permethrin",
+            "dexibuprofen",
+        ] {
+            assert!(has_stereo_word(n), "{n}");
+        }
+        for n in ["alanine", "carvone", "caffeine", "permethrin"] {
+            assert!(!has_stereo_word(n), "{n}");
+        }
+    }
+}

@@ -39,11 +39,29 @@ fn normal_cdf(x: f64) -> f64 {
     }
 }
 
+/// Correlation of the index errors of two analytes that are not isomers: similar analytes
+/// share the same fragment and phase-constant biases (assumption, documented).
+pub const ERROR_CORRELATION: f64 = 0.75;
+
+/// Correlation of the index errors of two isomers (same molecular formula): the solvation
+/// model builds both from nearly the same fragments, so almost all of its error is shared and
+/// what is left is the isomer-specific part (positional isomers, branching). Without this, two
+/// isomers predicted at the same index would get a low co-elution probability only because
+/// each index alone is uncertain (assumption, common practice, no source).
+pub const ISOMER_ERROR_CORRELATION: f64 = 0.95;
+
 /// Probability that two analytes predicted `delta` index units apart with 1σ errors s1, s2
-/// are in truth within `DELTA_RI` (5 index units); errors of similar analytes are partly shared (the same
-/// boiling-point and group biases), taken here as correlation 0.75 (assumption, documented).
+/// are in truth within `DELTA_RI` (5 index units), with their errors correlated by `rho`
+/// ([`ERROR_CORRELATION`], or [`ISOMER_ERROR_CORRELATION`] for isomers). The probability is
+/// highest for identical predictions and falls as the predictions move apart.
 pub fn coelution_probability_ri(delta: f64, s1: f64, s2: f64) -> f64 {
-    let sd = (s1 * s1 + s2 * s2 - 2.0 * 0.75 * s1 * s2).max(1.0).sqrt();
+    coelution_probability_ri_with(delta, s1, s2, ERROR_CORRELATION)
+}
+
+/// [`coelution_probability_ri`] with an explicit error correlation `rho` (0-1).
+pub fn coelution_probability_ri_with(delta: f64, s1: f64, s2: f64, rho: f64) -> f64 {
+    let rho = rho.clamp(0.0, 1.0);
+    let sd = (s1 * s1 + s2 * s2 - 2.0 * rho * s1 * s2).max(1.0).sqrt();
     let d = delta.abs();
     (normal_cdf((DELTA_RI - d) / sd) - normal_cdf((-DELTA_RI - d) / sd)).clamp(0.0, 1.0)
 }
@@ -131,6 +149,7 @@ pub fn candidate(
     let n_plates = 30.0e3 / column.inner_diameter_mm();
     let mut preds = Vec::new();
     let mut sig = Vec::new();
+    let mut formulas: Vec<Option<String>> = Vec::new();
     for (p, ri) in &ris {
         let Ok(t) = ladder.predict_time(ri.clone()) else {
             not_predicted.push(format!("{}: outside the alkane ladder", p.name()));
@@ -153,6 +172,11 @@ pub fn candidate(
             path_source: None,
         });
         sig.push((p.name().to_string(), ri.retention_index, ri.sigma_ri));
+        formulas.push(
+            p.estimate
+                .as_ref()
+                .map(|e| e.descriptors.molecular_formula.clone()),
+        );
     }
     if preds.is_empty() {
         return Err(format!(
@@ -169,7 +193,13 @@ pub fn candidate(
     let mut coelutions = Vec::new();
     for i in 0..sig.len() {
         for j in i + 1..sig.len() {
-            let prob = coelution_probability_ri(sig[i].1 - sig[j].1, sig[i].2, sig[j].2);
+            let isomers = matches!((&formulas[i], &formulas[j]), (Some(a), Some(b)) if a == b);
+            let rho = if isomers {
+                ISOMER_ERROR_CORRELATION
+            } else {
+                ERROR_CORRELATION
+            };
+            let prob = coelution_probability_ri_with(sig[i].1 - sig[j].1, sig[i].2, sig[j].2, rho);
             if prob > 0.01 {
                 let (a, b) = if sig[i].1 <= sig[j].1 { (i, j) } else { (j, i) };
                 let pa = preds.iter().find(|p| p.analyte == sig[a].0).cloned();
@@ -351,4 +381,33 @@ fn rules(profiles: &[AnalyteProfile], phase: &StationaryPhase) -> Vec<Reason> {
         _ => {}
     }
     out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn coelution_probability_is_highest_for_identical_indices_and_falls_with_distance() {
+        for rho in [ERROR_CORRELATION, ISOMER_ERROR_CORRELATION] {
+            let mut last = coelution_probability_ri_with(0.0, 23.0, 23.0, rho);
+            for d in 1..60 {
+                let p = coelution_probability_ri_with(f64::from(d), 23.0, 23.0, rho);
+                assert!(p <= last + 1e-12, "rho {rho}: p({d}) = {p} > {last}");
+                assert!((0.0..=1.0).contains(&p));
+                last = p;
+            }
+        }
+    }
+
+    #[test]
+    fn isomers_predicted_at_the_same_index_are_a_flagged_risk() {
+        // typical held-out sigma of the solvation model on a 5 % phenyl phase (~23 units)
+        let iso = coelution_probability_ri_with(0.0, 23.0, 23.0, ISOMER_ERROR_CORRELATION);
+        let other = coelution_probability_ri(0.0, 23.0, 23.0);
+        assert!(iso > other);
+        assert!(iso >= 0.2, "{iso}");
+        // isomers 40 units apart are not a risk
+        assert!(coelution_probability_ri_with(40.0, 23.0, 23.0, ISOMER_ERROR_CORRELATION) < 0.01);
+    }
 }

@@ -20,7 +20,7 @@
 //! | `w5`, `f5` | full width and front half-width at 5 % height (for USP tailing) |
 //! | `a10`, `b10` | front and back half-widths at 10 % height (for asymmetry) |
 //!
-//! "Retention Time", "RT [min]", "Width at half height (min)" and "W0.5" therefore all
+//! "Retention Time", "RT \[min\]", "Width at half height (min)" and "W0.5" therefore all
 //! match (spaces and hyphens become `_`, case is ignored, a unit in brackets is split off).
 //!
 //! For [`PeakTable::parse`] at least one width column (`width_half`, the

@@ -186,7 +186,10 @@ pub const EXPERIMENTAL_SPREAD_PKA: f64 = 0.2;
 mod acids;
 mod aromatic;
 mod classes;
+mod experimental;
 mod nitrogen;
+
+pub use experimental::{DUPLICATE_WINDOW_PKA, apply_experimental, match_window_pka};
 
 pub use classes::class_value;
 use classes::*;
@@ -424,84 +427,6 @@ fn classify_substituent(v: &GraphView<'_>, s: usize, r: usize) -> Option<Substit
             }
         }
         _ => return None,
-    })
-}
-
-/// Rule: typed values are matched by rank. Acidic values, sorted ascending, replace the acid
-/// sites' estimates taken from the most acidic (lowest estimated pKa) upwards; basic values,
-/// sorted descending, replace the base sites' estimates from the most basic (highest) down.
-/// An untyped value replaces the estimate nearest to it among the sites not yet replaced
-/// (ties: lower site index). Values that find no site are returned in `unmatched`. Replaced
-/// sites get [`PkaSource::Experimental`] and spread [`EXPERIMENTAL_SPREAD_PKA`]. The result is
-/// re-sorted as [`detect_sites`] sorts.
-///
-/// # Errors
-/// [`IonisableError::ExperimentalOutOfRange`] for a non-finite value or one outside -5..=20.
-pub fn apply_experimental(
-    sites: &[IonisableSite],
-    experimental: &[(f64, Option<AcidBase>)],
-) -> Result<ExperimentalMerge, IonisableError> {
-    for &(value, _) in experimental {
-        if !value.is_finite() || !(-5.0..=20.0).contains(&value) {
-            return Err(IonisableError::ExperimentalOutOfRange { value });
-        }
-    }
-    let mut out: Vec<IonisableSite> = sites.to_vec();
-    let mut replaced = vec![false; out.len()];
-    let mut unmatched = Vec::new();
-    let set = |site: &mut IonisableSite, value: f64| {
-        site.pka = Some(value);
-        site.spread_pka = EXPERIMENTAL_SPREAD_PKA;
-        site.pka_source = PkaSource::Experimental;
-    };
-    for (kind, ascending) in [(AcidBase::Acid, true), (AcidBase::Base, false)] {
-        let site_kind = match kind {
-            AcidBase::Acid => SiteKind::Acid,
-            AcidBase::Base => SiteKind::Base,
-        };
-        let mut values: Vec<f64> = experimental
-            .iter()
-            .filter(|(_, k)| *k == Some(kind))
-            .map(|(v, _)| *v)
-            .collect();
-        let mut idx: Vec<usize> = (0..out.len())
-            .filter(|&i| out[i].kind == site_kind && out[i].pka.is_some())
-            .collect();
-        let key = |i: &usize| out[*i].pka.unwrap_or(f64::NAN);
-        if ascending {
-            values.sort_by(f64::total_cmp);
-            idx.sort_by(|a, b| key(a).total_cmp(&key(b)).then(a.cmp(b)));
-        } else {
-            values.sort_by(|a, b| b.total_cmp(a));
-            idx.sort_by(|a, b| key(b).total_cmp(&key(a)).then(a.cmp(b)));
-        }
-        let mut it = idx.into_iter();
-        for value in values {
-            match it.next() {
-                Some(i) => {
-                    set(&mut out[i], value);
-                    replaced[i] = true;
-                }
-                None => unmatched.push((value, Some(kind))),
-            }
-        }
-    }
-    for &(value, kind) in experimental.iter().filter(|(_, k)| k.is_none()) {
-        let best = (0..out.len())
-            .filter(|&i| !replaced[i])
-            .filter_map(|i| out[i].pka.map(|p| (i, (p - value).abs())))
-            .min_by(|a, b| a.1.total_cmp(&b.1).then(a.0.cmp(&b.0)));
-        match best {
-            Some((i, _)) => {
-                set(&mut out[i], value);
-                replaced[i] = true;
-            }
-            None => unmatched.push((value, kind)),
-        }
-    }
-    Ok(ExperimentalMerge {
-        sites: out,
-        unmatched,
     })
 }
 

@@ -45,6 +45,7 @@ fn request() -> AdviseRequest {
         fixed_gc: None,
         no_backup: false,
         stored_fits: Vec::new(),
+        no_memory: false,
     }
 }
 

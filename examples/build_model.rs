@@ -30,9 +30,17 @@ fn main() -> Result<(), Box<dyn std::error::Error>> {
                 system: p[0],
                 descriptor: p[1],
                 interaction: p[2],
+                within_system: DEFAULT_PENALTIES.within_system,
             }
         }
         Err(_) => DEFAULT_PENALTIES,
+    };
+    // Optional: PHASEWISE_POOLED=1 fits one pooled ridge instead of the within-system fit
+    // (for comparison, docs/model.md).
+    let penalties = Penalties {
+        within_system: std::env::var("PHASEWISE_POOLED")
+            .map_or(penalties.within_system, |v| v != "1"),
+        ..penalties
     };
     let start = Instant::now();
     let data = TrainingData::load(

@@ -286,6 +286,9 @@ fn geometry(req: &AdviseRequest) -> (f64, f64, f64, f64) {
 /// otherwise the analyte's fits on other systems of the same mode join the shipped retention
 /// memory as further sources (path `memory`). Without stored fits this is `Model::predict`.
 /// Returns the prediction and, for the user's fits, the source text or ids they came from.
+/// Path note of a prediction made with `--no-memory`.
+pub const STRUCTURE_ONLY: &str = "structure only: measured retention not used";
+
 fn predict_one(
     model: &Model,
     feats: &AnalyteFeatures,
@@ -294,6 +297,12 @@ fn predict_one(
     req: &AdviseRequest,
     p: &AnalyteProfile,
 ) -> Result<(regression::Prediction, Option<String>), regression::ModelError> {
+    if req.no_memory {
+        return Ok((
+            model.predict_structure_only(feats, sys)?,
+            Some(STRUCTURE_ONLY.to_owned()),
+        ));
+    }
     let fits: Vec<&crate::model::memory::StoredFit> = match p.analyte.inchikey.as_deref() {
         Some(key) => req
             .stored_fits

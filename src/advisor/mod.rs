@@ -155,6 +155,9 @@ pub struct AdviseRequest {
     /// The user's stored scouting fits of the resolved analytes (`scout --store`): used
     /// directly on a matching system, else as retention-memory sources.
     pub stored_fits: Vec<crate::model::memory::StoredFit>,
+    /// Structure-only LC retention (`--no-memory`): the descriptor path even for analytes with
+    /// measured retention in the memory or the user's stored fits.
+    pub no_memory: bool,
 }
 
 /// GC conditions given by the user instead of chosen by the advisor.
@@ -197,6 +200,7 @@ impl Default for AdviseRequest {
             fixed_gc: None,
             no_backup: false,
             stored_fits: Vec::new(),
+            no_memory: false,
         }
     }
 }

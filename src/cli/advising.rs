@@ -52,6 +52,10 @@ pub struct AdviseOptions {
     /// List pairs whose co-elution probability is at least this (0-1).
     #[arg(long, default_value_t = 0.2)]
     pub risk: f64,
+    /// LC retention from the analytes' structures only, even for analytes with measured
+    /// retention (open data or stored scouting fits), to see what the model says without them.
+    #[arg(long)]
+    pub no_memory: bool,
 }
 
 /// What `predict` fixes: its one phase (no back-up is sought) and its LC or GC conditions.
@@ -152,6 +156,7 @@ pub fn advice(cli: &Cli, o: &AdviseOptions, fixed: Option<Fixed>) -> Result<(Adv
         fixed: fixed_lc,
         fixed_gc,
         stored_fits,
+        no_memory: o.no_memory,
     };
     let report = advise(&profiles, missing, &req)?;
     Ok((report, partial))

@@ -67,6 +67,10 @@ pub struct PredictArgs {
     /// Flag pairs whose co-elution probability is at least this (0-1).
     #[arg(long, default_value_t = 0.2)]
     pub risk: f64,
+    /// LC: retention from the analytes' structures only, even for analytes with measured
+    /// retention (open data or stored scouting fits); the path column says so.
+    #[arg(long)]
+    pub no_memory: bool,
     /// Output format.
     #[arg(long, short, value_enum, default_value_t = OutputFormat::Table)]
     pub format: OutputFormat,
@@ -153,6 +157,7 @@ pub fn run(cli: &Cli, a: &PredictArgs) -> Result<ExitCode> {
         phases_available: None,
         alternatives: 1,
         risk: a.risk,
+        no_memory: a.no_memory,
     };
     let (fixed, fixed_gc) = if lc {
         (Some(predict_lc_conditions(a, phase)?), None)

@@ -88,6 +88,9 @@ pub struct SystemFigures {
     pub mae_pct_gradient: f64,
     /// ROC AUC for measured co-eluting pairs (|Δt| < 1 % of gradient duration).
     pub coelution_auc: f64,
+    /// Share of rows whose measured `psi_k1` lies inside the 90 % interval of their path.
+    #[serde(default)]
+    pub interval_coverage: f64,
     /// Rows evaluated.
     pub n: usize,
 }
@@ -228,6 +231,7 @@ fn figures(
         bias_min: s.pred.iter().zip(&s.meas).map(|(p, m)| p - m).sum::<f64>() / n as f64,
         mae_pct_gradient: 100.0 * mae / duration,
         coelution_auc: roc_auc(&scores, &labels),
+        interval_coverage: f64::NAN,
         n,
     }
 }
@@ -363,19 +367,32 @@ pub fn evaluate_with(
                         .unwrap_or_default(),
                 );
             }
+            let inside = rows
+                .iter()
+                .zip(&sc.psi)
+                .zip(&sc.memory)
+                .filter(|((r, psi), mem)| {
+                    let path = if **mem { "memory" } else { "descriptor" };
+                    cv.calibration
+                        .get(&format!("{mode}/{path}"))
+                        .is_some_and(|c| {
+                            let y = data.rows[**r].psi_k1;
+                            (**psi + c.q05..=**psi + c.q95).contains(&y)
+                        })
+                })
+                .count();
             let b = bins
                 .entry(format!("{mode}/{method}"))
                 .or_insert_with(|| vec![(0.0, 0.0, 0); 10]);
-            figs.insert(
-                method.to_owned(),
-                figures(
-                    &sc,
-                    ts.gradient_duration_min.max(1e-3),
-                    method != "baseline",
-                    seed,
-                    b,
-                ),
+            let mut fig = figures(
+                &sc,
+                ts.gradient_duration_min.max(1e-3),
+                method != "baseline",
+                seed,
+                b,
             );
+            fig.interval_coverage = inside as f64 / rows.len().max(1) as f64;
+            figs.insert(method.to_owned(), fig);
         }
         systems.push(SystemResult {
             id: ts.id.clone(),
@@ -388,12 +405,13 @@ pub fn evaluate_with(
     let mut summary = BTreeMap::new();
     for mode in ["RP", "HILIC"] {
         for method in METHODS {
-            let metrics: [(&str, Metric); 5] = [
+            let metrics: [(&str, Metric); 6] = [
                 ("spearman", |f| f.spearman),
                 ("order_accuracy", |f| f.order_accuracy),
                 ("mae_min", |f| f.mae_min),
                 ("mae_pct_gradient", |f| f.mae_pct_gradient),
                 ("coelution_auc", |f| f.coelution_auc),
+                ("interval_coverage", |f| f.interval_coverage),
             ];
             for (name, get) in metrics {
                 let v = sorted(
@@ -484,7 +502,7 @@ impl EvalReport {
             "Leave-whole-systems-out CV: {} folds over systems, seed {}; baseline = ridge on `{}` × system features.\n\n",
             self.folds, self.seed, self.baseline_descriptor
         ));
-        s.push_str("| mode | method | systems | Spearman | order acc. | MAE (min) | MAE (% gradient) | co-elution AUC |\n|---|---|---|---|---|---|---|---|\n");
+        s.push_str("| mode | method | systems | Spearman | order acc. | MAE (min) | MAE (% gradient) | co-elution AUC | 90 % interval coverage |\n|---|---|---|---|---|---|---|---|---|\n");
         for mode in ["RP", "HILIC"] {
             let n = self.systems.iter().filter(|x| x.mode == mode).count();
             for method in METHODS {
@@ -496,12 +514,13 @@ impl EvalReport {
                         })
                 };
                 s.push_str(&format!(
-                    "| {mode} | {method} | {n} | {} | {} | {} | {} | {} |\n",
+                    "| {mode} | {method} | {n} | {} | {} | {} | {} | {} | {} |\n",
                     cell("spearman"),
                     cell("order_accuracy"),
                     cell("mae_min"),
                     cell("mae_pct_gradient"),
-                    cell("coelution_auc")
+                    cell("coelution_auc"),
+                    cell("interval_coverage")
                 ));
             }
         }

@@ -68,8 +68,8 @@ pub trait DescriptorSource {
 /// (`structure::describe`: Crippen logP and MR, TPSA, H-bond donors/acceptors, rotatable bonds,
 /// aromatic rings, fraction sp3, McGowan volume, formal charge, molar mass) merged with the
 /// constitutional counts of `ConstitutionalCounts` (the engine's molar mass wins), the
-/// log10 neutral fraction and mean charge on an integer pH grid (`lfn_ph_N`, `charge_ph_N`),
-/// the counts of acidic, basic and permanently charged sites, and the `SECOND_ORDER_NAMES`.
+/// ionisation terms `ION_NAMES` on an integer pH grid (`NAME_ph_N`), the counts of acidic,
+/// basic and permanently charged sites, and the `SECOND_ORDER_NAMES`.
 #[derive(Debug, Clone, Copy, Default)]
 pub struct PhasewiseDescriptors;
 
@@ -116,9 +116,8 @@ impl DescriptorSource for PhasewiseDescriptors {
         if let Some(m) = x.molar_mass_g_mol {
             out.insert("mw_g_mol".to_owned(), m);
         }
-        // Ionisation: log10 of the neutral fraction at integer pH 0-14 from the detected
-        // ionisable sites (structure::ionisable, property::ionisation); the model interpolates
-        // at the eluent pH. Permanent charges give −∞, bounded here at −6.
+        // Ionisation terms on an integer pH grid 0-14 (the model interpolates at the eluent
+        // pH; `ion_term_at`) and the counts of acidic, basic and permanently charged sites.
         let bad = |e: String| FeatureError::BadSmiles {
             smiles: smiles.to_owned(),
             position: 0,
@@ -127,14 +126,6 @@ impl DescriptorSource for PhasewiseDescriptors {
         let parsed = crate::structure::parse_smiles(smiles).map_err(|e| bad(e.to_string()))?;
         let sites = crate::structure::ionisable::detect_sites(&parsed.graph)
             .map_err(|e| bad(e.to_string()))?;
-        for ph in 0..=14u8 {
-            let lfn = crate::property::ionisation::log10_fraction_neutral(&sites, f64::from(ph))
-                .map_err(|e| bad(e.to_string()))?;
-            out.insert(format!("lfn_ph_{ph}"), lfn.max(-6.0));
-        }
-        // Ionisable-site classes and the mean charge at integer pH 0-14, sites taken as
-        // independent (Henderson-Hasselbalch per site; common practice, no source); the model
-        // interpolates the charge at the eluent pH (`charge_at_ph`, `abs_charge_at_ph`).
         use crate::structure::ionisable::SiteKind;
         let count = |k: SiteKind| sites.iter().filter(|s| s.kind == k).count() as f64;
         out.insert("n_acid_sites".into(), count(SiteKind::Acid));
@@ -143,19 +134,20 @@ impl DescriptorSource for PhasewiseDescriptors {
             "n_permanent_charges".into(),
             count(SiteKind::PermanentCation) + count(SiteKind::PermanentAnion),
         );
+        let acids: Vec<f64> = sites
+            .iter()
+            .filter(|s| s.kind == SiteKind::Acid)
+            .filter_map(|s| s.pka)
+            .collect();
+        let bases: Vec<f64> = sites
+            .iter()
+            .filter(|s| s.kind == SiteKind::Base)
+            .filter_map(|s| s.pka)
+            .collect();
         for ph in 0..=14u8 {
-            let ph_f = f64::from(ph);
-            let q: f64 = sites
-                .iter()
-                .map(|s| match (s.kind, s.pka) {
-                    (SiteKind::Acid, Some(pka)) => -1.0 / (1.0 + 10f64.powf(pka - ph_f)),
-                    (SiteKind::Base, Some(pka)) => 1.0 / (1.0 + 10f64.powf(ph_f - pka)),
-                    (SiteKind::PermanentCation, _) => 1.0,
-                    (SiteKind::PermanentAnion, _) => -1.0,
-                    _ => 0.0,
-                })
-                .sum();
-            out.insert(format!("charge_ph_{ph}"), q);
+            for (name, value) in ion_terms(&acids, &bases, f64::from(ph)) {
+                out.insert(format!("{name}_ph_{ph}"), value);
+            }
         }
         // Second-order terms: psi_k1 is not linear in logP over the whole range (it levels off
         // for very polar and very apolar analytes), and the effect of polarity and size depends
@@ -184,12 +176,58 @@ impl DescriptorSource for PhasewiseDescriptors {
     }
 }
 
-/// Interpolated log10 fraction neutral at `ph` from the `lfn_ph_N` grid, if present.
-pub fn log10_fraction_neutral_at(f: &AnalyteFeatures, ph: f64) -> Option<f64> {
+/// The ionisation terms of the retention model. For an analyte whose ionisable sites are
+/// independent (Henderson–Hasselbalch per site; common practice, no source), a site with
+/// neutral fraction `f` at the eluent pH is retained as `f·k_n + (1 − f)·k_i`; with the ionised
+/// form `10^D` times less retained than the neutral one, `log10 k` drops by
+/// `−log10(f + (1 − f)·10^−D)` (the classical model of retention of ionisable analytes, e.g.
+/// Horváth, Melander & Molnár, Anal. Chem. 49 (1977) 142; from memory). The model gets these
+/// terms for acid and for base sites at two ionised-form penalties, D = 1 and D = 2.5, summed
+/// over the sites of each kind; every term is 0 for an analyte that is neutral at the pH and
+/// falls monotonically as the sites ionise (acids as the pH rises above their pKa, bases as it
+/// falls below theirs). Their RP coefficients are kept ≥ 0 (`linear`), so in RP ionisation
+/// can only lower retention and pH reaches a prediction through nothing else.
+pub const ION_NAMES: [&str; 4] = ["ion_acid_d1", "ion_acid_d25", "ion_base_d1", "ion_base_d25"];
+
+/// Ionised-form retention penalties D (log10 units) of `ION_NAMES`.
+const ION_PENALTIES: [f64; 2] = [1.0, 2.5];
+
+/// The `ION_NAMES` terms at `ph` for acid and base site pKa values (conjugate-acid pKa for
+/// bases).
+pub fn ion_terms(acid_pkas: &[f64], base_pkas: &[f64], ph: f64) -> [(&'static str, f64); 4] {
+    let term = |neutral: f64, d: f64| (neutral + (1.0 - neutral) * 10f64.powf(-d)).log10();
+    let acid = |d: f64| -> f64 {
+        acid_pkas
+            .iter()
+            .map(|pka| term(1.0 / (1.0 + 10f64.powf(ph - pka)), d))
+            .sum()
+    };
+    let base = |d: f64| -> f64 {
+        base_pkas
+            .iter()
+            .map(|pka| term(1.0 / (1.0 + 10f64.powf(pka - ph)), d))
+            .sum()
+    };
+    [
+        (ION_NAMES[0], acid(ION_PENALTIES[0])),
+        (ION_NAMES[1], acid(ION_PENALTIES[1])),
+        (ION_NAMES[2], base(ION_PENALTIES[0])),
+        (ION_NAMES[3], base(ION_PENALTIES[1])),
+    ]
+}
+
+/// One `ION_NAMES` term at `ph`, interpolated linearly on its integer grid `NAME_ph_N`
+/// (interpolation keeps the grid's monotonicity in pH).
+pub fn ion_term_at(f: &AnalyteFeatures, name: &str, ph: f64) -> Option<f64> {
     let ph = ph.clamp(0.0, 14.0);
     let lo = ph.floor();
     let hi = ph.ceil();
-    let get = |p: f64| f.descriptors.get(&format!("lfn_ph_{}", p as u8)).copied();
+    let get = |p: f64| {
+        f.descriptors
+            .get(&format!("{name}_ph_{}", p as u8))
+            .copied()
+            .filter(|v| v.is_finite())
+    };
     let (a, b) = (get(lo)?, get(hi)?);
     Some(a + (b - a) * (ph - lo))
 }

@@ -4,14 +4,16 @@
 use linfa::prelude::*;
 use linfa_linear::LinearRegression;
 use ndarray::{Array1, Array2};
+use std::collections::BTreeMap;
+
 use serde::{Deserialize, Serialize};
 
-use super::features::AnalyteFeatures;
+use super::features::{AnalyteFeatures, ION_NAMES};
 use super::system::{Additive, ChemClass, LcSystem, Mode, ModelError, Modifier};
 use super::training_data::TrainingData;
 
 /// Number of system features (see `system_features`).
-pub const SYSTEM_FEATURE_NAMES: [&str; 27] = [
+pub const SYSTEM_FEATURE_NAMES: [&str; 25] = [
     "hilic",
     "class_c8",
     "class_cyano",
@@ -24,9 +26,7 @@ pub const SYSTEM_FEATURE_NAMES: [&str; 27] = [
     "class_unknown",
     "modifier_methanol",
     "modifier_other",
-    "ph_minus_5",
     "ph_missing",
-    "hilic_x_ph",
     "additive_acetic",
     "additive_tfa",
     "additive_nh4_acetate",
@@ -42,16 +42,20 @@ pub const SYSTEM_FEATURE_NAMES: [&str; 27] = [
 ];
 
 /// Indices of the system features that interact with every descriptor: mode, chemistry
-/// classes, modifier, pH and the HILIC × pH and HILIC × methanol terms. Additive, temperature
+/// classes, modifier, the pH-missing flag and the HILIC × methanol term. Additive, temperature
 /// and gradient-shape features act as offsets only (more interactions overfit in CV).
-pub const INTERACTING: [usize; 16] = [0, 1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12, 13, 14, 26];
+///
+/// The eluent pH is **not** a system feature: it reaches a prediction only through the
+/// analyte's ionisation (`ION_NAMES`), so a neutral analyte's prediction does not depend on
+/// it (issue 14). The additive stays as a per-system offset (the buffer effect).
+pub const INTERACTING: [usize; 14] = [0, 1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12, 24];
 
-/// System feature vector (order of `SYSTEM_FEATURE_NAMES`). pH falls back to the additive's
-/// typical pH, temperature to 35 °C, each with a missing flag.
+/// System feature vector (order of `SYSTEM_FEATURE_NAMES`). Temperature falls back to 35 °C
+/// with a missing flag; a missing pH is only flagged (the ionisation terms then use the
+/// additive's typical pH).
 pub fn system_features(sys: &LcSystem) -> Vec<f64> {
     let hilic = f64::from(u8::from(sys.mode == Mode::Hilic));
     let class = |c: ChemClass| f64::from(u8::from(sys.chem_class == c));
-    let ph = sys.ph.unwrap_or_else(|| sys.additive.typical_ph());
     let add = |a: Additive| f64::from(u8::from(sys.additive == a));
     let meoh = f64::from(u8::from(sys.modifier == Modifier::Methanol));
     vec![
@@ -67,9 +71,7 @@ pub fn system_features(sys: &LcSystem) -> Vec<f64> {
         class(ChemClass::Unknown),
         meoh,
         f64::from(u8::from(sys.modifier == Modifier::Other)),
-        (ph - 5.0) / 3.0,
         f64::from(u8::from(sys.ph.is_none())),
-        hilic * (ph - 5.0) / 3.0,
         add(Additive::AceticAcid),
         add(Additive::TrifluoroaceticAcid),
         add(Additive::AmmoniumAcetate),
@@ -85,17 +87,12 @@ pub fn system_features(sys: &LcSystem) -> Vec<f64> {
     ]
 }
 
-/// Descriptors that depend on the system: logD at the eluent pH (Crippen logP plus log10 of the
-/// neutral fraction, the usual logD definition for an ion-free octanol phase) and the ionised
-/// fraction at that pH.
-pub const DYNAMIC_NAMES: [&str; 2] = ["logd_at_ph", "ionised_fraction_at_ph"];
-
 fn eluent_ph(sys: &LcSystem) -> f64 {
     sys.ph.unwrap_or_else(|| sys.additive.typical_ph())
 }
 
 /// Descriptor transforms applied before standardisation: counts enter as given, mass as log10;
-/// the `DYNAMIC_NAMES` are computed at the system's pH.
+/// the ionisation terms (`features::ION_NAMES`) are interpolated at the system's pH.
 fn transformed_descriptors(
     names: &[String],
     f: &AnalyteFeatures,
@@ -104,32 +101,9 @@ fn transformed_descriptors(
     names
         .iter()
         .map(|n| {
-            if n == "charge_at_ph" || n == "abs_charge_at_ph" {
-                let ph = eluent_ph(sys).clamp(0.0, 14.0);
-                let (lo, hi) = (ph.floor(), ph.ceil());
-                let get = |p: f64| {
-                    f.descriptors
-                        .get(&format!("charge_ph_{}", p as u8))
-                        .copied()
-                        .ok_or_else(|| ModelError::MissingDescriptor("charge_ph_0..14".into()))
-                };
-                let (a, b) = (get(lo)?, get(hi)?);
-                let q = a + (b - a) * (ph - lo);
-                return Ok(if n == "charge_at_ph" { q } else { q.abs() });
-            }
-            if DYNAMIC_NAMES.contains(&n.as_str()) {
-                let lfn = super::features::log10_fraction_neutral_at(f, eluent_ph(sys))
-                    .ok_or_else(|| ModelError::MissingDescriptor("lfn_ph_0..14".into()))?;
-                let logp = *f
-                    .descriptors
-                    .get("logp")
-                    .filter(|v| v.is_finite())
-                    .ok_or_else(|| ModelError::MissingDescriptor("logp".into()))?;
-                return Ok(if n == "logd_at_ph" {
-                    logp + lfn
-                } else {
-                    1.0 - 10f64.powf(lfn)
-                });
+            if ION_NAMES.contains(&n.as_str()) {
+                return super::features::ion_term_at(f, n, eluent_ph(sys))
+                    .ok_or_else(|| ModelError::MissingDescriptor(format!("{n}_ph_0..14")));
             }
             let v = *f
                 .descriptors
@@ -154,13 +128,24 @@ pub struct Penalties {
     pub descriptor: f64,
     /// Penalty on descriptor × system interactions.
     pub interaction: f64,
+    /// Fit the compound terms within systems (a free offset per training system), then the
+    /// offsets on the system features (`LinearPart::fit`); else one pooled ridge.
+    #[serde(default)]
+    pub within_system: bool,
 }
+
+/// Bounds of the training target `psi_k1` (strong-solvent fraction at k = 1); predictions are
+/// kept inside them too, so that no prediction leaves the range the model was fitted on.
+pub const PSI_MIN: f64 = -0.5;
+/// Upper bound of `psi_k1` (see `PSI_MIN`).
+pub const PSI_MAX: f64 = 1.6;
 
 /// Default penalties.
 pub const DEFAULT_PENALTIES: Penalties = Penalties {
     system: 1e-3,
     descriptor: 1e-4,
     interaction: 3e-3,
+    within_system: true,
 };
 
 /// A fitted linear model on descriptors × system features.
@@ -174,6 +159,10 @@ pub struct LinearPart {
     pub descriptor_sd: Vec<f64>,
     /// Whether descriptor × system interactions are used.
     pub interactions: bool,
+    /// Smallest and largest standardised value of each descriptor over the training rows
+    /// (empty in older model files: no extrapolation check).
+    #[serde(default)]
+    pub z_range: Vec<(f64, f64)>,
     /// Coefficients: intercept, system features, descriptors, then interactions
     /// (descriptor-major: for each descriptor that interacts, one per entry of `INTERACTING`;
     /// then the second-order terms `features::SECOND_ORDER_NAMES`, listed last, × the HILIC
@@ -234,15 +223,29 @@ fn n_columns(nz: usize, ns: usize, interactions: bool, n_interacting: usize) -> 
 }
 
 /// Number of leading descriptors that interact with the system features: all up to the first
-/// second-order term (`common_descriptor_names` lists those last).
+/// ionisation or second-order term (`common_descriptor_names` lists those last; they act as
+/// main effects and × the HILIC flag only, so that no chemistry class or modifier can turn the
+/// direction of the ionisation effect).
 fn interacting_count(names: &[String]) -> usize {
     names
         .iter()
-        .position(|n| super::features::SECOND_ORDER_NAMES.contains(&n.as_str()))
+        .position(|n| {
+            super::features::SECOND_ORDER_NAMES.contains(&n.as_str())
+                || ION_NAMES.contains(&n.as_str())
+        })
         .unwrap_or(names.len())
 }
 
 impl LinearPart {
+    /// How far (in training standard deviations) the standardised descriptors `z` lie outside
+    /// the range of the training analytes: the largest excess over all descriptors, 0 inside.
+    pub(crate) fn extrapolation_sd(&self, z: &[f64]) -> f64 {
+        z.iter()
+            .zip(&self.z_range)
+            .map(|(v, (lo, hi))| (lo - v).max(v - hi).max(0.0))
+            .fold(0.0, f64::max)
+    }
+
     /// Standardised descriptor vector of an analyte.
     pub(crate) fn standardise(
         &self,
@@ -270,10 +273,21 @@ impl LinearPart {
     }
 
     /// Fits the weighted ridge problem. Rows: standardised descriptors, system features,
-    /// target, weight. The normal equations `(XᵀWX + Λ) β = XᵀWy` are accumulated sparsely and
-    /// solved with linfa-linear's least-squares solver (QR) on that square system.
+    /// target, weight, system index. The normal equations `(XᵀWX + Λ) β = XᵀWy` are accumulated
+    /// sparsely and solved with linfa-linear's least-squares solver (QR) on that square system.
+    ///
+    /// With `penalties.within_system` the compound terms (descriptors and descriptor × system
+    /// interactions) are fitted **within systems**: every training system gets its own offset
+    /// (the normal equations are centred per system, the fixed-effects or Frisch–Waugh form;
+    /// e.g. Wooldridge, "Econometric Analysis of Cross Section and Panel Data", 2010, ch. 10;
+    /// from memory), so one system's offset (column make, instrument, buffer, unknown dwell)
+    /// cannot leak into what is learnt about compounds. The per-system offsets are then
+    /// regressed on the system features (a second, small ridge) to give the offset of a system
+    /// never seen. The RP main effects of the ionisation terms (`ION_NAMES`) are kept ≥ 0 (an
+    /// ionised analyte is never more retained than its neutral form in RP): a negative one is
+    /// fixed at 0 and the rest refitted.
     fn fit(
-        rows: &[(Vec<f64>, &[f64], f64, f64)],
+        rows: &[FitRow<'_>],
         descriptor_names: Vec<String>,
         descriptor_mean: Vec<f64>,
         descriptor_sd: Vec<f64>,
@@ -288,53 +302,160 @@ impl LinearPart {
         let mut xty = vec![0.0f64; p];
         let mut buf = Vec::new();
         let mut wsum = 0.0;
-        for (z, s, y, w) in rows {
-            design_row(z, s, interactions, n_int, &mut buf);
+        // per system: weight, Σ w x (dense), Σ w y, system features
+        let mut groups: BTreeMap<usize, (f64, Vec<f64>, f64, &[f64])> = BTreeMap::new();
+        for row in rows {
+            design_row(&row.z, row.s, interactions, n_int, &mut buf);
+            let w = row.w;
             wsum += w;
+            let g = groups
+                .entry(row.system)
+                .or_insert_with(|| (0.0, vec![0.0; p], 0.0, row.s));
+            g.0 += w;
+            g.2 += w * row.y;
             for (a, &(ca, va)) in buf.iter().enumerate() {
                 let wa = w * va;
-                xty[ca] += wa * y;
-                let row = &mut gram[ca * p..ca * p + p];
+                xty[ca] += wa * row.y;
+                g.1[ca] += wa;
+                let r = &mut gram[ca * p..ca * p + p];
                 for &(cb, vb) in &buf[a..] {
-                    row[cb] += wa * vb;
+                    r[cb] += wa * vb;
                 }
             }
         }
         if wsum <= 0.0 {
             return Err(ModelError::TooLittleData("no weighted rows".into()));
         }
-        let mut a = Array2::<f64>::zeros((p, p));
-        for i in 0..p {
-            for j in i..p {
-                let v = gram[i * p + j];
-                a[[i, j]] = v;
-                a[[j, i]] = v;
+        let within = penalties.within_system;
+        if within {
+            // centre per system: G −= Sx Sxᵀ / W, Xᵀy −= Sx Sy / W (upper triangle)
+            for (wg, sx, sy, _) in groups.values() {
+                let nzc: Vec<(usize, f64)> = sx
+                    .iter()
+                    .enumerate()
+                    .filter(|(_, v)| **v != 0.0)
+                    .map(|(i, v)| (i, *v))
+                    .collect();
+                for (a, &(i, vi)) in nzc.iter().enumerate() {
+                    xty[i] -= vi * sy / wg;
+                    let r = &mut gram[i * p..i * p + p];
+                    for &(j, vj) in &nzc[a..] {
+                        r[j] -= vi * vj / wg;
+                    }
+                }
             }
-            let pen = if i == 0 {
-                1e-8
-            } else if i <= ns {
-                penalties.system
-            } else if i <= ns + nz {
-                penalties.descriptor
-            } else {
-                penalties.interaction
-            };
-            a[[i, i]] += pen * wsum;
         }
-        let b = Array1::from(xty);
-        let data = Dataset::new(a, b);
-        let fitted = LinearRegression::new()
-            .with_intercept(false)
-            .fit(&data)
-            .map_err(|e| ModelError::TooLittleData(format!("ridge solve failed: {e}")))?;
+        let n_ion = descriptor_names
+            .iter()
+            .filter(|n| ION_NAMES.contains(&n.as_str()))
+            .count();
+        let ion_cols: Vec<usize> = descriptor_names
+            .iter()
+            .enumerate()
+            .filter(|(_, n)| ION_NAMES.contains(&n.as_str()))
+            .map(|(j, _)| 1 + ns + j)
+            .collect();
+        debug_assert_eq!(n_ion, ion_cols.len());
+        let mut fixed_zero: Vec<usize> = Vec::new();
+        let mut coefficients = Vec::new();
+        for _ in 0..=ion_cols.len() {
+            let mut a = Array2::<f64>::zeros((p, p));
+            for i in 0..p {
+                for j in i..p {
+                    let v = gram[i * p + j];
+                    a[[i, j]] = v;
+                    a[[j, i]] = v;
+                }
+                let pen = if i == 0 {
+                    if within { 1.0 } else { 1e-8 }
+                } else if i <= ns {
+                    if within { 1.0 } else { penalties.system }
+                } else if i <= ns + nz {
+                    penalties.descriptor
+                } else {
+                    penalties.interaction
+                };
+                let pen = if fixed_zero.contains(&i) { 1e6 } else { pen };
+                a[[i, i]] += pen * wsum;
+            }
+            let b = Array1::from(xty.clone());
+            let fitted = LinearRegression::new()
+                .with_intercept(false)
+                .fit(&Dataset::new(a, b))
+                .map_err(|e| ModelError::TooLittleData(format!("ridge solve failed: {e}")))?;
+            coefficients = fitted.params().to_vec();
+            for &c in &fixed_zero {
+                coefficients[c] = 0.0;
+            }
+            let negative: Vec<usize> = ion_cols
+                .iter()
+                .copied()
+                .filter(|&c| coefficients[c] < 0.0 && !fixed_zero.contains(&c))
+                .collect();
+            if negative.is_empty() {
+                break;
+            }
+            fixed_zero.extend(negative);
+        }
+        if within {
+            // stage 2: per-system offsets (mean residual of the compound terms) on the system
+            // features, weighted by the system's total weight
+            for c in coefficients.iter_mut().take(1 + ns) {
+                *c = 0.0;
+            }
+            let q = 1 + ns;
+            let mut g2 = Array2::<f64>::zeros((q, q));
+            let mut b2 = Array1::<f64>::zeros(q);
+            for (wg, sx, sy, sf) in groups.values() {
+                let fitted_mean: f64 = sx.iter().zip(&coefficients).map(|(x, c)| x * c).sum();
+                let offset = (sy - fitted_mean) / wg;
+                let mut x = Vec::with_capacity(q);
+                x.push(1.0);
+                x.extend_from_slice(sf);
+                for i in 0..q {
+                    b2[i] += wg * x[i] * offset;
+                    for j in 0..q {
+                        g2[[i, j]] += wg * x[i] * x[j];
+                    }
+                }
+            }
+            for i in 1..q {
+                g2[[i, i]] += penalties.system * wsum;
+            }
+            g2[[0, 0]] += 1e-8 * wsum;
+            let fitted = LinearRegression::new()
+                .with_intercept(false)
+                .fit(&Dataset::new(g2, b2))
+                .map_err(|e| ModelError::TooLittleData(format!("offset solve failed: {e}")))?;
+            for (c, v) in coefficients.iter_mut().zip(fitted.params().iter()) {
+                *c = *v;
+            }
+        }
+        let mut z_range = vec![(f64::INFINITY, f64::NEG_INFINITY); nz];
+        for row in rows {
+            for (r, v) in z_range.iter_mut().zip(&row.z) {
+                r.0 = r.0.min(*v);
+                r.1 = r.1.max(*v);
+            }
+        }
         Ok(Self {
             descriptor_names,
             descriptor_mean,
             descriptor_sd,
             interactions,
-            coefficients: fitted.params().to_vec(),
+            z_range,
+            coefficients,
         })
     }
+}
+
+/// One training row for `LinearPart::fit`.
+struct FitRow<'a> {
+    z: Vec<f64>,
+    s: &'a [f64],
+    y: f64,
+    w: f64,
+    system: usize,
 }
 
 /// Per-row weights `1/sqrt(rows in system)`, scaled to sum to the number of rows, so that large
@@ -402,7 +523,7 @@ pub fn fit_linear(
         .iter()
         .map(|s| system_features(&s.system))
         .collect();
-    let fit_rows: Vec<(Vec<f64>, &[f64], f64, f64)> = rows
+    let fit_rows: Vec<FitRow<'_>> = rows
         .iter()
         .zip(&weights)
         .enumerate()
@@ -413,12 +534,13 @@ pub fn fit_linear(
                 .zip(mean.iter().zip(&sd))
                 .map(|(v, (m, s))| (v - m) / s)
                 .collect();
-            (
+            FitRow {
                 z,
-                sys_feats[row.system].as_slice(),
-                row.psi_k1.clamp(-0.5, 1.6),
+                s: sys_feats[row.system].as_slice(),
+                y: row.psi_k1.clamp(PSI_MIN, PSI_MAX),
                 w,
-            )
+                system: row.system,
+            }
         })
         .collect();
     LinearPart::fit(
@@ -447,18 +569,19 @@ pub fn common_descriptor_names(data: &TrainingData) -> Vec<String> {
         .filter(|k| {
             !k.starts_with("lfn_ph_")
                 && !k.starts_with("charge_ph_")
+                && !k.starts_with("ion_")
                 && !super::features::SECOND_ORDER_NAMES.contains(&k.as_str())
                 && all_have(k)
         })
         .cloned()
         .collect();
-    if all_have("logp") && all_have("lfn_ph_7") {
-        names.extend(DYNAMIC_NAMES.iter().map(|n| (*n).to_owned()));
-    }
-    if all_have("charge_ph_7") {
-        names.push("charge_at_ph".to_owned());
-        names.push("abs_charge_at_ph".to_owned());
-    }
+    // the ionisation terms after the interacting descriptors (main effects and × HILIC only)
+    names.extend(
+        ION_NAMES
+            .iter()
+            .filter(|n| all_have(&format!("{n}_ph_7")))
+            .map(|n| (*n).to_owned()),
+    );
     // second-order terms last: main effects and × mode only (`interacting_count`)
     names.extend(
         super::features::SECOND_ORDER_NAMES

@@ -718,6 +718,7 @@ impl StoredFit {
             coelution_map_descriptor,
             coelution_map_memory,
             system: target.fingerprint(),
+            extrapolated: false,
         })
     }
 }

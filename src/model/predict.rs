@@ -4,7 +4,7 @@
 
 use super::features::AnalyteFeatures;
 use super::fitted::Model;
-use super::linear::system_features;
+use super::linear::{PSI_MAX, PSI_MIN, system_features};
 use super::lss::{lss_s, rt_from_psi};
 use super::memory::SourceRelation;
 use super::prediction::{Prediction, PredictionPath};
@@ -62,6 +62,30 @@ impl Model {
         exclude: Option<&str>,
         extra: &[(String, LcSystem, f64)],
     ) -> Result<Prediction, ModelError> {
+        self.predict_routed(f, sys, exclude, extra, true)
+    }
+
+    /// The structure-only (descriptor-path) prediction, even for an analyte with measured
+    /// retention in the memory (what the model says without the measured data; `--no-memory`).
+    ///
+    /// # Errors
+    /// As `predict`.
+    pub fn predict_structure_only(
+        &self,
+        f: &AnalyteFeatures,
+        sys: &LcSystem,
+    ) -> Result<Prediction, ModelError> {
+        self.predict_routed(f, sys, None, &[], false)
+    }
+
+    fn predict_routed(
+        &self,
+        f: &AnalyteFeatures,
+        sys: &LcSystem,
+        exclude: Option<&str>,
+        extra: &[(String, LcSystem, f64)],
+        use_memory: bool,
+    ) -> Result<Prediction, ModelError> {
         sys.validate()?;
         let mw = *f
             .descriptors
@@ -74,10 +98,11 @@ impl Model {
         let base = self.linear.predict_z(&z, &system_features(sys), &mut buf);
         let mut psi = base;
         let mut path = PredictionPath::Descriptor;
-        let shipped = match (&self.memory, &f.inchikey) {
-            (Some(mem), Some(key)) => mem.measurements(key).collect::<Vec<_>>(),
+        let shipped = match (&self.memory, &f.inchikey, use_memory) {
+            (Some(mem), Some(key), true) => mem.measurements(key).collect::<Vec<_>>(),
             _ => Vec::new(),
         };
+        let extra = if use_memory { extra } else { &[] };
         for (_, s, _) in extra {
             s.validate()?;
         }
@@ -116,9 +141,15 @@ impl Model {
                     path.label()
                 ))
             })?;
+        // bounded: psi_k1 stays inside the training target range; beyond the descriptors'
+        // training range (or at a bound) the interval widens with the distance
+        let excess = self.linear.extrapolation_sd(&z);
+        let clamped = psi.clamp(PSI_MIN, PSI_MAX);
+        let widen = 1.0 + 0.5 * excess + if clamped == psi { 0.0 } else { 0.5 };
+        let psi = clamped;
         let rt = rt_from_psi(sys, s, psi);
-        let lo = rt_from_psi(sys, s, psi + cal.q05);
-        let hi = rt_from_psi(sys, s, psi + cal.q95);
+        let lo = rt_from_psi(sys, s, psi + cal.q05 * widen);
+        let hi = rt_from_psi(sys, s, psi + cal.q95 * widen);
         let h = 0.01;
         let slope = (rt_from_psi(sys, s, psi + h) - rt_from_psi(sys, s, psi - h)) / (2.0 * h);
         let t_out = rt - sys.t0_min - sys.dwell_min;
@@ -143,6 +174,7 @@ impl Model {
                 .unwrap_or_default(),
             rt_slope_min: slope,
             system: sys.fingerprint(),
+            extrapolated: widen > 1.0,
         })
     }
 }

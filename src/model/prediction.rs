@@ -64,6 +64,11 @@ pub struct Prediction {
     pub coelution_map_memory: Vec<(f64, f64)>,
     /// System fingerprint (co-elution needs both predictions on one system).
     pub system: String,
+    /// True when the analyte's descriptors lie outside the range of the training analytes or
+    /// the prediction reached a bound of `psi_k1`: the interval was widened and the value is
+    /// an extrapolation.
+    #[serde(default)]
+    pub extrapolated: bool,
 }
 
 /// Standard normal CDF via the complementary error function (Numerical Recipes erfc

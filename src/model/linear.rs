@@ -134,6 +134,16 @@ pub struct Penalties {
     pub within_system: bool,
 }
 
+/// System features of the buffer additive (one-hot, formic acid the reference).
+const BUFFER_FEATURES: [usize; 7] = [13, 14, 15, 16, 17, 18, 19];
+
+/// Ridge penalty (relative to the total weight) on the buffer offsets in the within-system
+/// fit's second stage: for a neutral analyte the buffer's own effect on retention is small
+/// (common practice, no source), while the raw offsets mostly carry the laboratories that use
+/// each buffer; shrunk this hard, pH 3 (formic) against pH 7 (ammonium acetate or carbonate)
+/// moves a neutral analyte by well under 2 % of the gradient (docs/model.md § 2a).
+const BUFFER_PENALTY: f64 = 0.3;
+
 /// Bounds of the training target `psi_k1` (strong-solvent fraction at k = 1); predictions are
 /// kept inside them too, so that no prediction leaves the range the model was fitted on.
 pub const PSI_MIN: f64 = -0.5;
@@ -303,7 +313,7 @@ impl LinearPart {
         let mut buf = Vec::new();
         let mut wsum = 0.0;
         // per system: weight, Σ w x (dense), Σ w y, system features
-        let mut groups: BTreeMap<usize, (f64, Vec<f64>, f64, &[f64])> = BTreeMap::new();
+        let mut groups: BTreeMap<usize, SystemSums<'_>> = BTreeMap::new();
         for row in rows {
             design_row(&row.z, row.s, interactions, n_int, &mut buf);
             let w = row.w;
@@ -420,7 +430,12 @@ impl LinearPart {
                 }
             }
             for i in 1..q {
-                g2[[i, i]] += penalties.system * wsum;
+                let pen = if BUFFER_FEATURES.contains(&(i - 1)) {
+                    BUFFER_PENALTY
+                } else {
+                    penalties.system
+                };
+                g2[[i, i]] += pen * wsum;
             }
             g2[[0, 0]] += 1e-8 * wsum;
             let fitted = LinearRegression::new()
@@ -448,6 +463,9 @@ impl LinearPart {
         })
     }
 }
+
+/// Per-system sums of the within-system fit: weight, Σ w·x (dense), Σ w·y, system features.
+type SystemSums<'a> = (f64, Vec<f64>, f64, &'a [f64]);
 
 /// One training row for `LinearPart::fit`.
 struct FitRow<'a> {

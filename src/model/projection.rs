@@ -275,7 +275,7 @@ mod tests {
         assert!((p.project(t).rt_min - (0.8 + 1.1 * t)).abs() < 0.1);
         // the interval covers the noise and is narrow
         let hw = p.half_width_min();
-        assert!(hw >= 0.04 && hw < 0.3, "half width {hw}");
+        assert!((0.04..0.3).contains(&hw), "half width {hw}");
         assert_eq!(p.loo_residuals().len(), pts.len());
         assert!(!p.project(t).extrapolated);
         assert!(p.project(40.0).extrapolated);

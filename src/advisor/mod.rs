@@ -9,6 +9,7 @@
 //! first choice's risky pairs. Every score carries its reasons, each naming its rule
 //! (`rule:...`, common practice unless a source is given) or model (`model:...`).
 
+pub mod calibrants;
 pub mod detection;
 pub mod gc;
 pub mod ic;

@@ -59,6 +59,7 @@ pub struct AdviseOptions {
 }
 
 /// What `predict` fixes: its one phase (no back-up is sought) and its LC or GC conditions.
+#[derive(Clone)]
 pub struct Fixed {
     /// The phase id.
     pub phase: String,

@@ -10,6 +10,7 @@
 
 pub mod advise;
 pub mod advising;
+pub mod calibrants;
 pub mod describe;
 pub mod exit;
 pub mod input;

@@ -1,6 +1,7 @@
 //! `phasewise predict`: retention of analytes under given conditions (LC, GC or IC), through
 //! the advisor with the phase and conditions fixed.
 
+use std::path::PathBuf;
 use std::process::ExitCode;
 
 use anyhow::{Context, Result, bail};
@@ -71,6 +72,10 @@ pub struct PredictArgs {
     /// retention (open data or stored scouting fits); the path column says so.
     #[arg(long)]
     pub no_memory: bool,
+    /// LC: peak table (name or SMILES, retention time) of at least 5 compounds measured on
+    /// your column and gradient; predictions are projected onto that system.
+    #[arg(long, value_name = "FILE")]
+    pub calibrants: Option<PathBuf>,
     /// Output format.
     #[arg(long, short, value_enum, default_value_t = OutputFormat::Table)]
     pub format: OutputFormat,
@@ -197,9 +202,13 @@ pub fn run(cli: &Cli, a: &PredictArgs) -> Result<ExitCode> {
         lc: fixed,
         gc: fixed_gc,
     };
-    let (report, partial) = advice(cli, &opts, Some(fixed))?;
-    let Some(rec) = report.recommendations.first().cloned() else {
+    let (report, partial) = advice(cli, &opts, Some(fixed.clone()))?;
+    let Some(mut rec) = report.recommendations.first().cloned() else {
         bail!("no prediction could be made");
+    };
+    let projected = match &a.calibrants {
+        Some(file) => super::calibrants::project(cli, &opts, &fixed, file, &mut rec)?,
+        None => Vec::new(),
     };
     // what the user's conditions implied (buffer for the pH, flow from t0)
     let mut notes: Vec<String> = rec
@@ -207,6 +216,7 @@ pub fn run(cli: &Cli, a: &PredictArgs) -> Result<ExitCode> {
         .iter()
         .filter(|r| r.source == "user")
         .map(|r| r.text.clone())
+        .chain(projected)
         .collect();
     // A time past the end of the program is the model's extrapolation of an endless final
     // hold, not a retention time the run will show: say so beside the number.

@@ -6,11 +6,11 @@
 
 use std::collections::BTreeMap;
 
+use super::coelution::{difference_sigma_min, fit_curve, separation_ratio};
 use super::fitted::{Model, PathCalibration};
 use super::linear::{Penalties, fit_linear, system_features};
 use super::lss::{lss_s, rt_from_psi};
 use super::memory::{MemoryWeights, SourceRelation};
-use super::prediction::pair_probability;
 use super::system::{Mode, ModelError};
 use super::training_data::{TrainingData, system_folds};
 
@@ -32,6 +32,10 @@ pub struct CvOutput {
     pub calibration: BTreeMap<String, PathCalibration>,
     /// Memory correlations.
     pub memory_weights: MemoryWeights,
+    /// Cross-fitted co-elution curves per `"<mode>/<path>"`, one per fold: the curve for fold
+    /// `f` is fitted on pairs of the other folds' held-out systems only, so scoring fold `f`
+    /// with it gives an out-of-sample reliability table (`eval`).
+    pub coelution_cross_fitted: BTreeMap<String, Vec<Vec<(f64, f64)>>>,
 }
 
 pub(crate) fn quantile(sorted: &[f64], q: f64) -> f64 {
@@ -225,13 +229,15 @@ pub fn cross_validate(
             }
         }
     }
-    let calibration = calibrate(data, &fold, &psi_desc, &psi_mem, seed);
+    let (calibration, coelution_cross_fitted) =
+        calibrate(data, &fold, k, &psi_desc, &psi_mem, seed);
     Ok(CvOutput {
         fold,
         psi_descriptor: psi_desc,
         psi_memory: psi_mem,
         calibration,
         memory_weights,
+        coelution_cross_fitted,
     })
 }
 
@@ -243,14 +249,22 @@ pub(crate) fn rows_by_system(data: &TrainingData) -> Vec<Vec<usize>> {
     out
 }
 
+/// Calibration per `"<mode>/<path>"` and the cross-fitted co-elution curves per fold.
+type Calibrated = (
+    BTreeMap<String, PathCalibration>,
+    BTreeMap<String, Vec<Vec<(f64, f64)>>>,
+);
+
 fn calibrate(
     data: &TrainingData,
-    _fold: &[usize],
+    fold: &[usize],
+    k: usize,
     psi_desc: &[f64],
     psi_mem: &[Option<(f64, Vec<String>)>],
     seed: u64,
-) -> BTreeMap<String, PathCalibration> {
+) -> Calibrated {
     let mut out = BTreeMap::new();
+    let mut cross = BTreeMap::new();
     let by_sys = rows_by_system(data);
     for mode in [Mode::ReversedPhase, Mode::Hilic] {
         for path in ["descriptor", "memory"] {
@@ -311,7 +325,20 @@ fn calibrate(
                     )
                 })
                 .collect();
-            let coelution_map = coelution_map(data, &by_sys, mode, &pred, &difference_sd, seed);
+            let points = coelution_points(data, &by_sys, mode, &pred, &difference_sd, seed);
+            let all: Vec<(f64, bool)> = points.iter().map(|p| (p.0, p.1)).collect();
+            let coelution_map = fit_curve(&all);
+            let per_fold: Vec<Vec<(f64, f64)>> = (0..k)
+                .map(|f| {
+                    let other: Vec<(f64, bool)> = points
+                        .iter()
+                        .filter(|p| fold[p.2] != f)
+                        .map(|p| (p.0, p.1))
+                        .collect();
+                    fit_curve(&other)
+                })
+                .collect();
+            cross.insert(format!("{}/{path}", mode.label()), per_fold);
             out.insert(
                 format!("{}/{path}", mode.label()),
                 PathCalibration {
@@ -324,21 +351,21 @@ fn calibrate(
             );
         }
     }
-    out
+    (out, cross)
 }
 
-/// Isotonic (pool-adjacent-violators) fit of observed co-elution (|Δt| < 1 % of the gradient
-/// duration) on the raw normal-model probability, over pairs within held-out systems,
-/// reduced to about one knot per 0.05 of raw probability (Zadrozny & Elkan, KDD 2002, isotonic calibration; from memory).
-fn coelution_map(
+/// Pairs within held-out systems of one mode for the co-elution curve: separation ratio
+/// `|Δt_pred| / σ_Δ` (`coelution`), whether the measured peaks are within 1 % of the gradient
+/// duration of each other, and the system index (for cross-fitting by fold).
+fn coelution_points(
     data: &TrainingData,
     by_sys: &[Vec<usize>],
     mode: Mode,
     pred: &dyn Fn(usize) -> Option<f64>,
     sd: &[(f64, f64)],
     seed: u64,
-) -> Vec<(f64, f64)> {
-    let mut pts: Vec<(f64, f64)> = Vec::new();
+) -> Vec<(f64, bool, usize)> {
+    let mut pts = Vec::new();
     for (si, rows) in by_sys.iter().enumerate() {
         let ts = &data.systems[si];
         if ts.system.mode != mode {
@@ -351,7 +378,7 @@ fn coelution_map(
             .collect();
         let sub = subsample(&with, PAIR_ROWS, seed);
         let width = 0.01 * ts.gradient_duration_min.max(1e-3);
-        let info: Vec<(f64, f64, f64, f64)> = sub
+        let info: Vec<(f64, f64, f64)> = sub
             .iter()
             .map(|&r| {
                 let psi = pred(r).unwrap_or(0.0);
@@ -360,55 +387,23 @@ fn coelution_map(
                 let slope = (ts.real_time(rt_from_psi(&ts.system, s, psi + 0.01))
                     - ts.real_time(rt_from_psi(&ts.system, s, psi - 0.01)))
                     / 0.02;
-                (psi, rt, slope, data.rows[r].rt_min)
+                (rt, slope, data.rows[r].rt_min)
             })
             .collect();
         for (i, a) in info.iter().enumerate() {
             for b in &info[i + 1..] {
-                let p = pair_probability(
-                    a.1 - b.1,
-                    (a.0 - b.0).abs(),
-                    sd,
-                    sd,
-                    0.5 * (a.2 + b.2),
-                    width,
-                );
-                pts.push((p, f64::from(u8::from((a.3 - b.3).abs() < width))));
+                let sigma = difference_sigma_min(sd, sd, 0.5 * (a.1 + b.1));
+                pts.push((
+                    separation_ratio(a.0 - b.0, sigma),
+                    (a.2 - b.2).abs() < width,
+                    si,
+                ));
             }
         }
     }
-    if pts.len() < 100 {
-        return Vec::new();
-    }
-    pts.sort_by(|a, b| a.0.total_cmp(&b.0).then(a.1.total_cmp(&b.1)));
-    // PAV blocks: (sum x, sum y, count).
-    let mut blocks: Vec<(f64, f64, f64)> = Vec::new();
-    for (x, y) in pts {
-        blocks.push((x, y, 1.0));
-        while blocks.len() >= 2 {
-            let n = blocks.len();
-            let (a, b) = (blocks[n - 2], blocks[n - 1]);
-            if a.1 / a.2 >= b.1 / b.2 {
-                blocks[n - 2] = (a.0 + b.0, a.1 + b.1, a.2 + b.2);
-                blocks.pop();
-            } else {
-                break;
-            }
-        }
-    }
-    // Knots: one per 0.05 of raw probability (block means), plus the first and last block.
-    let round = |x: f64| (x * 1e5).round() / 1e5;
-    let mut knots = Vec::new();
-    let mut next = 0.0;
-    for (i, b) in blocks.iter().enumerate() {
-        let x = b.0 / b.2;
-        if x >= next || i + 1 == blocks.len() {
-            knots.push((round(x), round(b.1 / b.2)));
-            next = (x / 0.05).floor() * 0.05 + 0.05;
-        }
-    }
-    knots.dedup_by(|a, b| a.0 <= b.0);
-    knots
+    // sorted once here; the per-fold subsets stay sorted, so their fits sort in linear time
+    pts.sort_by(|a, b| a.0.total_cmp(&b.0).then(b.1.cmp(&a.1)));
+    pts
 }
 
 fn row_s(data: &TrainingData, r: usize) -> f64 {

@@ -11,12 +11,14 @@ use serde::{Deserialize, Serialize};
 use super::calibration::{
     PAIR_ROWS, cross_validate, pearson, quantile, rows_by_system, sorted, subsample,
 };
+use super::coelution::{
+    curve_probability, difference_sigma_min, normal_probability, separation_ratio,
+};
 use super::features::PhasewiseDescriptors;
 use super::fitted::Model;
 use super::linear::{DEFAULT_PENALTIES, Penalties, common_descriptor_names, fit_linear};
 use super::lss::{lss_s, rt_from_psi};
 use super::memory::MemoryWeights;
-use super::prediction::{apply_map, pair_probability};
 use super::system::ModelError;
 use super::training_data::TrainingData;
 
@@ -194,20 +196,15 @@ fn figures(
             }
             let label = dm.abs() < width;
             let score = if use_prob {
-                let p = pair_probability(
-                    dp,
-                    (s.psi[a] - s.psi[b]).abs(),
-                    &s.sd[a],
-                    &s.sd[b],
-                    0.5 * (s.slope[a] + s.slope[b]),
-                    width,
-                );
+                let sigma =
+                    difference_sigma_min(&s.sd[a], &s.sd[b], 0.5 * (s.slope[a] + s.slope[b]));
                 let map = if s.memory[a] && s.memory[b] {
                     &s.map_memory
                 } else {
                     &s.map_descriptor
                 };
-                let p = apply_map(map, p);
+                let p = curve_probability(map, separation_ratio(dp, sigma))
+                    .unwrap_or_else(|| normal_probability(dp, sigma, width));
                 let bin = ((p * 10.0) as usize).min(9);
                 bins[bin].0 += p;
                 bins[bin].1 += f64::from(u8::from(label));
@@ -315,10 +312,11 @@ pub fn evaluate_with(
         let coverage =
             rows.iter().filter(|&&r| cv.psi_memory[r].is_some()).count() as f64 / rows.len() as f64;
         for method in METHODS {
+            // the curve fitted without this system's fold: the reliability table is out of sample
             let map_of = |path: &str| {
-                cv.calibration
+                cv.coelution_cross_fitted
                     .get(&format!("{mode}/{path}"))
-                    .map(|c| c.coelution_map.clone())
+                    .and_then(|per_fold| per_fold.get(cv.fold[si]).cloned())
                     .unwrap_or_default()
             };
             let mut sc = Scored {

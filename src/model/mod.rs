@@ -7,6 +7,7 @@
 //! depends on the model and never the reverse; `regression` re-exports them under the old path.
 
 pub mod calibration;
+pub mod coelution;
 pub mod eval;
 pub mod features;
 pub mod fitted;
@@ -18,6 +19,7 @@ pub mod lss;
 pub mod memory;
 pub mod predict;
 pub mod prediction;
+pub mod projection;
 pub mod regression;
 pub mod system;
 pub mod theory;

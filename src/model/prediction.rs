@@ -3,6 +3,7 @@
 
 use serde::{Deserialize, Serialize};
 
+use super::coelution;
 use super::system::ModelError;
 
 /// Which route produced a prediction.
@@ -57,10 +58,11 @@ pub struct Prediction {
     pub difference_sd_psi: Vec<(f64, f64)>,
     /// d tR / d psi_k1 at the prediction (min per unit psi).
     pub rt_slope_min: f64,
-    /// Isotonic map raw → calibrated co-elution probability for pairs of this mode where both
-    /// predictions are descriptor-path (or mixed), from cross-validated pairs.
+    /// Calibrated co-elution curve (separation ratio |Δt|/σ_Δ → probability, non-increasing)
+    /// for pairs of this mode where both predictions are descriptor-path (or mixed), from
+    /// pairs within held-out systems.
     pub coelution_map_descriptor: Vec<(f64, f64)>,
-    /// The same map for pairs where both predictions come from the memory path.
+    /// The same curve for pairs where both predictions come from the memory path.
     pub coelution_map_memory: Vec<(f64, f64)>,
     /// System fingerprint (co-elution needs both predictions on one system).
     pub system: String,
@@ -71,37 +73,16 @@ pub struct Prediction {
     pub extrapolated: bool,
 }
 
-/// Standard normal CDF via the complementary error function (Numerical Recipes erfc
-/// Chebyshev fit, fractional error < 1.2e-7; Press et al. 3rd ed. §6.2, from memory).
-pub fn normal_cdf(x: f64) -> f64 {
-    let z = (x / std::f64::consts::SQRT_2).abs();
-    let t = 1.0 / (1.0 + 0.5 * z);
-    let r = t
-        * (-z * z - 1.265_512_23
-            + t * (1.000_023_68
-                + t * (0.374_091_96
-                    + t * (0.096_784_18
-                        + t * (-0.186_288_06
-                            + t * (0.278_868_07
-                                + t * (-1.135_203_98
-                                    + t * (1.488_515_87
-                                        + t * (-0.822_152_23 + t * 0.170_872_77)))))))))
-            .exp();
-    if x >= 0.0 { 1.0 - 0.5 * r } else { 0.5 * r }
-}
+pub use super::coelution::normal_cdf;
 
-fn sd_for_gap(table: &[(f64, f64)], gap: f64) -> f64 {
-    table
-        .iter()
-        .find(|(upper, _)| gap < *upper)
-        .or(table.last())
-        .map_or(0.05, |x| x.1)
-}
-
-/// Probability that two analytes co-elute, i.e. that their true retention times differ by less
-/// than `peak_width_min`, given the calibrated error of their predicted difference (normal
-/// error on the difference; the shared system error cancels because the sd was calibrated on
-/// differences within held-out systems).
+/// Probability that two analytes co-elute on one system: a calibrated, non-increasing function
+/// of their separation ratio `|Δt| / σ_Δ` (`coelution`; σ_Δ is the calibrated sd of a predicted
+/// retention difference, in which the shared system error cancels), so identical predictions get
+/// the highest probability and it never rises as the predictions move apart. The calibration
+/// (memory-path curve when both come from memory, else the descriptor-path curve) is for
+/// measured peaks within 1 % of the gradient duration of each other. Pairs of the user's own
+/// scouting fits, which have no calibrated curve, get the normal-error probability that the true
+/// difference is below `peak_width_min`.
 ///
 /// # Errors
 /// `ModelError::DifferentSystems` if the predictions are for different systems,
@@ -120,26 +101,25 @@ pub fn coelution_probability(
     if !(peak_width_min.is_finite() && peak_width_min > 0.0) {
         return Err(ModelError::BadPeakWidth(peak_width_min));
     }
-    let raw = pair_probability(
-        a.rt_min - b.rt_min,
-        (a.psi_k1 - b.psi_k1).abs(),
+    let delta = a.rt_min - b.rt_min;
+    let sigma = coelution::difference_sigma_min(
         &a.difference_sd_psi,
         &b.difference_sd_psi,
         0.5 * (a.rt_slope_min + b.rt_slope_min),
-        peak_width_min,
     );
+    let normal = coelution::normal_probability(delta, sigma, peak_width_min);
     let both_fit = a.path.label() == "scouting fit" && b.path.label() == "scouting fit";
     if both_fit {
-        // no calibration map exists for the user's own fits: the raw normal-error probability
-        return Ok(raw);
+        return Ok(normal);
     }
     let both_memory = a.path.label() == "memory" && b.path.label() == "memory";
-    let map = if both_memory {
+    let curve = if both_memory {
         &a.coelution_map_memory
     } else {
         &a.coelution_map_descriptor
     };
-    Ok(apply_map(map, raw))
+    let z = coelution::separation_ratio(delta, sigma);
+    Ok(coelution::curve_probability(curve, z).unwrap_or(normal))
 }
 
 /// Piecewise-linear interpolation in a monotone calibration map (identity if empty).
@@ -161,20 +141,4 @@ pub fn apply_map(map: &[(f64, f64)], p: f64) -> f64 {
         }
     }
     map[map.len() - 1].1
-}
-
-pub(crate) fn pair_probability(
-    delta_min: f64,
-    gap_psi: f64,
-    sd_a: &[(f64, f64)],
-    sd_b: &[(f64, f64)],
-    slope_min: f64,
-    width_min: f64,
-) -> f64 {
-    let sa = sd_for_gap(sd_a, gap_psi);
-    let sb = sd_for_gap(sd_b, gap_psi);
-    let sigma = ((sa * sa + sb * sb).sqrt() * slope_min).max(1e-6);
-    let p =
-        normal_cdf((width_min - delta_min) / sigma) - normal_cdf((-width_min - delta_min) / sigma);
-    p.clamp(0.0, 1.0)
 }

@@ -9,10 +9,12 @@
 pub mod calibration;
 pub mod eval;
 pub mod features;
+pub mod fingerprint;
 pub mod fitted;
 pub mod gc;
 pub mod gradient;
 pub mod ic;
+pub mod learner_features;
 pub mod linear;
 pub mod lss;
 pub mod memory;

@@ -198,6 +198,9 @@ fn fit_fold(
     Ok(())
 }
 
+/// Per-system Spearman values and MAE values (% gradient) of one mode and method.
+type SpearmanAndMae = (Vec<f64>, Vec<f64>);
+
 /// Per-system Spearman and MAE % gradient over the rows in `scored`, medians per mode.
 fn summarise(ctx: &Ctx, label: &str, scored: &[bool], ridge: &[f64], boost: &[f64]) {
     let data = ctx.data;
@@ -207,7 +210,7 @@ fn summarise(ctx: &Ctx, label: &str, scored: &[bool], ridge: &[f64], boost: &[f6
             by_sys[row.system].push(r);
         }
     }
-    let mut figs: BTreeMap<(&str, &str), (Vec<f64>, Vec<f64>)> = BTreeMap::new();
+    let mut figs: BTreeMap<(&str, &str), SpearmanAndMae> = BTreeMap::new();
     for (si, rows) in by_sys.iter().enumerate() {
         if rows.len() < 5 {
             continue;
@@ -247,7 +250,7 @@ fn summarise(ctx: &Ctx, label: &str, scored: &[bool], ridge: &[f64], boost: &[f6
             return f64::NAN;
         }
         let m = v.len() / 2;
-        if v.len() % 2 == 0 {
+        if v.len().is_multiple_of(2) {
             0.5 * (v[m - 1] + v[m])
         } else {
             v[m]

@@ -94,7 +94,7 @@ fn train(constrained: bool) -> GradientBooster {
             .collect();
         b = b.set_monotone_constraints(Some(map));
     }
-    b.fit(&Matrix::new(&x, n, N_INPUTS), &y, None, None)
+    b.fit(&Matrix::new(&x, n, N_INPUTS), &y, &vec![1.0; n], None)
         .unwrap();
     b
 }

@@ -177,11 +177,16 @@ fn fit_fold(
         }
         let t = Instant::now();
         booster.fit(&Matrix::new(&x, n, N_INPUTS), &y, &w, None)?;
+        let json = booster.json_dump()?;
+        let mut gz = flate2::write::GzEncoder::new(Vec::new(), flate2::Compression::best());
+        std::io::Write::write_all(&mut gz, json.as_bytes())?;
         eprintln!(
-            "  {} learner: {} rows, {:.1} s",
+            "  {} learner: {} rows, {:.1} s, JSON {} B, gzip {} B",
             mode.label(),
             n,
-            t.elapsed().as_secs_f64()
+            t.elapsed().as_secs_f64(),
+            json.len(),
+            gz.finish()?.len()
         );
         let m = te.len();
         let mut xt = vec![0.0; m * N_INPUTS];

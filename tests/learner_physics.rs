@@ -105,6 +105,16 @@ fn predict(b: &GradientBooster, smiles: &str, ph: f64) -> f64 {
 }
 
 #[test]
+fn training_twice_gives_the_same_learner() {
+    // forust writes its constraint map (a HashMap) in random order, so compare parsed JSON
+    // (objects compare as maps): the trees must be identical.
+    let dump = || -> serde_json::Value {
+        serde_json::from_str(&train(true).json_dump().unwrap()).unwrap()
+    };
+    assert_eq!(dump(), dump());
+}
+
+#[test]
 fn unconstrained_learner_breaks_the_chain_rule_on_these_targets() {
     let b = train(false);
     let falls = HEADS.iter().any(|h| {

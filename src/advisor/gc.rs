@@ -322,7 +322,7 @@ pub fn candidate(
     }
     let rules = rules(profiles, phase);
     let rule_sum: f64 = rules.iter().filter_map(|r| r.weight).sum();
-    let (sep, uncertainty_reason) = separation_with_index_uncertainty(&rec, sep);
+    let (sep, uncertainty_reason) = separation_with_index_uncertainty(sep);
     let (sep, shape_reason) = free_acid_peak_shape(profiles, phase, sep);
     reasons.push(detector_reason);
     reasons.push(sep_reason);
@@ -334,24 +334,20 @@ pub fn candidate(
     Ok(rec)
 }
 
-/// The separation part of a GC phase's score, with the index model's uncertainty: the point
-/// critical resolution rests on predicted indices whose 1σ (about 20 index units) is larger
-/// than most differences between phases, so the separation counts half from the point
-/// prediction and half from 1 − the highest co-elution probability of any pair, which carries
-/// that uncertainty (model:gc-index-uncertainty; common practice, no source).
-pub fn separation_with_index_uncertainty(rec: &Recommendation, sep: f64) -> (f64, Reason) {
-    let worst = rec
-        .coelutions
-        .iter()
-        .map(|c| c.probability)
-        .fold(0.0_f64, f64::max);
-    let used = 0.5 * sep + 0.5 * (1.0 - worst);
+/// The separation part of a GC phase's score, with the index model's uncertainty: the critical
+/// resolution rests on predicted indices whose 1σ (about 20 index units) is larger than most
+/// differences between phases, so the predicted separation is shrunk halfway towards neutral
+/// 0.5 and the chemistry rules of the phase weigh as much as the prediction (a shrinkage, not
+/// the co-elution probability, so that a less certain phase is never rewarded for its
+/// uncertainty) (model:gc-index-uncertainty; common practice, no source).
+pub fn separation_with_index_uncertainty(sep: f64) -> (f64, Reason) {
+    let used = 0.5 * sep + 0.25;
     (
         used,
         Reason {
             source: "model:gc-index-uncertainty".into(),
             text: format!(
-                "predicted separation {sep:.2} from the point indices, highest pair co-elution probability {worst:.2}: counted as {used:.2} (half each; the index model's 1σ of about 20 units is larger than most differences between phases)"
+                "predicted separation {sep:.2} counted as {used:.2}, halfway towards neutral 0.5: the index model's 1σ of about 20 units is larger than most differences between phases"
             ),
             weight: Some(used - sep),
         },
@@ -459,14 +455,17 @@ fn rules(profiles: &[AnalyteProfile], phase: &StationaryPhase) -> Vec<Reason> {
     // (rule:gc-thick-film-volatiles; common practice, from memory)
     if volatile && !gases {
         let (w, what) = match phase.id() {
-            "gc-dimethyl" | "gc-6-cyanopropylphenyl" => (0.1, "made in thick films for volatiles"),
-            "gc-5-phenyl" | "gc-wax" => (0.0, "made in thick films for volatiles, less often"),
+            "gc-dimethyl" | "gc-6-cyanopropylphenyl" => (0.15, "made in thick films for volatiles"),
+            "gc-5-phenyl" => (0.1, "made in thick films for volatiles, less often"),
+            "gc-wax" => (0.0, "made in thick films for volatiles, less often"),
             id if id.starts_with("gc-plot") => (0.0, "a porous layer"),
             _ => (-0.1, "made mostly in thin films for semivolatiles"),
         };
         rule(
             "rule:gc-thick-film-volatiles",
-            format!("every analyte boils below 420 K: a thick film (1-3 µm) retains them; this phase is {what}"),
+            format!(
+                "every analyte boils below 420 K: a thick film (1-3 µm) retains them; this phase is {what}"
+            ),
             w,
         );
     }
@@ -479,9 +478,10 @@ fn rules(profiles: &[AnalyteProfile], phase: &StationaryPhase) -> Vec<Reason> {
         let (w, role) = match phase.id() {
             "gc-5-phenyl" => (0.4, "the usual first column"),
             "gc-dimethyl" => (0.25, "a usual first column"),
-            "gc-35-phenyl" | "gc-14-cyanopropylphenyl" | "gc-50-phenyl" | "gc-trifluoropropyl" => {
-                (0.0, "a confirmation column (the back-up's role), not the first")
-            }
+            "gc-35-phenyl" | "gc-14-cyanopropylphenyl" | "gc-50-phenyl" | "gc-trifluoropropyl" => (
+                0.0,
+                "a confirmation column (the back-up's role), not the first",
+            ),
             _ => (-0.1, "not a usual column for them"),
         };
         rule(

@@ -822,8 +822,8 @@ fn cautions(
             });
         }
     };
-    for (rec, is_backup) in std::iter::once((first, false))
-        .chain(backup.map(|b| (&b.recommendation, true)))
+    for (rec, is_backup) in
+        std::iter::once((first, false)).chain(backup.map(|b| (&b.recommendation, true)))
     {
         let c = &rec.conditions;
         if let Some(m) = &c.modifier

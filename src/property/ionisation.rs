@@ -691,7 +691,7 @@ mod tests {
         assert!((log_d_microspecies(3.0, &[], 7.0, &part).expect("valid") - 3.0).abs() < EPS);
         let b = [site(SiteKind::Base, Some(9.5))];
         let x = log_d_microspecies(3.0, &b, 2.0, &part).expect("valid");
-        assert!((x - 1.0).abs() < 1e-6, "{x}");
+        assert!((x - 1.0).abs() < 1e-5, "{x}");
         // a permanent cation is allowed (one charge), a betaine (permanent cation and ionised
         // acid) partitions as a zwitterion
         let q = [site(SiteKind::PermanentCation, None)];

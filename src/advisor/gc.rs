@@ -336,18 +336,20 @@ pub fn candidate(
 
 /// The separation part of a GC phase's score, with the index model's uncertainty: the critical
 /// resolution rests on predicted indices whose 1σ (about 20 index units) is larger than most
-/// differences between phases, so the predicted separation is shrunk halfway towards neutral
-/// 0.5 and the chemistry rules of the phase weigh as much as the prediction (a shrinkage, not
-/// the co-elution probability, so that a less certain phase is never rewarded for its
-/// uncertainty) (model:gc-index-uncertainty; common practice, no source).
+/// differences between phases, so differences in predicted separation count half,
+/// s_used = 0.5 + 0.5·s, and the chemistry rules of the phase weigh as much as the prediction.
+/// A well-separated prediction keeps full marks, so a GC phase still competes with the other
+/// modes on equal terms; a weight on the prediction, not the co-elution probability, so that a
+/// less certain phase is never rewarded for its uncertainty (model:gc-index-uncertainty;
+/// common practice, no source).
 pub fn separation_with_index_uncertainty(sep: f64) -> (f64, Reason) {
-    let used = 0.5 * sep + 0.25;
+    let used = 0.5 + 0.5 * sep;
     (
         used,
         Reason {
             source: "model:gc-index-uncertainty".into(),
             text: format!(
-                "predicted separation {sep:.2} counted as {used:.2}, halfway towards neutral 0.5: the index model's 1σ of about 20 units is larger than most differences between phases"
+                "predicted separation {sep:.2} counted as {used:.2} (0.5 + half of it): the index model's 1σ of about 20 units is larger than most differences between phases, so those differences count half"
             ),
             weight: Some(used - sep),
         },

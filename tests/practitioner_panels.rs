@@ -14,8 +14,11 @@ use serde_json::Value;
 /// Panels that passed when this floor was last raised (see docs/science.md).
 /// 49 on the advisor branch alone; 46 after merging the solvation-model GC indices and the
 /// identity work (ocp-2 phase, a hexachlorobiphenyl name and `lactose` now ambiguous): to be
-/// raised back by fixing those causes, never by editing expectations.
-const FLOOR: usize = 46;
+/// raised back by fixing those causes, never by editing expectations. 50 on the adv branch
+/// (issue 15, second pass): microspecies-aware logD sends the fluoroquinolones to reversed
+/// phase, the GC class rules fix the free acids, the organochlorine pesticides and the solvent
+/// screen; pcb and sugars fail only on ambiguous names (they pass with the structures given).
+const FLOOR: usize = 50;
 
 /// What "no detector named" is on the command line: nothing (the default `auto` chooses the
 /// detector from structure).

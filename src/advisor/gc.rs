@@ -322,12 +322,81 @@ pub fn candidate(
     }
     let rules = rules(profiles, phase);
     let rule_sum: f64 = rules.iter().filter_map(|r| r.weight).sum();
+    let (sep, uncertainty_reason) = separation_with_index_uncertainty(sep);
+    let (sep, shape_reason) = free_acid_peak_shape(profiles, phase, sep);
     reasons.push(detector_reason);
     reasons.push(sep_reason);
+    reasons.push(uncertainty_reason);
+    reasons.extend(shape_reason);
     reasons.extend(rules);
     rec.reasons = reasons;
     rec.score = (0.6 * sep + 0.4 * (0.5 + rule_sum)).clamp(0.0, 1.0);
     Ok(rec)
+}
+
+/// The separation part of a GC phase's score, with the index model's uncertainty: the critical
+/// resolution rests on predicted indices whose 1σ (about 20 index units) is larger than most
+/// differences between phases, so differences in predicted separation count half,
+/// s_used = 0.5 + 0.5·s, and the chemistry rules of the phase weigh as much as the prediction.
+/// A well-separated prediction keeps full marks, so a GC phase still competes with the other
+/// modes on equal terms; a weight on the prediction, not the co-elution probability, so that a
+/// less certain phase is never rewarded for its uncertainty (model:gc-index-uncertainty;
+/// common practice, no source).
+pub fn separation_with_index_uncertainty(sep: f64) -> (f64, Reason) {
+    let used = 0.5 + 0.5 * sep;
+    (
+        used,
+        Reason {
+            source: "model:gc-index-uncertainty".into(),
+            text: format!(
+                "predicted separation {sep:.2} counted as {used:.2} (0.5 + half of it): the index model's 1σ of about 20 units is larger than most differences between phases, so those differences count half"
+            ),
+            weight: Some(used - sep),
+        },
+    )
+}
+
+/// Share of analytes that are free carboxylic acids (GC-suitable as they are).
+fn free_acid_share(profiles: &[AnalyteProfile]) -> f64 {
+    profiles
+        .iter()
+        .filter(|p| p.gc_analyte().is_some_and(|a| a.n_carboxylic_acid > 0))
+        .count() as f64
+        / profiles.len().max(1) as f64
+}
+
+/// Free carboxylic acids adsorb on phases not deactivated for acids and give tailing peaks,
+/// so a resolution predicted for symmetric peaks overstates the separation there: on every
+/// phase but acid-modified polyethylene glycol the separation part is counted × (1 − 0.5 ×
+/// the share of free acids) (rule:gc-free-acids-tail; common practice, no source).
+pub fn free_acid_peak_shape(
+    profiles: &[AnalyteProfile],
+    phase: &StationaryPhase,
+    sep: f64,
+) -> (f64, Option<Reason>) {
+    let share = free_acid_share(profiles);
+    if share == 0.0 || phase.id() == "gc-wax-acid" {
+        return (sep, None);
+    }
+    let factor = 1.0 - 0.5 * share;
+    let used = sep * factor;
+    (
+        used,
+        Some(Reason {
+            source: "rule:gc-free-acids-tail".into(),
+            text: format!(
+                "{:.0} % of analytes are free carboxylic acids: they adsorb and tail on phases not deactivated for acids, so the predicted separation {sep:.2} (symmetric peaks) is counted as {used:.2} (x {factor:.2}); acid-modified polyethylene glycol is the phase for them (common practice, no source)",
+                share * 100.0
+            ),
+            weight: Some(used - sep),
+        }),
+    )
+}
+
+/// Share of analytes that are polyhalogenated (three or more halogen atoms): organochlorine
+/// pesticides, PCBs, halogenated volatiles.
+fn polyhalogenated_share(profiles: &[AnalyteProfile]) -> f64 {
+    profiles.iter().filter(|p| p.halogens() >= 3).count() as f64 / profiles.len().max(1) as f64
 }
 
 /// GC phase rules (common practice, no source).
@@ -362,6 +431,7 @@ fn rules(profiles: &[AnalyteProfile], phase: &StationaryPhase) -> Vec<Reason> {
     let gases = profiles
         .iter()
         .all(|p| p.tb_k.is_some_and(|(t, _)| t < 250.0));
+    let halogenated = polyhalogenated_share(profiles);
     let mut out = Vec::new();
     // listed with their weight, 0 included (see `lc::rules`)
     let mut rule = |s: &str, t: String, w: f64| {
@@ -379,6 +449,51 @@ fn rules(profiles: &[AnalyteProfile], phase: &StationaryPhase) -> Vec<Reason> {
         "gc-wax-acid" => rule("rule:gc-free-acids", "free carboxylic acids tail less on acid-modified polyethylene glycol".into(), if acids > 0 { 0.15 } else { -0.05 }),
         id if id.starts_with("gc-plot") => rule("rule:gc-porous-layer", "porous-layer phases are for permanent gases and very light analytes".into(), if gases { 0.3 } else { -0.3 }),
         _ => {}
+    }
+    // a volatile list (solvents, volatile screens) needs a thick film to be retained above
+    // ambient oven temperature; thick films for volatiles are made in the low-polarity
+    // polysiloxanes, 6 % cyanopropylphenyl and polyethylene glycol, while mid-polarity phenyl
+    // and cyanopropyl phases are made as thin films for semivolatiles
+    // (rule:gc-thick-film-volatiles; common practice, from memory)
+    if volatile && !gases {
+        let (w, what) = match phase.id() {
+            "gc-dimethyl" | "gc-6-cyanopropylphenyl" => (0.15, "made in thick films for volatiles"),
+            "gc-5-phenyl" => (0.1, "made in thick films for volatiles, less often"),
+            "gc-wax" => (0.0, "made in thick films for volatiles, less often"),
+            id if id.starts_with("gc-plot") => (0.0, "a porous layer"),
+            _ => (-0.1, "made mostly in thin films for semivolatiles"),
+        };
+        rule(
+            "rule:gc-thick-film-volatiles",
+            format!(
+                "every analyte boils below 420 K: a thick film (1-3 µm) retains them; this phase is {what}"
+            ),
+            w,
+        );
+    }
+    // semivolatile polyhalogenated analytes (organochlorine pesticides, PCBs): standard methods
+    // run them on a low-polarity 5 % phenyl (or 100 % dimethyl) column and confirm on a
+    // mid-polarity one (35 % phenyl, 14 % cyanopropylphenyl), which is the back-up's role
+    // (rule:gc-halogenated-semivolatiles; common practice for the standard methods of
+    // organochlorine pesticides and PCBs, from memory)
+    if halogenated >= 0.5 && !volatile {
+        let (w, role) = match phase.id() {
+            "gc-5-phenyl" => (0.4, "the usual first column"),
+            "gc-dimethyl" => (0.25, "a usual first column"),
+            "gc-35-phenyl" | "gc-14-cyanopropylphenyl" | "gc-50-phenyl" | "gc-trifluoropropyl" => (
+                0.0,
+                "a confirmation column (the back-up's role), not the first",
+            ),
+            _ => (-0.1, "not a usual column for them"),
+        };
+        rule(
+            "rule:gc-halogenated-semivolatiles",
+            format!(
+                "{:.0} % of analytes are polyhalogenated semivolatiles (organochlorine pesticides, PCBs): this phase is {role}; standard methods separate them on 5 % phenyl and confirm on a mid-polarity phase (from memory)",
+                halogenated * 100.0
+            ),
+            w,
+        );
     }
     out
 }

@@ -765,9 +765,16 @@ pub fn rules(
                 })
             })
             .count();
+        // very polar neutrals only: an analyte charged at the chosen pH (fluoroquinolone and
+        // tetracycline cations at low pH) is retained by ion pairing with the acid modifier,
+        // not by an aqueous-compatible phase
         let polar = profiles
             .iter()
-            .filter(|p| p.max_log_d(2.0, 8.0).is_some_and(|d| d < 0.0))
+            .filter(|p| {
+                p.max_log_d(2.0, 8.0).is_some_and(|d| d < 0.0)
+                    && crate::property::ionisation::fraction_neutral(&p.sites, ph)
+                        .is_ok_and(|f| f >= 0.5)
+            })
             .count() as f64
             / n;
         match id {

@@ -437,7 +437,7 @@ fn summary(p: &AnalyteProfile, ph: Option<f64>, mode: &str) -> AnalyteSummary {
                 value: d,
                 unit: String::new(),
                 kind: crate::property::PropertyKind::Estimated,
-                source: "logD = logP + log10(fraction neutral), independent sites (Henderson-Hasselbalch)".into(),
+                source: "logD from every microspecies: neutral at logP, zwitterion at logP - 2.5, ion pairs at logP - 2 per charge; independent sites (Henderson-Hasselbalch); property::ionisation::log_d_microspecies".into(),
                 licence: crate::property::estimate::LICENCE_COMPUTED.into(),
                 detail: String::new(),
                 origin: crate::property::Origin::Structure,
@@ -448,7 +448,7 @@ fn summary(p: &AnalyteProfile, ph: Option<f64>, mode: &str) -> AnalyteSummary {
                 ph,
                 net_charge_e: prof.mean_net_charge,
                 fraction_neutral: prof.fraction_neutral,
-                charge_state: format!("{:?}", prof.charge_state),
+                charge_state: crate::plain::words(&prof.charge_state),
                 log_d: p.log_d(ph),
                 near_pka: p.pkas().iter().any(|(k, _)| (k - ph).abs() < 1.5),
             });
@@ -827,12 +827,23 @@ fn cautions(
             });
         }
     };
-    for rec in std::iter::once(first).chain(backup.map(|b| &b.recommendation)) {
+    for (rec, is_backup) in
+        std::iter::once((first, false)).chain(backup.map(|b| (&b.recommendation, true)))
+    {
         let c = &rec.conditions;
         if let Some(m) = &c.modifier
             && let Ok(s) = catalogue.solvent(m)
         {
-            add("solvent", format!("{}: {}", s.name(), s.hazards()));
+            // a solvent only the back-up uses is said to be the back-up's (rule:solvent-hazards)
+            let whose = if is_backup && first.conditions.modifier.as_deref() != Some(m.as_str()) {
+                format!(
+                    " (the back-up's modifier, on {} [{}])",
+                    rec.phase.name, rec.phase.id
+                )
+            } else {
+                String::new()
+            };
+            add("solvent", format!("{}{whose}: {}", s.name(), s.hazards()));
         }
         if let Some(ph) = c.ph {
             if ph > 8.0 && !rec.phase.id.contains("hybrid") && !rec.phase.id.contains("pgc") {

@@ -298,17 +298,16 @@ impl AnalyteProfile {
         &self.analyte.name
     }
 
-    /// logD at a pH (estimated from logP and the ionisable sites; logP when no site).
+    /// logD at a pH for chromatographic decisions (estimated from logP and the ionisable
+    /// sites; logP when no site): microspecies-aware, so that every species partitions, a
+    /// zwitterion as an inner salt and a charged species as an ion pair
+    /// ([`ionisation::log_d_microspecies`] with [`ionisation::CHROMATOGRAPHIC_PARTITION`]);
+    /// a permanent charge counts as one charge.
     pub fn log_d(&self, ph: f64) -> Option<f64> {
         let (lp, _) = self.log_p?;
-        if self
-            .sites
-            .iter()
-            .any(|s| matches!(s.kind, SiteKind::PermanentAnion | SiteKind::PermanentCation))
-        {
-            return Some(lp - 4.0);
-        }
-        ionisation::log_d(lp, &self.sites, ph).ok().or(Some(lp))
+        ionisation::log_d_microspecies(lp, &self.sites, ph, &ionisation::CHROMATOGRAPHIC_PARTITION)
+            .ok()
+            .or(Some(lp))
     }
 
     /// The largest logD over a pH range (the best retention reversed phase can give).

@@ -14,6 +14,13 @@
 //! species partition with log P_ion = logP − Δ (Avdeef's "diff 3–4" rule of thumb for
 //! octanol/0.15 M KCl, from memory): logD = log10(f_n·10^logP + (1 − f_n)·10^(logP − Δ)).
 //! The floor is off unless asked for.
+//!
+//! **Microspecies-aware logD** ([`log_d_microspecies`]): every microspecies partitions, a
+//! zwitterion as an inner salt (logP − Δzw) and a net-charged species as an ion pair
+//! (logP − Δ·|z|), so that a zwitterion at its isoelectric pH is not treated like a doubly
+//! charged salt. The advisor's chromatographic decisions use it with
+//! [`CHROMATOGRAPHIC_PARTITION`]; the LC model's features still use the neutral fraction
+//! (`log10_fraction_neutral`).
 
 use serde::{Deserialize, Serialize};
 
@@ -466,6 +473,82 @@ pub fn log_d_with_ion_pair(
     Ok(log_p + inner)
 }
 
+/// How much less a charged microspecies partitions into the stationary phase than the neutral
+/// one, in log units below logP (used by [`log_d_microspecies`]).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct IonPartition {
+    /// Drop per unit of net charge of a net-charged microspecies (an ion pair with the
+    /// buffer's counter-ion): a species of net charge z partitions with logP − `per_charge`·|z|.
+    pub per_charge: f64,
+    /// Drop for a zwitterion (charged sites whose charges cancel: net charge 0): it partitions
+    /// as an inner salt, with logP − `zwitterion`, not as a doubly charged ion.
+    pub zwitterion: f64,
+}
+
+/// The partition drops used for chromatographic decisions (mode fit, pH choice): 2.0 log units
+/// per net charge, between the 1–1.5 log-unit drop in reversed-phase retention usually seen on
+/// full ionisation with an ion-pairing acid modifier (Snyder, Kirkland & Dolan, "Introduction
+/// to Modern Liquid Chromatography", Wiley 2010, ch. 7, from memory) and the 3–4 units of
+/// octanol/water ([`TYPICAL_ION_PAIR_DIFF_LOG`]); 2.5 log units for a zwitterion (glycine:
+/// Crippen logP of the neutral form about −1.0, measured logD about −3.2; norfloxacin: about
+/// 1.3 against a measured logP near −1.0 at its isoelectric pH; from memory).
+pub const CHROMATOGRAPHIC_PARTITION: IonPartition = IonPartition {
+    per_charge: 2.0,
+    zwitterion: 2.5,
+};
+
+/// Microspecies-aware logD at `ph`: every microspecies partitions, the neutral one with logP,
+/// a zwitterion (net charge 0 with charged sites) with logP − `zwitterion`, and a species of
+/// net charge z with logP − `per_charge`·|z|:
+/// logD = logP + log10(f_neutral + f_zwitterion·10^−Δzw + Σ_{z≠0} f_z·10^(−Δ·|z|)).
+/// The fractions come from the independent-site net-charge distribution ([`profile`]); the
+/// zwitterion fraction is the net-zero fraction less the neutral one. Unlike [`log_d`], a
+/// zwitterion at its isoelectric pH is not treated as a doubly charged salt, and a permanent
+/// charge is allowed. Never above logP, never below [`log_d`].
+///
+/// # Errors
+/// [`IonisationError::BadIonPairDiff`] for a negative or non-finite drop; otherwise as
+/// [`mean_net_charge`], plus [`IonisationError::BadLogP`].
+///
+/// # Examples
+/// ```
+/// use phasewise::property::ionisation::{log_d, log_d_microspecies, CHROMATOGRAPHIC_PARTITION};
+/// use phasewise::structure::{adapter::parse_smiles, ionisable::detect_sites};
+/// let sites = detect_sites(&parse_smiles("NCC(=O)O").unwrap().graph).unwrap(); // glycine
+/// // at pH 6 glycine is a zwitterion: the pH-partition value is far below logP - 2.5
+/// let d = log_d_microspecies(-1.0, &sites, 6.0, &CHROMATOGRAPHIC_PARTITION).unwrap();
+/// assert!((d - (-3.5)).abs() < 0.05);
+/// assert!(log_d(-1.0, &sites, 6.0).unwrap() < d - 2.0);
+/// ```
+pub fn log_d_microspecies(
+    log_p: f64,
+    sites: &[IonisableSite],
+    ph: f64,
+    partition: &IonPartition,
+) -> Result<f64, IonisationError> {
+    if !log_p.is_finite() {
+        return Err(IonisationError::BadLogP { value: log_p });
+    }
+    for d in [partition.per_charge, partition.zwitterion] {
+        if !d.is_finite() || d < 0.0 {
+            return Err(IonisationError::BadIonPairDiff { value: d });
+        }
+    }
+    let prof = profile(sites, ph)?;
+    let f_n = prof.fraction_neutral;
+    let mut sum = f_n;
+    for c in &prof.charge_distribution {
+        if c.charge == 0 {
+            sum += (c.fraction - f_n).max(0.0) * 10f64.powf(-partition.zwitterion);
+        } else {
+            sum += c.fraction * 10f64.powf(-partition.per_charge * f64::from(c.charge.abs()));
+        }
+    }
+    // the neutral term alone is the pH-partition value: never go below it (rounding)
+    let lf = log10_fraction_neutral(sites, ph)?;
+    Ok(log_p + sum.log10().max(lf).min(0.0))
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -588,6 +671,51 @@ mod tests {
         assert!(log_d_with_ion_pair(1.0, &s, 7.0, -1.0).is_err());
     }
 
+    #[test]
+    fn zwitterions_partition_as_inner_salts_not_as_doubly_charged_ions() {
+        // glycine-like: acid 2.35, base 9.78 (textbook values, from memory)
+        let s = [
+            site(SiteKind::Acid, Some(2.35)),
+            site(SiteKind::Base, Some(9.78)),
+        ];
+        let part = CHROMATOGRAPHIC_PARTITION;
+        // at the isoelectric pH nearly all is zwitterion: logD = logP - 2.5
+        let d = log_d_microspecies(-1.0, &s, 6.0, &part).expect("valid");
+        assert!((d - (-1.0 - part.zwitterion)).abs() < 0.01, "{d}");
+        // the pH-partition value treats it as if only the (tiny) neutral form partitioned
+        assert!(log_d(-1.0, &s, 6.0).expect("valid") < -7.0);
+        // at pH 0 the cation dominates: logP - 2.0 per charge
+        let c = log_d_microspecies(-1.0, &s, 0.0, &part).expect("valid");
+        assert!((c - (-1.0 - part.per_charge)).abs() < 0.05, "{c}");
+        // a neutral analyte is unchanged; a single base at low pH drops by 2 per charge
+        assert!((log_d_microspecies(3.0, &[], 7.0, &part).expect("valid") - 3.0).abs() < EPS);
+        let b = [site(SiteKind::Base, Some(9.5))];
+        let x = log_d_microspecies(3.0, &b, 2.0, &part).expect("valid");
+        assert!((x - 1.0).abs() < 1e-5, "{x}");
+        // a permanent cation is allowed (one charge), a betaine (permanent cation and ionised
+        // acid) partitions as a zwitterion
+        let q = [site(SiteKind::PermanentCation, None)];
+        assert!((log_d_microspecies(1.0, &q, 7.0, &part).expect("valid") + 1.0).abs() < EPS);
+        let betaine = [
+            site(SiteKind::PermanentCation, None),
+            site(SiteKind::Acid, Some(1.8)),
+        ];
+        let z = log_d_microspecies(1.0, &betaine, 7.0, &part).expect("valid");
+        assert!((z - (1.0 - part.zwitterion)).abs() < 0.01, "{z}");
+        assert!(
+            log_d_microspecies(
+                1.0,
+                &q,
+                7.0,
+                &IonPartition {
+                    per_charge: -1.0,
+                    zwitterion: 2.5
+                }
+            )
+            .is_err()
+        );
+    }
+
     proptest! {
         #[test]
         fn log_d_never_exceeds_log_p(
@@ -600,6 +728,10 @@ mod tests {
             prop_assert!(d <= log_p + EPS);
             let f = log_d_with_ion_pair(log_p, &s, ph, 3.5).expect("valid");
             prop_assert!(f <= log_p + EPS && f >= d - EPS && f >= log_p - 3.5 - EPS);
+            let m = log_d_microspecies(log_p, &s, ph, &CHROMATOGRAPHIC_PARTITION).expect("valid");
+            prop_assert!(m <= log_p + EPS && m >= d - EPS);
+            // no species partitions worse than the most charged one could
+            prop_assert!(m >= log_p - 2.0 * s.len().max(1) as f64 - 2.5 - EPS);
             let total: f64 = profile(&s, ph).expect("valid").charge_distribution.iter().map(|c| c.fraction).sum();
             prop_assert!((total - 1.0).abs() < 1e-9);
         }

@@ -1,0 +1,191 @@
+//! Issue 15, second pass: the advisor's class rules checked on class members other than the
+//! panels they were written from (tests/data/practitioner_panels.tsv). Each expectation names
+//! its source. Structures are given as `name=SMILES` where a name could be ambiguous, so that
+//! these tests check the rules, not name resolution.
+
+mod common;
+
+use common::Ctx;
+use serde_json::Value;
+
+fn advise(ctx: &Ctx, args: &[&str]) -> Value {
+    let mut all = vec!["advise", "--format", "json"];
+    all.extend_from_slice(args);
+    let out = ctx.run(&all);
+    assert!(
+        out.status.code().is_some_and(|c| c == 0),
+        "advise {args:?} failed: {}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    serde_json::from_slice(&out.stdout).expect("JSON")
+}
+
+fn first(r: &Value) -> (&str, &str, Option<f64>) {
+    let rec = &r["recommendations"][0];
+    (
+        rec["mode"].as_str().unwrap_or(""),
+        rec["phase"]["id"].as_str().unwrap_or(""),
+        rec["conditions"]["ph"].as_f64(),
+    )
+}
+
+/// Fluoroquinolones other than the panel's (common practice for quinolone residues, no source:
+/// reversed phase at low pH with an acid modifier). Before the microspecies-aware logD their
+/// zwitterion and cation counted as salts and the list went to HILIC.
+#[test]
+fn fluoroquinolones_go_to_reversed_phase_at_low_ph() {
+    let ctx = Ctx::new();
+    let r = advise(
+        &ctx,
+        &[
+            "ciprofloxacin=OC(=O)C1=CN(C2CC2)c2cc(N3CCNCC3)c(F)cc2C1=O",
+            "enrofloxacin=CCN1CCN(CC1)c1cc2N(C=C(C(O)=O)C(=O)c2cc1F)C1CC1",
+            "levofloxacin=C[C@H]1COc2c(N3CCN(C)CC3)c(F)cc3C(=O)C(=CN1c23)C(O)=O",
+        ],
+    );
+    let (mode, _, ph) = first(&r);
+    assert_eq!(mode, "rp");
+    assert!(ph.is_some_and(|p| p <= 3.5), "pH {ph:?}");
+    // the charge state is printed in plain words (no Rust enum name)
+    for a in r["analytes"].as_array().expect("analytes") {
+        let s = a["ionisation"]["charge_state"].as_str().unwrap_or("");
+        assert!(
+            [
+                "neutral",
+                "cationic",
+                "anionic",
+                "zwitterionic",
+                "permanently charged"
+            ]
+            .contains(&s),
+            "{s}"
+        );
+    }
+}
+
+/// Underivatised amino acids stay in HILIC (common practice, no source): the zwitterion's
+/// inner-salt partition (logP − 2.5) keeps them far too polar for reversed phase.
+#[test]
+fn amino_acids_stay_in_hilic() {
+    let ctx = Ctx::new();
+    let r = advise(&ctx, &["glycine", "alanine", "valine", "leucine"]);
+    assert_eq!(first(&r).0, "hilic");
+}
+
+/// Organochlorine pesticides other than the panels' (standard methods for organochlorine
+/// pesticides: 5 % phenyl first, a mid-polarity confirmation column; from memory).
+#[test]
+fn organochlorine_pesticides_go_to_five_percent_phenyl() {
+    let ctx = Ctx::new();
+    let r = advise(
+        &ctx,
+        &[
+            "p,p'-DDE=ClC1=CC=C(C=C1)C(=C(Cl)Cl)C1=CC=C(Cl)C=C1",
+            "p,p'-DDD=ClC(Cl)C(c1ccc(Cl)cc1)c1ccc(Cl)cc1",
+            "pentachlorobenzene=Clc1cc(Cl)c(Cl)c(Cl)c1Cl",
+            "alpha-chlordane=ClC1C=CC2(Cl)C1(Cl)C1(Cl)C(Cl)=C(Cl)C2(Cl)C1(Cl)Cl",
+        ],
+    );
+    let (mode, phase, _) = first(&r);
+    assert_eq!(mode, "gc");
+    assert!(["gc-5-phenyl", "gc-dimethyl"].contains(&phase), "{phase}");
+}
+
+/// Free carboxylic acids by GC (common practice, no source: acid-modified polyethylene glycol;
+/// they tail on other phases), on C5-C7 acids, not the panel's C2-C5.
+#[test]
+fn free_acids_by_gc_go_to_acid_modified_peg() {
+    let ctx = Ctx::new();
+    let r = advise(
+        &ctx,
+        &[
+            "--modes",
+            "gc",
+            "hexanoic acid=CCCCCC(=O)O",
+            "isovaleric acid=CC(C)CC(=O)O",
+            "2-methylbutanoic acid=CCC(C)C(=O)O",
+            "heptanoic acid=CCCCCCC(=O)O",
+        ],
+    );
+    assert_eq!(first(&r).1, "gc-wax-acid");
+    let reasons = r["recommendations"][1]["reasons"].to_string();
+    assert!(reasons.contains("rule:gc-free-acids-tail"), "{reasons}");
+}
+
+/// A residual-solvent screen other than the panels' (pharmacopoeial residual-solvent practice:
+/// a thick-film low-polarity or 6 % cyanopropylphenyl phase; from memory).
+#[test]
+fn a_solvent_screen_goes_to_a_thick_film_low_polarity_phase() {
+    let ctx = Ctx::new();
+    let r = advise(
+        &ctx,
+        &[
+            "tert-butyl methyl ether=COC(C)(C)C",
+            "2-propanol=CC(C)O",
+            "heptane=CCCCCCC",
+            "acetonitrile=CC#N",
+            "ethyl acetate=CCOC(C)=O",
+            "1-butanol=CCCCO",
+        ],
+    );
+    let (mode, phase, _) = first(&r);
+    assert_eq!(mode, "gc");
+    assert!(
+        ["gc-dimethyl", "gc-5-phenyl", "gc-6-cyanopropylphenyl"].contains(&phase),
+        "{phase}"
+    );
+}
+
+/// A modifier that only the back-up uses is named as the back-up's in the solvent caution
+/// (issue 15). Tricyclic antidepressants: first choice with acetonitrile, the phenyl-type
+/// back-up with methanol (checked, so that the test cannot pass vacuously).
+#[test]
+fn a_solvent_only_the_backup_uses_is_named_as_the_backups() {
+    let ctx = Ctx::new();
+    let r = advise(
+        &ctx,
+        &[
+            "amitriptyline",
+            "nortriptyline",
+            "imipramine",
+            "desipramine",
+            "doxepin",
+        ],
+    );
+    let m1 = r["recommendations"][0]["conditions"]["modifier"].as_str();
+    let m2 = r["backup"]["recommendation"]["conditions"]["modifier"].as_str();
+    assert!(m2.is_some() && m1 != m2, "modifiers {m1:?} / {m2:?}");
+    let m2 = m2.unwrap_or("");
+    let cautions = r["cautions"].as_array().expect("cautions");
+    let text: Vec<&str> = cautions
+        .iter()
+        .filter_map(|c| c["text"].as_str())
+        .filter(|t| t.to_lowercase().starts_with(m2))
+        .collect();
+    assert!(
+        text.iter().any(|t| t.contains("the back-up's modifier")),
+        "{text:?}"
+    );
+}
+
+/// Every reason names the rule or model it comes from (issue 15).
+#[test]
+fn every_reason_names_its_rule_or_model() {
+    let ctx = Ctx::new();
+    for list in [
+        vec!["caffeine", "theobromine", "theophylline"],
+        vec!["methanol", "ethanol", "acetone", "toluene"],
+        vec!["chloride", "nitrate", "sulfate"],
+    ] {
+        let r = advise(&ctx, &list);
+        for rec in r["recommendations"].as_array().expect("recs") {
+            for re in rec["reasons"].as_array().expect("reasons") {
+                let s = re["source"].as_str().unwrap_or("");
+                assert!(
+                    s.starts_with("rule:") || s.starts_with("model:") || s == "user",
+                    "{list:?}: reason without a rule or model: {re}"
+                );
+            }
+        }
+    }
+}

@@ -11,6 +11,7 @@
 
 pub mod detection;
 pub mod gc;
+pub mod gc_predict;
 pub mod ic;
 pub mod ionexcl;
 pub mod lc;

@@ -17,6 +17,9 @@ use crate::report::advice::ProgramStep;
 use crate::report::predict_gc::{GcPanelConditions, GcPanelPair, GcPanelPrediction, GcPanelReport};
 use crate::structure::volatility::{GcVerdict, Severity};
 
+/// Largest index the chosen oven program is asked to reach (the program model's limit).
+const MAX_PROGRAM_RI: f64 = 6000.0;
+
 /// What the user fixed for `predict --mode gc`.
 #[derive(Debug, Clone, Copy, Default)]
 pub struct GcPanelRequest {
@@ -155,10 +158,14 @@ pub fn predict_gc_panel(
                 .collect();
             let lo = ris.iter().copied().fold(f64::INFINITY, f64::min);
             let hi = ris.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+            // an extrapolated index beyond any program (a sugar on polyethylene glycol) must not
+            // stop the others: the range is clamped, and that analyte's row says it is outside
+            // the ladder
             let (lo, hi) = if ris.is_empty() {
                 (500.0, 1500.0)
             } else {
-                (lo, hi)
+                let lo = lo.clamp(100.0, MAX_PROGRAM_RI);
+                (lo, hi.clamp(lo, MAX_PROGRAM_RI))
             };
             let s = suggest_oven_program(lo, hi, phase, &column).map_err(|e| e.to_string())?;
             origin.push(format!(

@@ -1155,8 +1155,14 @@ fn predict_gc_gives_retention_index_time_and_flagged_pairs_under_a_given_oven_pr
     assert_eq!(preds.len(), 5);
     for p in preds {
         assert!(p["retention_index"].as_f64().is_some(), "{p}");
-        assert_eq!(p["path"], "retention-index");
+        assert_eq!(p["path"], "solvation model");
+        assert!(p["retention_index_low"].as_f64() < p["retention_index"].as_f64());
     }
+    // m-/p-xylene (predicted nearly identical) are the most probable co-elution (issue 18)
+    let top = &v["coelutions"][0];
+    let mut pair = [top["a"].as_str().unwrap(), top["b"].as_str().unwrap()];
+    pair.sort_unstable();
+    assert_eq!(pair, ["m-xylene", "p-xylene"], "{}", v["coelutions"]);
     // on a low-polarity phase m- and p-xylene are the classic co-eluting pair (common practice)
     assert!(
         v["coelutions"].as_array().unwrap().iter().any(|x| {
@@ -1182,6 +1188,18 @@ fn predict_gc_gives_retention_index_time_and_flagged_pairs_under_a_given_oven_pr
             "{p}"
         );
     }
+    // an analyte judged unsuitable for GC is still predicted when asked, with its caution, and
+    // the others are unaffected (issue 18; sugars need derivatisation: common practice)
+    let out = ctx.run(&[
+        "predict", "--mode", "gc", "--phase", "gc-wax", "--format", "json", "toluene", "sucrose",
+    ]);
+    assert!(out.status.success(), "{}", stderr(&out));
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    let rows = v["predictions"].as_array().unwrap();
+    assert_eq!(rows.len(), 2, "{v}");
+    let sucrose = rows.iter().find(|p| p["analyte"] != "toluene").unwrap();
+    assert!(sucrose["retention_index"].as_f64().is_some(), "{sucrose}");
+    assert!(sucrose["caution"].as_str().is_some(), "{sucrose}");
     // bad GC input names the value
     for (extra, want) in [
         (vec!["--oven", "40:2,10:x:5"], "`x`"),

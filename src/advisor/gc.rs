@@ -60,10 +60,102 @@ pub fn coelution_probability_ri(delta: f64, s1: f64, s2: f64) -> f64 {
 
 /// [`coelution_probability_ri`] with an explicit error correlation `rho` (0-1).
 pub fn coelution_probability_ri_with(delta: f64, s1: f64, s2: f64, rho: f64) -> f64 {
-    let rho = rho.clamp(0.0, 1.0);
+    coelution_probability_within(delta, s1, s2, rho, DELTA_RI)
+}
+
+/// Resolution below which two peaks are taken as co-eluting: at Rs = 1 two equal Gaussian
+/// peaks still overlap by about 2 % (common practice, no source).
+pub const RS_COELUTING: f64 = 1.0;
+
+/// Probability that two analytes predicted `delta` index units apart, with 1σ index errors
+/// `s1`, `s2` correlated by `rho`, are in truth closer than `resolvable_ri`, the index
+/// difference the column resolves at this point of the run (see [`resolvable_delta_ri`]; never
+/// below 5 units). The true difference is taken as normal around `delta` with
+/// sd = √(s1² + s2² − 2 ρ s1 s2), so the probability is highest at `delta` = 0 and falls
+/// monotonically with |`delta`| / sd: two analytes predicted at nearly the same index are the
+/// most likely pair to co-elute, whatever their individual uncertainty.
+pub fn coelution_probability_within(
+    delta: f64,
+    s1: f64,
+    s2: f64,
+    rho: f64,
+    resolvable_ri: f64,
+) -> f64 {
+    let rho = if rho.is_finite() {
+        rho.clamp(0.0, 1.0)
+    } else {
+        0.0
+    };
     let sd = (s1 * s1 + s2 * s2 - 2.0 * rho * s1 * s2).max(1.0).sqrt();
     let d = delta.abs();
-    (normal_cdf((DELTA_RI - d) / sd) - normal_cdf((-DELTA_RI - d) / sd)).clamp(0.0, 1.0)
+    let c = if resolvable_ri.is_finite() {
+        resolvable_ri.max(DELTA_RI)
+    } else {
+        DELTA_RI
+    };
+    (normal_cdf((c - d) / sd) - normal_cdf((-c - d) / sd)).clamp(0.0, 1.0)
+}
+
+/// The index difference that gives resolution [`RS_COELUTING`] around index `ri` on `ladder`
+/// for two peaks of half-height widths summing to `w_half_sum_min`:
+/// ΔI = Rs (w½,1 + w½,2) / 1.18 / (dt/dI), with dt/dI the local slope of the n-alkane ladder
+/// (100 index units between neighbouring alkanes). Never below 5 units; 5 when the slope
+/// cannot be read (index outside the ladder).
+pub fn resolvable_delta_ri(
+    ladder: &crate::model::gc::AlkaneLadder,
+    ri: f64,
+    w_half_sum_min: f64,
+) -> f64 {
+    let t = |x: f64| ladder.retention_time_min(x).ok();
+    let slope = [(ri - 50.0, ri + 50.0), (ri, ri + 50.0), (ri - 50.0, ri)]
+        .into_iter()
+        .find_map(|(a, b)| Some((t(b)? - t(a)?) / (b - a)))
+        .filter(|s| *s > 0.0 && s.is_finite());
+    match slope {
+        Some(s) if w_half_sum_min.is_finite() && w_half_sum_min > 0.0 => {
+            (RS_COELUTING * w_half_sum_min / 1.18 / s).max(DELTA_RI)
+        }
+        _ => DELTA_RI,
+    }
+}
+
+/// Whether every analyte boils below 420 K (a volatile panel: thick film, wide bore, headspace).
+fn all_volatile(profiles: &[AnalyteProfile]) -> bool {
+    profiles
+        .iter()
+        .all(|p| p.tb_k.is_some_and(|(t, _)| t < 420.0))
+}
+
+/// The advisor's column for the analytes on `phase`: 30 m, 0.25 mm with the phase's typical
+/// film, or 0.32 mm with a 1.4 µm film when every analyte is volatile (thicker film for
+/// volatile analytes; common practice, no source); helium at 35 cm/s.
+///
+/// # Errors
+/// The column model's message (a build defect).
+pub fn default_column(
+    profiles: &[AnalyteProfile],
+    phase: &StationaryPhase,
+) -> Result<GcColumn, String> {
+    let volatile = all_volatile(profiles);
+    let film = if volatile {
+        1.4
+    } else {
+        phase.gc().map_or(0.25, |g| g.typical_film_um())
+    };
+    GcColumn::new(30.0, if volatile { 0.32 } else { 0.25 }, film, 35.0).map_err(|e| e.to_string())
+}
+
+/// Plate number of an open tube: N ≈ L / h with h ≈ the column diameter (Golay optimum, rule of
+/// thumb).
+pub fn plate_number(column: &GcColumn) -> f64 {
+    column.length_m() * 1.0e3 / column.inner_diameter_mm()
+}
+
+/// Predicted half-height width, min, of a peak eluting at `t_min` on `column`: the isothermal
+/// relation σ = tR / √N (Purnell; Snyder, Kirkland & Dolan 2010 ch. 2), w½ = 2.355 σ, widened
+/// by `PEAK_WIDTH_ALLOWANCE` (see there).
+pub fn peak_width_half_min(t_min: f64, column: &GcColumn) -> f64 {
+    2.355 * t_min.max(0.5) / plate_number(column).sqrt() * PEAK_WIDTH_ALLOWANCE
 }
 
 /// Build the candidate for one GC phase.
@@ -109,20 +201,11 @@ pub fn candidate(
             not_predicted.join("; ")
         ));
     }
-    let volatile = profiles
-        .iter()
-        .all(|p| p.tb_k.is_some_and(|(t, _)| t < 420.0));
-    // thicker film for volatile analytes (common practice, no source)
-    let film = if volatile {
-        1.4
-    } else {
-        phase.gc().map_or(0.25, |g| g.typical_film_um())
-    };
+    let volatile = all_volatile(profiles);
     let fixed = req.fixed_gc.as_ref();
     let column = match fixed.and_then(|f| f.column) {
         Some(c) => c,
-        None => GcColumn::new(30.0, if volatile { 0.32 } else { 0.25 }, film, 35.0)
-            .map_err(|e| e.to_string())?,
+        None => default_column(profiles, phase)?,
     };
     let film = column.film_um();
     let ri_min = ris
@@ -144,9 +227,7 @@ pub fn candidate(
         None => suggest_oven_program(ri_min, ri_max, phase, &column).map_err(|e| e.to_string())?,
     };
     let ladder = alkane_ladder(phase, &column, &oven.program).map_err(|e| e.to_string())?;
-    // plate number of an open tube: N ≈ L / h with h ≈ column diameter (Golay optimum, rule of
-    // thumb)
-    let n_plates = 30.0e3 / column.inner_diameter_mm();
+    let n_plates = plate_number(&column);
     let mut preds = Vec::new();
     let mut sig = Vec::new();
     let mut formulas: Vec<Option<String>> = Vec::new();
@@ -155,9 +236,7 @@ pub fn candidate(
             not_predicted.push(format!("{}: outside the alkane ladder", p.name()));
             continue;
         };
-        // isothermal relation σ = tR / √N (Purnell; SKD 2010 ch. 2), w½ = 2.355 σ, widened by
-        // PEAK_WIDTH_ALLOWANCE (see there)
-        let w_half = 2.355 * t.retention_time_min.max(0.5) / n_plates.sqrt() * PEAK_WIDTH_ALLOWANCE;
+        let w_half = peak_width_half_min(t.retention_time_min, &column);
         preds.push(PredictionRow {
             analyte: p.name().to_string(),
             retention_time_min: t.retention_time_min,
@@ -199,20 +278,30 @@ pub fn candidate(
             } else {
                 ERROR_CORRELATION
             };
-            let prob = coelution_probability_ri_with(sig[i].1 - sig[j].1, sig[i].2, sig[j].2, rho);
-            if prob > 0.01 {
-                let (a, b) = if sig[i].1 <= sig[j].1 { (i, j) } else { (j, i) };
-                let pa = preds.iter().find(|p| p.analyte == sig[a].0).cloned();
-                let pb = preds.iter().find(|p| p.analyte == sig[b].0).cloned();
-                if let (Some(pa), Some(pb)) = (pa, pb) {
-                    let note = (sig[a].1 - sig[b].1).abs().lt(&DELTA_RI).then(|| {
-                        format!(
-                            "predicted retention indices {:.0} and {:.0} on this phase",
-                            sig[a].1, sig[b].1
-                        )
-                    });
-                    coelutions.push(coelution(&pa, &pb, prob, note));
-                }
+            let (a, b) = if sig[i].1 <= sig[j].1 { (i, j) } else { (j, i) };
+            let pa = preds.iter().find(|p| p.analyte == sig[a].0).cloned();
+            let pb = preds.iter().find(|p| p.analyte == sig[b].0).cloned();
+            // what this column resolves at this point of the run, from the predicted widths
+            let w_sum = pa.as_ref().map_or(0.0, |p| p.peak_width_half_min)
+                + pb.as_ref().map_or(0.0, |p| p.peak_width_half_min);
+            let resolvable = resolvable_delta_ri(&ladder, 0.5 * (sig[i].1 + sig[j].1), w_sum);
+            let prob = coelution_probability_within(
+                sig[i].1 - sig[j].1,
+                sig[i].2,
+                sig[j].2,
+                rho,
+                resolvable,
+            );
+            if prob > 0.01
+                && let (Some(pa), Some(pb)) = (pa, pb)
+            {
+                let note = (sig[a].1 - sig[b].1).abs().lt(&DELTA_RI).then(|| {
+                    format!(
+                        "predicted retention indices {:.0} and {:.0} on this phase",
+                        sig[a].1, sig[b].1
+                    )
+                });
+                coelutions.push(coelution(&pa, &pb, prob, note));
             }
         }
     }
@@ -513,6 +602,64 @@ mod tests {
                 last = p;
             }
         }
+    }
+
+    proptest::proptest! {
+        /// Property: the co-elution probability is bounded, highest for identical predictions,
+        /// never rises as the predictions move apart (in units of the difference's sd), and
+        /// never falls when the errors are more strongly shared (isomers).
+        #[test]
+        fn coelution_probability_is_monotone_in_the_index_difference(
+            d1 in 0.0f64..200.0,
+            step in 0.0f64..50.0,
+            s1 in 0.0f64..80.0,
+            s2 in 0.0f64..80.0,
+            rho in 0.0f64..1.0,
+            c in 0.0f64..60.0,
+        ) {
+            let near = coelution_probability_within(d1, s1, s2, rho, c);
+            let far = coelution_probability_within(d1 + step, s1, s2, rho, c);
+            let same = coelution_probability_within(0.0, s1, s2, rho, c);
+            proptest::prop_assert!((0.0..=1.0).contains(&near));
+            proptest::prop_assert!(far <= near + 1e-12, "p({}) = {far} > p({d1}) = {near}", d1 + step);
+            proptest::prop_assert!(same + 1e-12 >= near);
+            // sign of the difference does not matter
+            let neg = coelution_probability_within(-d1, s1, s2, rho, c);
+            proptest::prop_assert!((neg - near).abs() < 1e-12);
+            // a wider resolvable difference (broader peaks) never lowers the probability
+            let wider = coelution_probability_within(d1, s1, s2, rho, c + step);
+            proptest::prop_assert!(wider + 1e-12 >= near);
+        }
+    }
+
+    /// m- and p-xylene on a low-polarity polysiloxane: reference indices 864 and 862 on
+    /// dimethylpolysiloxane (from memory, tests/data/gc_ri_reference.tsv), the classic unresolved
+    /// pair (common practice). Predicted 3 units apart on a 30 m x 0.25 mm column at 10 C/min,
+    /// they must be the most probable co-elution of the xylene panel, well above a pair 9 units
+    /// apart (ethylbenzene / p-xylene) and far above a pair 25 units apart (o-xylene / m-xylene).
+    #[test]
+    fn the_xylene_pair_predicted_nearly_identical_gets_the_highest_probability() {
+        use crate::model::gc::OvenProgram;
+        let phase = Catalogue::builtin()
+            .and_then(|c| c.phase("gc-5-phenyl"))
+            .unwrap();
+        let column = GcColumn::new(30.0, 0.25, 0.25, 35.0).unwrap();
+        let program = OvenProgram::new(40.0, 2.0, 10.0, 250.0, 5.0).unwrap();
+        let ladder = alkane_ladder(phase, &column, &program).unwrap();
+        let width = |ri: f64| peak_width_half_min(ladder.retention_time_min(ri).unwrap(), &column);
+        let prob = |a: f64, b: f64| {
+            let c = resolvable_delta_ri(&ladder, 0.5 * (a + b), width(a) + width(b));
+            assert!((DELTA_RI..60.0).contains(&c), "resolvable {c}");
+            coelution_probability_within(a - b, 25.0, 25.0, ISOMER_ERROR_CORRELATION, c)
+        };
+        let mp = prob(898.0, 901.0);
+        let ep = prob(889.0, 898.0);
+        let om = prob(901.0, 926.0);
+        assert!(mp >= 0.8, "m/p-xylene {mp}");
+        assert!(mp > ep && ep > om, "{mp} {ep} {om}");
+        assert!(om < 0.35, "o/m-xylene {om}");
+        // two analytes a full alkane apart are no risk
+        assert!(prob(800.0, 900.0) < 0.01);
     }
 
     #[test]

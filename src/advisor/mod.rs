@@ -12,6 +12,7 @@
 pub mod calibrants;
 pub mod detection;
 pub mod gc;
+pub mod gc_predict;
 pub mod ic;
 pub mod ionexcl;
 pub mod lc;

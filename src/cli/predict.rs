@@ -7,7 +7,10 @@ use std::process::ExitCode;
 use anyhow::{Context, Result, bail};
 use clap::Args;
 
-use phasewise::advisor::{FixedGc, FixedLc};
+use phasewise::advisor::FixedLc;
+use phasewise::advisor::gc_predict::{GcPanelRequest, predict_gc_panel};
+use phasewise::advisor::profile::AnalyteProfile;
+use phasewise::kb::Access;
 use phasewise::model::gc::OvenProgram;
 use phasewise::model::gradient::GradientProgram;
 use phasewise::phase::{Catalogue, PhaseMode, StationaryPhase};
@@ -17,7 +20,8 @@ use phasewise::report::predict::PredictionOutput;
 use super::Cli;
 use super::advising::{AdviseOptions, Fixed, advice};
 use super::exit::success_unless_partial;
-use super::input::{AnalyteInput, parse_gc_column};
+use super::input::{AnalyteInput, parse_gc_column, read_analytes};
+use super::knowledge::{open_kb, resolve_all};
 use super::output::{OutputFormat, write_out};
 
 /// `predict` options.
@@ -111,7 +115,7 @@ pub fn run(cli: &Cli, a: &PredictArgs) -> Result<ExitCode> {
         ("--gradient", a.gradient.is_some()),
         ("--ph", a.ph.is_some()),
         ("--modifier", a.modifier.is_some()),
-        ("--t0", a.t0.is_some()),
+        ("--t0", a.t0.is_some() && mode != PhaseMode::Gc),
         ("--flow", a.flow.is_some()),
         ("--particle", a.particle.is_some()),
         ("--dwell", a.dwell != 0.0),
@@ -123,7 +127,7 @@ pub fn run(cli: &Cli, a: &PredictArgs) -> Result<ExitCode> {
                 "{name} is an LC option; for {} give {}",
                 mode.as_str(),
                 if mode == PhaseMode::Gc {
-                    "--oven and --column LENGTH_MxID_MMxFILM_UM"
+                    "--oven, --column LENGTH_MxID_MMxFILM_UM and --t0"
                 } else {
                     "only the analytes, --phase and --risk"
                 }
@@ -187,7 +191,18 @@ pub fn run(cli: &Cli, a: &PredictArgs) -> Result<ExitCode> {
             .as_deref()
             .map(|c| parse_gc_column(c, 35.0))
             .transpose()?;
-        (None, Some(FixedGc { column, oven }))
+        // every analyte on the one phase, each with its own note (model::gc::panel)
+        return predict_gc(
+            cli,
+            a,
+            phase,
+            GcPanelRequest {
+                column,
+                oven,
+                dead_time_min: a.t0,
+                risk: a.risk,
+            },
+        );
     } else {
         (None, None)
     };
@@ -245,6 +260,36 @@ pub fn run(cli: &Cli, a: &PredictArgs) -> Result<ExitCode> {
     };
     write_out(&output.render(a.format.into())?)?;
     Ok(success_unless_partial(partial))
+}
+
+/// `predict --mode gc`: resolve, profile, predict the panel (`advisor::gc_predict`), render.
+fn predict_gc(
+    cli: &Cli,
+    a: &PredictArgs,
+    phase: &StationaryPhase,
+    req: GcPanelRequest,
+) -> Result<ExitCode> {
+    if !(0.0..=1.0).contains(&a.risk) {
+        bail!("--risk {}: must be between 0 and 1", a.risk);
+    }
+    let queries = read_analytes(&a.input)?;
+    let kb = open_kb(cli, Access::Read)?;
+    let (found, missing) = resolve_all(&kb, &queries)?;
+    if found.is_empty() {
+        bail!(
+            "none of the analytes resolved: {}",
+            missing
+                .iter()
+                .map(|u| format!("`{}` ({})", u.query, u.reason))
+                .collect::<Vec<_>>()
+                .join(", ")
+        );
+    }
+    let profiles: Vec<AnalyteProfile> = found.into_iter().map(AnalyteProfile::new).collect();
+    let mut report = predict_gc_panel(&profiles, phase, &req).map_err(|e| anyhow::anyhow!(e))?;
+    report.unresolved = missing;
+    write_out(&report.render(a.format.into())?)?;
+    Ok(success_unless_partial(report.partial()))
 }
 
 /// The fixed LC conditions of `predict --mode rp|hilic`, checked.

@@ -13,6 +13,7 @@ pub mod measured;
 pub mod phases;
 pub mod plan;
 pub mod predict;
+pub mod predict_gc;
 pub mod table;
 
 use serde::{Deserialize, Serialize};

@@ -193,6 +193,21 @@ pub struct RetentionIndexPrediction {
     pub path: String,
 }
 
+impl RetentionIndexPrediction {
+    /// The route of the index in a few words, for reports: `n-alkane` (100 n by definition),
+    /// `solvation model`, `boiling-point route` (also when the boiling-point route stood in
+    /// for a structure the solvation route could not type).
+    pub fn route(&self) -> &'static str {
+        if self.path.starts_with("n-alkane") {
+            "n-alkane"
+        } else if self.path.starts_with("solvation") {
+            "solvation model"
+        } else {
+            "boiling-point route"
+        }
+    }
+}
+
 pub(super) fn gc_constants(phase: &StationaryPhase) -> Result<&McReynoldsConstants, GcError> {
     if phase.mode() != PhaseMode::Gc {
         return Err(GcError::NotGcPhase {

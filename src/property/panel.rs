@@ -52,7 +52,7 @@ fn identity(a: &Analyte) -> Option<(String, String)> {
 }
 
 /// Merge the entries of a panel that are the same molecule: the first keeps its record and
-/// takes every label (`Impurity A / Main peak`); the rest are dropped. Returns the panel in
+/// takes every label (`Impurity A = Main peak`); the rest are dropped. Returns the panel in
 /// list order and one [`Merged`] per compound given more than once.
 pub fn merge_same_compounds(analytes: Vec<Analyte>) -> (Vec<Analyte>, Vec<Merged>) {
     let mut out: Vec<Analyte> = Vec::with_capacity(analytes.len());
@@ -87,7 +87,7 @@ pub fn merge_same_compounds(analytes: Vec<Analyte>) -> (Vec<Analyte>, Vec<Merged
         }
         let given: Vec<String> = ls.into_iter().filter(|l| !l.is_empty()).collect();
         if given.len() > 1 {
-            let joined = given.join(" / ");
+            let joined = given.join(" = ");
             // keep the resolved name visible when every label is only that name
             a.query = if given.iter().all(|l| *l == a.name) {
                 a.name.clone()
@@ -160,10 +160,10 @@ mod tests {
             ),
         ]);
         assert_eq!(out.len(), 2);
-        assert_eq!(out[0].query, "Impurity A / Main peak");
+        assert_eq!(out[0].query, "Impurity A = Main peak");
         assert_eq!(
             out[0].display_name(),
-            "Impurity A / Main peak (acetaminophen)"
+            "Impurity A = Main peak (acetaminophen)"
         );
         assert_eq!(merged.len(), 1);
         let note = merged[0].note();

@@ -34,10 +34,10 @@ fn check(kb: &Kb, query: &str, panel: &str, expect: &str) -> Result<(), String> 
     let (kind, smiles) = expect.split_once(':').unwrap_or((expect, ""));
     match (kind, r) {
         ("ambiguous", Resolution::Unresolved(u)) if u.reason.starts_with("ambiguous") => {
-            if u.suggestions.len() >= 2 {
+            if u.candidates.len() >= 2 {
                 Ok(())
             } else {
-                Err(format!("ambiguous with {} candidates", u.suggestions.len()))
+                Err(format!("ambiguous with {} candidates", u.candidates.len()))
             }
         }
         ("ambiguous", other) => Err(format!("not reported ambiguous: {other:?}")),

@@ -475,6 +475,7 @@ fn summary(p: &AnalyteProfile, ph: Option<f64>, mode: &str) -> AnalyteSummary {
     };
     AnalyteSummary {
         query: p.analyte.query.clone(),
+        label: p.analyte.label().map(str::to_string),
         name: p.analyte.name.clone(),
         inchikey: p.analyte.inchikey.clone(),
         smiles: p.analyte.smiles.clone(),

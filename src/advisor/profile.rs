@@ -136,6 +136,9 @@ pub struct AnalyteProfile {
     pub ion: Option<IonMatch>,
     /// The strongest UV chromophore of the structure (`None` without a structure).
     pub chromophore: Option<ChromophoreClass>,
+    /// The name shown in every table: the user's label first, then the resolved name
+    /// ([`Analyte::display_name`]).
+    display: String,
 }
 
 impl AnalyteProfile {
@@ -276,6 +279,7 @@ impl AnalyteProfile {
                 && (!carbon || molar_mass_g_mol.is_some_and(|m| m < 90.0)));
         let formal_charge = ion.as_ref().map_or(formal_charge, |i| i32::from(i.charge));
         let chromophore = est.as_ref().map(|e| classify(&e.graph));
+        let analyte_display = analyte.display_name();
         AnalyteProfile {
             analyte,
             estimate: est,
@@ -290,12 +294,14 @@ impl AnalyteProfile {
             notes,
             ion,
             chromophore,
+            display: analyte_display,
         }
     }
 
-    /// Display name.
+    /// Display name: the user's label first, then the resolved name (`Impurity A
+    /// (acetaminophen)`); the resolved name alone when the user gave no label of their own.
     pub fn name(&self) -> &str {
-        &self.analyte.name
+        &self.display
     }
 
     /// logD at a pH for chromatographic decisions (estimated from logP and the ionisable

@@ -130,6 +130,8 @@ pub fn advice(cli: &Cli, o: &AdviseOptions, fixed: Option<Fixed>) -> Result<(Adv
     let queries = read_analytes(&o.input)?;
     let kb = open_kb(cli, Access::Read)?;
     let (found, missing) = resolve_all(&kb, &queries)?;
+    // the same molecule under two labels is one analyte, said so in the warnings
+    let (found, merged) = phasewise::property::panel::merge_same_compounds(found);
     let partial = !missing.is_empty();
     let stored_fits = stored_fits(&kb, &found)?;
     let profiles: Vec<AnalyteProfile> = found.into_iter().map(AnalyteProfile::new).collect();
@@ -159,6 +161,8 @@ pub fn advice(cli: &Cli, o: &AdviseOptions, fixed: Option<Fixed>) -> Result<(Adv
         stored_fits,
         no_memory: o.no_memory,
     };
-    let report = advise(&profiles, missing, &req)?;
+    let mut report = advise(&profiles, missing, &req)?;
+    let notes = merged.iter().map(phasewise::property::panel::Merged::note);
+    report.warnings.splice(0..0, notes);
     Ok((report, partial))
 }

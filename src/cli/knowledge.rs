@@ -72,13 +72,17 @@ pub fn open_kb(cli: &Cli, access: Access) -> Result<Kb> {
     Ok(kb)
 }
 
-/// Resolve every entry; structure-only SMILES become analytes with no stored properties
-/// (named by the list's `name` cell when it has one).
+/// Resolve every entry as one panel ([`Kb::resolve_panel`]: element names in a panel of ions
+/// are the ions); structure-only SMILES become analytes with no stored properties (named by
+/// the list's `name` cell when it has one). A table's `name` cell is kept as the analyte's
+/// label (`query`).
 pub fn resolve_all(kb: &Kb, entries: &[ListEntry]) -> Result<(Vec<Analyte>, Vec<Unresolved>)> {
     let mut found = Vec::new();
     let mut missing = Vec::new();
-    for e in entries {
-        match kb.resolve(&e.query)? {
+    let queries: Vec<&str> = entries.iter().map(|e| e.query.as_str()).collect();
+    let resolved = kb.resolve_panel(&queries)?;
+    for (e, r) in entries.iter().zip(resolved) {
+        match r {
             Resolution::Found(mut a) => {
                 if let Some(l) = &e.label {
                     a.query = l.clone();

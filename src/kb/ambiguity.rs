@@ -11,26 +11,15 @@
 //!   a glutamate-receptor agonist and the glyphosate metabolite aminomethylphosphonic acid).
 //!
 //! Otherwise the skeleton holding the name at the best rank wins (a preferred name beats a
-//! synonym). An ambiguous name is reported with its candidates; `label=SMILES`, a CAS
+//! synonym). Records that are ring and open-chain forms of one sugar (glucopyranose and
+//! open-chain glucose, lactose and its open-chain record) have different skeletons but the
+//! same ring-chain key (`structure::canon::ring_chain_key`): they are one compound, and the
+//! cyclic form is used, said so. An ambiguous name is reported with its candidates; `label=SMILES`, a CAS
 //! number or a PubChem CID settles it. Common practice, no source.
 
 use rusqlite::{Connection, params};
-use serde::{Deserialize, Serialize};
 
-/// One compound a name could mean.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
-pub struct Candidate {
-    /// The compound's preferred name.
-    pub name: String,
-    /// CAS number, when known.
-    pub cas: Option<String>,
-    /// PubChem CID, when known.
-    pub cid: Option<i64>,
-    /// SMILES as stored.
-    pub smiles: Option<String>,
-    /// How the name is held: `preferred name`, `systematic name` or `synonym`.
-    pub held_as: String,
-}
+pub use crate::property::unresolved::Candidate;
 
 struct Row {
     id: i64,
@@ -57,12 +46,12 @@ fn rows(conn: &Connection, norm: &str) -> rusqlite::Result<Vec<Row>> {
         )?
         .exists([])?;
     let sql = if has_keys {
-        "SELECT c.id, min(n.rank), coalesce(k.skeleton, 'id:' || c.id), c.preferred_name, c.cas, c.cid, c.smiles
+        "SELECT c.id, min(n.rank), coalesce(k.skeleton, 'id:' || c.id), c.preferred_name, c.cas, c.cid, c.smiles, c.inchikey
          FROM name n JOIN compound c ON c.id = n.compound_id
          LEFT JOIN structure_key k ON k.compound_id = c.id
          WHERE n.norm = ?1 GROUP BY c.id ORDER BY min(n.rank), c.cid IS NULL, c.cid, c.id LIMIT 50"
     } else {
-        "SELECT c.id, min(n.rank), 'id:' || c.id, c.preferred_name, c.cas, c.cid, c.smiles
+        "SELECT c.id, min(n.rank), 'id:' || c.id, c.preferred_name, c.cas, c.cid, c.smiles, c.inchikey
          FROM name n JOIN compound c ON c.id = n.compound_id
          WHERE n.norm = ?1 GROUP BY c.id ORDER BY min(n.rank), c.cid IS NULL, c.cid, c.id LIMIT 50"
     };
@@ -79,6 +68,7 @@ fn rows(conn: &Connection, norm: &str) -> rusqlite::Result<Vec<Row>> {
                     cas: r.get(4)?,
                     cid: r.get(5)?,
                     smiles: r.get(6)?,
+                    inchikey: r.get(7)?,
                     held_as: match rank {
                         0 => "preferred name",
                         1 => "systematic name",
@@ -99,8 +89,79 @@ pub enum NameDecision {
     None,
     /// One compound (the row id of the best record of the winning skeleton).
     One(i64),
+    /// One sugar held as several forms (ring and open chain, anomers): the row id of the
+    /// common form and the sentence that says so.
+    CommonForm {
+        /// Row id of the record used.
+        id: i64,
+        /// What the base holds and which form is used.
+        note: String,
+    },
     /// Several different compounds: one candidate per skeleton, best first.
     Ambiguous(Vec<Candidate>),
+}
+
+/// A record's ring-chain key (`structure::canon::ring_chain_key`) and whether it is a cyclic
+/// form (a hemiacetal opened); the skeleton key when the SMILES does not parse.
+fn ring_chain_family(r: &Row) -> (String, bool) {
+    r.candidate
+        .smiles
+        .as_deref()
+        .and_then(|s| crate::structure::parse_smiles(s).ok())
+        .map(|p| {
+            let (k, opened) = crate::structure::canon::ring_chain_key(&p.graph);
+            (k, opened > 0)
+        })
+        .unwrap_or_else(|| (r.skeleton.clone(), false))
+}
+
+/// Rank of a name as [`super::resolve`] orders it (a stereoisomer's name without descriptor,
+/// rank 3, counts as a preferred name).
+fn effective_rank(rank: i64) -> i64 {
+    if rank == 3 { 0 } else { rank }
+}
+
+/// When the records holding a name differ only as ring and open-chain forms of one sugar
+/// (or its anomers), the common form: a cyclic record (sugars are cyclic hemiacetals in
+/// solution, over 99 % for the aldohexoses; common practice, no source), best-ranked, with
+/// stereo before without, lowest CID. `None` when the records are more than one compound
+/// or none is cyclic.
+fn common_form(raw: &str, rows: &[Row]) -> Option<NameDecision> {
+    let families: Vec<(String, bool)> = rows.iter().map(ring_chain_family).collect();
+    if families.iter().any(|f| f.0 != families[0].0) || !families.iter().any(|f| f.1) {
+        return None;
+    }
+    let best = rows
+        .iter()
+        .zip(&families)
+        .filter(|(_, f)| f.1)
+        .min_by_key(|(r, _)| {
+            (
+                effective_rank(r.rank),
+                !r.candidate
+                    .smiles
+                    .as_deref()
+                    .is_some_and(|s| s.contains('@')),
+                r.candidate.cid.unwrap_or(i64::MAX),
+                r.id,
+            )
+        })?
+        .0;
+    let mut others: Vec<&str> = Vec::new();
+    for r in rows.iter().filter(|r| r.skeleton != best.skeleton) {
+        if !others.contains(&r.candidate.name.as_str()) {
+            others.push(&r.candidate.name);
+        }
+    }
+    Some(NameDecision::CommonForm {
+        id: best.id,
+        note: format!(
+            "`{}` is held by ring and open-chain forms of one sugar (also {}); the cyclic form `{}` is used, as sugars are cyclic in solution",
+            raw.trim(),
+            others.join(", "),
+            best.candidate.name
+        ),
+    })
 }
 
 /// Decide what `norm` (a normalised name; `raw` as typed) denotes in `conn`.
@@ -121,6 +182,9 @@ pub fn decide(conn: &Connection, raw: &str, norm: &str) -> rusqlite::Result<Name
     }
     if groups.len() == 1 {
         return Ok(NameDecision::One(first.id));
+    }
+    if let Some(d) = common_form(raw, &rows) {
+        return Ok(d);
     }
     let best = groups.iter().map(|g| g.1).min().unwrap_or(0);
     let at_best = groups.iter().filter(|g| g.1 == best).count();

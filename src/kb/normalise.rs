@@ -1,7 +1,9 @@
 //! Name normalisation for matching what a chemist types against names and synonyms.
 //!
 //! Two spellings match when they differ only in case, Greek letters written as symbols or
-//! words (`α` = `alpha`), punctuation and white space. A leading stereo descriptor (`(R)-`,
+//! words (`α` = `alpha`), punctuation and white space; the prime of a locant (`4'`, `4′`)
+//! is kept, since `2,2',3,4,4',5'-` and `2,2',3,4,4',5-hexachlorobiphenyl` are different
+//! congeners. A leading stereo descriptor (`(R)-`,
 //! `(S)-`, `(+)-`, `(-)-`, `(±)-`, `rac-`, `dl-`, `d-`, `l-`) is kept by [`normalise_name`]:
 //! `L-alanine` and `D-alanine` are different analytes (issue 13). [`normalise_name_stereo_free`]
 //! drops it; the knowledge base stores that form too (rank 3), so that a name whose stereo
@@ -99,10 +101,20 @@ fn normalise(name: &str, drop_stereo: bool) -> String {
             out.push_str("mu");
         } else if c.is_alphanumeric() {
             out.push(c);
+        } else if PRIMES.contains(&c) && out.ends_with(|p: char| p.is_ascii_digit() || p == '\'') {
+            // a primed locant (`2,2',4,4'-`) names another position than the unprimed one:
+            // PCB, PBDE and other biphenyl congeners differ only there
+            out.push('\'');
+            if c == '″' {
+                out.push('\'');
+            }
         }
     }
     out
 }
+
+/// Characters written as the prime of a locant (`4'`, `4′`, `4’`, `4″` for a double prime).
+const PRIMES: &[char] = &['\'', '′', '’', '‘', 'ʹ', '`', '´', '″'];
 
 #[cfg(test)]
 mod tests {
@@ -140,11 +152,34 @@ mod tests {
         );
     }
 
+    #[test]
+    fn primed_locants_are_kept() {
+        // PCB 138 and PCB 137 (Ballschmiter & Zell numbering; from memory)
+        assert_ne!(
+            normalise_name("2,2',3,4,4',5'-hexachlorobiphenyl"),
+            normalise_name("2,2',3,4,4',5-hexachlorobiphenyl")
+        );
+        // the prime written as ′ or ’ is the same prime
+        assert_eq!(
+            normalise_name("2,2′,4,4′-tetrabromodiphenyl ether"),
+            normalise_name("2,2',4,4'-Tetrabromodiphenyl ether")
+        );
+        assert_eq!(
+            normalise_name("2,2’,4,4’-tetrabromodiphenyl ether"),
+            normalise_name("2,2',4,4'-tetrabromodiphenyl ether")
+        );
+        assert_eq!(normalise_name("2″-chloro"), normalise_name("2''-chloro"));
+        // an apostrophe after a letter is punctuation
+        assert_eq!(normalise_name("Bayer's"), "bayers");
+    }
+
     proptest::proptest! {
         #[test]
         fn normalised_names_hold_no_space_or_punctuation(s in "\\PC{0,40}") {
             let n = normalise_name(&s);
-            proptest::prop_assert!(n.chars().all(char::is_alphanumeric), "{n:?}");
+            // letters, digits, and the prime of a locant after a digit
+            proptest::prop_assert!(n.chars().all(|c| c.is_alphanumeric() || c == '\''), "{n:?}");
+            proptest::prop_assert!(!n.starts_with('\''), "{n:?}");
         }
     }
 }

@@ -214,6 +214,7 @@ impl Kb {
                     query: raw.to_string(),
                     reason: why,
                     suggestions: Vec::new(),
+                    candidates: Vec::new(),
                 }));
             }
             Err(e) => return Err(e),
@@ -225,8 +226,8 @@ impl Kb {
             if let Some(r @ Resolution::Found(_)) = self.resolve_ion(raw)? {
                 return Ok(r);
             }
-            if let Some(u) = self.ambiguous_name(raw, n)? {
-                return Ok(Resolution::Unresolved(u));
+            if let Some(r) = self.decide_name(raw, n)? {
+                return Ok(r);
             }
         }
         if let Some(a) = self.find_anywhere(raw, &q)? {
@@ -262,6 +263,7 @@ impl Kb {
                     query: raw.to_string(),
                     reason: format!("not a valid SMILES string: {why}"),
                     suggestions: Vec::new(),
+                    candidates: Vec::new(),
                 }),
             });
         }
@@ -280,6 +282,7 @@ impl Kb {
             query: raw.to_string(),
             reason,
             suggestions,
+            candidates: Vec::new(),
         }))
     }
 
@@ -314,8 +317,9 @@ impl Kb {
     }
 
     /// An unresolved outcome when `name` denotes several different compounds in the shipped
-    /// base and the user overlay does not hold it (see [`super::ambiguity`]).
-    fn ambiguous_name(&self, raw: &str, name: &str) -> Result<Option<Unresolved>, KbError> {
+    /// base and the user overlay does not hold it, or the common form when it denotes the ring
+    /// and chain forms of one sugar (see [`super::ambiguity`]); `None` otherwise.
+    fn decide_name(&self, raw: &str, name: &str) -> Result<Option<Resolution>, KbError> {
         let norm = normalise_name(name);
         if norm.is_empty() {
             return Ok(None);
@@ -332,18 +336,17 @@ impl Kb {
         let decision = super::ambiguity::decide(&self.shipped, raw, &norm)
             .map_err(|e| KbError::sql(&self.shipped_path, e))?;
         Ok(match decision {
-            super::ambiguity::NameDecision::Ambiguous(c) => Some(Unresolved {
-                query: raw.trim().to_string(),
-                reason: super::ambiguity::ambiguity_reason(raw, &c),
-                suggestions: c
-                    .iter()
-                    .map(|c| Suggestion {
-                        name: c.smiles.clone().unwrap_or_default(),
-                        compound: c.name.clone(),
-                        similarity: 1.0,
-                    })
-                    .collect(),
-            }),
+            super::ambiguity::NameDecision::Ambiguous(c) => {
+                Some(Resolution::Unresolved(Unresolved {
+                    query: raw.trim().to_string(),
+                    reason: super::ambiguity::ambiguity_reason(raw, &c),
+                    suggestions: Vec::new(),
+                    candidates: c,
+                }))
+            }
+            super::ambiguity::NameDecision::CommonForm { id, note } => self
+                .find_anywhere_by_id(raw, id, Origin::Shipped, &format!("name; {note}"))?
+                .map(|a| Resolution::Found(Box::new(a))),
             _ => None,
         })
     }

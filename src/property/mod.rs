@@ -9,9 +9,10 @@
 
 pub mod estimate;
 pub mod ionisation;
+pub mod panel;
 pub mod unresolved;
 
-pub use unresolved::{Suggestion, Unresolved};
+pub use unresolved::{Candidate, Suggestion, Unresolved};
 
 use serde::{Deserialize, Serialize};
 
@@ -175,6 +176,50 @@ impl Analyte {
             .iter()
             .filter(move |p| p.property == property)
     }
+
+    /// The user's own label for this analyte: the text or table name they gave (`query`),
+    /// unless it only repeats the resolved name (same letters and digits, whatever the case
+    /// and punctuation) or is the bare SMILES string the analyte was found by.
+    pub fn label(&self) -> Option<&str> {
+        let q = self.query.trim();
+        if q.is_empty() || same_words(q, &self.name) {
+            return None;
+        }
+        let forced = q.strip_prefix("smiles:");
+        let bare = forced.unwrap_or(q).trim();
+        let by_structure = forced.is_some()
+            || self.origin == Origin::Structure
+            || self.matched_by.starts_with("structure")
+            || self.matched_by.starts_with("smiles");
+        if by_structure
+            && !bare.contains(char::is_whitespace)
+            && crate::structure::is_valid_smiles(bare)
+        {
+            return None;
+        }
+        Some(q)
+    }
+
+    /// The name shown in tables: the user's label first, then the resolved name in
+    /// parentheses (`Impurity A (acetaminophen)`); the resolved name alone without a label.
+    pub fn display_name(&self) -> String {
+        match self.label() {
+            Some(l) => format!("{l} ({})", self.name),
+            None => self.name.clone(),
+        }
+    }
+}
+
+/// Whether two names have the same letters and digits in the same order (case, spaces and
+/// punctuation ignored).
+fn same_words(a: &str, b: &str) -> bool {
+    let key = |s: &str| -> Vec<char> {
+        s.chars()
+            .filter(|c| c.is_alphanumeric())
+            .flat_map(char::to_lowercase)
+            .collect()
+    };
+    key(a) == key(b)
 }
 
 /// Rank of a value: kind first (measured beats computed whatever the origin), then origin

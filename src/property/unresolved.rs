@@ -24,4 +24,27 @@ pub struct Unresolved {
     pub reason: String,
     /// Near misses, best first (never used automatically).
     pub suggestions: Vec<Suggestion>,
+    /// For a name that denotes several different compounds: each of them, best first (empty
+    /// otherwise). `label=SMILES`, a CAS number or a CID settles which one is meant.
+    #[serde(default)]
+    pub candidates: Vec<Candidate>,
+}
+
+/// One compound an ambiguous name could mean.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Candidate {
+    /// The compound's preferred name.
+    pub name: String,
+    /// CAS number, when known.
+    pub cas: Option<String>,
+    /// PubChem CID, when known.
+    pub cid: Option<i64>,
+    /// Standard InChIKey, when known.
+    #[serde(default)]
+    pub inchikey: Option<String>,
+    /// SMILES as stored.
+    pub smiles: Option<String>,
+    /// How the name is held by this compound: `preferred name`, `systematic name` or
+    /// `synonym` (why it is a candidate).
+    pub held_as: String,
 }

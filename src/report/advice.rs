@@ -36,6 +36,11 @@ pub struct AdviceReport {
 pub struct AnalyteSummary {
     /// What the user typed.
     pub query: String,
+    /// The user's own label (a table's `name` cell, the label of `label=SMILES`, or the text
+    /// typed when it differs from the resolved name); `null` when the user gave none. Tables
+    /// show it first, then `name`.
+    #[serde(default)]
+    pub label: Option<String>,
     /// Preferred name.
     pub name: String,
     /// InChIKey, when known.
@@ -441,6 +446,7 @@ impl AdviceReport {
                     }
                 ));
             }
+            out.push_str(&super::candidates::candidate_table(&self.unresolved));
         }
         if !self.warnings.is_empty() {
             out.push_str("\nWarnings\n");

@@ -18,6 +18,21 @@ pub struct LookupReport {
     pub unresolved: Vec<Unresolved>,
 }
 
+/// The JSON form of [`LookupReport`]: each analyte with its `label` first.
+#[derive(Serialize)]
+struct LookupJson<'a> {
+    schema_version: u32,
+    analytes: Vec<Labelled<'a>>,
+    unresolved: &'a [Unresolved],
+}
+
+#[derive(Serialize)]
+struct Labelled<'a> {
+    label: Option<&'a str>,
+    #[serde(flatten)]
+    analyte: &'a Analyte,
+}
+
 impl LookupReport {
     /// A report from resolved and unresolved queries.
     pub fn new(analytes: Vec<Analyte>, unresolved: Vec<Unresolved>) -> Self {
@@ -32,7 +47,20 @@ impl LookupReport {
     pub fn render(&self, format: Format) -> String {
         match format {
             Format::Json => {
-                let mut s = serde_json::to_string_pretty(self).unwrap_or_default();
+                // every analyte carries `label`: the user's own label, or null
+                let v = LookupJson {
+                    schema_version: self.schema_version,
+                    analytes: self
+                        .analytes
+                        .iter()
+                        .map(|a| Labelled {
+                            label: a.label(),
+                            analyte: a,
+                        })
+                        .collect(),
+                    unresolved: &self.unresolved,
+                };
+                let mut s = serde_json::to_string_pretty(&v).unwrap_or_default();
                 s.push('\n');
                 s
             }
@@ -180,6 +208,7 @@ impl LookupReport {
                 })
                 .collect();
             out.push_str(&table::render(&["query", "reason", "did you mean"], &rows));
+            out.push_str(&super::candidates::candidate_table(&self.unresolved));
             out.push('\n');
         }
         out
@@ -249,7 +278,15 @@ impl LookupReport {
             let mut c = vec!["unresolved".to_string(), u.query.clone()];
             c.extend(std::iter::repeat_n(String::new(), 12));
             let sugg: Vec<String> = u.suggestions.iter().map(|s| s.name.clone()).collect();
-            c.push(format!("{}; suggestions: {}", u.reason, sugg.join(" | ")));
+            c.push(if u.candidates.is_empty() {
+                format!("{}; suggestions: {}", u.reason, sugg.join(" | "))
+            } else {
+                format!(
+                    "{}; candidates: {}",
+                    u.reason,
+                    super::candidates::candidate_cell(u)
+                )
+            });
             line(c);
         }
         out

@@ -5,6 +5,7 @@
 //! them, so a report is written in one step and never half-way.
 
 pub mod advice;
+pub mod candidates;
 pub mod chromatogram;
 pub mod describe;
 pub mod kb_stats;

@@ -132,6 +132,7 @@ impl PredictionOutput<'_> {
                 for u in self.unresolved {
                     t.push_str(&format!("unresolved: {} ({})\n", u.query, u.reason));
                 }
+                t.push_str(&super::candidates::candidate_table(self.unresolved));
                 for w in self.warnings {
                     t.push_str(&format!("warning: {w}\n"));
                 }

@@ -8,8 +8,9 @@
 //!
 //! 1. **Normalised view.** Charges are neutralised where a neutral form exists (a carboxylate
 //!    or phenolate gains its proton, a protonated amine loses it; charge pairs such as nitro
-//!    or N-oxides stay; inorganic species, without carbon, keep their charges), and imidic acids (`N=C-OH`, outside aromatic rings) are written as
-//!    their amide tautomer. Aromaticity is the adapter's (RDKit's default model, perceived on
+//!    or N-oxides stay; inorganic species, without carbon, keep their charges), imidic acids
+//!    (`N=C-OH`, outside aromatic rings) are written as their amide tautomer and enols
+//!    (`C=C-OH`, outside aromatic rings, not enediols) as their keto tautomer. Aromaticity is the adapter's (RDKit's default model, perceived on
 //!    the Kekulé form), so aromatic and Kekulé input give the same bonds.
 //! 2. **Canonical ranking.** Atom invariants (element, isotope, charge, hydrogen count,
 //!    aromaticity, degree, radical electrons) are refined by the sorted multiset of
@@ -42,7 +43,7 @@ use super::adapter::{StructureError, parse_smiles};
 use super::graph::{BondOrder, MolGraph, StereoMark};
 
 /// Version of the key algorithm, the first part of every key.
-pub const KEY_VERSION: &str = "pk1";
+pub const KEY_VERSION: &str = "pk2";
 
 /// The canonical keys of one structure.
 #[derive(Debug, Clone, PartialEq, Eq, Serialize)]
@@ -212,6 +213,48 @@ impl View {
         }
         if tautomers > 0 {
             notes.push(format!("{tautomers} imidic acid group(s) written as amide"));
+        }
+        // Enol -> keto: C=C(-OH) outside aromatic rings becomes HC-C(=O), the form of simple
+        // carbonyl compounds (common practice, no source: acetone and its enol, propen-2-ol,
+        // are one analyte). Enols written on either carbon of a 1,3-dicarbonyl give the same
+        // keto form as well.
+        let mut enols = 0;
+        for k in 0..bonds.len() {
+            let (a, b, label) = bonds[k];
+            if label != 2 || atoms[a].0 != 6 || atoms[b].0 != 6 {
+                continue;
+            }
+            if atoms[a].4 || atoms[b].4 || atoms[a].2 != 0 || atoms[b].2 != 0 {
+                continue;
+            }
+            let hydroxy_on = |c: usize| {
+                g.neighbours[c].iter().copied().find(|&(o, ob)| {
+                    atoms[o].0 == 8
+                        && atoms[o].3 == 1
+                        && atoms[o].2 == 0
+                        && bonds[ob].2 == 1
+                        && g.neighbours[o].len() == 1
+                })
+            };
+            let Some((c, (o, ob), other)) = hydroxy_on(a)
+                .map(|h| (a, h, b))
+                .or_else(|| hydroxy_on(b).map(|h| (b, h, a)))
+            else {
+                continue;
+            };
+            // an enediol (both ends carry OH, as in ascorbic acid) stays as written: which
+            // end becomes the carbonyl is not a simple choice
+            if hydroxy_on(other).is_some() || c == other {
+                continue;
+            }
+            bonds[k].2 = 1;
+            bonds[ob].2 = 2;
+            atoms[o].3 = 0;
+            atoms[other].3 += 1;
+            enols += 1;
+        }
+        if enols > 0 {
+            notes.push(format!("{enols} enol group(s) written as the keto form"));
         }
         View {
             atoms,
@@ -541,4 +584,66 @@ pub fn possible_stereo_elements(g: &MolGraph) -> usize {
         }
     }
     count
+}
+
+/// The skeleton key of a structure with every cyclic hemiacetal and hemiketal opened to its
+/// chain form (a ring carbon bearing an OH and the ring O becomes a carbonyl, the ring O a
+/// hydroxyl), and how many were opened. The pyranose, furanose and open-chain records of one
+/// sugar (and its anomers, whose stereo the skeleton ignores) share this key: they are one
+/// compound in solution, where they interconvert (mutarotation; common practice, no source).
+/// Glycosidic acetals (no OH on the carbon) stay closed, so different disaccharides stay
+/// different.
+pub fn ring_chain_key(g: &MolGraph) -> (String, usize) {
+    let mut view = View::of(g);
+    let mut removed = vec![false; view.bonds.len()];
+    let mut used = vec![false; view.atoms.len()];
+    let mut opened = 0;
+    for c in 0..view.atoms.len() {
+        let (z, _, q, _, ar, _) = view.atoms[c];
+        if z != 6 || q != 0 || ar || view.adj[c].iter().any(|&(_, b)| view.bonds[b].2 != 1) {
+            continue;
+        }
+        let oxygen = |j: usize, h: u8, degree: usize| {
+            let (zj, _, qj, hj, arj, _) = view.atoms[j];
+            zj == 8 && qj == 0 && hj == h && !arj && view.adj[j].len() == degree
+        };
+        let hydroxy = view.adj[c].iter().copied().find(|&(j, _)| oxygen(j, 1, 1));
+        let ring_o: Vec<(usize, usize)> = view.adj[c]
+            .iter()
+            .copied()
+            .filter(|&(j, b)| {
+                oxygen(j, 0, 2)
+                    && !used[j]
+                    && g.bonds.get(b).is_some_and(|x| x.in_ring)
+                    && view.adj[j].iter().all(|&(k, _)| view.atoms[k].0 == 6)
+            })
+            .collect();
+        let (Some((oh, ohb)), [(or, orb)]) = (hydroxy, ring_o.as_slice()) else {
+            continue;
+        };
+        removed[*orb] = true;
+        used[*or] = true;
+        view.atoms[*or].3 += 1;
+        view.bonds[ohb].2 = 2;
+        view.atoms[oh].3 = 0;
+        opened += 1;
+    }
+    if opened > 0 {
+        let bonds: Vec<(usize, usize, u8)> = view
+            .bonds
+            .iter()
+            .zip(&removed)
+            .filter(|(_, r)| !**r)
+            .map(|(b, _)| *b)
+            .collect();
+        let mut adj = vec![Vec::new(); view.atoms.len()];
+        for (k, &(a, b, _)) in bonds.iter().enumerate() {
+            adj[a].push((b, k));
+            adj[b].push((a, k));
+        }
+        view.bonds = bonds;
+        view.adj = adj;
+    }
+    let ranks = canonical_ranks(&view, &[], &[]);
+    (digest(&canonical_string(&view, &ranks, &[], &[])), opened)
 }

@@ -80,6 +80,56 @@ fn salts_charges_and_imidic_acids_normalise() {
 }
 
 #[test]
+fn enols_are_written_as_the_keto_form() {
+    // acetone and prop-1-en-2-ol; acetaldehyde and vinyl alcohol; cyclohexanone and its
+    // enol; acetylacetone and its enol (common practice, no source)
+    same("CC(O)=C", "CC(C)=O");
+    same("OC=C", "CC=O");
+    same("OC1=CCCCC1", "O=C1CCCCC1");
+    same("CC(O)=CC(C)=O", "CC(=O)CC(C)=O");
+    // 1,3-cyclohexanedione, enol written on the other side
+    same("OC1=CC(=O)CCC1", "O=C1CC(=O)CCC1");
+    assert!(!key("CC(O)=C").normalised.is_empty());
+    // phenols (aromatic), enol ethers (no OH) and enediols stay as they are
+    differ("Oc1ccccc1", "O=C1CC=CC=C1");
+    differ("COC=C", "COCC");
+    differ("OC1=C(O)C(=O)OC1C(O)CO", "O=C1C(O)C(=O)OC1C(O)CO");
+    // a keto form and a different ketone stay different
+    differ("CC(O)=CC", "CCCC=O");
+}
+
+#[test]
+fn ring_and_chain_forms_of_a_sugar_share_the_ring_chain_key() {
+    let rc = |s: &str| ring_chain_key(&parse_smiles(s).unwrap().graph);
+    // glucopyranose (stereo-less), alpha-D-glucopyranose, open-chain D-glucose and
+    // beta-D-glucofuranose (common practice, no source)
+    let (pyranose, n) = rc("OCC1OC(O)C(O)C(O)C1O");
+    assert_eq!(n, 1);
+    assert_eq!(rc("OC[C@H]1O[C@H](O)[C@H](O)[C@@H](O)[C@@H]1O").0, pyranose);
+    assert_eq!(rc("O=C[C@H](O)[C@@H](O)[C@H](O)[C@H](O)CO").0, pyranose);
+    assert_eq!(
+        rc("OC[C@@H](O)[C@H]1O[C@@H](O)[C@H](O)[C@@H]1O").0,
+        pyranose
+    );
+    // fructose: fructopyranose and open-chain keto form (a hemiketal)
+    assert_eq!(rc("OCC1(O)OCC(O)C(O)C1O").0, rc("OCC(=O)C(O)C(O)C(O)CO").0);
+    // lactose: the reducing end opens, the glycosidic bond stays
+    let (lac, n) = rc("OCC1OC(OC2C(CO)OC(O)C(O)C2O)C(O)C(O)C1O");
+    assert_eq!(n, 1);
+    assert_eq!(rc("O=CC(O)C(O)C(OC1OC(CO)C(O)C(O)C1O)C(O)CO").0, lac);
+    // sucrose has no hemiacetal: nothing opens, and it differs from lactose
+    let (suc, n) = rc("OCC1OC(OC2(CO)OC(CO)C(O)C2O)C(O)C(O)C1O");
+    assert_eq!(n, 0);
+    assert_ne!(suc, lac);
+    // a methyl glycoside (acetal, no OH) stays closed and differs from the sugar
+    let (methyl, n) = rc("COC1OC(CO)C(O)C(O)C1O");
+    assert_eq!(n, 0);
+    assert_ne!(methyl, pyranose);
+    // without a hemiacetal the key is the skeleton key
+    assert_eq!(rc("CCO").0, key("CCO").skeleton);
+}
+
+#[test]
 fn tetrahedral_stereo() {
     // L-alanine written four ways
     let l = key("N[C@@H](C)C(=O)O");

@@ -909,3 +909,98 @@ fn kb_stats_writes_delimited_rows_for_csv_and_tsv() {
         assert!(!text.contains("---"), "{fmt} printed the table: {text}");
     }
 }
+
+#[test]
+fn a_dash_among_the_analytes_reads_the_list_from_stdin() {
+    let ctx = Ctx::new();
+    let out = ctx
+        .cmd()
+        .args(["lookup", "-", "--format", "tsv"])
+        .write_stdin("phenol\n# a comment\nbenzene\n")
+        .output()
+        .unwrap();
+    assert!(out.status.success(), "{}", stderr(&out));
+    let s = stdout(&out);
+    assert!(s.contains("\tphenol\t") && s.contains("\tbenzene\t"), "{s}");
+    assert!(!s.contains("\t-\t-\t"), "`-` itself was looked up: {s}");
+    // with names on the command line too
+    let out = ctx
+        .cmd()
+        .args(["lookup", "caffeine", "-", "--format", "tsv"])
+        .write_stdin("phenol\n")
+        .output()
+        .unwrap();
+    let s = stdout(&out);
+    assert!(
+        s.contains("\tcaffeine\t") && s.contains("\tphenol\t"),
+        "{s}"
+    );
+    // `-` and `--input FILE` together are refused
+    let list = ctx.path("list.txt");
+    std::fs::write(&list, "phenol\n").unwrap();
+    let out = ctx
+        .cmd()
+        .args(["lookup", "-", "--input", list.to_str().unwrap()])
+        .write_stdin("benzene\n")
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(2));
+    assert!(stderr(&out).contains("one list source"), "{}", stderr(&out));
+}
+
+#[test]
+fn a_misspelt_name_gets_a_suggestion_and_no_empty_section() {
+    let ctx = Ctx::new();
+    let out = ctx.run(&["lookup", "caffiene"]);
+    assert_eq!(out.status.code(), Some(1));
+    let s = stdout(&out);
+    assert!(s.contains("caffeine"), "{s}");
+    assert!(!s.contains("\n\n\n"), "two blank lines in a row: {s:?}");
+    assert!(
+        s.starts_with("Resolved 0 of 1 queries.\n\nUnresolved\n"),
+        "{s:?}"
+    );
+}
+
+/// A knowledge base that cannot be put where it is looked for exits 3 and says how to choose
+/// another place (`--kb`, `PHASEWISE_KB`), naming the path.
+#[test]
+fn an_unusable_knowledge_base_location_exits_3_naming_kb_and_the_path() {
+    let ctx = Ctx::new();
+    let file = ctx.path("not-a-directory");
+    std::fs::write(&file, "x").unwrap();
+    let check = |out: &std::process::Output, path: &str| {
+        let e = stderr(out);
+        assert_eq!(out.status.code(), Some(3), "{e}");
+        assert!(
+            e.contains("--kb") && e.contains("PHASEWISE_KB") && e.contains(path),
+            "{e}"
+        );
+    };
+    // a path under a file
+    let under = file.join("kb.sqlite");
+    let out = ctx
+        .cmd_with_kb(&under)
+        .args(["lookup", "caffeine"])
+        .output()
+        .unwrap();
+    check(&out, file.to_str().unwrap());
+    // a home directory that is not a directory (the default location cannot be created)
+    let out = std::process::Command::new(assert_cmd::cargo::cargo_bin("phasewise"))
+        .env_remove("PHASEWISE_KB")
+        .env_remove("PHASEWISE_USER_KB")
+        .env_remove("XDG_DATA_HOME")
+        .env("HOME", &file)
+        .args(["lookup", "caffeine"])
+        .output()
+        .unwrap();
+    check(&out, file.to_str().unwrap());
+    // a missing base with --no-build
+    let missing = ctx.path("missing.sqlite");
+    let out = ctx
+        .cmd_with_kb(&missing)
+        .args(["--no-build", "lookup", "caffeine"])
+        .output()
+        .unwrap();
+    check(&out, missing.to_str().unwrap());
+}

@@ -1,10 +1,13 @@
 //! Exit codes (documented in the user guide): 0 success; 1 partial (some analytes unresolved,
 //! a suitability check failed, rows skipped, fits left unstored); 2 bad input or usage; 3
-//! knowledge-base trouble (missing, damaged, newer schema, locked).
+//! knowledge-base trouble (missing, damaged, newer schema, locked, or its location unusable:
+//! no home directory, a path that cannot be read or written).
 
 use std::process::ExitCode;
 
 use phasewise::kb::KbError;
+
+use super::knowledge::KbLocationError;
 
 /// Exit code: some analytes did not resolve, the rest were handled.
 pub const EXIT_PARTIAL: u8 = 1;
@@ -16,6 +19,9 @@ pub const EXIT_KB: u8 = 3;
 /// Map an error to its documented exit code.
 pub fn exit_code_for(e: &anyhow::Error) -> u8 {
     for c in e.chain() {
+        if c.downcast_ref::<KbLocationError>().is_some() {
+            return EXIT_KB;
+        }
         if let Some(k) = c.downcast_ref::<KbError>() {
             return match k {
                 KbError::BadIdentifier { .. } | KbError::BadInput(_) => EXIT_BAD_INPUT,

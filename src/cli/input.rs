@@ -20,11 +20,12 @@ use phasewise::model::gc::GcColumn;
 #[derive(Debug, Args)]
 pub struct AnalyteInput {
     /// Analytes: names, synonyms, CAS numbers, InChIKeys, PubChem CIDs (`cid:2519`) or
-    /// SMILES (`smiles:CCO` forces a SMILES reading).
+    /// SMILES (`smiles:CCO` forces a SMILES reading); `-` reads a list from stdin, one per line.
     #[arg(value_name = "ANALYTE")]
     pub analytes: Vec<String>,
     /// Read analytes from a file: one per line (`#` at the start of a line marks a comment), or
-    /// a tab-separated table with a `name` and/or `smiles` header; `-` reads stdin.
+    /// a tab-separated table with a `name` and/or `smiles` header; `-` reads stdin (so does a
+    /// `-` among the analytes).
     #[arg(long, short, value_name = "FILE")]
     pub input: Option<PathBuf>,
 }
@@ -39,8 +40,15 @@ fn read_input_text(input: &AnalyteInput) -> Result<Option<String>> {
             .context("reading analytes from stdin")?;
         Ok(Some(s))
     };
+    // `-` among the analytes means "and the list on stdin", as for `--input -`.
+    let dash = input.analytes.iter().any(|a| a == "-");
     match &input.input {
         Some(p) if p.as_os_str() == "-" => from_stdin(),
+        Some(p) if dash => bail!(
+            "both `--input {}` and `-` (stdin) were given; give one list source",
+            p.display()
+        ),
+        None if dash => from_stdin(),
         Some(p) => {
             Ok(Some(std::fs::read_to_string(p).with_context(|| {
                 format!("reading analyte list {}", p.display())
@@ -61,6 +69,7 @@ pub fn read_analytes(input: &AnalyteInput) -> Result<Vec<ListEntry>> {
     let mut out: Vec<ListEntry> = input
         .analytes
         .iter()
+        .filter(|q| *q != "-")
         .map(|q| ListEntry {
             query: q.clone(),
             label: None,
@@ -83,7 +92,12 @@ pub fn read_analytes(input: &AnalyteInput) -> Result<Vec<ListEntry>> {
 /// Read plain lines (for `describe`, whose lines are `SMILES[<TAB>name]`): arguments, then the
 /// file or stdin; blank lines and `#` comment lines skipped.
 pub fn read_lines(input: &AnalyteInput) -> Result<Vec<String>> {
-    let mut out = input.analytes.clone();
+    let mut out: Vec<String> = input
+        .analytes
+        .iter()
+        .filter(|q| *q != "-")
+        .cloned()
+        .collect();
     if let Some(text) = read_input_text(input)? {
         let text = text.strip_prefix('\u{feff}').unwrap_or(&text);
         out.extend(

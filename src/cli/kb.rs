@@ -15,7 +15,7 @@ use phasewise::report::kb_stats::{stats_delimited, stats_table};
 use super::Cli;
 use super::exit::success_unless_partial;
 use super::input::read_text;
-use super::knowledge::{open_kb, paths, progress_bar};
+use super::knowledge::{BuildProgress, located, open_kb, paths};
 use super::output::{OutputFormat, note, write_out};
 
 /// Knowledge-base commands.
@@ -100,7 +100,7 @@ pub fn run(cli: &Cli, k: &KbCommand) -> Result<ExitCode> {
     match k {
         KbCommand::Build { force } => {
             let p = paths(cli)?;
-            let status = build::shipped_status(&p.shipped)?;
+            let status = build::shipped_status(&p.shipped).map_err(located)?;
             if status == build::Status::Current && !force {
                 note(&format!(
                     "knowledge base {} is current (use --force to rebuild)",
@@ -108,13 +108,11 @@ pub fn run(cli: &Cli, k: &KbCommand) -> Result<ExitCode> {
                 ));
                 return Ok(ExitCode::SUCCESS);
             }
-            let pb = progress_bar();
+            let mut progress = BuildProgress::new();
             let t = std::time::Instant::now();
-            let counts = build::build_shipped(&p.shipped, &mut |f, msg| {
-                pb.set_position((f * 1000.0) as u64);
-                pb.set_message(msg.to_string());
-            })?;
-            pb.finish_and_clear();
+            let counts = build::build_shipped(&p.shipped, &mut |f, msg| progress.update(f, msg))
+                .map_err(located)?;
+            progress.finish();
             note(&format!(
                 "built {}: {} compounds, {} names, {} property rows in {:.1} s",
                 p.shipped.display(),

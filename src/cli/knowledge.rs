@@ -8,20 +8,50 @@ use indicatif::{ProgressBar, ProgressStyle};
 
 use phasewise::kb::identifier::ListEntry;
 use phasewise::kb::resolve::{Resolution, Unresolved};
-use phasewise::kb::{Access, BuildPolicy, Kb, KbPaths};
+use phasewise::kb::{Access, BuildPolicy, Kb, KbError, KbPaths};
 use phasewise::property::{Analyte, Origin};
 
 use super::Cli;
 use super::output::note;
 
+/// The knowledge base cannot be used where it is looked for (no home directory, a path that
+/// cannot be read, created or written): exit code 3, naming the path and how to choose another.
+#[derive(Debug)]
+pub struct KbLocationError {
+    /// Where the base was looked for (or why there is no default place).
+    pub path: String,
+    /// What went wrong there.
+    pub detail: String,
+}
+
+impl std::fmt::Display for KbLocationError {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        write!(
+            f,
+            "cannot use the knowledge base at {}: {}; choose a readable and writable file \
+             with --kb PATH (and --user-kb PATH) or the PHASEWISE_KB (and PHASEWISE_USER_KB) \
+             environment variable",
+            self.path, self.detail
+        )
+    }
+}
+
+impl std::error::Error for KbLocationError {}
+
 /// The shipped base and the user overlay: `--kb`/`--user-kb`, else the default location.
+///
+/// # Errors
+/// No `--kb` and no home directory to hold the default location ([`KbLocationError`]).
 pub fn paths(cli: &Cli) -> Result<KbPaths> {
     let d = KbPaths::default_location();
     let shipped = match &cli.kb {
         Some(p) => p.clone(),
         None => d
             .as_ref()
-            .map_err(|e| anyhow::anyhow!("{e}"))?
+            .map_err(|e| KbLocationError {
+                path: "the default location".into(),
+                detail: e.to_string(),
+            })?
             .shipped
             .clone(),
     };
@@ -36,18 +66,107 @@ pub fn paths(cli: &Cli) -> Result<KbPaths> {
     Ok(KbPaths { shipped, user })
 }
 
-/// The progress bar of a knowledge-base build (hidden unless stderr is a terminal).
-pub fn progress_bar() -> ProgressBar {
-    let pb = if std::io::stderr().is_terminal() {
-        ProgressBar::new(1000)
+/// Turns a file-system error while opening or building the base into a [`KbLocationError`]
+/// (exit code 3); other errors pass unchanged.
+pub fn located(e: KbError) -> anyhow::Error {
+    match e {
+        KbError::Io { path, source } => KbLocationError {
+            path: path.display().to_string(),
+            detail: source.to_string(),
+        }
+        .into(),
+        KbError::Missing { path } => KbLocationError {
+            path: path.display().to_string(),
+            detail: "it does not exist and --no-build forbids building it; build it with \
+                     `phasewise kb build`"
+                .into(),
+        }
+        .into(),
+        other => other.into(),
+    }
+}
+
+/// Progress of a knowledge-base build on stderr: a bar on a terminal; otherwise (a log, a pipe,
+/// a CI job) one plain line per tenth of the work and per new step, never carriage returns.
+pub enum BuildProgress {
+    /// A terminal: the bar.
+    Bar(ProgressBar),
+    /// Not a terminal: lines.
+    Lines {
+        /// Tenths of the work already reported.
+        tenths: u64,
+        /// The last step named.
+        step: String,
+    },
+}
+
+impl BuildProgress {
+    /// The progress display for this process's stderr.
+    pub fn new() -> Self {
+        if std::io::stderr().is_terminal() {
+            let pb = ProgressBar::new(1000);
+            pb.set_style(
+                ProgressStyle::with_template(
+                    "building knowledge base {bar:40} {percent:>3}% {msg}",
+                )
+                .unwrap_or_else(|_| ProgressStyle::default_bar()),
+            );
+            BuildProgress::Bar(pb)
+        } else {
+            BuildProgress::Lines {
+                tenths: 0,
+                step: String::new(),
+            }
+        }
+    }
+
+    /// `fraction` (0–1) of the build done, now at `step`.
+    pub fn update(&mut self, fraction: f64, step: &str) {
+        match self {
+            BuildProgress::Bar(pb) => {
+                pb.set_position((fraction * 1000.0) as u64);
+                pb.set_message(step.to_string());
+            }
+            BuildProgress::Lines { .. } => {
+                if let Some(line) = self.next_line(fraction, step) {
+                    note(&line);
+                }
+            }
+        }
+    }
+
+    /// The line to print for this update when stderr is not a terminal: one per tenth of the
+    /// work and per new step, None otherwise (and always None for the bar).
+    fn next_line(&mut self, fraction: f64, step: &str) -> Option<String> {
+        let BuildProgress::Lines { tenths, step: last } = self else {
+            return None;
+        };
+        let now = (fraction.clamp(0.0, 1.0) * 10.0).floor() as u64;
+        if now > *tenths || (step != last.as_str() && !step.is_empty()) {
+            *tenths = (*tenths).max(now);
+            *last = step.to_string();
+            Some(build_progress_line(fraction, step))
+        } else {
+            None
+        }
+    }
+
+    /// Clears the bar (lines stay).
+    pub fn finish(&self) {
+        if let BuildProgress::Bar(pb) = self {
+            pb.finish_and_clear();
+        }
+    }
+}
+
+/// One line of build progress when stderr is not a terminal.
+pub fn build_progress_line(fraction: f64, step: &str) -> String {
+    let pct = (fraction.clamp(0.0, 1.0) * 100.0).round();
+    if step.is_empty() {
+        format!("building knowledge base: {pct:.0} %")
     } else {
-        ProgressBar::hidden()
-    };
-    pb.set_style(
-        ProgressStyle::with_template("building knowledge base {bar:40} {percent:>3}% {msg}")
-            .unwrap_or_else(|_| ProgressStyle::default_bar()),
-    );
-    pb
+        format!("building knowledge base: {pct:.0} % ({step})")
+    }
 }
 
 /// Opens the knowledge base (building the shipped part when missing, unless `--no-build`), with
@@ -55,17 +174,15 @@ pub fn progress_bar() -> ProgressBar {
 /// write to the overlay; a reader that meets an older overlay says so on stderr.
 pub fn open_kb(cli: &Cli, access: Access) -> Result<Kb> {
     let p = paths(cli)?;
-    let pb = progress_bar();
+    let mut progress = BuildProgress::new();
     let policy = if cli.no_build {
         BuildPolicy::Never
     } else {
         BuildPolicy::IfNeeded
     };
-    let kb = Kb::open_with(&p, policy, access, &mut |f, msg| {
-        pb.set_position((f * 1000.0) as u64);
-        pb.set_message(msg.to_string());
-    })?;
-    pb.finish_and_clear();
+    let kb = Kb::open_with(&p, policy, access, &mut |f, msg| progress.update(f, msg))
+        .map_err(located)?;
+    progress.finish();
     if let Some(n) = kb.user_overlay_note() {
         note(&n);
     }
@@ -230,5 +347,51 @@ fn strong_solvent_parameters(
             Ok((lss(r.log_kw - r.s, -r.s), sd_kw, ss, rho))
         }
         (m, b) => bail!("mode `{m}` with composition basis `{b}` is not a known combination"),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn off_a_terminal_progress_is_a_few_plain_lines() {
+        let mut p = BuildProgress::Lines {
+            tenths: 0,
+            step: String::new(),
+        };
+        let mut lines = Vec::new();
+        for i in 0..=1000 {
+            let step = if i < 400 {
+                "reading names"
+            } else {
+                "estimating properties"
+            };
+            lines.extend(p.next_line(f64::from(i) / 1000.0, step));
+        }
+        // ten tenths and two steps (the first step arrives with 0 %)
+        assert!(lines.len() >= 10 && lines.len() <= 12, "{lines:?}");
+        assert!(lines.iter().all(|l| !l.contains('\r') && !l.contains('\n')));
+        assert_eq!(lines[0], "building knowledge base: 0 % (reading names)");
+        assert!(
+            lines
+                .iter()
+                .any(|l| l.contains("40 % (estimating properties)"))
+        );
+        assert_eq!(
+            lines.last().map(String::as_str),
+            Some("building knowledge base: 100 % (estimating properties)")
+        );
+    }
+
+    #[test]
+    fn location_errors_name_the_path_and_the_options() {
+        let e = located(KbError::Missing {
+            path: "/srv/kb.sqlite".into(),
+        });
+        let text = e.to_string();
+        assert!(text.contains("/srv/kb.sqlite") && text.contains("--kb"));
+        assert!(text.contains("PHASEWISE_KB"));
+        assert!(e.downcast_ref::<KbLocationError>().is_some());
     }
 }

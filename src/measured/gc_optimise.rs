@@ -34,8 +34,9 @@ use crate::measured::gc_scout::{
     GcScoutError, GcScoutFit, OvenPhase, VantHoffParameters, programmed_elution,
 };
 use crate::measured::optimise::{PredictedPair, Selection};
+use crate::measured::parallel::map_in_order;
 use crate::measured::search::Score;
-use crate::measured::window_plot::{PlotPoint, WindowPlot, render_window_plot};
+use crate::measured::window_plot::{Edge, PlotPoint, WindowPlot, edge_of, render_window_plot};
 use crate::model::gc::OvenProgram;
 
 /// Clean-out hold at the final temperature, min (common practice, no source).
@@ -317,23 +318,18 @@ impl Ctx<'_> {
 
     fn elute(&self, program: &OvenProgram) -> Option<Vec<El>> {
         let tm = self.req.holdup_time_min;
-        let mut el = Vec::with_capacity(self.req.analytes.len());
-        for (i, a) in self.req.analytes.iter().enumerate() {
+        map_in_order(&self.req.analytes, |i, a| {
             let e = programmed_elution(&a.parameters, program, tm).ok()?;
             let w = 4.0 * tm * (1.0 + e.retention_factor_at_elution) / self.req.plates.sqrt();
-            if !w.is_finite() {
-                return None;
-            }
-            el.push((
+            w.is_finite().then_some((
                 i,
                 e.retention_time_min,
                 w,
                 e.elution_temperature_c,
                 e.retention_factor_at_elution,
                 e.phase,
-            ));
-        }
-        Some(el)
+            ))
+        })
     }
 
     fn rs(a: &El, b: &El) -> f64 {
@@ -373,11 +369,19 @@ impl Ctx<'_> {
         let tm = self.req.holdup_time_min;
         let run = el.iter().map(|x| x.1).fold(0.0, f64::max);
         let first = el.iter().map(|x| x.1).fold(f64::INFINITY, f64::min);
-        let min_rs = self
-            .pair_list(el)
-            .iter()
-            .map(|p| p.2)
-            .fold(f64::INFINITY, f64::min);
+        let min_rs = if self.pairs.is_empty() {
+            // Neighbours at the same time have Rs 0 in either order: no tie-break needed.
+            let mut tw: Vec<(f64, f64)> = el.iter().map(|x| (x.1, x.2)).collect();
+            tw.sort_unstable_by(|a, b| a.0.total_cmp(&b.0));
+            tw.windows(2)
+                .map(|w| 2.0 * (w[1].0 - w[0].0).abs() / (w[0].1 + w[1].1))
+                .fold(f64::INFINITY, f64::min)
+        } else {
+            self.pair_list(el)
+                .iter()
+                .map(|p| p.2)
+                .fold(f64::INFINITY, f64::min)
+        };
         Score {
             feasible: run <= self.req.max_run_time_min && min_rs.is_finite(),
             retained: (first - tm) / tm >= self.req.min_retention_factor - 1e-12,
@@ -627,10 +631,17 @@ pub fn optimise_gc(req: &GcOptimiseRequest) -> Result<GcOptimiseReport, GcOptimi
             .collect::<Vec<_>>()
             .join(", ")
     };
+    let by_name: std::collections::HashMap<&str, usize> = req
+        .analytes
+        .iter()
+        .enumerate()
+        .map(|(i, a)| (a.name.as_str(), i))
+        .rev()
+        .collect();
     let index = |n: &str| {
-        req.analytes
-            .iter()
-            .position(|a| a.name == n)
+        by_name
+            .get(n)
+            .copied()
             .ok_or_else(|| GcOptimiseError::UnknownAnalyte {
                 name: n.to_string(),
                 known: known(),
@@ -766,6 +777,18 @@ pub fn optimise_gc(req: &GcOptimiseRequest) -> Result<GcOptimiseReport, GcOptimi
             req.initial_c.min
         ));
     }
+    if let Some(edge) = edge_of(r, req.ramp_c_per_min.min, req.ramp_c_per_min.max) {
+        let (side, bound) = match edge {
+            Edge::Lower => ("lower", req.ramp_c_per_min.min),
+            Edge::Upper => ("upper", req.ramp_c_per_min.max),
+        };
+        notes.push(format!(
+            "the chosen ramp rate ({r:.1} °C/min) is at the {side} edge of the searched range \
+             ({}–{} °C/min): rates beyond {bound} °C/min were not tried; widen the range to \
+             see whether they do better",
+            req.ramp_c_per_min.min, req.ramp_c_per_min.max
+        ));
+    }
     if optimum
         .peaks
         .iter()
@@ -807,21 +830,17 @@ pub fn render_gc_window_svg(d: &GcWindowDiagram) -> String {
             d.initial_c, d.initial_hold_min
         ),
         x_label: "Ramp rate (°C/min)".into(),
-        legend: [
-            format!(
-                "Window diagram, initial {} °C held {} min; open circles: beyond the maximum run time",
-                d.initial_c, d.initial_hold_min
-            ),
-            format!(
-                "open squares: first peak below k = {}; filled circle: chosen condition",
-                d.min_retention_factor
-            ),
-        ],
+        heading: format!(
+            "Window diagram, one ramp from {} °C held {} min",
+            d.initial_c, d.initial_hold_min
+        ),
+        x_name: ("ramp rate", "°C/min"),
         chosen_label: format!(
             "chosen ramp = {:.1} °C/min, Rs = {:.2}",
             d.optimum_ramp_c_per_min, d.optimum_min_resolution
         ),
         target_resolution: d.target_resolution,
+        min_retention_factor: d.min_retention_factor,
         optimum_x: d.optimum_ramp_c_per_min,
         optimum_min_resolution: d.optimum_min_resolution,
         points: d

@@ -155,12 +155,23 @@ pub fn temperature_model(fits: &[(f64, ScoutFit)]) -> Result<TemperatureModel, T
     if fits.iter().any(|(_, f)| f.basis != first.basis) {
         return Err(TemperatureError::MixedBasis);
     }
+    // One name index per fit: matching the analytes across fits is linear in their number.
+    let indexes: Vec<std::collections::HashMap<&str, usize>> = fits
+        .iter()
+        .map(|(_, f)| {
+            f.analytes
+                .iter()
+                .enumerate()
+                .map(|(i, b)| (b.name.as_str(), i))
+                .collect()
+        })
+        .collect();
     let mut analytes = Vec::new();
     for a in &first.analytes {
         let mut fitted = Vec::new();
         let mut flagged = false;
-        for (t, f) in fits {
-            let Some(b) = f.analytes.iter().find(|b| b.name == a.name) else {
+        for ((t, f), index) in fits.iter().zip(&indexes) {
+            let Some(b) = index.get(a.name.as_str()).map(|&i| &f.analytes[i]) else {
                 return Err(TemperatureError::MissingAnalyte {
                     name: a.name.clone(),
                     present_c: fits[0].0,
@@ -172,7 +183,7 @@ pub fn temperature_model(fits: &[(f64, ScoutFit)]) -> Result<TemperatureModel, T
         }
         for (t, f) in fits {
             for b in &f.analytes {
-                if !first.analytes.iter().any(|x| x.name == b.name) {
+                if !indexes[0].contains_key(b.name.as_str()) {
                     return Err(TemperatureError::MissingAnalyte {
                         name: b.name.clone(),
                         present_c: *t,

@@ -10,6 +10,7 @@ pub mod gc_optimise;
 pub mod gc_scout;
 pub mod lc_temperature;
 pub mod optimise;
+mod parallel;
 pub mod peaks;
 pub mod scout;
 mod scouting;

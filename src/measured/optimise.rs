@@ -33,9 +33,9 @@ use crate::measured::search::{Score, compass_search};
 use crate::measured::window_plot::{PlotPoint, WindowPlot, render_window_plot};
 use crate::model::gradient::{
     ElutionPhase, GradientError, GradientPoint, GradientProgram, GradientSystem, LssParameters,
-    gradient_elution, gradient_peak_width_min,
 };
 use crate::model::theory::{self, TheoryError};
+use context::{Ctx, name_ranks};
 
 /// Errors from the optimiser.
 #[derive(Debug, Clone, PartialEq, Error)]
@@ -423,161 +423,6 @@ pub enum Selection {
     LargestMinResolution,
 }
 
-/// One analyte's predicted elution: (index, tR min, base width min, % organic at elution, phase).
-type El = (usize, f64, f64, f64, ElutionPhase);
-
-struct Ctx<'a> {
-    analytes: Vec<(&'a str, LssParameters)>,
-    uncertainty: Vec<Option<ParameterUncertainty>>,
-    system: GradientSystem,
-    plates: f64,
-    pairs: Vec<(usize, usize)>,
-    max_run: f64,
-    target: f64,
-    min_k: f64,
-}
-
-impl Ctx<'_> {
-    fn evaluate(&self, program: &GradientProgram) -> Option<(Score, Vec<El>)> {
-        let t0 = self.system.dead_time_min;
-        let mut el = Vec::with_capacity(self.analytes.len());
-        for (i, (_, p)) in self.analytes.iter().enumerate() {
-            let e = gradient_elution(p, program, &self.system).ok()?;
-            let w =
-                gradient_peak_width_min(t0, e.retention_factor_at_elution.max(0.0), self.plates)
-                    .ok()?;
-            el.push((
-                i,
-                e.retention_time_min,
-                w,
-                e.organic_at_elution_pct,
-                e.phase,
-            ));
-        }
-        let run = el.iter().map(|x| x.1).fold(0.0, f64::max);
-        let min_rs = self.min_rs(&el);
-        let first_k = self.first_k(&el);
-        Some((
-            Score {
-                feasible: run <= self.max_run && min_rs.is_finite(),
-                retained: first_k >= self.min_k - 1e-12,
-                meets: min_rs >= self.target,
-                min_rs,
-                run,
-            },
-            el,
-        ))
-    }
-
-    /// k = (tR − t0)/t0 of the first peak.
-    fn first_k(&self, el: &[El]) -> f64 {
-        let t0 = self.system.dead_time_min;
-        let first = el.iter().map(|x| x.1).fold(f64::INFINITY, f64::min);
-        (first - t0) / t0
-    }
-
-    fn rs(a: &El, b: &El) -> f64 {
-        2.0 * (b.1 - a.1).abs() / (a.2 + b.2)
-    }
-
-    fn sorted(el: &[El], names: &[(&str, LssParameters)]) -> Vec<El> {
-        let mut s = el.to_vec();
-        s.sort_by(|x, y| {
-            x.1.total_cmp(&y.1)
-                .then_with(|| names[x.0].0.cmp(names[y.0].0))
-        });
-        s
-    }
-
-    fn pair_list(&self, el: &[El]) -> Vec<(usize, usize, f64)> {
-        if self.pairs.is_empty() {
-            let s = Self::sorted(el, &self.analytes);
-            s.windows(2)
-                .map(|w| (w[0].0, w[1].0, Self::rs(&w[0], &w[1])))
-                .collect()
-        } else {
-            self.pairs
-                .iter()
-                .map(|&(i, j)| {
-                    let (a, b) = if el[i].1 <= el[j].1 { (i, j) } else { (j, i) };
-                    (a, b, Self::rs(&el[a], &el[b]))
-                })
-                .collect()
-        }
-    }
-
-    fn min_rs(&self, el: &[El]) -> f64 {
-        self.pair_list(el)
-            .iter()
-            .map(|p| p.2)
-            .fold(f64::INFINITY, f64::min)
-    }
-
-    /// σ(tR)² = J_l² σ_l² + J_s² σ_s² + 2 ρ J_l J_s σ_l σ_s, J by central differences.
-    fn propagate(
-        &self,
-        p: LssParameters,
-        u: ParameterUncertainty,
-        program: &GradientProgram,
-    ) -> Option<f64> {
-        let tr = |lk: f64, s: f64| {
-            gradient_elution(&LssParameters { log_kw: lk, s }, program, &self.system)
-                .ok()
-                .map(|e| e.retention_time_min)
-        };
-        let (hl, hs) = (1e-5, 1e-5 * p.s.abs().max(1.0));
-        let jl = (tr(p.log_kw + hl, p.s)? - tr(p.log_kw - hl, p.s)?) / (2.0 * hl);
-        let js = (tr(p.log_kw, p.s + hs)? - tr(p.log_kw, p.s - hs)?) / (2.0 * hs);
-        let var = jl * jl * u.log_kw * u.log_kw
-            + js * js * u.s * u.s
-            + 2.0 * u.correlation * jl * js * u.log_kw * u.s;
-        (var.is_finite() && var >= 0.0).then(|| var.sqrt())
-    }
-
-    fn prediction(&self, program: &GradientProgram) -> Option<Prediction> {
-        let (score, el) = self.evaluate(program)?;
-        let pairs = self.pair_list(&el);
-        let crit = pairs
-            .iter()
-            .min_by(|a, b| a.2.total_cmp(&b.2))
-            .map(|p| {
-                [
-                    self.analytes[p.0].0.to_string(),
-                    self.analytes[p.1].0.to_string(),
-                ]
-            })
-            .unwrap_or_default();
-        let peaks = Self::sorted(&el, &self.analytes)
-            .into_iter()
-            .map(|x| PredictedPeak {
-                name: self.analytes[x.0].0.to_string(),
-                retention_time_min: x.1,
-                width_base_min: x.2,
-                organic_at_elution_pct: x.3,
-                phase: x.4,
-                retention_time_uncertainty_min: self.uncertainty[x.0]
-                    .and_then(|u| self.propagate(self.analytes[x.0].1, u, program)),
-            })
-            .collect();
-        Some(Prediction {
-            program: program.clone(),
-            peaks,
-            pairs: pairs
-                .iter()
-                .map(|p| PredictedPair {
-                    first: self.analytes[p.0].0.to_string(),
-                    second: self.analytes[p.1].0.to_string(),
-                    resolution: p.2,
-                })
-                .collect(),
-            min_resolution: score.min_rs,
-            critical_pair: crit,
-            run_time_min: score.run,
-            first_peak_retention_factor: self.first_k(&el),
-        })
-    }
-}
-
 /// Optimises a gradient for the analytes of the request.
 ///
 /// # Errors
@@ -589,8 +434,9 @@ pub fn optimise(req: &OptimiseRequest) -> Result<OptimiseReport, OptimiseError> 
             count: req.analytes.len(),
         });
     }
-    for (i, a) in req.analytes.iter().enumerate() {
-        if req.analytes[..i].iter().any(|b| b.name == a.name) {
+    let mut seen = std::collections::HashSet::with_capacity(req.analytes.len());
+    for a in &req.analytes {
+        if !seen.insert(a.name.as_str()) {
             return Err(OptimiseError::DuplicateAnalyte {
                 name: a.name.clone(),
             });
@@ -647,15 +493,17 @@ pub fn optimise(req: &OptimiseRequest) -> Result<OptimiseReport, OptimiseError> 
     }
     let plates = req.plates.plates()?;
     let names: Vec<&str> = req.analytes.iter().map(|a| a.name.as_str()).collect();
+    let index: std::collections::HashMap<&str, usize> =
+        names.iter().enumerate().map(|(i, n)| (*n, i)).collect();
     let mut pairs = Vec::new();
     for [a, b] in &req.critical_pairs {
         if a == b {
             return Err(OptimiseError::CriticalPairSameAnalyte { name: a.clone() });
         }
         let find = |n: &String| {
-            names
-                .iter()
-                .position(|x| x == n)
+            index
+                .get(n.as_str())
+                .copied()
                 .ok_or_else(|| OptimiseError::UnknownAnalyte {
                     name: n.clone(),
                     available: names.join(", "),
@@ -687,11 +535,12 @@ pub fn optimise(req: &OptimiseRequest) -> Result<OptimiseReport, OptimiseError> 
         max_run: req.max_run_time_min,
         target: req.target_resolution,
         min_k: req.min_retention_factor,
+        name_rank: name_ranks(&names),
     };
     let mut evaluated = 0usize;
     let mut eval = |p: &GradientProgram| -> Option<Score> {
         evaluated += 1;
-        ctx.evaluate(p).map(|x| x.0)
+        ctx.score_of(p)
     };
     // Grid over linear gradients.
     let tgs = linspace(gradient_range, req.gradient_time_steps.max(2));
@@ -837,7 +686,7 @@ pub fn optimise(req: &OptimiseRequest) -> Result<OptimiseReport, OptimiseError> 
     let mut points = Vec::new();
     for tgw in tg_points {
         if let Some(p) = linear(ip, fp, tgw)
-            && let Some(pr) = ctx.prediction(&p)
+            && let Some(pr) = ctx.window_eval(&p)
         {
             points.push(WindowPoint {
                 gradient_time_min: tgw,
@@ -873,6 +722,11 @@ pub fn optimise(req: &OptimiseRequest) -> Result<OptimiseReport, OptimiseError> 
         ));
         Selection::LargestMinResolution
     };
+    notes.extend(edge_notes(&[
+        ("gradient time", "min", tg, gradient_range),
+        ("initial composition", "% organic", ip, initial_range),
+        ("final composition", "% organic", fp, final_range),
+    ]));
     if !meets_min_retention {
         notes.push(format!(
             "no condition in the search space retains the first peak ({}) to k ≥ {}: it elutes \
@@ -928,12 +782,10 @@ pub fn optimise(req: &OptimiseRequest) -> Result<OptimiseReport, OptimiseError> 
     })
 }
 
-/// Renders the window diagram as a standalone SVG: a polyline of smallest resolution versus
-/// gradient time, axis labels with units, a dashed target line labelled in text, the chosen
-/// condition marked with a labelled vertical line and a filled circle at its smallest
-/// resolution, points beyond the maximum run time drawn as open circles and points whose first
-/// peak is retained less than the minimum drawn as open squares (explained in a text legend), so
-/// no meaning depends on colour.
+/// Renders the window diagram as a standalone SVG: smallest resolution versus gradient time
+/// over the searched range, the target line, the chosen condition inside the plot (flagged when
+/// it sits on an edge of the searched range) and a legend listing exactly what is drawn; shapes,
+/// not colours, carry the meaning.
 pub fn render_window_svg(diagram: &WindowDiagram) -> String {
     render_window_plot(&WindowPlot {
         title: format!(
@@ -941,16 +793,11 @@ pub fn render_window_svg(diagram: &WindowDiagram) -> String {
             diagram.initial_pct, diagram.final_pct
         ),
         x_label: "Gradient time tG (min)".into(),
-        legend: [
-            format!(
-                "Window diagram, {:.1}–{:.1} % organic; open circles: beyond the maximum run time",
-                diagram.initial_pct, diagram.final_pct
-            ),
-            format!(
-                "open squares: first peak below k = {}; filled circle: chosen condition",
-                diagram.min_retention_factor
-            ),
-        ],
+        heading: format!(
+            "Window diagram, linear gradients {:.1}–{:.1} % organic",
+            diagram.initial_pct, diagram.final_pct
+        ),
+        x_name: ("gradient time", "min"),
         chosen_label: format!(
             "chosen tG = {:.1} min, Rs = {:.2}{}",
             diagram.optimum_gradient_time_min,
@@ -962,6 +809,7 @@ pub fn render_window_svg(diagram: &WindowDiagram) -> String {
             }
         ),
         target_resolution: diagram.target_resolution,
+        min_retention_factor: diagram.min_retention_factor,
         optimum_x: diagram.optimum_gradient_time_min,
         optimum_min_resolution: diagram.optimum_min_resolution,
         points: diagram
@@ -977,10 +825,11 @@ pub fn render_window_svg(diagram: &WindowDiagram) -> String {
     })
 }
 
+mod context;
 mod programs;
 
 pub use programs::round_to_tenth;
-use programs::{check_range, linear, linspace, steps, tenth_range, two_segment};
+use programs::{check_range, edge_notes, linear, linspace, steps, tenth_range, two_segment};
 
 #[cfg(test)]
 mod tests;

@@ -547,8 +547,8 @@ fn pieces(program: &GradientProgram, dwell_min: f64) -> Vec<Piece> {
     out
 }
 
-fn phase_of(program: &GradientProgram, program_time: f64) -> ElutionPhase {
-    match (program.first_change_min(), program.last_change_min()) {
+fn phase_of(changes: (Option<f64>, Option<f64>), program_time: f64) -> ElutionPhase {
+    match changes {
         (Some(first), Some(last)) => {
             if program_time < first {
                 ElutionPhase::BeforeGradient
@@ -563,12 +563,12 @@ fn phase_of(program: &GradientProgram, program_time: f64) -> ElutionPhase {
 }
 
 fn finish(
-    program: &GradientProgram,
-    system: &GradientSystem,
+    run: &GradientRun<'_>,
     model: &dyn RetentionModel,
     xi_e: f64,
     segment: Option<usize>,
 ) -> Result<Elution> {
+    let (program, system) = (run.program, run.system);
     if !xi_e.is_finite() {
         let pts = program.points();
         return Err(GradientError::NotFinite {
@@ -583,7 +583,7 @@ fn finish(
         organic_at_elution_pct: phi * 100.0,
         retention_factor_at_elution: 10f64.powf(model.log10_retention_factor(phi)),
         segment,
-        phase: phase_of(program, program_time),
+        phase: phase_of(run.changes, program_time),
     })
 }
 
@@ -606,12 +606,50 @@ pub fn gradient_elution(
     program: &GradientProgram,
     system: &GradientSystem,
 ) -> Result<Elution> {
-    system.validate()?;
+    GradientRun::new(program, system)?.elution(analyte)
+}
+
+/// One program on one system, prepared once (its pieces and where its composition changes) for
+/// the retention of many analytes: [`GradientRun::elution`] gives exactly what
+/// [`gradient_elution`] gives, without rebuilding the program's pieces for every analyte.
+pub struct GradientRun<'a> {
+    program: &'a GradientProgram,
+    system: &'a GradientSystem,
+    pieces: Vec<Piece>,
+    changes: (Option<f64>, Option<f64>),
+}
+
+impl<'a> GradientRun<'a> {
+    /// Prepares `program` on `system`.
+    ///
+    /// # Errors
+    /// Invalid dead or dwell time.
+    pub fn new(program: &'a GradientProgram, system: &'a GradientSystem) -> Result<Self> {
+        system.validate()?;
+        Ok(GradientRun {
+            program,
+            system,
+            pieces: pieces(program, system.dwell_time_min),
+            changes: (program.first_change_min(), program.last_change_min()),
+        })
+    }
+
+    /// Retention of one analyte (see [`gradient_elution`]).
+    ///
+    /// # Errors
+    /// Non-finite parameters, or an analyte that does not elute.
+    pub fn elution(&self, analyte: &LssParameters) -> Result<Elution> {
+        elution_on(self, analyte)
+    }
+}
+
+fn elution_on(run: &GradientRun<'_>, analyte: &LssParameters) -> Result<Elution> {
+    let (program, system) = (run.program, run.system);
     theory::finite("log kw", analyte.log_kw)?;
     theory::finite("S", analyte.s)?;
     let t0 = system.dead_time_min;
     let mut rem = 1.0_f64;
-    for piece in pieces(program, system.dwell_time_min) {
+    for piece in &run.pieces {
         let la = analyte.log10_retention_factor(piece.phi_a);
         match piece.length {
             None => {
@@ -625,7 +663,7 @@ pub fn gradient_elution(
                     });
                 }
                 let xi = piece.start + rem * t0 * 10f64.powf(la);
-                return finish(program, system, analyte, xi, piece.segment);
+                return finish(run, analyte, xi, piece.segment);
             }
             Some(len) => {
                 let beta = analyte.s * (piece.phi_b - piece.phi_a) / len;
@@ -633,7 +671,7 @@ pub fn gradient_elution(
                     let integral = len * 10f64.powf(-la) / t0;
                     if integral >= rem {
                         let xi = piece.start + rem * t0 * 10f64.powf(la);
-                        return finish(program, system, analyte, xi, piece.segment);
+                        return finish(run, analyte, xi, piece.segment);
                     }
                     rem -= integral;
                 } else {
@@ -658,7 +696,7 @@ pub fn gradient_elution(
                             len
                         };
                         let s = s.clamp(0.0, len);
-                        return finish(program, system, analyte, piece.start + s, piece.segment);
+                        return finish(run, analyte, piece.start + s, piece.segment);
                     }
                     rem -= integral;
                 }
@@ -687,11 +725,11 @@ pub fn gradient_elution_numeric(
     system: &GradientSystem,
     tolerance_min: f64,
 ) -> Result<Elution> {
-    system.validate()?;
+    let run = GradientRun::new(program, system)?;
     let tol = theory::positive("tolerance (min)", tolerance_min)?;
     let t0 = system.dead_time_min;
     let mut rem = 1.0_f64;
-    for piece in pieces(program, system.dwell_time_min) {
+    for piece in &run.pieces {
         let phi_at = |s: f64, len: f64| -> f64 {
             if len > 0.0 {
                 piece.phi_a + (piece.phi_b - piece.phi_a) * (s / len)
@@ -713,7 +751,7 @@ pub fn gradient_elution_numeric(
                     });
                 }
                 let xi = piece.start + rem / gk;
-                return finish(program, system, model, xi, piece.segment);
+                return finish(&run, model, xi, piece.segment);
             }
             Some(len) => {
                 let f = |s: f64| g(s, len);
@@ -735,7 +773,7 @@ pub fn gradient_elution_numeric(
                         }
                     }
                     let xi = piece.start + 0.5 * (lo + hi);
-                    return finish(program, system, model, xi, piece.segment);
+                    return finish(&run, model, xi, piece.segment);
                 }
                 rem -= total;
             }

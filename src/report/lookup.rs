@@ -92,10 +92,12 @@ impl LookupReport {
     fn table(&self) -> String {
         let mut out = String::new();
         let total = self.analytes.len() + self.unresolved.len();
+        // The blank line after the count comes before a section, never twice.
         out.push_str(&format!(
-            "Resolved {} of {} queries.\n\n",
+            "Resolved {} of {} queries.\n{}",
             self.analytes.len(),
-            total
+            total,
+            if self.analytes.is_empty() { "" } else { "\n" }
         ));
         if !self.analytes.is_empty() {
             let rows: Vec<Vec<String>> = self

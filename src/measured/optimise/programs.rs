@@ -132,3 +132,25 @@ pub(super) fn two_segment(
     ])
     .ok()
 }
+
+/// A note for each chosen program setting that sits on an edge of its searched range: what
+/// lies beyond was not tried, so the optimum may lie there. `settings` are (words, unit, chosen
+/// value, searched range).
+pub(super) fn edge_notes(settings: &[(&str, &str, f64, Range)]) -> Vec<String> {
+    use crate::measured::window_plot::{Edge, edge_of};
+    settings
+        .iter()
+        .filter_map(|&(what, unit, x, r)| {
+            let side = match edge_of(x, r.min, r.max)? {
+                Edge::Lower => "lower",
+                Edge::Upper => "upper",
+            };
+            Some(format!(
+                "the chosen {what} ({x:.1} {unit}) is at the {side} edge of the searched range \
+                 ({:.1}–{:.1} {unit}): values beyond it were not tried; widen the range to see \
+                 whether they do better",
+                r.min, r.max
+            ))
+        })
+        .collect()
+}

@@ -1,4 +1,5 @@
 use super::*;
+use crate::model::gradient::gradient_elution;
 
 // Invented analytes, chosen so that two of them cross over as tG changes.
 fn analytes() -> Vec<NamedAnalyte> {
@@ -295,4 +296,103 @@ fn svg_has_axes_labels_and_polyline() {
     assert_eq!(svg.matches("id=\"chosen\"").count(), 1);
     assert_eq!(svg.matches("<svg").count(), 1);
     assert!(svg.trim_end().ends_with("</svg>"));
+}
+
+#[test]
+fn an_optimum_on_an_edge_of_the_search_is_named_in_the_notes() {
+    // The invented sample with a lax target: the shortest gradient allowed already meets it,
+    // so the chosen gradient time sits on the lower limit (the case).
+    let mut q = request();
+    q.target_resolution = 0.5;
+    q.gradient_time_min = Range {
+        min: 20.0,
+        max: 40.0,
+    };
+    let r = optimise(&q).unwrap();
+    assert!(
+        (r.gradient_time_min - 20.0).abs() < 1e-9,
+        "{}",
+        r.gradient_time_min
+    );
+    let note = r
+        .notes
+        .iter()
+        .find(|n| n.contains("chosen gradient time"))
+        .expect("edge note");
+    assert!(
+        note.contains("lower edge") && note.contains("20.0–40.0 min"),
+        "{note}"
+    );
+    let svg = render_window_svg(&r.window);
+    assert!(svg.contains("lower edge of the searched range"), "{svg}");
+    // Inside the range: no note for the gradient time.
+    let r = optimise(&request()).unwrap();
+    if r.gradient_time_min > 5.1 && r.gradient_time_min < 39.9 {
+        assert!(!r.notes.iter().any(|n| n.contains("chosen gradient time")));
+    }
+}
+
+#[test]
+fn a_large_sample_is_scored_as_the_reference_formula_scores_it() {
+    // 5,000 invented analytes (above the size at which evaluation is shared between threads):
+    // the optimiser's smallest Rs of the reported program equals a plain recomputation
+    // (sorted by time, neighbours' Rs = 2 ΔtR/(w1 + w2), w = 4 t0 (1 + k_e)/√N).
+    let mut q = request();
+    q.analytes = (0..5000)
+        .map(|i| {
+            let lk = 1.0 + 3.0 * f64::from(i) / 5000.0;
+            NamedAnalyte {
+                name: format!("inv-{i:05}"),
+                log_kw: lk,
+                s: 2.5 + 0.7 * lk + 0.3 * f64::from(i % 7) / 7.0,
+                uncertainty: None,
+            }
+        })
+        .collect();
+    let r = optimise(&q).unwrap();
+    let program = r.optimum.program.clone();
+    let sys = GradientSystem {
+        dead_time_min: 1.0,
+        dwell_time_min: 0.5,
+    };
+    let mut el: Vec<(f64, f64)> = q
+        .analytes
+        .iter()
+        .map(|a| {
+            let e = gradient_elution(
+                &LssParameters {
+                    log_kw: a.log_kw,
+                    s: a.s,
+                },
+                &program,
+                &sys,
+            )
+            .unwrap();
+            (
+                e.retention_time_min,
+                4.0 * (1.0 + e.retention_factor_at_elution) / 100.0,
+            )
+        })
+        .collect();
+    el.sort_by(|a, b| a.0.total_cmp(&b.0));
+    let min_rs = el
+        .windows(2)
+        .map(|w| 2.0 * (w[1].0 - w[0].0) / (w[0].1 + w[1].1))
+        .fold(f64::INFINITY, f64::min);
+    assert!((r.optimum.min_resolution - min_rs).abs() < 1e-12);
+    assert_eq!(r.optimum.peaks.len(), 5000);
+    // Peaks come out in time order, equal times in name order.
+    assert!(r.optimum.peaks.windows(2).all(|w| {
+        w[0].retention_time_min < w[1].retention_time_min
+            || (w[0].retention_time_min == w[1].retention_time_min && w[0].name < w[1].name)
+    }));
+}
+
+#[test]
+fn a_duplicate_analyte_is_refused_by_name() {
+    let mut q = request();
+    let dup = q.analytes[1].clone();
+    q.analytes.push(dup);
+    let e = optimise(&q).unwrap_err().to_string();
+    assert!(e.contains("inv-b"), "{e}");
 }

@@ -50,6 +50,7 @@ pub fn project(
             phases_available: None,
             alternatives: 1,
             risk: opts.risk,
+            no_memory: opts.no_memory,
         };
         let predicted = advice(cli, &one, Some(fixed.clone())).map(|(report, _)| {
             report

@@ -14,7 +14,7 @@
 //!   and charges do not change). A learner that is non-decreasing in the monotone inputs (RP)
 //!   therefore never lowers retention when a CH2 is added.
 
-use super::features::{AnalyteFeatures, log10_fraction_neutral_at};
+use super::features::{AnalyteFeatures, ion_term_at};
 use super::fingerprint::FP_BITS;
 use super::system::{ChemClass, LcSystem, Mode, Modifier};
 
@@ -90,18 +90,28 @@ fn descriptor(f: &AnalyteFeatures, name: &str) -> f64 {
     f.descriptors.get(name).copied().unwrap_or(f64::NAN)
 }
 
-/// Interpolated mean charge at `ph` from the `charge_ph_N` grid (0 when absent).
-fn charge_at(f: &AnalyteFeatures, ph: f64) -> f64 {
-    let ph = ph.clamp(0.0, 14.0);
-    let lo = ph.floor();
-    let hi = ph.ceil();
-    let get = |p: f64| {
-        f.descriptors
-            .get(&format!("charge_ph_{}", p as u8))
-            .copied()
-            .unwrap_or(0.0)
+/// Neutral fraction of the acid and of the base sites at `ph`, recovered from the model's
+/// ionisation terms with the larger ionised-form penalty (`ion_*_d25` = log10(f + (1 - f)·c),
+/// c = 10^-2.5; exact for one site of each kind, an approximation for several).
+fn neutral_fractions(f: &AnalyteFeatures, ph: f64) -> (f64, f64) {
+    let c = 10f64.powf(-2.5);
+    let frac = |name: &str| {
+        let t = ion_term_at(f, name, ph).unwrap_or(0.0);
+        ((10f64.powf(t) - c) / (1.0 - c)).clamp(0.0, 1.0)
     };
-    get(lo) + (get(hi) - get(lo)) * (ph - lo)
+    (frac("ion_acid_d25"), frac("ion_base_d25"))
+}
+
+/// Mean charge at `ph` from the neutral fractions of the acid and base sites.
+fn charge_at(f: &AnalyteFeatures, ph: f64) -> f64 {
+    let (fa, fb) = neutral_fractions(f, ph);
+    (1.0 - fb) - (1.0 - fa)
+}
+
+/// log10 of the neutral fraction at `ph` (acid and base sites independent), floored at -5.
+fn log10_fraction_neutral_at(f: &AnalyteFeatures, ph: f64) -> Option<f64> {
+    let (fa, fb) = neutral_fractions(f, ph);
+    Some((fa * fb).max(1e-5).log10())
 }
 
 /// The eluent pH the ridge uses: stated, else the additive's typical pH.

@@ -16,7 +16,7 @@
 //! 0.1 min and compositions to 0.1 % before prediction, so the reported program is exactly the
 //! one whose retention is reported.
 //!
-//! Predictions: retention from [`gradient_elution`] (exact for LSS), baseline widths
+//! Predictions: retention from [`gradient_elution`](crate::model::gradient::gradient_elution) (exact for LSS), baseline widths
 //! w = 4 t0 (1 + k_e)/√N (SD 2007 ch. 2, band compression ignored, G = 1), resolution
 //! Rs = 2 Δt/(w1 + w2) (SKD 2010 ch. 2). Search: a full grid over (tG, %B start, %B end),
 //! then compass (pattern) search with step halving from the best grid points. Remaining ties are

@@ -140,7 +140,6 @@ fn a_solvent_screen_goes_to_a_thick_film_low_polarity_phase() {
 /// (issue 15). Tricyclic antidepressants: first choice with acetonitrile, the phenyl-type
 /// back-up with methanol (checked, so that the test cannot pass vacuously).
 #[test]
-#[ignore = "after the retrain of 2026-12-04 no common panel gets a back-up with another modifier, so the precondition fails; to be rebuilt on a unit-level advice fixture (issue 15)"]
 fn a_solvent_only_the_backup_uses_is_named_as_the_backups() {
     let ctx = Ctx::new();
     let r = advise(

@@ -145,7 +145,6 @@ fn inorganic_cations_go_to_cation_exchange_ic() {
 }
 
 #[test]
-#[ignore = "after the retrain of 2026-12-04 a zwitterionic HILIC phase outranks amide: the structure-only path predicts glucose/psicose apart (Rs 2.5) and the advisor credits that isomer separation as real; fix the rule (isomers on the structure path share their error, as in GC), issue 14/15"]
 fn sugars_go_to_hilic_on_an_amide_phase() {
     let ctx = Ctx::new();
     let (r, _) = advise(

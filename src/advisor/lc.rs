@@ -86,6 +86,55 @@ fn additive_for(buffer: &str) -> Additive {
 /// than half, C18 (over 150) fully. Common practice, no source.
 pub const TRAINING_SUPPORT_HALF: f64 = 5.0;
 
+/// The smallest resolution of adjacent predicted peaks that the predictions can vouch for:
+/// for each adjacent pair, the predicted retention difference less one standard deviation of
+/// its error (`model::coelution::difference_sigma_min`, calibrated on held-out pairs; the
+/// error shared by both analytes on one system cancels), as a resolution. Two analytes the
+/// model cannot tell apart (isomers from structure alone, say) get no credit for a difference
+/// smaller than its own error, so a phase is not preferred for a separation the model only
+/// guesses. Pairs where both predictions rest on measurements (memory path, scouting fits)
+/// keep their predicted resolution: their errors share the source systems, which the
+/// per-analyte difference table does not capture. Common practice (credit a prediction only
+/// beyond its error), no source. `None` when no adjacent pair has a structure-only
+/// prediction.
+fn credible_critical_resolution(
+    rec: &Recommendation,
+    raw_of: &std::collections::HashMap<String, &regression::Prediction>,
+) -> Option<(f64, String)> {
+    let mut best: Option<(f64, f64)> = None;
+    for w in rec.predictions.windows(2) {
+        let (Some(a), Some(b)) = (raw_of.get(&w[0].analyte), raw_of.get(&w[1].analyte)) else {
+            continue;
+        };
+        // measured retention (memory) and the lab's own fits carry their separation
+        if a.path.label() != "descriptor" && b.path.label() != "descriptor" {
+            continue;
+        }
+        let sigma = crate::model::coelution::difference_sigma_min(
+            &a.difference_sd_psi,
+            &b.difference_sd_psi,
+            0.5 * (a.rt_slope_min + b.rt_slope_min),
+        );
+        let width = w[0].peak_width_half_min + w[1].peak_width_half_min;
+        if !(width > 0.0 && sigma.is_finite()) {
+            continue;
+        }
+        let gap = (w[1].retention_time_min - w[0].retention_time_min).abs();
+        let rs = 1.18 * (gap - sigma).max(0.0) / width;
+        if best.is_none_or(|b| rs < b.0) {
+            best = Some((rs, sigma));
+        }
+    }
+    best.map(|(rs, sigma)| {
+        (
+            rs,
+            format!(
+                "counted as {rs:.2}: only the separation beyond one standard deviation of the predicted difference of the least separated pair ({sigma:.2} min) is credited (common practice, no source)"
+            ),
+        )
+    })
+}
+
 /// The retention model's chemistry class of a catalogue phase.
 pub fn model_class(phase: &StationaryPhase) -> regression::ChemClass {
     use crate::phase::ChemClass as P;
@@ -642,8 +691,19 @@ pub fn candidate(
     let all_measured_here = raw
         .iter()
         .all(|pr| matches!(pr.path, regression::PredictionPath::ScoutingFit { .. }));
+    let raw_of: std::collections::HashMap<String, &regression::Prediction> = preds
+        .iter()
+        .map(|p| p.analyte.clone())
+        .zip(raw.iter())
+        .collect();
     let (mut rec, sep, sep_reason) =
         unscored_recommendation(mode.as_str(), phase, conditions, preds, coelutions);
+    let (sep, sep_reason) = match credible_critical_resolution(&rec, &raw_of) {
+        Some(c) if rec.critical_resolution.is_some_and(|r| c.0 < r - 0.005) => {
+            super::separation_score_counting(&rec, Some(c))
+        }
+        _ => (sep, sep_reason),
+    };
     // How far the predicted separation can be trusted for this chemistry: a class the model has
     // seen on few training systems is predicted close to the C18/mode reference (ridge
     // shrinkage), so its separation score is pulled towards neutral by n/(n + n_half).

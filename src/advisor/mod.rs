@@ -602,7 +602,17 @@ pub fn finish_predictions(rec: &mut Recommendation) {
 /// The separation part of a phase score (0–1): critical resolution (full marks at Rs ≥ 2) and
 /// the mean co-elution probability of the listed pairs.
 pub fn separation_score(rec: &Recommendation) -> (f64, Reason) {
-    let rs = rec.critical_resolution.unwrap_or(3.0);
+    separation_score_counting(rec, None)
+}
+
+/// The separation score of [`separation_score`] with the critical resolution counted as
+/// `credible` (a lower value than predicted, with the sentence that says why) when given.
+pub fn separation_score_counting(
+    rec: &Recommendation,
+    credible: Option<(f64, String)>,
+) -> (f64, Reason) {
+    let predicted = rec.critical_resolution.unwrap_or(3.0);
+    let rs = credible.as_ref().map_or(predicted, |c| c.0.min(predicted));
     let rs_part = (rs / 2.0).clamp(0.0, 1.0);
     let risky: Vec<f64> = rec
         .coelutions
@@ -614,7 +624,8 @@ pub fn separation_score(rec: &Recommendation) -> (f64, Reason) {
     let s = (0.7 * rs_part + 0.3 * (1.0 - penalty)).clamp(0.0, 1.0);
     let text = match &rec.critical_pair {
         Some((a, b)) => format!(
-            "predicted critical pair {a} / {b} at resolution {rs:.2}; {} pair(s) with co-elution probability above 0.2",
+            "predicted critical pair {a} / {b} at resolution {predicted:.2}{}; {} pair(s) with co-elution probability above 0.2",
+            credible.as_ref().map_or(String::new(), |c| format!("; {}", c.1)),
             risky.len()
         ),
         None => "a single analyte: no critical pair".to_string(),

@@ -123,44 +123,64 @@ fn effective_rank(rank: i64) -> i64 {
 
 /// When the records holding a name differ only as ring and open-chain forms of one sugar
 /// (or its anomers), the common form: a cyclic record (sugars are cyclic hemiacetals in
-/// solution, over 99 % for the aldohexoses; common practice, no source), best-ranked, with
-/// stereo before without, lowest CID. `None` when the records are more than one compound
-/// or none is cyclic.
+/// solution, over 99 % for the aldohexoses; common practice, no source), best-ranked (a name
+/// held exactly before one held with its stereo descriptor stripped), lowest CID. The
+/// ring-chain key ignores stereo, so a cyclic record without stereo (`hexopyranose`, any
+/// aldohexose) never stands for a name that a record with stereo holds: when no cyclic record
+/// with stereo holds the name, the best-ranked record with stereo is used (its chain form,
+/// said so). `None` when the records are more than one compound or none is cyclic.
 fn common_form(raw: &str, rows: &[Row]) -> Option<NameDecision> {
     let families: Vec<(String, bool)> = rows.iter().map(ring_chain_family).collect();
     if families.iter().any(|f| f.0 != families[0].0) || !families.iter().any(|f| f.1) {
         return None;
     }
-    let best = rows
+    let has_stereo = |r: &Row| r.candidate.smiles.as_deref().is_some_and(|s| s.contains('@'));
+    let any_stereo = rows.iter().any(has_stereo);
+    let order = |r: &Row| {
+        (
+            effective_rank(r.rank),
+            r.rank == 3,
+            r.candidate.cid.unwrap_or(i64::MAX),
+            r.id,
+        )
+    };
+    let cyclic = rows
         .iter()
         .zip(&families)
-        .filter(|(_, f)| f.1)
-        .min_by_key(|(r, _)| {
-            (
-                effective_rank(r.rank),
-                !r.candidate
-                    .smiles
-                    .as_deref()
-                    .is_some_and(|s| s.contains('@')),
-                r.candidate.cid.unwrap_or(i64::MAX),
-                r.id,
-            )
-        })?
-        .0;
+        .filter(|(r, f)| f.1 && (!any_stereo || has_stereo(r)))
+        .map(|(r, _)| r)
+        .min_by_key(|r| order(r));
+    let (best, form) = match cyclic {
+        Some(r) => (r, true),
+        None => (
+            rows.iter().filter(|r| has_stereo(r)).min_by_key(|r| order(r))?,
+            false,
+        ),
+    };
     let mut others: Vec<&str> = Vec::new();
-    for r in rows.iter().filter(|r| r.skeleton != best.skeleton) {
-        if !others.contains(&r.candidate.name.as_str()) {
+    for r in rows.iter().filter(|r| r.id != best.id) {
+        if !others.contains(&r.candidate.name.as_str()) && r.candidate.name != best.candidate.name
+        {
             others.push(&r.candidate.name);
         }
     }
     Some(NameDecision::CommonForm {
         id: best.id,
-        note: format!(
-            "`{}` is held by ring and open-chain forms of one sugar (also {}); the cyclic form `{}` is used, as sugars are cyclic in solution",
-            raw.trim(),
-            others.join(", "),
-            best.candidate.name
-        ),
+        note: if form {
+            format!(
+                "`{}` is held by ring and open-chain forms of one sugar (also {}); the cyclic form `{}` is used, as sugars are cyclic in solution",
+                raw.trim(),
+                others.join(", "),
+                best.candidate.name
+            )
+        } else {
+            format!(
+                "`{}` is held by ring and open-chain forms of one sugar (also {}); `{}` is used, the only form held with its stereo (open chain; in solution the sugar is cyclic)",
+                raw.trim(),
+                others.join(", "),
+                best.candidate.name
+            )
+        },
     })
 }
 

@@ -91,11 +91,18 @@ fn find(conn: &Connection, q: &Query) -> rusqlite::Result<Option<(CompoundRow, &
             }
             // one statement: the best-ranked name and its compound; a stereoisomer's name
             // without its descriptor (rank 3) ranks as a preferred name, as every name did
-            // before descriptors were kept, so a name without descriptor finds what it did
+            // before descriptors were kept, so a name without descriptor finds what it did;
+            // but a record that holds the name exactly as its preferred name beats one that
+            // holds it only with a descriptor stripped (`fructose` is the fructose record,
+            // not a stereo-less record that some source also calls `l-(+)-fructose`). Among
+            // records that hold the name only with a descriptor stripped, one with its stereo
+            // beats a stereo-less one (`mannitol` is d-mannitol, not `hexitol`, any
+            // hexane-hexol), then the lowest CID, the isomer most sources deposited first
+            // (l-alanine before d-alanine); the record's own name says which isomer it is.
             let hit = conn.prepare_cached(
                 "SELECT c.id, c.inchikey, c.preferred_name, c.smiles, c.formula, c.molar_mass_g_mol, c.cid, c.cas, n.rank
                  FROM name n JOIN compound c ON c.id = n.compound_id
-                 WHERE n.norm = ?1 ORDER BY CASE n.rank WHEN 3 THEN 0 ELSE n.rank END, c.cid IS NULL, c.cid, c.id LIMIT 1",
+                 WHERE n.norm = ?1 ORDER BY CASE n.rank WHEN 3 THEN 0 ELSE n.rank END, n.rank = 3, n.rank = 3 AND instr(coalesce(c.smiles, ''), '@') = 0, c.cid IS NULL, c.cid, c.id LIMIT 1",
             )?
             .query_row([&norm], |r| {
                 let rank: i64 = r.get(8)?;
@@ -109,6 +116,14 @@ fn find(conn: &Connection, q: &Query) -> rusqlite::Result<Option<(CompoundRow, &
                 ))
             })
             .optional()?;
+            // α-Amino acids: a bare name is the L-isomer (the proteinogenic series; common
+            // practice, no source), whatever the CIDs say.
+            let hit = match hit {
+                Some((row, how)) if how == STEREO_ISOMER_NAME => {
+                    Some((l_amino_acid_instead(conn, &norm, row)?, how))
+                }
+                other => other,
+            };
             // A stereo descriptor the base does not hold: the compound under its stereo-free
             // name, said so (the caller sees `matched_by`).
             match hit {
@@ -129,6 +144,59 @@ fn find(conn: &Connection, q: &Query) -> rusqlite::Result<Option<(CompoundRow, &
                 }
             }
         }
+    })
+}
+
+/// For a name held only by stereoisomers' names (rank 3) whose choice is a `d-` α-amino
+/// acid, the `l-` record holding the same name, when there is one; else `row` unchanged.
+fn l_amino_acid_instead(
+    conn: &Connection,
+    norm: &str,
+    row: CompoundRow,
+) -> rusqlite::Result<CompoundRow> {
+    let lower = row.name.to_lowercase();
+    let Some(rest) = lower.strip_prefix("d-") else {
+        return Ok(row);
+    };
+    if !row.smiles.as_deref().is_some_and(is_alpha_amino_acid) {
+        return Ok(row);
+    }
+    let l = conn
+        .prepare_cached(&format!(
+            "SELECT {COMPOUND_COLUMNS} FROM compound c WHERE c.id IN
+             (SELECT compound_id FROM name WHERE norm = ?1 AND rank = 3)
+             AND lower(c.preferred_name) = ?2 ORDER BY c.cid IS NULL, c.cid, c.id LIMIT 1"
+        ))?
+        .query_row(params![norm, format!("l-{rest}")], compound_from_row)
+        .optional()?;
+    Ok(l.unwrap_or(row))
+}
+
+/// Whether a SMILES is an α-amino acid: a saturated carbon bearing an amine nitrogen and a
+/// carboxylic acid (or carboxylate) carbon.
+fn is_alpha_amino_acid(smiles: &str) -> bool {
+    use crate::structure::graph::BondOrder;
+    let Ok(p) = crate::structure::parse_smiles(smiles) else {
+        return false;
+    };
+    let g = &p.graph;
+    let carboxyl = |c: usize| {
+        g.atoms[c].atomic_number == 6 && {
+            let os: Vec<BondOrder> = g.neighbours[c]
+                .iter()
+                .filter(|&&(j, _)| g.atoms[j].atomic_number == 8)
+                .map(|&(_, b)| g.bonds[b].order)
+                .collect();
+            os.len() == 2 && os.contains(&BondOrder::Double)
+        }
+    };
+    (0..g.atoms.len()).any(|a| {
+        g.atoms[a].atomic_number == 6
+            && !g.atoms[a].aromatic
+            && g.neighbours[a].iter().any(|&(j, b)| {
+                g.atoms[j].atomic_number == 7 && g.bonds[b].order == BondOrder::Single
+            })
+            && g.neighbours[a].iter().any(|&(j, _)| carboxyl(j))
     })
 }
 

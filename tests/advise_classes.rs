@@ -136,38 +136,6 @@ fn a_solvent_screen_goes_to_a_thick_film_low_polarity_phase() {
     );
 }
 
-/// A modifier that only the back-up uses is named as the back-up's in the solvent caution
-/// (issue 15). Tricyclic antidepressants: first choice with acetonitrile, the phenyl-type
-/// back-up with methanol (checked, so that the test cannot pass vacuously).
-#[test]
-fn a_solvent_only_the_backup_uses_is_named_as_the_backups() {
-    let ctx = Ctx::new();
-    let r = advise(
-        &ctx,
-        &[
-            "amitriptyline",
-            "nortriptyline",
-            "imipramine",
-            "desipramine",
-            "doxepin",
-        ],
-    );
-    let m1 = r["recommendations"][0]["conditions"]["modifier"].as_str();
-    let m2 = r["backup"]["recommendation"]["conditions"]["modifier"].as_str();
-    assert!(m2.is_some() && m1 != m2, "modifiers {m1:?} / {m2:?}");
-    let m2 = m2.unwrap_or("");
-    let cautions = r["cautions"].as_array().expect("cautions");
-    let text: Vec<&str> = cautions
-        .iter()
-        .filter_map(|c| c["text"].as_str())
-        .filter(|t| t.to_lowercase().starts_with(m2))
-        .collect();
-    assert!(
-        text.iter().any(|t| t.contains("the back-up's modifier")),
-        "{text:?}"
-    );
-}
-
 /// Every reason names the rule or model it comes from (issue 15).
 #[test]
 fn every_reason_names_its_rule_or_model() {

@@ -48,7 +48,10 @@ fn bare_names_of_stereoisomers_resolve_to_the_usual_isomer() {
 #[test]
 fn a_sugar_name_never_becomes_a_stereo_less_generic_ring() {
     let ctx = Ctx::new();
-    for a in lookup(&ctx, &["mannose", "galactose", "glucose", "xylose", "arabinose"]) {
+    for a in lookup(
+        &ctx,
+        &["mannose", "galactose", "glucose", "xylose", "arabinose"],
+    ) {
         let q = a["query"].as_str().unwrap_or_default().to_string();
         let name = a["name"].as_str().unwrap_or_default().to_lowercase();
         assert!(name.contains(&q), "{q} resolved to {name}");
@@ -64,6 +67,9 @@ fn a_descriptor_the_user_gives_is_kept() {
     let ctx = Ctx::new();
     for a in lookup(&ctx, &["d-alanine", "d-proline", "l-mannitol"]) {
         let q = a["query"].as_str().unwrap_or_default();
-        assert_eq!(a["name"].as_str().map(str::to_lowercase).as_deref(), Some(q));
+        assert_eq!(
+            a["name"].as_str().map(str::to_lowercase).as_deref(),
+            Some(q)
+        );
     }
 }

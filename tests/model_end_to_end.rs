@@ -179,3 +179,27 @@ fn builtin_model_loads_and_predicts() {
     // Hexylbenzene is far more retained than glycerol in RP (common practice, no source).
     assert!(hexylbenzene.rt_min > glycerol.rt_min + 3.0);
 }
+
+/// A stereo InChIKey finds measurements the retention memory holds under its stereo-less key.
+#[test]
+fn a_stereo_key_finds_measurements_stored_without_stereo() {
+    // Invented keys of the InChIKey shape (no real compounds); only the stereo-less one is held
+    let head = "# x\nsystem\ts1\tRP\tC18\tacn\t3\tformic\t1\t0.5\t30\t0:5;10:95\n";
+    let text = format!(
+        "{head}analyte\tAAAAAAAAAAAAAA-UHFFFAOYSA-N\ts1:0.3:4.0\nanalyte\tBBBBBBBBBBBBBB-WESIUVDSSA-N\ts1:0.5:6.0\n"
+    );
+    for t in [
+        MemoryTable::from_tsv_lazy(&text, "t"),
+        MemoryTable::from_tsv(&text, "t"),
+    ] {
+        let t = t.unwrap();
+        let psi = |k: &str| t.measurements(k).map(|m| m.2).collect::<Vec<_>>();
+        assert_eq!(psi("AAAAAAAAAAAAAA-WESIUVDSSA-N"), [0.3]);
+        assert_eq!(psi("AAAAAAAAAAAAAA-UHFFFAOYSA-N"), [0.3]);
+        // an exact stereo record wins; a stereo-less query never borrows a stereo record
+        assert_eq!(psi("BBBBBBBBBBBBBB-WESIUVDSSA-N"), [0.5]);
+        assert!(psi("BBBBBBBBBBBBBB-UHFFFAOYSA-N").is_empty());
+        // another protonation flag is another species
+        assert!(psi("AAAAAAAAAAAAAA-WESIUVDSSA-M").is_empty());
+    }
+}

@@ -12,7 +12,7 @@ use crate::phase::{Catalogue, PhaseMode, StationaryPhase};
 use crate::report::advice::{Conditions, PredictionRow, ProgramStep, Reason, Recommendation};
 use crate::structure::ionisable::SiteKind;
 
-fn model() -> Result<&'static Model, String> {
+pub(super) fn model() -> Result<&'static Model, String> {
     static M: OnceLock<Result<Model, String>> = OnceLock::new();
     M.get_or_init(|| Model::load_builtin().map_err(|e| e.to_string()))
         .as_ref()
@@ -86,55 +86,6 @@ fn additive_for(buffer: &str) -> Additive {
 /// than half, C18 (over 150) fully. Common practice, no source.
 pub const TRAINING_SUPPORT_HALF: f64 = 5.0;
 
-/// The smallest resolution of adjacent predicted peaks that the predictions can vouch for:
-/// for each adjacent pair, the predicted retention difference less one standard deviation of
-/// its error (`model::coelution::difference_sigma_min`, calibrated on held-out pairs; the
-/// error shared by both analytes on one system cancels), as a resolution. Two analytes the
-/// model cannot tell apart (isomers from structure alone, say) get no credit for a difference
-/// smaller than its own error, so a phase is not preferred for a separation the model only
-/// guesses. Pairs where both predictions rest on measurements (memory path, scouting fits)
-/// keep their predicted resolution: their errors share the source systems, which the
-/// per-analyte difference table does not capture. Common practice (credit a prediction only
-/// beyond its error), no source. `None` when no adjacent pair has a structure-only
-/// prediction.
-fn credible_critical_resolution(
-    rec: &Recommendation,
-    raw_of: &std::collections::HashMap<String, &regression::Prediction>,
-) -> Option<(f64, String)> {
-    let mut best: Option<(f64, f64)> = None;
-    for w in rec.predictions.windows(2) {
-        let (Some(a), Some(b)) = (raw_of.get(&w[0].analyte), raw_of.get(&w[1].analyte)) else {
-            continue;
-        };
-        // measured retention (memory) and the lab's own fits carry their separation
-        if a.path.label() != "descriptor" && b.path.label() != "descriptor" {
-            continue;
-        }
-        let sigma = crate::model::coelution::difference_sigma_min(
-            &a.difference_sd_psi,
-            &b.difference_sd_psi,
-            0.5 * (a.rt_slope_min + b.rt_slope_min),
-        );
-        let width = w[0].peak_width_half_min + w[1].peak_width_half_min;
-        if !(width > 0.0 && sigma.is_finite()) {
-            continue;
-        }
-        let gap = (w[1].retention_time_min - w[0].retention_time_min).abs();
-        let rs = 1.18 * (gap - sigma).max(0.0) / width;
-        if best.is_none_or(|b| rs < b.0) {
-            best = Some((rs, sigma));
-        }
-    }
-    best.map(|(rs, sigma)| {
-        (
-            rs,
-            format!(
-                "counted as {rs:.2}: only the separation beyond one standard deviation of the predicted difference of the least separated pair ({sigma:.2} min) is credited (common practice, no source)"
-            ),
-        )
-    })
-}
-
 /// The retention model's chemistry class of a catalogue phase.
 pub fn model_class(phase: &StationaryPhase) -> regression::ChemClass {
     use crate::phase::ChemClass as P;
@@ -166,7 +117,9 @@ pub fn choose_ph(
     let lo = phase.ph_min().unwrap_or(2.0);
     let hi = phase.ph_max().unwrap_or(8.0);
     let mut options: Vec<(f64, &str, &str)> = PH_CHOICES.to_vec();
-    if !detector.needs_volatile() {
+    // Phosphate salts precipitate in the 70-95 % acetonitrile of HILIC eluents (common
+    // practice, no source): HILIC gets formic acid and ammonium formate or acetate only.
+    if !detector.needs_volatile() && mode != PhaseMode::Hilic {
         options.push(PHOSPHATE);
     }
     let limits = super::ph::ph_limits(profiles, mode);
@@ -241,6 +194,13 @@ pub fn choose_ph(
                 "{} needs a volatile mobile phase: only formic acid and ammonium formate, acetate or bicarbonate buffers were considered, no phosphate (common practice, no source)",
                 detector.describe()
             ),
+            weight: None,
+        });
+    }
+    if mode == PhaseMode::Hilic && !detector.needs_volatile() {
+        reasons.push(Reason {
+            source: "rule:no-phosphate-in-hilic".into(),
+            text: "phosphate buffers precipitate in the high-acetonitrile HILIC eluent: only formic acid and ammonium formate or acetate were considered (common practice, no source)".into(),
             weight: None,
         });
     }
@@ -698,7 +658,7 @@ pub fn candidate(
         .collect();
     let (mut rec, sep, sep_reason) =
         unscored_recommendation(mode.as_str(), phase, conditions, preds, coelutions);
-    let (sep, sep_reason) = match credible_critical_resolution(&rec, &raw_of) {
+    let (sep, sep_reason) = match super::evidence::credible_critical_resolution(&rec, &raw_of) {
         Some(c) if rec.critical_resolution.is_some_and(|r| c.0 < r - 0.005) => {
             super::separation_score_counting(&rec, Some(c))
         }

@@ -11,6 +11,7 @@
 
 pub mod calibrants;
 pub mod detection;
+mod evidence;
 pub mod gc;
 pub mod gc_predict;
 pub mod ic;
@@ -285,6 +286,14 @@ pub fn advise(
             }
             both
         }
+    };
+    // measured reversed-phase retention is evidence for the mode fit (rule:rp-measured-retention)
+    let with_evidence;
+    let profiles = if req.no_memory {
+        profiles
+    } else {
+        with_evidence = evidence::with_measured_rp(profiles);
+        &with_evidence[..]
     };
     let mode_scores = modes::score_modes(profiles, &allowed);
     if detection::compatible_modes(req.detector).is_some()
@@ -625,7 +634,9 @@ pub fn separation_score_counting(
     let text = match &rec.critical_pair {
         Some((a, b)) => format!(
             "predicted critical pair {a} / {b} at resolution {predicted:.2}{}; {} pair(s) with co-elution probability above 0.2",
-            credible.as_ref().map_or(String::new(), |c| format!("; {}", c.1)),
+            credible
+                .as_ref()
+                .map_or(String::new(), |c| format!("; {}", c.1)),
             risky.len()
         ),
         None => "a single analyte: no critical pair".to_string(),
@@ -955,17 +966,4 @@ pub fn retention_window_reason(rec: &Recommendation) -> Reason {
 }
 
 #[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn low_polarity_polysiloxanes_are_one_gc_family_and_not_aromatic() {
-        assert_eq!(family("gc-5-phenyl"), family("gc-dimethyl"));
-        assert_eq!(family("gc-6-cyanopropylphenyl"), family("gc-dimethyl"));
-        assert_eq!(family("gc-wax"), family("gc-wax-acid"));
-        assert_ne!(family("gc-wax"), family("gc-5-phenyl"));
-        assert_ne!(family("gc-5-phenyl"), family("rp-phenyl-hexyl"));
-        assert_eq!(family("rp-phenyl-hexyl"), family("rp-pfp"));
-        assert_eq!(family("rp-c18"), family("rp-c8"));
-    }
-}
+mod tests;

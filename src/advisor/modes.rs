@@ -49,6 +49,39 @@ pub fn small_organic_acid(p: &AnalyteProfile) -> bool {
         && p.log_p.is_some_and(|(l, _)| l < 1.5)
 }
 
+/// Measured retention overrides the logD rule of thumb for reversed phase (rule
+/// `rule:rp-measured-retention`; common practice, no source: a measurement beats an estimate).
+/// With k = 1 reached at 10 % strong solvent or more (median over the RP systems of the open
+/// retention data that measured it), the analyte is retained by reversed phase whatever its
+/// estimated logD (large zwitterions such as tetracyclines, whose logD from the neutral
+/// fraction understates their retention): fit at least 0.4 + 2·ψ (at most 0.9). Below 3 %
+/// it elutes near the dead time even at low organic: fit at most 0.3.
+fn measured_rp_fit(p: &AnalyteProfile, f: f64, why: String) -> (f64, String) {
+    let Some((psi, n)) = p.measured_rp_psi_k1 else {
+        return (f, why);
+    };
+    let pct = 100.0 * psi;
+    if psi >= 0.10 {
+        let floor = (0.4 + 2.0 * psi).min(0.9);
+        if floor > f {
+            return (
+                floor,
+                format!(
+                    "{why}; but measured on {n} reversed-phase systems of the open retention data, k = 1 at about {pct:.0} % organic (median): retained (rule:rp-measured-retention)"
+                ),
+            );
+        }
+    } else if psi < 0.03 && f > 0.3 {
+        return (
+            0.3,
+            format!(
+                "{why}; but measured on {n} reversed-phase systems of the open retention data, k = 1 already at about {pct:.0} % organic (median): barely retained (rule:rp-measured-retention)"
+            ),
+        );
+    }
+    (f, why)
+}
+
 /// The fit of one analyte to one mode, with the reason. Missing evidence is never favourable:
 /// an analyte whose structure, boiling point or logP is unknown scores low in the modes that
 /// need it, and the reason says "unknown".
@@ -124,7 +157,7 @@ pub fn fit(p: &AnalyteProfile, mode: PhaseMode) -> (f64, String) {
                 && p.gc_verdict() == Some(GcVerdict::Suitable);
             let gc_class = gc_neutral_class(p);
             // pH 2-11: bases are neutral and retained at high pH on a high-pH-stable phase
-            match p.max_log_d(2.0, 11.0) {
+            let (f, why) = match p.max_log_d(2.0, 11.0) {
                 Some(d) if volatile || gc_class => (
                     0.6 * logistic(2.0 * (d + 1.5)),
                     format!(
@@ -143,7 +176,8 @@ pub fn fit(p: &AnalyteProfile, mode: PhaseMode) -> (f64, String) {
                     ),
                 ),
                 None => (0.3, "unknown: no logP known".into()),
-            }
+            };
+            measured_rp_fit(p, f, why)
         }
         PhaseMode::Hilic => match p.log_d(3.0) {
             _ if p.inorganic_ion => (

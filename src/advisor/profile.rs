@@ -136,6 +136,11 @@ pub struct AnalyteProfile {
     pub ion: Option<IonMatch>,
     /// The strongest UV chromophore of the structure (`None` without a structure).
     pub chromophore: Option<ChromophoreClass>,
+    /// Measured reversed-phase retention from the open retention data (the retention memory):
+    /// the median strong-solvent fraction at which k = 1 over the RP systems that measured the
+    /// analyte, and their number. Filled by the advisor (`evidence::with_measured_rp`); `None`
+    /// without measurements or with `--no-memory`.
+    pub measured_rp_psi_k1: Option<(f64, usize)>,
     /// The name shown in every table: the user's label first, then the resolved name
     /// ([`Analyte::display_name`]).
     display: String,
@@ -294,6 +299,7 @@ impl AnalyteProfile {
             notes,
             ion,
             chromophore,
+            measured_rp_psi_k1: None,
             display: analyte_display,
         }
     }

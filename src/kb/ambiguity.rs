@@ -134,7 +134,12 @@ fn common_form(raw: &str, rows: &[Row]) -> Option<NameDecision> {
     if families.iter().any(|f| f.0 != families[0].0) || !families.iter().any(|f| f.1) {
         return None;
     }
-    let has_stereo = |r: &Row| r.candidate.smiles.as_deref().is_some_and(|s| s.contains('@'));
+    let has_stereo = |r: &Row| {
+        r.candidate
+            .smiles
+            .as_deref()
+            .is_some_and(|s| s.contains('@'))
+    };
     let any_stereo = rows.iter().any(has_stereo);
     let order = |r: &Row| {
         (
@@ -153,14 +158,15 @@ fn common_form(raw: &str, rows: &[Row]) -> Option<NameDecision> {
     let (best, form) = match cyclic {
         Some(r) => (r, true),
         None => (
-            rows.iter().filter(|r| has_stereo(r)).min_by_key(|r| order(r))?,
+            rows.iter()
+                .filter(|r| has_stereo(r))
+                .min_by_key(|r| order(r))?,
             false,
         ),
     };
     let mut others: Vec<&str> = Vec::new();
     for r in rows.iter().filter(|r| r.id != best.id) {
-        if !others.contains(&r.candidate.name.as_str()) && r.candidate.name != best.candidate.name
-        {
+        if !others.contains(&r.candidate.name.as_str()) && r.candidate.name != best.candidate.name {
             others.push(&r.candidate.name);
         }
     }

@@ -7,8 +7,9 @@ use std::io::Read;
 
 use serde::{Deserialize, Serialize};
 
+use super::gz::gzip;
 use super::linear::LinearPart;
-use super::memory::{MemoryTable, MemoryWeights, gzip};
+use super::memory::{MemoryTable, MemoryWeights};
 use super::system::{ChemClass, Mode, ModelError};
 
 /// Licence notice stored inside every model file (the model is derived from RepoRT).

@@ -12,11 +12,10 @@
 //! A linear map per system pair would need compounds shared with the *user's* system, which a
 //! new system never has; the model-residual route needs none.
 
-use std::collections::BTreeMap;
-use std::io::{Read, Write};
-
 use serde::{Deserialize, Serialize};
+use std::collections::BTreeMap;
 
+use super::gz::{gunzip, gzip};
 use super::prediction::{Prediction, PredictionPath};
 use super::system::{Additive, ChemClass, LcSystem, Mode, ModelError, Modifier};
 use super::training_data::{TrainingData, parse_program};
@@ -179,32 +178,7 @@ fn additive_code(a: Additive) -> &'static str {
     }
 }
 
-fn gunzip(bytes: &[u8], label: &str) -> Result<String, ModelError> {
-    let mut s = String::new();
-    flate2::read::GzDecoder::new(bytes)
-        .read_to_string(&mut s)
-        .map_err(|e| ModelError::Io {
-            path: label.to_owned(),
-            reason: e.to_string(),
-        })?;
-    Ok(s)
-}
-
 /// One `system` record of the TSV form.
-/// Gzip with a fixed level and a zero timestamp, so the same bytes in give the same file out
-/// (model and memory files).
-pub(crate) fn gzip(bytes: &[u8]) -> Result<Vec<u8>, ModelError> {
-    let mut enc = flate2::GzBuilder::new()
-        .mtime(0)
-        .write(Vec::new(), flate2::Compression::new(9));
-    enc.write_all(bytes)
-        .and_then(|()| enc.finish())
-        .map_err(|e| ModelError::Io {
-            path: "gzip".into(),
-            reason: e.to_string(),
-        })
-}
-
 fn system_line(id: &str, s: &LcSystem) -> String {
     let g: Vec<String> = s
         .gradient
@@ -230,11 +204,18 @@ fn fmt_opt(v: Option<f64>) -> String {
 }
 
 impl MemoryTable {
-    /// Measurements of an analyte: (system id, system, psi_k1).
+    /// Measurements of an analyte: (system id, system, psi_k1). An InChIKey with a stereo
+    /// layer that the memory does not hold finds the measurements stored under its
+    /// stereo-less key (same skeleton block and protonation flag, `UHFFFAOYSA` second block):
+    /// the open retention data often give structures without stereo, and what they measured
+    /// is the same compound (its enantiomers retain alike on achiral phases; a diastereomer
+    /// rarely has its own record). Common practice, no source.
     pub fn measurements<'a>(
         &'a self,
         inchikey: &str,
     ) -> impl Iterator<Item = (&'a str, &'a LcSystem, f64)> + 'a {
+        let inchikey = self.stored_key(inchikey);
+        let inchikey = inchikey.as_str();
         let eager = self
             .entries
             .get(inchikey)
@@ -261,6 +242,32 @@ impl MemoryTable {
                     .map(|(k, s)| (k.as_str(), s, psi))
             });
         eager.chain(lazy)
+    }
+
+    /// Whether the memory holds measurements under exactly this key.
+    fn holds(&self, inchikey: &str) -> bool {
+        self.entries.get(inchikey).is_some_and(|v| !v.is_empty())
+            || self
+                .lazy
+                .as_ref()
+                .and_then(|l| l.items(inchikey))
+                .is_some_and(|i| !i.is_empty())
+    }
+
+    /// The key the memory holds this analyte under: the key itself, else its stereo-less form
+    /// when that is held (see [`MemoryTable::measurements`]).
+    fn stored_key(&self, inchikey: &str) -> String {
+        if self.holds(inchikey) {
+            return inchikey.to_string();
+        }
+        let b = inchikey.as_bytes();
+        if b.len() == 27 && b[14] == b'-' && b[25] == b'-' {
+            let stereo_less = format!("{}-UHFFFAOYSA-{}", &inchikey[..14], &inchikey[26..]);
+            if stereo_less != inchikey && self.holds(&stereo_less) {
+                return stereo_less;
+            }
+        }
+        inchikey.to_string()
     }
 
     /// Number of analytes.

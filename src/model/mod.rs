@@ -14,6 +14,7 @@ pub mod fingerprint;
 pub mod fitted;
 pub mod gc;
 pub mod gradient;
+mod gz;
 pub mod ic;
 pub mod learner_features;
 pub mod linear;

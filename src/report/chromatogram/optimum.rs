@@ -92,7 +92,7 @@ pub fn render_gc_optimum_svg(
             run_time_min: prediction.run_time_min,
             target_resolution,
             path: "scouting fit (ln k = A + B/T)",
-            program: None,
+            program: Some(oven_trace(prediction)),
             id: "scout-gc-optimum",
             subtitle: format!(
                 "optimised oven program {} (initial °C : hold min, ramp °C/min : final °C : hold min)",
@@ -101,6 +101,25 @@ pub fn render_gc_optimum_svg(
         },
         title,
     )
+}
+
+/// The oven program of a GC optimum as break points (time min, °C): initial hold, one linear
+/// ramp, final hold. A ramp that is not a finite positive rate draws the initial hold only.
+pub(super) fn oven_trace(p: &GcPrediction) -> ProgramTrace {
+    let hold = p.initial_hold_min.max(0.0);
+    let mut points = vec![(0.0, p.initial_c), (hold, p.initial_c)];
+    if p.ramp_c_per_min.is_finite() && p.ramp_c_per_min > 0.0 && p.final_c > p.initial_c {
+        let end_ramp = hold + (p.final_c - p.initial_c) / p.ramp_c_per_min;
+        points.push((end_ramp, p.final_c));
+        if p.final_hold_min.is_finite() && p.final_hold_min > 0.0 {
+            points.push((end_ramp + p.final_hold_min, p.final_c));
+        }
+    }
+    points.dedup_by(|a, b| a.0 == b.0 && a.1 == b.1);
+    ProgramTrace {
+        points,
+        label: "oven temperature (°C)".to_string(),
+    }
 }
 
 /// One predicted peak of an optimum.

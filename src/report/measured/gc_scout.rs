@@ -8,6 +8,7 @@ use crate::measured::gc_optimise::GcOptimiseReport;
 use crate::measured::gc_scout::{GcFitFlag, GcScoutFit};
 use crate::measured::optimise::Selection;
 use crate::report::table::render;
+use crate::report::{csv_cell, csv_num};
 
 /// Schema version of the `scout --mode gc` JSON output.
 pub const SCOUT_GC_SCHEMA_VERSION: u32 = 1;
@@ -220,7 +221,10 @@ pub fn gc_window_tsv(r: &GcOptimiseReport) -> String {
     let w = &r.window;
     let mut s = format!(
         "# window diagram at initial {} °C, hold {} min; target Rs {}; optimum ramp {} °C/min\n",
-        w.initial_c, w.initial_hold_min, w.target_resolution, w.optimum_ramp_c_per_min
+        csv_num(w.initial_c, None),
+        csv_num(w.initial_hold_min, None),
+        csv_num(w.target_resolution, None),
+        csv_num(w.optimum_ramp_c_per_min, None)
     );
     s.push_str(
         "ramp_c_per_min\tmin_resolution\tcritical_first\tcritical_second\trun_time_min\twithin_run_time\tfirst_peak_k\tmeets_min_k\n",
@@ -228,13 +232,13 @@ pub fn gc_window_tsv(r: &GcOptimiseReport) -> String {
     for p in &w.points {
         s.push_str(&format!(
             "{}\t{}\t{}\t{}\t{}\t{}\t{}\t{}\n",
-            p.ramp_c_per_min,
-            p.min_resolution,
-            p.critical_pair[0],
-            p.critical_pair[1],
-            p.run_time_min,
+            csv_num(p.ramp_c_per_min, None),
+            csv_num(p.min_resolution, None),
+            csv_cell(&p.critical_pair[0], '\t'),
+            csv_cell(&p.critical_pair[1], '\t'),
+            csv_num(p.run_time_min, None),
             p.within_run_time,
-            p.first_peak_retention_factor,
+            csv_num(p.first_peak_retention_factor, None),
             p.meets_min_retention
         ));
     }

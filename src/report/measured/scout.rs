@@ -9,6 +9,7 @@ use crate::measured::optimise::{OptimiseReport, Prediction, Selection};
 use crate::measured::scout::{CompositionBasis, FitFlag, ScoutFit};
 use crate::model::gradient::GradientProgram;
 use crate::report::table::render;
+use crate::report::{csv_cell, csv_num};
 
 /// Schema version of the `scout` JSON output (2: the optimiser's selection rule, first-peak
 /// retention and rounded programs; `rounded` removed).
@@ -343,7 +344,10 @@ pub fn window_tsv(r: &OptimiseReport) -> String {
     let w = &r.window;
     let mut s = format!(
         "# window diagram at {} % → {} % organic; target Rs {}; optimum tG {} min\n",
-        w.initial_pct, w.final_pct, w.target_resolution, w.optimum_gradient_time_min
+        csv_num(w.initial_pct, None),
+        csv_num(w.final_pct, None),
+        csv_num(w.target_resolution, None),
+        csv_num(w.optimum_gradient_time_min, None)
     );
     s.push_str(
         "gradient_time_min\tmin_resolution\tcritical_first\tcritical_second\trun_time_min\twithin_run_time\tfirst_peak_k\tmeets_min_k\n",
@@ -351,13 +355,13 @@ pub fn window_tsv(r: &OptimiseReport) -> String {
     for p in &w.points {
         s.push_str(&format!(
             "{}\t{}\t{}\t{}\t{}\t{}\t{}\t{}\n",
-            p.gradient_time_min,
-            p.min_resolution,
-            p.critical_pair[0],
-            p.critical_pair[1],
-            p.run_time_min,
+            csv_num(p.gradient_time_min, None),
+            csv_num(p.min_resolution, None),
+            csv_cell(&p.critical_pair[0], '\t'),
+            csv_cell(&p.critical_pair[1], '\t'),
+            csv_num(p.run_time_min, None),
             p.within_run_time,
-            p.first_peak_retention_factor,
+            csv_num(p.first_peak_retention_factor, None),
             p.meets_min_retention
         ));
     }

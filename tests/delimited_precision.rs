@@ -45,7 +45,11 @@ fn cells(line: &str, d: char) -> Vec<String> {
 /// Significant digits of a numeric cell, or `None` when the cell is not a number.
 fn significant_digits(cell: &str) -> Option<usize> {
     let t = cell.trim();
-    if t.is_empty() || t.parse::<f64>().is_err() || t.chars().any(|c| c.is_ascii_alphabetic() && c != 'e' && c != 'E') {
+    if t.is_empty()
+        || t.parse::<f64>().is_err()
+        || t.chars()
+            .any(|c| c.is_ascii_alphabetic() && c != 'e' && c != 'E')
+    {
         return None;
     }
     let mantissa = t.split(['e', 'E']).next().unwrap_or(t);
@@ -129,14 +133,34 @@ fn data_commands_write_csv_and_tsv_numbers_by_one_rule() {
     for (fmt, d) in [("csv", ','), ("tsv", '\t')] {
         for panel in panels {
             let text = run_ok(&ctx, &["advise", "--input", panel, "--format", fmt]);
-            assert!(check(&format!("advise {panel} {fmt}"), &text, d) > 10, "{text}");
+            assert!(
+                check(&format!("advise {panel} {fmt}"), &text, d) > 10,
+                "{text}"
+            );
         }
         let text = run_ok(
             &ctx,
             &[
-                "predict", "caffeine", "theophylline", "theobromine", "paraxanthine", "--mode",
-                "rp", "--phase", "rp-c18", "--gradient", "0:5,20:95", "--ph", "2.7",
-                "--modifier", "acetonitrile", "--column", "150x4.6", "--flow", "1.0", "--format",
+                "predict",
+                "caffeine",
+                "theophylline",
+                "theobromine",
+                "paraxanthine",
+                "--mode",
+                "rp",
+                "--phase",
+                "rp-c18",
+                "--gradient",
+                "0:5,20:95",
+                "--ph",
+                "2.7",
+                "--modifier",
+                "acetonitrile",
+                "--column",
+                "150x4.6",
+                "--flow",
+                "1.0",
+                "--format",
                 fmt,
             ],
         );
@@ -144,17 +168,37 @@ fn data_commands_write_csv_and_tsv_numbers_by_one_rule() {
         let text = run_ok(
             &ctx,
             &[
-                "predict", "toluene", "ethylbenzene", "o-xylene", "--mode", "gc", "--phase",
-                "gc-5-phenyl", "--oven", "40:2,10:250:5", "--column", "30x0.25x0.25", "--format",
+                "predict",
+                "toluene",
+                "ethylbenzene",
+                "o-xylene",
+                "--mode",
+                "gc",
+                "--phase",
+                "gc-5-phenyl",
+                "--oven",
+                "40:2,10:250:5",
+                "--column",
+                "30x0.25x0.25",
+                "--format",
                 fmt,
             ],
         );
         assert!(check(&format!("predict gc {fmt}"), &text, d) >= 6, "{text}");
-        let text = run_ok(&ctx, &["lookup", "caffeine", "aspirin", "toluene", "--format", fmt]);
+        let text = run_ok(
+            &ctx,
+            &["lookup", "caffeine", "aspirin", "toluene", "--format", fmt],
+        );
         assert!(check(&format!("lookup {fmt}"), &text, d) > 5, "{text}");
         let text = run_ok(
             &ctx,
-            &["describe", "CC(=O)Oc1ccccc1C(=O)O", "Cn1cnc2c1c(=O)n(C)c(=O)n2C", "--format", fmt],
+            &[
+                "describe",
+                "CC(=O)Oc1ccccc1C(=O)O",
+                "Cn1cnc2c1c(=O)n(C)c(=O)n2C",
+                "--format",
+                fmt,
+            ],
         );
         assert!(check(&format!("describe {fmt}"), &text, d) > 10, "{text}");
         let text = run_ok(&ctx, &["kb", "stats", "--format", fmt]);
@@ -206,7 +250,12 @@ fn scout_window_data_follows_the_rule() {
     let ctx = Ctx::new();
     let dir = ctx.dir.path();
     // LC: invented (log kw, S) of four analytes; t0 1.5 min, dwell 1.0 min.
-    let lc = [("pr3-w", 2.1, 3.4), ("pr3-x", 2.8, 4.1), ("pr3-y", 3.4, 4.6), ("pr3-z", 4.2, 5.5)];
+    let lc = [
+        ("pr3-w", 2.1, 3.4),
+        ("pr3-x", 2.8, 4.1),
+        ("pr3-y", 3.4, 4.6),
+        ("pr3-z", 4.2, 5.5),
+    ];
     let system = GradientSystem {
         dead_time_min: 1.5,
         dwell_time_min: 1.0,
@@ -243,7 +292,11 @@ fn scout_window_data_follows_the_rule() {
     assert!(check("scout window data", &text, '\t') > 20, "{text}");
 
     // GC: invented ln k = A + B/T parameters; t_M 1.25 min.
-    let gc = [("pr3-g1", -10.0, 4400.0), ("pr3-g2", -11.0, 5000.0), ("pr3-g3", -13.2, 6200.0)];
+    let gc = [
+        ("pr3-g1", -10.0, 4400.0),
+        ("pr3-g2", -11.0, 5000.0),
+        ("pr3-g3", -13.2, 6200.0),
+    ];
     let mut runs = Vec::new();
     for (i, prog) in ["40:1,5:300:5", "40:1,15:300:5"].iter().enumerate() {
         let o = OvenProgram::parse(prog).unwrap();
@@ -272,5 +325,8 @@ fn scout_window_data_follows_the_rule() {
     ]);
     run_ok(&ctx, &args);
     let text = std::fs::read_to_string(&tsv).unwrap();
-    assert!(check("scout --mode gc window data", &text, '\t') > 20, "{text}");
+    assert!(
+        check("scout --mode gc window data", &text, '\t') > 20,
+        "{text}"
+    );
 }

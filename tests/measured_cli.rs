@@ -187,9 +187,7 @@ fn suitability_csv_has_one_block_per_table() {
                 .and(predicate::str::contains("# pairs\n"))
                 .and(predicate::str::contains("# checks\n"))
                 .and(predicate::str::contains("marker-x,3,0.89,"))
-                .and(predicate::str::contains(
-                    "k ≥ limit,marker-x,0.89,1,FAIL",
-                )),
+                .and(predicate::str::contains("k ≥ limit,marker-x,0.89,1,FAIL")),
         );
 }
 

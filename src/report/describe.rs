@@ -125,7 +125,13 @@ impl DescribeReport {
                 num(x, n)
             }
         };
-        let absent = || if delimited { String::new() } else { "-".to_string() };
+        let absent = || {
+            if delimited {
+                String::new()
+            } else {
+                "-".to_string()
+            }
+        };
         let opt = |v: Option<f64>, n| v.map_or_else(absent, |x| fixed(x, n));
         let sites: Vec<String> = m
             .ionisable_sites
@@ -197,7 +203,11 @@ impl DescribeReport {
     fn table(&self) -> String {
         let mut out = String::new();
         if !self.molecules.is_empty() {
-            let rows: Vec<Vec<String>> = self.molecules.iter().map(|m| Self::columns(m, false)).collect();
+            let rows: Vec<Vec<String>> = self
+                .molecules
+                .iter()
+                .map(|m| Self::columns(m, false))
+                .collect();
             out.push_str(&table::render(&Self::HEADER, &rows));
             out.push_str("\n\nMethods: ");
             out.push_str(
@@ -230,7 +240,10 @@ impl DescribeReport {
         let mut out = Self::HEADER.join(&d.to_string());
         out.push('\n');
         for m in &self.molecules {
-            let cells: Vec<String> = Self::columns(m, true).iter().map(|c| csv_cell(c, d)).collect();
+            let cells: Vec<String> = Self::columns(m, true)
+                .iter()
+                .map(|c| csv_cell(c, d))
+                .collect();
             out.push_str(&cells.join(&d.to_string()));
             out.push('\n');
         }

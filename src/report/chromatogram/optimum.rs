@@ -1,8 +1,8 @@
 //! Chromatograms of the optimum of a scouting fit (LC gradient or GC oven program).
 
 use super::{ChromatogramData, FWHM_PER_SIGMA, ProgramTrace, render_chromatogram_svg};
-use crate::measured::gc_optimise::GcPrediction;
-use crate::measured::optimise::Prediction;
+use crate::measured::gc_optimise::{GcPredictedPeak, GcPrediction};
+use crate::measured::optimise::{PredictedPair, PredictedPeak, Prediction};
 use crate::report::advice::{Coelution, PredictionRow};
 
 /// Gaussian half-height width over base width: w½/wb = 2.3548σ/4σ (textbook relation, from
@@ -19,24 +19,10 @@ pub fn render_optimum_svg(
     target_resolution: f64,
     title: &str,
 ) -> String {
-    let peaks: Vec<OptimumPeak<'_>> = prediction
-        .peaks
-        .iter()
-        .map(|p| OptimumPeak {
-            name: &p.name,
-            retention_time_min: p.retention_time_min,
-            uncertainty_min: p.retention_time_uncertainty_min,
-            width_base_min: p.width_base_min,
-        })
-        .collect();
-    let pairs: Vec<(&str, &str, f64)> = prediction
-        .pairs
-        .iter()
-        .map(|q| (q.first.as_str(), q.second.as_str(), q.resolution))
-        .collect();
+    let peaks: Vec<OptimumPeak<'_>> = prediction.peaks.iter().map(OptimumPeak::from).collect();
     render_optimum(
         &peaks,
-        &pairs,
+        &prediction.pairs,
         OptimumFrame {
             dead_time_min,
             run_time_min: prediction.run_time_min,
@@ -69,24 +55,10 @@ pub fn render_gc_optimum_svg(
     target_resolution: f64,
     title: &str,
 ) -> String {
-    let peaks: Vec<OptimumPeak<'_>> = prediction
-        .peaks
-        .iter()
-        .map(|p| OptimumPeak {
-            name: &p.name,
-            retention_time_min: p.retention_time_min,
-            uncertainty_min: p.retention_time_uncertainty_min,
-            width_base_min: p.width_base_min,
-        })
-        .collect();
-    let pairs: Vec<(&str, &str, f64)> = prediction
-        .pairs
-        .iter()
-        .map(|q| (q.first.as_str(), q.second.as_str(), q.resolution))
-        .collect();
+    let peaks: Vec<OptimumPeak<'_>> = prediction.peaks.iter().map(OptimumPeak::from).collect();
     render_optimum(
         &peaks,
-        &pairs,
+        &prediction.pairs,
         OptimumFrame {
             dead_time_min: holdup_time_min,
             run_time_min: prediction.run_time_min,
@@ -130,6 +102,28 @@ struct OptimumPeak<'a> {
     width_base_min: f64,
 }
 
+impl<'a> From<&'a PredictedPeak> for OptimumPeak<'a> {
+    fn from(p: &'a PredictedPeak) -> Self {
+        OptimumPeak {
+            name: &p.name,
+            retention_time_min: p.retention_time_min,
+            uncertainty_min: p.retention_time_uncertainty_min,
+            width_base_min: p.width_base_min,
+        }
+    }
+}
+
+impl<'a> From<&'a GcPredictedPeak> for OptimumPeak<'a> {
+    fn from(p: &'a GcPredictedPeak) -> Self {
+        OptimumPeak {
+            name: &p.name,
+            retention_time_min: p.retention_time_min,
+            uncertainty_min: p.retention_time_uncertainty_min,
+            width_base_min: p.width_base_min,
+        }
+    }
+}
+
 /// What frames an optimum's chromatogram.
 struct OptimumFrame {
     dead_time_min: f64,
@@ -143,7 +137,7 @@ struct OptimumFrame {
 
 fn render_optimum(
     peaks: &[OptimumPeak<'_>],
-    pairs: &[(&str, &str, f64)],
+    pairs: &[PredictedPair],
     frame: OptimumFrame,
     title: &str,
 ) -> String {
@@ -176,13 +170,13 @@ fn render_optimum(
     let target = frame.target_resolution;
     let coelutions: Vec<Coelution> = pairs
         .iter()
-        .filter(|q| q.2 < target)
+        .filter(|q| q.resolution < target)
         .map(|q| Coelution {
-            a: q.0.to_string(),
-            b: q.1.to_string(),
+            a: q.first.clone(),
+            b: q.second.clone(),
             // Not computed by the optimiser; the renderer does not draw it.
             probability: f64::NAN,
-            resolution: q.2,
+            resolution: q.resolution,
             note: Some(format!("below the target Rs {target}")),
         })
         .collect();

@@ -493,9 +493,9 @@ impl AdviceReport {
     /// Render as CSV (`delim` ',') or TSV ('\t'): a header row, then one row per predicted
     /// analyte of each listed recommendation (`role` `recommendation`, `rank` 1, 2, ...) and of
     /// the back-up (`role` `backup`, `rank` 0), in elution order; an empty `retention_index`
-    /// cell where none applies. Numbers are written in full precision.
+    /// cell where none applies. Numbers follow the CSV rule of [`super::csv_num`].
     pub fn render_delimited(&self, delim: char) -> String {
-        use super::csv_cell;
+        use super::{csv_cell, csv_num, csv_opt};
         let d = delim.to_string();
         let mut out = DELIMITED_COLUMNS.join(&d);
         out.push('\n');
@@ -512,13 +512,13 @@ impl AdviceReport {
                     csv_cell(&r.mode, delim),
                     csv_cell(&r.phase.id, delim),
                     csv_cell(&p.analyte, delim),
-                    p.retention_time_min.to_string(),
-                    p.interval_low_min.to_string(),
-                    p.interval_high_min.to_string(),
-                    p.interval_coverage.to_string(),
-                    p.retention_factor.to_string(),
-                    p.peak_width_half_min.to_string(),
-                    p.retention_index.map_or(String::new(), |ri| ri.to_string()),
+                    csv_num(p.retention_time_min, None),
+                    csv_num(p.interval_low_min, None),
+                    csv_num(p.interval_high_min, None),
+                    csv_num(p.interval_coverage, None),
+                    csv_num(p.retention_factor, None),
+                    csv_num(p.peak_width_half_min, None),
+                    csv_opt(p.retention_index, None),
                     csv_cell(&p.path, delim),
                 ];
                 out.push_str(&cells.join(&d));

@@ -3,7 +3,7 @@
 
 use serde::{Deserialize, Serialize};
 
-use super::{Format, SCHEMA_VERSION, csv_cell, num, table};
+use super::{Format, SCHEMA_VERSION, csv_cell, csv_num, num, table};
 use crate::property::estimate::{METHOD_JOBACK, METHOD_LOGP, METHOD_PKA, METHOD_TPSA, estimate};
 use crate::structure::Descriptors;
 use crate::structure::ionisable::IonisableSite;
@@ -114,9 +114,25 @@ impl DescribeReport {
         }
     }
 
-    fn columns(m: &DescribedMolecule) -> Vec<String> {
+    /// The cells of one molecule: for the table (`delimited` false: fixed decimals, `-` when
+    /// absent) or for CSV/TSV (the rule of [`super::csv_num`], an empty cell when absent).
+    fn columns(m: &DescribedMolecule, delimited: bool) -> Vec<String> {
         let d = &m.descriptors;
-        let opt = |v: Option<f64>, n| v.map_or("-".to_string(), |x| num(x, n));
+        let fixed = |x: f64, n: usize| {
+            if delimited {
+                csv_num(x, Some(n))
+            } else {
+                num(x, n)
+            }
+        };
+        let absent = || {
+            if delimited {
+                String::new()
+            } else {
+                "-".to_string()
+            }
+        };
+        let opt = |v: Option<f64>, n| v.map_or_else(absent, |x| fixed(x, n));
         let sites: Vec<String> = m
             .ionisable_sites
             .iter()
@@ -138,29 +154,29 @@ impl DescribeReport {
             m.name.clone(),
             d.molecular_formula.clone(),
             opt(d.molar_mass_g_mol, 3),
-            num(d.crippen_logp, 2),
-            num(d.crippen_molar_refractivity_cm3_mol, 2),
-            num(d.tpsa_a2, 2),
+            fixed(d.crippen_logp, 2),
+            fixed(d.crippen_molar_refractivity_cm3_mol, 2),
+            fixed(d.tpsa_a2, 2),
             d.hbond_donors.to_string(),
             d.hbond_acceptors.to_string(),
             d.rotatable_bonds.to_string(),
             d.ring_count.to_string(),
             d.aromatic_ring_count.to_string(),
-            num(d.fraction_csp3, 3),
+            fixed(d.fraction_csp3, 3),
             d.heavy_atom_count.to_string(),
             opt(d.mcgowan_vx_100cm3_mol, 3),
             // °C first, to whole degrees: the Joback estimate's typical error is about 30 K
             // (K kept in the JSON)
             m.joback_tb_k
                 .filter(|t| t.is_finite())
-                .map_or("-".to_string(), |t| num(t - 273.15, 0)),
+                .map_or_else(absent, |t| fixed(t - 273.15, 0)),
             if sites.is_empty() {
                 "none".into()
             } else {
                 sites.join("; ")
             },
             m.gc.as_ref()
-                .map_or("-".into(), |g| crate::plain::words(&g.verdict)),
+                .map_or_else(absent, |g| crate::plain::words(&g.verdict)),
         ]
     }
 
@@ -187,7 +203,11 @@ impl DescribeReport {
     fn table(&self) -> String {
         let mut out = String::new();
         if !self.molecules.is_empty() {
-            let rows: Vec<Vec<String>> = self.molecules.iter().map(Self::columns).collect();
+            let rows: Vec<Vec<String>> = self
+                .molecules
+                .iter()
+                .map(|m| Self::columns(m, false))
+                .collect();
             out.push_str(&table::render(&Self::HEADER, &rows));
             out.push_str("\n\nMethods: ");
             out.push_str(
@@ -220,7 +240,10 @@ impl DescribeReport {
         let mut out = Self::HEADER.join(&d.to_string());
         out.push('\n');
         for m in &self.molecules {
-            let cells: Vec<String> = Self::columns(m).iter().map(|c| csv_cell(c, d)).collect();
+            let cells: Vec<String> = Self::columns(m, true)
+                .iter()
+                .map(|c| csv_cell(c, d))
+                .collect();
             out.push_str(&cells.join(&d.to_string()));
             out.push('\n');
         }

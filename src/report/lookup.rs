@@ -3,7 +3,7 @@
 
 use serde::{Deserialize, Serialize};
 
-use super::{Format, SCHEMA_VERSION, csv_cell, num, sig, table};
+use super::{Format, SCHEMA_VERSION, csv_cell, csv_num, csv_opt, num, table};
 use crate::kb::resolve::Unresolved;
 use crate::property::Analyte;
 
@@ -152,7 +152,7 @@ impl LookupReport {
                     prows.push(vec![
                         a.name.clone(),
                         p.property.clone(),
-                        sig(p.value, 6),
+                        csv_num(p.value, None),
                         if p.unit.is_empty() {
                             "(log units)".into()
                         } else {
@@ -255,7 +255,7 @@ impl LookupReport {
                 a.cas.clone().unwrap_or_default(),
                 a.cid.map(|c| c.to_string()).unwrap_or_default(),
                 a.formula.clone().unwrap_or_default(),
-                a.molar_mass_g_mol.map(|m| sig(m, 6)).unwrap_or_default(),
+                csv_opt(a.molar_mass_g_mol, None),
                 a.smiles.clone().unwrap_or_default(),
             ];
             if a.properties.is_empty() {
@@ -267,7 +267,7 @@ impl LookupReport {
                 let mut c = id.clone();
                 c.extend([
                     p.property.clone(),
-                    sig(p.value, 6),
+                    csv_num(p.value, None),
                     p.unit.clone(),
                     p.kind.as_str().to_string(),
                     p.source.clone(),

@@ -71,6 +71,34 @@ pub fn sig(v: f64, digits: usize) -> String {
     num(v, decimals)
 }
 
+/// Significant digits of every number in CSV/TSV output (see [`csv_num`]).
+pub const CSV_SIGNIFICANT_DIGITS: usize = 6;
+
+/// The one precision rule for numbers in CSV/TSV output, used by every command that writes
+/// them (documented in docs/json-schema.md, "CSV and TSV"): at most [`CSV_SIGNIFICANT_DIGITS`]
+/// significant digits, trailing zeros trimmed; `decimals`, where given, rounds coarser when the
+/// quantity's uncertainty supports fewer digits (a Joback boiling point to whole degrees); a
+/// missing or non-finite value is an empty cell. JSON keeps the full value.
+pub fn csv_num(v: f64, decimals: Option<usize>) -> String {
+    if !v.is_finite() {
+        return String::new();
+    }
+    if v == 0.0 {
+        return "0".to_string();
+    }
+    let magnitude = v.abs().log10().floor() as i64;
+    if !(-5..=15).contains(&magnitude) {
+        return sig(v, CSV_SIGNIFICANT_DIGITS);
+    }
+    let by_sig = (CSV_SIGNIFICANT_DIGITS as i64 - 1 - magnitude).max(0) as usize;
+    num(v, decimals.map_or(by_sig, |d| d.min(by_sig)))
+}
+
+/// [`csv_num`] of an optional value (an empty cell when absent).
+pub fn csv_opt(v: Option<f64>, decimals: Option<usize>) -> String {
+    v.map_or(String::new(), |v| csv_num(v, decimals))
+}
+
 /// Quote a CSV cell when needed (RFC 4180).
 pub fn csv_cell(s: &str, delim: char) -> String {
     if delim == '\t' {
@@ -96,6 +124,20 @@ mod tests {
         assert_eq!(sig(0.0, 6), "0");
         assert_eq!(sig(1.234_567e-7, 3), "1.23e-7");
         assert_eq!(sig(9.999_999_9, 6), "10");
+    }
+
+    #[test]
+    fn csv_numbers_follow_one_rule() {
+        assert_eq!(csv_num(1.995_019_999_999_999_8, None), "1.99502");
+        assert_eq!(csv_num(12.345_678_9, None), "12.3457");
+        assert_eq!(csv_num(1234.5678, None), "1234.57");
+        assert_eq!(csv_num(123_456.789, None), "123457");
+        assert_eq!(csv_num(56.2, Some(0)), "56");
+        assert_eq!(csv_num(0.000_123_456_78, Some(8)), "0.000123457");
+        assert_eq!(csv_num(f64::NAN, None), "");
+        assert_eq!(csv_num(-0.0, None), "0");
+        assert_eq!(csv_opt(None, None), "");
+        assert_eq!(csv_num(1.234_567_8e-9, None), "1.23457e-9");
     }
 
     #[test]

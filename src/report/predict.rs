@@ -5,7 +5,7 @@
 use crate::kb::resolve::Unresolved;
 use crate::phase::PhaseMode;
 use crate::report::advice::Recommendation;
-use crate::report::{Format, SCHEMA_VERSION, csv_cell, num};
+use crate::report::{Format, SCHEMA_VERSION, csv_cell, csv_num, num};
 
 /// What `predict` prints: the recommendation, the notes on the user's conditions, and what did
 /// not resolve.
@@ -154,11 +154,11 @@ impl PredictionOutput<'_> {
                     t.push_str(&format!(
                         "{}{d}{}{d}{}{d}{}{d}{}{d}{}\n",
                         csv_cell(&p.analyte, d),
-                        p.retention_time_min,
-                        p.interval_low_min,
-                        p.interval_high_min,
-                        p.retention_factor,
-                        p.path
+                        csv_num(p.retention_time_min, None),
+                        csv_num(p.interval_low_min, None),
+                        csv_num(p.interval_high_min, None),
+                        csv_num(p.retention_factor, None),
+                        csv_cell(&p.path, d)
                     ));
                 }
                 t

@@ -8,7 +8,7 @@ use serde::Serialize;
 
 use crate::property::Unresolved;
 use crate::report::advice::{PhaseRef, ProgramStep};
-use crate::report::{Format, SCHEMA_VERSION, csv_cell, num};
+use crate::report::{Format, SCHEMA_VERSION, csv_cell, csv_opt, num};
 
 /// Column, carrier and oven program the predictions are for.
 #[derive(Debug, Clone, PartialEq, Serialize)]
@@ -251,7 +251,7 @@ impl GcPanelReport {
         ]
         .join(&d.to_string());
         t.push('\n');
-        let opt = |v: Option<f64>| v.map_or(String::new(), |v| v.to_string());
+        let opt = |v: Option<f64>| csv_opt(v, None);
         for p in &self.predictions {
             let cells = [
                 csv_cell(&p.analyte, d),

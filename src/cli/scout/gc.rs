@@ -18,9 +18,9 @@ use phasewise::report::measured::gc_scout::{
     GC_SAFETY, GcScoutOutput, SCOUT_GC_SCHEMA_VERSION, gc_window_tsv,
 };
 
-use super::{ScoutArgs, per_run, refuse_options};
+use super::{ScoutArgs, per_run, refuse_options, too_few_peaks, write_scout_outputs};
 use crate::cli::input::{NumberRange, check_option_range, parse_gc_column, read_retention_peaks};
-use crate::cli::output::{check_writable, write_atomically, write_out};
+use crate::cli::output::check_writable;
 
 /// Carrier velocity assumed for t_M from a GC `--column` when `--velocity` is not given, cm/s
 /// (the value `predict --mode gc` assumes; common practice for helium, no source).
@@ -279,14 +279,7 @@ pub(super) fn run(a: &ScoutArgs) -> Result<ExitCode> {
         GcOptimiseError::UnknownAnalyte { .. } | GcOptimiseError::CriticalPairSameAnalyte { .. } => {
             anyhow::anyhow!("--critical: {e}")
         }
-        GcOptimiseError::TooFewAnalytes { .. } => anyhow::anyhow!(
-            "{e}: the peak tables {} name fewer than two peaks",
-            a.runs
-                .iter()
-                .map(|p| p.display().to_string())
-                .collect::<Vec<_>>()
-                .join(", ")
-        ),
+        GcOptimiseError::TooFewAnalytes { .. } => too_few_peaks(e, a),
         other => anyhow::Error::new(other).context("optimising the oven program"),
     })?;
     let output = GcScoutOutput {
@@ -299,21 +292,19 @@ pub(super) fn run(a: &ScoutArgs) -> Result<ExitCode> {
         safety: GC_SAFETY,
     };
     let text = phasewise::report::measured::render(&output, a.format.into())?;
-    if let Some(p) = &a.chromatogram_svg {
-        let svg = render_gc_optimum_svg(
-            &report.optimum,
-            fitted.holdup_time_min,
-            a.target_resolution,
-            "Predicted chromatogram at the chosen oven program",
-        );
-        write_atomically(p, svg)?;
-    }
-    if let Some(p) = &a.window_svg {
-        write_atomically(p, render_gc_window_svg(&report.window))?;
-    }
-    if let Some(p) = &a.window_data {
-        write_atomically(p, gc_window_tsv(&report))?;
-    }
-    write_out(&text)?;
+    write_scout_outputs(
+        a,
+        &text,
+        || render_gc_window_svg(&report.window),
+        || gc_window_tsv(&report),
+        || {
+            render_gc_optimum_svg(
+                &report.optimum,
+                fitted.holdup_time_min,
+                a.target_resolution,
+                "Predicted chromatogram at the chosen oven program",
+            )
+        },
+    )?;
     Ok(ExitCode::SUCCESS)
 }

@@ -22,13 +22,13 @@ use phasewise::report::measured::scout::{
 };
 
 use super::store::{store_fits, store_target};
-use super::{ScoutArgs, ScoutMode, per_run, refuse_options};
+use super::{ScoutArgs, ScoutMode, per_run, refuse_options, too_few_peaks, write_scout_outputs};
 use crate::cli::Cli;
 use crate::cli::exit::success_unless_partial;
 use crate::cli::input::{
     NumberRange, check_option_range, dead_time_input, parse_column, read_retention_peaks,
 };
-use crate::cli::output::{check_writable, write_atomically, write_out};
+use crate::cli::output::check_writable;
 
 /// Plate number assumed by `scout` when neither `--plates` nor `--particle` is given (common
 /// practice, no source: a typical value for a 150 mm column of 5 µm particles).
@@ -306,22 +306,20 @@ pub(super) fn run(cli: &Cli, a: &ScoutArgs) -> Result<ExitCode> {
         Some(t) => store_fits(cli, a, t, &fitted, &program_specs)?,
         None => Vec::new(),
     };
-    if let Some(p) = &a.window_svg {
-        write_atomically(p, render_window_svg(&report.window))?;
-    }
-    if let Some(p) = &a.window_data {
-        write_atomically(p, window_tsv(&report))?;
-    }
-    if let Some(p) = &a.chromatogram_svg {
-        let svg = render_optimum_svg(
-            &report.optimum,
-            fitted.dead_time_min,
-            a.target_resolution,
-            "Predicted chromatogram at the chosen gradient",
-        );
-        write_atomically(p, svg)?;
-    }
-    write_out(&text)?;
+    write_scout_outputs(
+        a,
+        &text,
+        || render_window_svg(&report.window),
+        || window_tsv(&report),
+        || {
+            render_optimum_svg(
+                &report.optimum,
+                fitted.dead_time_min,
+                a.target_resolution,
+                "Predicted chromatogram at the chosen gradient",
+            )
+        },
+    )?;
     Ok(success_unless_partial(!left_out.is_empty()))
 }
 
@@ -362,14 +360,7 @@ fn optimise_error(e: OptimiseError, a: &ScoutArgs, r: &LcRanges) -> anyhow::Erro
         OptimiseError::UnknownAnalyte { .. } | OptimiseError::CriticalPairSameAnalyte { .. } => {
             anyhow::anyhow!("--critical: {e}")
         }
-        OptimiseError::TooFewAnalytes { .. } => anyhow::anyhow!(
-            "{e}: the peak tables {} name fewer than two peaks",
-            a.runs
-                .iter()
-                .map(|p| p.display().to_string())
-                .collect::<Vec<_>>()
-                .join(", ")
-        ),
+        OptimiseError::TooFewAnalytes { .. } => too_few_peaks(e, a),
         other => anyhow::Error::new(other).context("optimising the gradient"),
     }
 }

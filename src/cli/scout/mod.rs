@@ -15,7 +15,7 @@ use clap::{Args, ValueEnum};
 
 use super::Cli;
 use super::input::{NumberRange, non_negative_arg, pair_arg, positive_arg, range_arg};
-use super::output::ReportFormat;
+use super::output::{ReportFormat, write_atomically, write_out};
 
 /// `scout` help footer.
 pub const SCOUT_HELP: &str = "\
@@ -215,6 +215,40 @@ pub(super) fn per_run<T>(
         .enumerate()
         .map(|(i, p)| parse(p).with_context(|| format!("{what} {} `{p}` in {option}", i + 1)))
         .collect()
+}
+
+/// Writes the files a scouting run was asked for (`--window-svg`, `--window-data`,
+/// `--chromatogram-svg`; each atomically, each built only when its option is given), then the
+/// report on stdout.
+pub(super) fn write_scout_outputs(
+    a: &ScoutArgs,
+    text: &str,
+    window_svg: impl FnOnce() -> String,
+    window_data: impl FnOnce() -> String,
+    chromatogram_svg: impl FnOnce() -> String,
+) -> Result<()> {
+    if let Some(p) = &a.window_svg {
+        write_atomically(p, window_svg())?;
+    }
+    if let Some(p) = &a.window_data {
+        write_atomically(p, window_data())?;
+    }
+    if let Some(p) = &a.chromatogram_svg {
+        write_atomically(p, chromatogram_svg())?;
+    }
+    write_out(text)
+}
+
+/// The optimiser's "too few analytes" error `e`, naming the peak tables given.
+pub(super) fn too_few_peaks(e: impl std::fmt::Display, a: &ScoutArgs) -> anyhow::Error {
+    anyhow::anyhow!(
+        "{e}: the peak tables {} name fewer than two peaks",
+        a.runs
+            .iter()
+            .map(|p| p.display().to_string())
+            .collect::<Vec<_>>()
+            .join(", ")
+    )
 }
 
 /// Refuses options of the other mode rather than ignoring them, naming the first one given.

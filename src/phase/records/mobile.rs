@@ -7,6 +7,19 @@ use super::super::tsv::Row;
 use super::parse_id;
 use super::stationary::{IcExchanger, PhaseMode};
 
+/// Accessors `fn field(&self) -> &str` for `String` fields of the same name, with their docs;
+/// the records of this file share most of them (id, name, formula, hazards, notes, source).
+macro_rules! text_accessors {
+    ($($(#[$doc:meta])* $field:ident),+ $(,)?) => {
+        $(
+            $(#[$doc])*
+            pub fn $field(&self) -> &str {
+                &self.$field
+            }
+        )+
+    };
+}
+
 /// Whether a solvent can be used with mass-spectrometric detection.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
 #[serde(rename_all = "kebab-case")]
@@ -90,17 +103,13 @@ impl Solvent {
         })
     }
 
-    /// Stable id (`acetonitrile`, `water`, ...).
-    pub fn id(&self) -> &str {
-        &self.id
-    }
-    /// Name.
-    pub fn name(&self) -> &str {
-        &self.name
-    }
-    /// Formula.
-    pub fn formula(&self) -> &str {
-        &self.formula
+    text_accessors! {
+        /// Stable id (`acetonitrile`, `water`, ...).
+        id,
+        /// Name.
+        name,
+        /// Formula.
+        formula,
     }
     /// UV cutoff wavelength.
     pub fn uv_cutoff_nm(&self) -> f64 {
@@ -130,21 +139,19 @@ impl Solvent {
     pub fn flash_point_c(&self) -> Option<f64> {
         self.flash_point_c
     }
-    /// GHS-style hazards in words.
-    pub fn hazards(&self) -> &str {
-        &self.hazards
+    text_accessors! {
+        /// GHS-style hazards in words.
+        hazards,
     }
     /// MS compatibility.
     pub fn ms_compatible(&self) -> MsCompatibility {
         self.ms_compatible
     }
-    /// Practical notes.
-    pub fn notes(&self) -> &str {
-        &self.notes
-    }
-    /// Where the values come from.
-    pub fn source(&self) -> &str {
-        &self.source
+    text_accessors! {
+        /// Practical notes.
+        notes,
+        /// Where the values come from.
+        source,
     }
 }
 
@@ -257,17 +264,13 @@ impl Buffer {
         })
     }
 
-    /// Stable id (`phosphate-2`, `formic-acid`, ...).
-    pub fn id(&self) -> &str {
-        &self.id
-    }
-    /// Name.
-    pub fn name(&self) -> &str {
-        &self.name
-    }
-    /// Acid/base pair.
-    pub fn species(&self) -> &str {
-        &self.species
+    text_accessors! {
+        /// Stable id (`phosphate-2`, `formic-acid`, ...).
+        id,
+        /// Name.
+        name,
+        /// Acid/base pair.
+        species,
     }
     /// Role (buffer, additive, ion pair).
     pub fn role(&self) -> BufferRole {
@@ -307,13 +310,11 @@ impl Buffer {
             TypicalConcentration::Mm(_) => None,
         }
     }
-    /// Notes (precipitation, pH limits, MS behaviour).
-    pub fn notes(&self) -> &str {
-        &self.notes
-    }
-    /// Where the values come from.
-    pub fn source(&self) -> &str {
-        &self.source
+    text_accessors! {
+        /// Notes (precipitation, pH limits, MS behaviour).
+        notes,
+        /// Where the values come from.
+        source,
     }
 }
 
@@ -426,21 +427,19 @@ impl IcEluent {
         })
     }
 
-    /// Stable id (`koh`, `msa`, ...).
-    pub fn id(&self) -> &str {
-        &self.id
-    }
-    /// Name.
-    pub fn name(&self) -> &str {
-        &self.name
+    text_accessors! {
+        /// Stable id (`koh`, `msa`, ...).
+        id,
+        /// Name.
+        name,
     }
     /// Mode (ic-anion, ic-cation, ion-exclusion).
     pub fn mode(&self) -> PhaseMode {
         self.mode
     }
-    /// The competing (eluting) ion.
-    pub fn competing_ion(&self) -> &str {
-        &self.competing_ion
+    text_accessors! {
+        /// The competing (eluting) ion.
+        competing_ion,
     }
     /// Charge magnitude y of the competing ion.
     pub fn eluent_charge(&self) -> u8 {
@@ -458,9 +457,9 @@ impl IcEluent {
     pub fn reference_conc_mm(&self) -> f64 {
         self.reference_conc_mm
     }
-    /// Suppression (text).
-    pub fn suppression(&self) -> &str {
-        &self.suppression
+    text_accessors! {
+        /// Suppression (text).
+        suppression,
     }
     /// Typical background conductivity after suppression.
     pub fn suppressed_background_us_cm(&self) -> Option<f64> {
@@ -470,17 +469,13 @@ impl IcEluent {
     pub fn compatible_exchangers(&self) -> &[IcExchanger] {
         &self.compatible_exchangers
     }
-    /// Hazards in words.
-    pub fn hazards(&self) -> &str {
-        &self.hazards
-    }
-    /// Notes.
-    pub fn notes(&self) -> &str {
-        &self.notes
-    }
-    /// Where the values come from.
-    pub fn source(&self) -> &str {
-        &self.source
+    text_accessors! {
+        /// Hazards in words.
+        hazards,
+        /// Notes.
+        notes,
+        /// Where the values come from.
+        source,
     }
 }
 
@@ -534,17 +529,13 @@ impl CarrierGas {
         })
     }
 
-    /// Stable id (`helium`, `hydrogen`, `nitrogen`).
-    pub fn id(&self) -> &str {
-        &self.id
-    }
-    /// Name.
-    pub fn name(&self) -> &str {
-        &self.name
-    }
-    /// Formula.
-    pub fn formula(&self) -> &str {
-        &self.formula
+    text_accessors! {
+        /// Stable id (`helium`, `hydrogen`, `nitrogen`).
+        id,
+        /// Name.
+        name,
+        /// Formula.
+        formula,
     }
     /// Lower end of the optimum average linear velocity.
     pub fn u_opt_min_cm_s(&self) -> f64 {
@@ -558,16 +549,12 @@ impl CarrierGas {
     pub fn viscosity_upa_s_25c(&self) -> f64 {
         self.viscosity_upa_s_25c
     }
-    /// Hazards and handling in words (flammability, cylinders, leak checks).
-    pub fn hazards(&self) -> &str {
-        &self.hazards
-    }
-    /// Notes.
-    pub fn notes(&self) -> &str {
-        &self.notes
-    }
-    /// Where the values come from.
-    pub fn source(&self) -> &str {
-        &self.source
+    text_accessors! {
+        /// Hazards and handling in words (flammability, cylinders, leak checks).
+        hazards,
+        /// Notes.
+        notes,
+        /// Where the values come from.
+        source,
     }
 }

@@ -2,7 +2,7 @@
 
 use std::fmt::Write as _;
 
-use super::{Peak, escape_xml, f2, nice_step};
+use super::{Peak, escape_xml, f2, nice_step, path_data};
 use crate::report::advice::Coelution;
 
 /// Width of one detail panel, px.
@@ -146,16 +146,7 @@ pub(super) fn draw_detail(s: &mut String, peaks: &[Peak], w: &DetailWindow, left
         if pts.is_empty() {
             continue;
         }
-        let mut d = String::new();
-        for (i, (t, v)) in pts.iter().enumerate() {
-            let _ = write!(
-                d,
-                "{}{} {}",
-                if i == 0 { "M " } else { " L " },
-                f2(x_of(*t)),
-                f2(y_of(*v))
-            );
-        }
+        let d = path_data(pts.iter().map(|&(t, v)| (x_of(t), y_of(v))));
         let stroke_w = if p.flagged { "2.2" } else { "0.8" };
         let _ = writeln!(
             s,
@@ -163,16 +154,7 @@ pub(super) fn draw_detail(s: &mut String, peaks: &[Peak], w: &DetailWindow, left
             escape_xml(&p.row.analyte)
         );
     }
-    let mut d = String::new();
-    for (i, (t, v)) in grid.iter().enumerate() {
-        let _ = write!(
-            d,
-            "{}{} {}",
-            if i == 0 { "M " } else { " L " },
-            f2(x_of(*t)),
-            f2(y_of(*v))
-        );
-    }
+    let d = path_data(grid.iter().map(|&(t, v)| (x_of(t), y_of(v))));
     let _ = writeln!(
         s,
         "<path d=\"{d}\" fill=\"none\" stroke=\"#000\" stroke-width=\"1.6\"/>"

@@ -70,6 +70,21 @@ fn f2(v: f64) -> String {
     if s == "-0.00" { "0.00".to_string() } else { s }
 }
 
+/// SVG path data `M x y L x y ...` through `points` (already in px), two decimals each.
+fn path_data(points: impl IntoIterator<Item = (f64, f64)>) -> String {
+    let mut d = String::new();
+    for (i, (x, y)) in points.into_iter().enumerate() {
+        let _ = write!(
+            d,
+            "{}{} {}",
+            if i == 0 { "M " } else { " L " },
+            f2(x),
+            f2(y)
+        );
+    }
+    d
+}
+
 /// A peak that can be drawn: finite, positive width.
 struct Peak<'a> {
     row: &'a PredictionRow,
@@ -511,16 +526,7 @@ pub fn render_chromatogram_svg(data: &ChromatogramData, title: &str) -> String {
         let vlo = (vmin_raw / pstep).floor() * pstep;
         let vhi = ((vmax_raw / pstep).ceil() * pstep).max(vlo + pstep);
         let py = |v: f64| plot_bottom - (v - vlo) / (vhi - vlo) * PLOT_HEIGHT_PX * 0.9;
-        let mut d = String::new();
-        for (i, (t, v)) in pts.iter().enumerate() {
-            let _ = write!(
-                d,
-                "{}{} {}",
-                if i == 0 { "M " } else { " L " },
-                f2(x_of(*t)),
-                f2(py(*v))
-            );
-        }
+        let d = path_data(pts.iter().map(|&(t, v)| (x_of(t), py(v))));
         let _ = writeln!(
             s,
             "<path class=\"program\" d=\"{d}\" fill=\"none\" stroke=\"#000\" stroke-width=\"1.1\" stroke-dasharray=\"8 3 2 3\"/>"
@@ -577,23 +583,15 @@ pub fn render_chromatogram_svg(data: &ChromatogramData, title: &str) -> String {
         let rt = p.row.retention_time_min;
         let dt = (p.sigma_min / 4.0).min(px_min);
         let half = (4.0 * p.sigma_min / dt).ceil() as i64;
-        let mut d = String::new();
-        let mut first = true;
-        for i in -half..=half {
-            let t = rt + i as f64 * dt;
-            if !(0.0..=t_max).contains(&t) {
-                continue;
-            }
-            let z = (t - rt) / p.sigma_min;
-            let _ = write!(
-                d,
-                "{}{} {}",
-                if first { "M " } else { " L " },
-                f2(x_of(t)),
-                f2(y_of((-0.5 * z * z).exp()))
-            );
-            first = false;
-        }
+        let d = path_data(
+            (-half..=half)
+                .map(|i| rt + i as f64 * dt)
+                .filter(|t| (0.0..=t_max).contains(t))
+                .map(|t| {
+                    let z = (t - rt) / p.sigma_min;
+                    (x_of(t), y_of((-0.5 * z * z).exp()))
+                }),
+        );
         let _ = writeln!(
             s,
             "<path class=\"peak\" data-analyte=\"{}\" data-rt-min=\"{:.4}\" data-risk=\"{}\" d=\"{}\" fill=\"none\" stroke=\"#000\" stroke-width=\"{}\"/>",
@@ -606,16 +604,7 @@ pub fn render_chromatogram_svg(data: &ChromatogramData, title: &str) -> String {
     }
 
     // Sum trace.
-    let mut d = String::new();
-    for (i, (t, v)) in grid.iter().enumerate() {
-        let _ = write!(
-            d,
-            "{}{} {}",
-            if i == 0 { "M " } else { " L " },
-            f2(x_of(*t)),
-            f2(y_of(*v))
-        );
-    }
+    let d = path_data(grid.iter().map(|&(t, v)| (x_of(t), y_of(v))));
     let _ = writeln!(
         s,
         "<path class=\"sum\" d=\"{d}\" fill=\"none\" stroke=\"#000\" stroke-width=\"1.8\"/>"

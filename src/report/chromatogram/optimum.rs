@@ -1,8 +1,8 @@
 //! Chromatograms of the optimum of a scouting fit (LC gradient or GC oven program).
 
 use super::{ChromatogramData, FWHM_PER_SIGMA, ProgramTrace, render_chromatogram_svg};
-use crate::measured::gc_optimise::GcPrediction;
-use crate::measured::optimise::Prediction;
+use crate::measured::gc_optimise::{GcPredictedPeak, GcPrediction};
+use crate::measured::optimise::{PredictedPair, PredictedPeak, Prediction};
 use crate::report::advice::{Coelution, PredictionRow};
 
 /// Gaussian half-height width over base width: w½/wb = 2.3548σ/4σ (textbook relation, from
@@ -19,24 +19,10 @@ pub fn render_optimum_svg(
     target_resolution: f64,
     title: &str,
 ) -> String {
-    let peaks: Vec<OptimumPeak<'_>> = prediction
-        .peaks
-        .iter()
-        .map(|p| OptimumPeak {
-            name: &p.name,
-            retention_time_min: p.retention_time_min,
-            uncertainty_min: p.retention_time_uncertainty_min,
-            width_base_min: p.width_base_min,
-        })
-        .collect();
-    let pairs: Vec<(&str, &str, f64)> = prediction
-        .pairs
-        .iter()
-        .map(|q| (q.first.as_str(), q.second.as_str(), q.resolution))
-        .collect();
+    let peaks: Vec<OptimumPeak<'_>> = prediction.peaks.iter().map(OptimumPeak::from).collect();
     render_optimum(
         &peaks,
-        &pairs,
+        &prediction.pairs,
         OptimumFrame {
             dead_time_min,
             run_time_min: prediction.run_time_min,
@@ -69,30 +55,16 @@ pub fn render_gc_optimum_svg(
     target_resolution: f64,
     title: &str,
 ) -> String {
-    let peaks: Vec<OptimumPeak<'_>> = prediction
-        .peaks
-        .iter()
-        .map(|p| OptimumPeak {
-            name: &p.name,
-            retention_time_min: p.retention_time_min,
-            uncertainty_min: p.retention_time_uncertainty_min,
-            width_base_min: p.width_base_min,
-        })
-        .collect();
-    let pairs: Vec<(&str, &str, f64)> = prediction
-        .pairs
-        .iter()
-        .map(|q| (q.first.as_str(), q.second.as_str(), q.resolution))
-        .collect();
+    let peaks: Vec<OptimumPeak<'_>> = prediction.peaks.iter().map(OptimumPeak::from).collect();
     render_optimum(
         &peaks,
-        &pairs,
+        &prediction.pairs,
         OptimumFrame {
             dead_time_min: holdup_time_min,
             run_time_min: prediction.run_time_min,
             target_resolution,
             path: "scouting fit (ln k = A + B/T)",
-            program: None,
+            program: Some(oven_trace(prediction)),
             id: "scout-gc-optimum",
             subtitle: format!(
                 "optimised oven program {} (initial °C : hold min, ramp °C/min : final °C : hold min)",
@@ -103,12 +75,53 @@ pub fn render_gc_optimum_svg(
     )
 }
 
+/// The oven program of a GC optimum as break points (time min, °C): initial hold, one linear
+/// ramp, final hold. A ramp that is not a finite positive rate draws the initial hold only.
+pub(super) fn oven_trace(p: &GcPrediction) -> ProgramTrace {
+    let hold = p.initial_hold_min.max(0.0);
+    let mut points = vec![(0.0, p.initial_c), (hold, p.initial_c)];
+    if p.ramp_c_per_min.is_finite() && p.ramp_c_per_min > 0.0 && p.final_c > p.initial_c {
+        let end_ramp = hold + (p.final_c - p.initial_c) / p.ramp_c_per_min;
+        points.push((end_ramp, p.final_c));
+        if p.final_hold_min.is_finite() && p.final_hold_min > 0.0 {
+            points.push((end_ramp + p.final_hold_min, p.final_c));
+        }
+    }
+    points.dedup_by(|a, b| a.0 == b.0 && a.1 == b.1);
+    ProgramTrace {
+        points,
+        label: "oven temperature (°C)".to_string(),
+    }
+}
+
 /// One predicted peak of an optimum.
 struct OptimumPeak<'a> {
     name: &'a str,
     retention_time_min: f64,
     uncertainty_min: Option<f64>,
     width_base_min: f64,
+}
+
+impl<'a> From<&'a PredictedPeak> for OptimumPeak<'a> {
+    fn from(p: &'a PredictedPeak) -> Self {
+        OptimumPeak {
+            name: &p.name,
+            retention_time_min: p.retention_time_min,
+            uncertainty_min: p.retention_time_uncertainty_min,
+            width_base_min: p.width_base_min,
+        }
+    }
+}
+
+impl<'a> From<&'a GcPredictedPeak> for OptimumPeak<'a> {
+    fn from(p: &'a GcPredictedPeak) -> Self {
+        OptimumPeak {
+            name: &p.name,
+            retention_time_min: p.retention_time_min,
+            uncertainty_min: p.retention_time_uncertainty_min,
+            width_base_min: p.width_base_min,
+        }
+    }
 }
 
 /// What frames an optimum's chromatogram.
@@ -124,7 +137,7 @@ struct OptimumFrame {
 
 fn render_optimum(
     peaks: &[OptimumPeak<'_>],
-    pairs: &[(&str, &str, f64)],
+    pairs: &[PredictedPair],
     frame: OptimumFrame,
     title: &str,
 ) -> String {
@@ -157,13 +170,13 @@ fn render_optimum(
     let target = frame.target_resolution;
     let coelutions: Vec<Coelution> = pairs
         .iter()
-        .filter(|q| q.2 < target)
+        .filter(|q| q.resolution < target)
         .map(|q| Coelution {
-            a: q.0.to_string(),
-            b: q.1.to_string(),
+            a: q.first.clone(),
+            b: q.second.clone(),
             // Not computed by the optimiser; the renderer does not draw it.
             probability: f64::NAN,
-            resolution: q.2,
+            resolution: q.resolution,
             note: Some(format!("below the target Rs {target}")),
         })
         .collect();

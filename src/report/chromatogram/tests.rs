@@ -131,3 +131,67 @@ fn legend_lists_only_what_is_drawn() {
     let brackets = svg.matches("class=\"risk-bracket\"").count();
     assert_eq!(brackets > 0, svg.contains("data-kind=\"risk\""));
 }
+
+#[test]
+fn a_gc_optimum_draws_its_oven_program_on_the_second_axis() {
+    use crate::measured::gc_optimise::{GcPredictedPeak, GcPrediction};
+    use crate::measured::gc_scout::OvenPhase;
+    use crate::measured::optimise::PredictedPair;
+    // Invented GC optimum: 40 °C for 2 min, 10 °C/min to 200 °C, hold 3 min.
+    let peak = |name: &str, t: f64| GcPredictedPeak {
+        name: name.to_string(),
+        retention_time_min: t,
+        retention_time_uncertainty_min: Some(0.01),
+        width_base_min: 0.05,
+        elution_temperature_c: 40.0 + (t - 2.0).max(0.0) * 10.0,
+        retention_factor_at_elution: 3.0,
+        phase: OvenPhase::Ramp,
+    };
+    let p = GcPrediction {
+        program: "40:2,10:200:3".into(),
+        initial_c: 40.0,
+        initial_hold_min: 2.0,
+        ramp_c_per_min: 10.0,
+        final_c: 200.0,
+        final_hold_min: 3.0,
+        peaks: vec![peak("inv-x", 3.0), peak("inv-y", 6.0)],
+        pairs: vec![PredictedPair {
+            first: "inv-x".into(),
+            second: "inv-y".into(),
+            resolution: 20.0,
+        }],
+        min_resolution: 20.0,
+        critical_pair: ["inv-x".into(), "inv-y".into()],
+        run_time_min: 6.0,
+        program_time_min: 21.0,
+        first_peak_retention_factor: 3.0,
+    };
+    let svg = render_gc_optimum_svg(&p, 0.75, 1.5, "t");
+    assert_eq!(svg.matches("class=\"program\"").count(), 1);
+    assert_eq!(svg.matches("class=\"axis-right\"").count(), 1);
+    assert!(svg.contains("data-kind=\"program\""));
+    assert!(svg.contains("oven temperature (°C)"));
+    // the break points: hold to 2 min, ramp end at 18 min, hold to 21 min
+    let trace = super::optimum::oven_trace(&p);
+    assert_eq!(
+        trace.points,
+        vec![(0.0, 40.0), (2.0, 40.0), (18.0, 200.0), (21.0, 200.0)]
+    );
+}
+
+#[test]
+fn a_gc_recommendation_draws_the_oven_program_on_the_second_axis() {
+    let text = include_str!("../../../tests/data/plan/gc_solvent_panel.json");
+    let report: super::super::advice::AdviceReport = serde_json::from_str(text).unwrap();
+    let rec = report.recommendations[0].clone();
+    let svg = render_svg(&rec, "t");
+    assert_eq!(svg.matches("class=\"program\"").count(), 1);
+    assert_eq!(svg.matches("class=\"axis-right\"").count(), 1);
+    assert!(svg.contains("oven temperature (°C)"));
+    // without a program there is no second axis and no legend entry
+    let mut bare = rec.clone();
+    bare.conditions.program.clear();
+    let svg = render_svg(&bare, "t");
+    assert!(!svg.contains("class=\"program\"") && !svg.contains("class=\"axis-right\""));
+    assert!(!svg.contains("data-kind=\"program\""));
+}

@@ -3,10 +3,13 @@
 
 use serde::Serialize;
 
-use super::{Render, label, num};
+use super::{
+    Render, WindowRow, choice_lines, label, num, predicted_pairs_table, predicted_peak_row,
+    predicted_peaks_table, window_tsv_rows,
+};
 use crate::measured::gc_optimise::GcOptimiseReport;
 use crate::measured::gc_scout::{GcFitFlag, GcScoutFit};
-use crate::measured::optimise::Selection;
+use crate::report::csv_num;
 use crate::report::table::render;
 
 /// Schema version of the `scout --mode gc` JSON output.
@@ -129,24 +132,12 @@ fn scout_gc_table(
         r.plates_used,
         r.evaluated_conditions
     ));
-    s.push_str(&format!(
-        "chosen by: {}\n",
-        match r.selection {
-            Selection::ShortestRunMeetingTarget => "shortest run meeting the target resolution",
-            Selection::LargestMinResolution =>
-                "largest smallest resolution (no condition meets the target)",
-        }
-    ));
-    s.push_str(&format!(
-        "target Rs {:.2}: {}; first peak k ≥ {}: {}\n",
+    s.push_str(&choice_lines(
+        r.selection,
         r.window.target_resolution,
-        if r.meets_target { "met" } else { "NOT met" },
+        r.meets_target,
         r.min_retention_factor,
-        if r.meets_min_retention {
-            "met"
-        } else {
-            "NOT met"
-        }
+        r.meets_min_retention,
     ));
     s.push_str(&format!(
         "last peak at {:.2} min, program ends at {:.2} min; smallest Rs {:.2} ({} / {}); first peak k = {:.2}\n",
@@ -161,50 +152,22 @@ fn scout_gc_table(
         .peaks
         .iter()
         .map(|k| {
-            vec![
-                k.name.clone(),
-                num(Some(k.retention_time_min), 2),
-                num(k.retention_time_uncertainty_min, 2),
-                num(Some(k.width_base_min), 3),
-                num(Some(k.elution_temperature_c), 1),
-                label(&k.phase).replace('_', " "),
-            ]
+            predicted_peak_row(
+                &k.name,
+                k.retention_time_min,
+                k.retention_time_uncertainty_min,
+                k.width_base_min,
+                k.elution_temperature_c,
+                label(&k.phase),
+            )
         })
         .collect();
-    s.push_str(&render(
-        &[
-            "analyte",
-            "predicted tR (min)",
-            "±1σ tR (min)",
-            "base width (min)",
-            "elution temperature (°C)",
-            "elutes in",
-        ],
+    s.push_str(&predicted_peaks_table(
         &peaks,
+        "elution temperature (°C)",
+        "elutes in",
     ));
-    s.push('\n');
-    let pairs: Vec<Vec<String>> = o
-        .pairs
-        .iter()
-        .map(|q| {
-            let critical = q.first == o.critical_pair[0] && q.second == o.critical_pair[1];
-            vec![
-                q.first.clone(),
-                q.second.clone(),
-                num(Some(q.resolution), 2),
-                if critical {
-                    "critical".into()
-                } else {
-                    String::new()
-                },
-            ]
-        })
-        .collect();
-    s.push_str(&render(
-        &["first", "second", "predicted Rs (–)", ""],
-        &pairs,
-    ));
-    s.push('\n');
+    s.push_str(&predicted_pairs_table(&o.pairs, &o.critical_pair));
     for n in &r.notes {
         s.push_str(&format!("note: {n}\n"));
     }
@@ -220,23 +183,22 @@ pub fn gc_window_tsv(r: &GcOptimiseReport) -> String {
     let w = &r.window;
     let mut s = format!(
         "# window diagram at initial {} °C, hold {} min; target Rs {}; optimum ramp {} °C/min\n",
-        w.initial_c, w.initial_hold_min, w.target_resolution, w.optimum_ramp_c_per_min
+        csv_num(w.initial_c, None),
+        csv_num(w.initial_hold_min, None),
+        csv_num(w.target_resolution, None),
+        csv_num(w.optimum_ramp_c_per_min, None)
     );
-    s.push_str(
-        "ramp_c_per_min\tmin_resolution\tcritical_first\tcritical_second\trun_time_min\twithin_run_time\tfirst_peak_k\tmeets_min_k\n",
-    );
-    for p in &w.points {
-        s.push_str(&format!(
-            "{}\t{}\t{}\t{}\t{}\t{}\t{}\t{}\n",
-            p.ramp_c_per_min,
-            p.min_resolution,
-            p.critical_pair[0],
-            p.critical_pair[1],
-            p.run_time_min,
-            p.within_run_time,
-            p.first_peak_retention_factor,
-            p.meets_min_retention
-        ));
-    }
+    s.push_str(&window_tsv_rows(
+        "ramp_c_per_min",
+        w.points.iter().map(|p| WindowRow {
+            x: p.ramp_c_per_min,
+            min_resolution: p.min_resolution,
+            critical_pair: &p.critical_pair,
+            run_time_min: p.run_time_min,
+            within_run_time: p.within_run_time,
+            first_peak_retention_factor: p.first_peak_retention_factor,
+            meets_min_retention: p.meets_min_retention,
+        }),
+    ));
     s
 }

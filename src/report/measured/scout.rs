@@ -3,11 +3,15 @@
 
 use serde::Serialize;
 
-use super::{Render, label, num};
+use super::{
+    Render, WindowRow, choice_lines, label, num, predicted_pairs_table, predicted_peak_row,
+    predicted_peaks_table, window_tsv_rows,
+};
 use crate::measured::lc_temperature::{TemperatureModel, TemperaturePoint};
-use crate::measured::optimise::{OptimiseReport, Prediction, Selection};
+use crate::measured::optimise::{OptimiseReport, Prediction};
 use crate::measured::scout::{CompositionBasis, FitFlag, ScoutFit};
 use crate::model::gradient::GradientProgram;
+use crate::report::csv_num;
 use crate::report::table::render;
 
 /// Schema version of the `scout` JSON output (2: the optimiser's selection rule, first-peak
@@ -171,31 +175,14 @@ fn prediction_table(p: &Prediction) -> String {
         .peaks
         .iter()
         .map(|k| {
-            vec![
-                k.name.clone(),
-                num(Some(k.retention_time_min), 2),
-                num(k.retention_time_uncertainty_min, 2),
-                num(Some(k.width_base_min), 3),
-                num(Some(k.organic_at_elution_pct), 1),
-                label(&k.phase).replace('_', " "),
-            ]
-        })
-        .collect();
-    let pairs: Vec<Vec<String>> = p
-        .pairs
-        .iter()
-        .map(|q| {
-            let critical = q.first == p.critical_pair[0] && q.second == p.critical_pair[1];
-            vec![
-                q.first.clone(),
-                q.second.clone(),
-                num(Some(q.resolution), 2),
-                if critical {
-                    "critical".into()
-                } else {
-                    String::new()
-                },
-            ]
+            predicted_peak_row(
+                &k.name,
+                k.retention_time_min,
+                k.retention_time_uncertainty_min,
+                k.width_base_min,
+                k.organic_at_elution_pct,
+                label(&k.phase),
+            )
         })
         .collect();
     let mut s = format!(
@@ -207,23 +194,12 @@ fn prediction_table(p: &Prediction) -> String {
         p.critical_pair[1],
         p.first_peak_retention_factor
     );
-    s.push_str(&render(
-        &[
-            "analyte",
-            "predicted tR (min)",
-            "±1σ tR (min)",
-            "base width (min)",
-            "organic at elution (%)",
-            "elutes",
-        ],
+    s.push_str(&predicted_peaks_table(
         &peaks,
+        "organic at elution (%)",
+        "elutes",
     ));
-    s.push('\n');
-    s.push_str(&render(
-        &["first", "second", "predicted Rs (–)", ""],
-        &pairs,
-    ));
-    s.push('\n');
+    s.push_str(&predicted_pairs_table(&p.pairs, &p.critical_pair));
     s
 }
 
@@ -309,24 +285,12 @@ fn scout_optimum_table(r: &OptimiseReport, plates_source: &str) -> String {
             k.time_min, k.organic_pct
         ));
     }
-    s.push_str(&format!(
-        "chosen by: {}\n",
-        match r.selection {
-            Selection::ShortestRunMeetingTarget => "shortest run meeting the target resolution",
-            Selection::LargestMinResolution =>
-                "largest smallest resolution (no condition meets the target)",
-        }
-    ));
-    s.push_str(&format!(
-        "target Rs {:.2}: {}; first peak k ≥ {}: {}\n",
+    s.push_str(&choice_lines(
+        r.selection,
         r.window.target_resolution,
-        if r.meets_target { "met" } else { "NOT met" },
+        r.meets_target,
         r.min_retention_factor,
-        if r.meets_min_retention {
-            "met"
-        } else {
-            "NOT met"
-        }
+        r.meets_min_retention,
     ));
     s.push_str(&prediction_table(&r.optimum));
     for n in &r.notes {
@@ -343,23 +307,22 @@ pub fn window_tsv(r: &OptimiseReport) -> String {
     let w = &r.window;
     let mut s = format!(
         "# window diagram at {} % → {} % organic; target Rs {}; optimum tG {} min\n",
-        w.initial_pct, w.final_pct, w.target_resolution, w.optimum_gradient_time_min
+        csv_num(w.initial_pct, None),
+        csv_num(w.final_pct, None),
+        csv_num(w.target_resolution, None),
+        csv_num(w.optimum_gradient_time_min, None)
     );
-    s.push_str(
-        "gradient_time_min\tmin_resolution\tcritical_first\tcritical_second\trun_time_min\twithin_run_time\tfirst_peak_k\tmeets_min_k\n",
-    );
-    for p in &w.points {
-        s.push_str(&format!(
-            "{}\t{}\t{}\t{}\t{}\t{}\t{}\t{}\n",
-            p.gradient_time_min,
-            p.min_resolution,
-            p.critical_pair[0],
-            p.critical_pair[1],
-            p.run_time_min,
-            p.within_run_time,
-            p.first_peak_retention_factor,
-            p.meets_min_retention
-        ));
-    }
+    s.push_str(&window_tsv_rows(
+        "gradient_time_min",
+        w.points.iter().map(|p| WindowRow {
+            x: p.gradient_time_min,
+            min_resolution: p.min_resolution,
+            critical_pair: &p.critical_pair,
+            run_time_min: p.run_time_min,
+            within_run_time: p.within_run_time,
+            first_peak_retention_factor: p.first_peak_retention_factor,
+            meets_min_retention: p.meets_min_retention,
+        }),
+    ));
     s
 }

@@ -4,6 +4,7 @@ use serde::Serialize;
 
 use super::{Render, csv_block, label, num};
 use crate::measured::suitability::{Criterion, Outcome, SuitabilityReport};
+use crate::report::csv_opt;
 use crate::report::table::render;
 
 /// JSON output of `suitability` (schema version 1: the library report plus the file name).
@@ -72,7 +73,16 @@ fn outcome_text(o: Outcome) -> &'static str {
     }
 }
 
-fn suitability_rows(r: &SuitabilityReport) -> [Vec<Vec<String>>; 3] {
+/// The rows of the three tables; `delimited` picks the CSV number rule ([`csv_num`], an empty
+/// cell when absent) over the table's fixed decimals.
+fn suitability_rows(r: &SuitabilityReport, delimited: bool) -> [Vec<Vec<String>>; 3] {
+    let num = |v: Option<f64>, d: usize| {
+        if delimited {
+            csv_opt(v.filter(|x| x.is_finite()), Some(d))
+        } else {
+            num(v, d)
+        }
+    };
     let peaks = r
         .peaks
         .iter()
@@ -121,7 +131,7 @@ fn suitability_rows(r: &SuitabilityReport) -> [Vec<Vec<String>>; 3] {
 }
 
 fn suitability_table(r: &SuitabilityReport) -> String {
-    let [peaks, pairs, checks] = suitability_rows(r);
+    let [peaks, pairs, checks] = suitability_rows(r, false);
     let mut s = format!(
         "Dead time t0 = {:.3} min ({})\n\nPeaks, in retention order ((–) = dimensionless):\n",
         r.dead_time_min, r.dead_time_source
@@ -159,7 +169,7 @@ fn suitability_table(r: &SuitabilityReport) -> String {
 }
 
 fn suitability_csv(r: &SuitabilityReport) -> String {
-    let [peaks, pairs, checks] = suitability_rows(r);
+    let [peaks, pairs, checks] = suitability_rows(r, true);
     let mut s = csv_block("peaks", &PEAK_HEADER, &peaks);
     s.push('\n');
     s.push_str(&csv_block("pairs", &PAIR_HEADER, &pairs));

@@ -183,7 +183,38 @@ pub struct Parsed {
 /// assert_eq!(parsed.fragments_dropped, vec!["[Na+]".to_string()]);
 /// ```
 pub fn parse_smiles(smiles: &str) -> Result<Parsed, StructureError> {
-    parse_smiles_with(smiles, &ParseOptions::default())
+    let parsed = parse_smiles_with(smiles, &ParseOptions::default());
+    if parsed.is_ok() {
+        remember_parsed(smiles);
+    }
+    parsed
+}
+
+/// Most strings remembered by [`remember_parsed`]; the set is emptied when full.
+const REMEMBERED: usize = 4096;
+
+thread_local! {
+    /// Strings that [`parse_smiles`] accepted with the default options in this thread.
+    static PARSED_OK: std::cell::RefCell<std::collections::HashSet<String>> =
+        std::cell::RefCell::new(std::collections::HashSet::new());
+}
+
+fn remember_parsed(smiles: &str) {
+    PARSED_OK.with(|set| {
+        let mut set = set.borrow_mut();
+        if set.len() >= REMEMBERED {
+            set.clear();
+        }
+        if !set.contains(smiles) {
+            set.insert(smiles.to_string());
+        }
+    });
+}
+
+/// Whether [`parse_smiles`] accepted exactly this string in this thread (and it is still
+/// remembered): parsing it again would succeed, as the parse is a pure function of the text.
+pub(crate) fn recently_parsed(smiles: &str) -> bool {
+    PARSED_OK.with(|set| set.borrow().contains(smiles))
 }
 
 /// As [`parse_smiles`], with options.

@@ -183,9 +183,19 @@ pub struct Parsed {
 /// assert_eq!(parsed.fragments_dropped, vec!["[Na+]".to_string()]);
 /// ```
 pub fn parse_smiles(smiles: &str) -> Result<Parsed, StructureError> {
+    // the same string parsed twice in a row (a validity check, then its key) is parsed once
+    if let Some(p) = LAST_PARSED.with(|last| {
+        last.borrow()
+            .as_ref()
+            .filter(|(s, _)| s == smiles)
+            .map(|(_, p)| p.clone())
+    }) {
+        return Ok(p);
+    }
     let parsed = parse_smiles_with(smiles, &ParseOptions::default());
-    if parsed.is_ok() {
+    if let Ok(p) = &parsed {
         remember_parsed(smiles);
+        LAST_PARSED.with(|last| *last.borrow_mut() = Some((smiles.to_string(), p.clone())));
     }
     parsed
 }
@@ -194,6 +204,9 @@ pub fn parse_smiles(smiles: &str) -> Result<Parsed, StructureError> {
 const REMEMBERED: usize = 4096;
 
 thread_local! {
+    /// The string [`parse_smiles`] accepted last in this thread, with its result.
+    static LAST_PARSED: std::cell::RefCell<Option<(String, Parsed)>> =
+        const { std::cell::RefCell::new(None) };
     /// Strings that [`parse_smiles`] accepted with the default options in this thread.
     static PARSED_OK: std::cell::RefCell<std::collections::HashSet<String>> =
         std::cell::RefCell::new(std::collections::HashSet::new());

@@ -13,6 +13,7 @@ use flate2::read::GzDecoder;
 use rusqlite::{Connection, params};
 
 use super::normalise::normalise_name;
+use super::resolve::TRIGRAM_DF_SQL;
 use super::structure_match::{KEY_INDEX_SQL, KEY_TABLE_SQL, is_parent};
 use super::{KbError, SEED_HASH, migrate, open_read_only};
 use crate::property::estimate::{EstimatedValue, estimate};
@@ -251,6 +252,9 @@ fn build_into(tmp: &Path, progress: &mut dyn FnMut(f64, &str)) -> Result<BuildCo
         for (rowid, text) in &trigram_rows {
             ins_t.execute(params![rowid, text]).map_err(sql)?;
         }
+        // document frequencies of the trigrams, read by every suggestion (the fts5vocab
+        // table computes them by walking each posting list)
+        tx.execute_batch(TRIGRAM_DF_SQL).map_err(sql)?;
         progress(0.88, "structure key index");
         tx.execute_batch(KEY_INDEX_SQL).map_err(sql)?;
         progress(0.9, "properties");

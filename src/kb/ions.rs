@@ -144,6 +144,10 @@ impl Kb {
     /// # Errors
     /// Database failures.
     pub fn resolve_panel(&self, queries: &[&str]) -> Result<Vec<Resolution>, KbError> {
+        self.in_one_read(|| self.resolve_panel_now(queries))
+    }
+
+    fn resolve_panel_now(&self, queries: &[&str]) -> Result<Vec<Resolution>, KbError> {
         let mut out = Vec::with_capacity(queries.len());
         for q in queries {
             out.push(self.resolve(q)?);

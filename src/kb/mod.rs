@@ -33,7 +33,7 @@ pub const SCHEMA_VERSION: i64 = 3;
 
 /// Fingerprint of the embedded seed data (set by `build.rs`) and of the way it is turned
 /// into a database: a base built by another version of either is stale and rebuilt.
-pub const SEED_HASH: &str = concat!(env!("PHASEWISE_SEED_HASH"), "-build7");
+pub const SEED_HASH: &str = concat!(env!("PHASEWISE_SEED_HASH"), "-build8");
 
 /// How long a writer waits for another process's lock before giving up.
 const BUSY_TIMEOUT_DEFAULT: Duration = Duration::from_secs(10);
@@ -307,6 +307,30 @@ impl Kb {
     }
 }
 
+impl Kb {
+    /// Run `f` inside one read transaction of each open database, so that its many look-ups
+    /// see one snapshot and take the file lock once instead of once per statement (a list of
+    /// 1,000 names runs some 10,000 statements). A database already inside a transaction is
+    /// left as it is.
+    pub(crate) fn in_one_read<T>(
+        &self,
+        f: impl FnOnce() -> Result<T, KbError>,
+    ) -> Result<T, KbError> {
+        let begin = |c: &Connection| c.is_autocommit() && c.execute_batch("BEGIN").is_ok();
+        let shipped = begin(&self.shipped);
+        let user = self.user.as_ref().is_some_and(begin);
+        let out = f();
+        // ending a read transaction cannot lose data; a failure here leaves nothing undone
+        if shipped {
+            let _ = self.shipped.execute_batch("COMMIT");
+        }
+        if user && let Some(u) = &self.user {
+            let _ = u.execute_batch("COMMIT");
+        }
+        out
+    }
+}
+
 pub(crate) fn open_read_only(path: &Path) -> Result<Connection, KbError> {
     let conn = Connection::open_with_flags(
         path,
@@ -323,7 +347,26 @@ pub(crate) fn open_read_only(path: &Path) -> Result<Connection, KbError> {
             e => Err(e),
         })
         .map_err(|e| KbError::sql(path, e))?;
+    stable_plans(&conn, path)?;
+    // every look-up statement of a resolution stays compiled (the default keeps 16)
+    conn.set_prepared_statement_cache_capacity(64);
     Ok(conn)
+}
+
+/// Keep each cached statement's query plan when its parameters are rebound.
+///
+/// The bundled SQLite uses the `sqlite_stat4` samples that the build's `PRAGMA optimize`
+/// writes; without this setting a statement whose plan could depend on a bound value is
+/// compiled again on every new binding, which made resolving a list spend a fifth of its
+/// time in the SQL parser (docs/performance.md, identity). The look-ups are equality
+/// searches on indexed columns, whose plan does not depend on the value.
+pub(crate) fn stable_plans(conn: &Connection, path: &Path) -> Result<(), KbError> {
+    conn.set_db_config(
+        rusqlite::config::DbConfig::SQLITE_DBCONFIG_ENABLE_QPSG,
+        true,
+    )
+    .map(|_| ())
+    .map_err(|e| KbError::sql(path, e))
 }
 
 /// Read the schema version, mapping "not a database" and "newer" to their errors.

@@ -639,6 +639,13 @@ pub(crate) fn trigram_text(norm: &str) -> String {
 /// Candidates (most shared trigrams first) ranked by edit similarity.
 const CANDIDATES: usize = 300;
 
+/// The shipped base's table of trigram document frequencies, written by the build from the
+/// fts5vocab view (which counts them by walking each posting list on every read).
+pub(crate) const TRIGRAM_DF_SQL: &str = "
+CREATE TABLE name_trigram_df (term TEXT PRIMARY KEY, doc INTEGER NOT NULL) WITHOUT ROWID;
+INSERT INTO name_trigram_df SELECT term, doc FROM name_trigram_vocab;
+";
+
 fn suggest_in(conn: &Connection, norm: &str) -> rusqlite::Result<Vec<Suggestion>> {
     if norm.chars().count() < 2 {
         return Ok(Vec::new());
@@ -650,7 +657,16 @@ fn suggest_in(conn: &Connection, norm: &str) -> rusqlite::Result<Vec<Suggestion>
     // document frequency of each trigram
     let mut df: Vec<(i64, String)> = Vec::new();
     {
-        let mut st = conn.prepare_cached("SELECT doc FROM name_trigram_vocab WHERE term = ?1")?;
+        let stored: bool = conn
+            .prepare_cached(
+                "SELECT 1 FROM sqlite_master WHERE type = 'table' AND name = 'name_trigram_df'",
+            )?
+            .exists([])?;
+        let mut st = conn.prepare_cached(if stored {
+            "SELECT doc FROM name_trigram_df WHERE term = ?1"
+        } else {
+            "SELECT doc FROM name_trigram_vocab WHERE term = ?1"
+        })?;
         for g in &grams {
             if let Some(d) = st.query_row([g], |r| r.get::<_, i64>(0)).optional()? {
                 df.push((d, g.clone()));

@@ -47,6 +47,16 @@ impl Kb {
         let Some(smiles) = a.smiles.clone() else {
             return Ok(Resolution::Found(a));
         };
+        // Only a salt record (more than one fragment) or a match by name that may have met a
+        // stereo-less record can change below; any other record is kept without parsing it.
+        let by_name = a.matched_by.starts_with("name") || a.matched_by.starts_with("synonym");
+        let salt_possible = smiles.contains('.') && !a.matched_by.contains("salt");
+        let stereo_possible = by_name
+            && (a.matched_by.starts_with("synonym") || has_stereo_word(&a.query))
+            && !a.matched_by.contains(STEREO_LESS_NOTE);
+        if !salt_possible && !stereo_possible {
+            return Ok(Resolution::Found(a));
+        }
         let Ok(parsed) = crate::structure::parse_smiles(&smiles) else {
             return Ok(Resolution::Found(a));
         };
@@ -81,7 +91,6 @@ impl Kb {
                 "{how}; salt record: its parent structure is the analyte (counter-ion {dropped})"
             );
         }
-        let by_name = a.matched_by.starts_with("name") || a.matched_by.starts_with("synonym");
         if by_name
             && key.stereo_elements == 0
             && (a.matched_by.starts_with("synonym") || has_stereo_word(&a.query))

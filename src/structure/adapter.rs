@@ -183,7 +183,51 @@ pub struct Parsed {
 /// assert_eq!(parsed.fragments_dropped, vec!["[Na+]".to_string()]);
 /// ```
 pub fn parse_smiles(smiles: &str) -> Result<Parsed, StructureError> {
-    parse_smiles_with(smiles, &ParseOptions::default())
+    // the same string parsed twice in a row (a validity check, then its key) is parsed once
+    if let Some(p) = LAST_PARSED.with(|last| {
+        last.borrow()
+            .as_ref()
+            .filter(|(s, _)| s == smiles)
+            .map(|(_, p)| p.clone())
+    }) {
+        return Ok(p);
+    }
+    let parsed = parse_smiles_with(smiles, &ParseOptions::default());
+    if let Ok(p) = &parsed {
+        remember_parsed(smiles);
+        LAST_PARSED.with(|last| *last.borrow_mut() = Some((smiles.to_string(), p.clone())));
+    }
+    parsed
+}
+
+/// Most strings remembered by [`remember_parsed`]; the set is emptied when full.
+const REMEMBERED: usize = 4096;
+
+thread_local! {
+    /// The string [`parse_smiles`] accepted last in this thread, with its result.
+    static LAST_PARSED: std::cell::RefCell<Option<(String, Parsed)>> =
+        const { std::cell::RefCell::new(None) };
+    /// Strings that [`parse_smiles`] accepted with the default options in this thread.
+    static PARSED_OK: std::cell::RefCell<std::collections::HashSet<String>> =
+        std::cell::RefCell::new(std::collections::HashSet::new());
+}
+
+fn remember_parsed(smiles: &str) {
+    PARSED_OK.with(|set| {
+        let mut set = set.borrow_mut();
+        if set.len() >= REMEMBERED {
+            set.clear();
+        }
+        if !set.contains(smiles) {
+            set.insert(smiles.to_string());
+        }
+    });
+}
+
+/// Whether [`parse_smiles`] accepted exactly this string in this thread (and it is still
+/// remembered): parsing it again would succeed, as the parse is a pure function of the text.
+pub(crate) fn recently_parsed(smiles: &str) -> bool {
+    PARSED_OK.with(|set| set.borrow().contains(smiles))
 }
 
 /// As [`parse_smiles`], with options.

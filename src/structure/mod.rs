@@ -42,8 +42,11 @@ pub use descriptors::{Description, Descriptors, describe, describe_graph};
 pub use graph::{Atom, Bond, BondOrder, MolGraph, StereoMark};
 
 /// Whether `smiles` parses as a SMILES string the structure engine accepts.
+///
+/// A string that [`parse_smiles`] accepted in this thread moments ago is not parsed again
+/// (resolving a list asks this of every analyte's query after its key was computed from it).
 pub fn is_valid_smiles(smiles: &str) -> bool {
-    parse_smiles(smiles).is_ok()
+    adapter::recently_parsed(smiles) || parse_smiles(smiles).is_ok()
 }
 
 /// Parse `smiles`, returning the engine's message (with the offending position) when it fails.

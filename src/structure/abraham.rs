@@ -128,7 +128,7 @@ pub enum Fragment {
     OrthoPair,
     /// Two halogens on neighbouring aromatic ring atoms (1,2-dichlorobenzene E 0.872 S 0.78
     /// L 4.518 against 1,3-dichlorobenzene E 0.847 S 0.73 L 4.410, from memory), counted once
-    /// per pair.
+    /// per pair, and not when a halogen para to either member cancels the pair's dipole.
     OrthoPairHalogen,
     /// Two substituents on neighbouring aromatic ring atoms of which at least one is a planar
     /// polar group conjugated with the ring (nitro, carbonyl, ester, acid, amide, nitrile):
@@ -631,6 +631,24 @@ fn planar_polar_substituent(t: Fragment) -> bool {
     )
 }
 
+fn is_halogen(g: &MolGraph, x: usize) -> bool {
+    matches!(g.atoms[x].atomic_number, 9 | 17 | 35 | 53)
+}
+
+/// True when the atom para to `a` in the six-membered ring through `a` and `b` carries a
+/// halogen.
+fn para_halogen(g: &MolGraph, a: usize, b: usize) -> bool {
+    g.rings
+        .iter()
+        .filter(|r| r.len() == 6 && r.contains(&a) && r.contains(&b))
+        .any(|r| {
+            let Some(ia) = r.iter().position(|&x| x == a) else {
+                return false;
+            };
+            ring_substituents(g, r[(ia + 3) % 6]).any(|x| is_halogen(g, x))
+        })
+}
+
 /// Non-additive corrections of aromatic rings: intramolecular hydrogen bonds of phenols, ortho
 /// pairs, and withdrawing groups on rings carrying an acidic OH or NH.
 fn push_ring_corrections(g: &MolGraph, out: &mut Vec<Fragment>) {
@@ -672,7 +690,12 @@ fn push_ring_corrections(g: &MolGraph, out: &mut Vec<Fragment>) {
             Fragment::OrthoPairPolar
         } else if both().any(|&x| matches!(g.atoms[x].atomic_number, 7 | 8 | 15 | 16)) {
             Fragment::OrthoPairHetero
-        } else if both().all(|&x| matches!(g.atoms[x].atomic_number, 9 | 17 | 35 | 53)) {
+        } else if both().all(|&x| is_halogen(g, x)) {
+            // the pair's dipole is what retains it: a halogen para to either member cancels it
+            // (1,2-dichlorobenzene 2.5 D; 1,2,4-trichloro- and hexachlorobenzene much less)
+            if para_halogen(g, bond.a, bond.b) || para_halogen(g, bond.b, bond.a) {
+                continue;
+            }
             Fragment::OrthoPairHalogen
         } else {
             Fragment::OrthoPair
@@ -704,8 +727,7 @@ fn push_ring_corrections(g: &MolGraph, out: &mut Vec<Fragment>) {
         ) {
             continue;
         }
-        let Some(&(ring_c, _)) = g.neighbours[i].iter().find(|&&(m, _)| g.atoms[m].aromatic)
-        else {
+        let Some(&(ring_c, _)) = g.neighbours[i].iter().find(|&&(m, _)| g.atoms[m].aromatic) else {
             continue;
         };
         let Some(ring) = g.rings.iter().find(|r| r.contains(&ring_c)) else {
@@ -804,7 +826,7 @@ mod tests {
                 ("aCH", 4),
                 ("aC-substituted", 2),
                 ("nitro NO2", 1),
-                ("ortho pair", 1),
+                ("ortho pair, polar", 1),
                 ("in-group", 2)
             ]
         );
@@ -829,6 +851,139 @@ mod tests {
             vec![("CH3", 1), ("nitrile C#N", 1), ("in-group", 1)]
         );
         assert_eq!(counts("c1ccncc1"), vec![("aCH", 5), ("pyridine n", 1)]);
+    }
+
+    fn has(smiles: &str, id: &str) -> u32 {
+        counts(smiles)
+            .iter()
+            .find(|(f, _)| *f == id)
+            .map_or(0, |(_, n)| *n)
+    }
+
+    // Classes of non-additive corrections (each with cases beyond the reference set).
+    #[test]
+    fn intramolecular_hydrogen_bonds_are_typed_by_acceptor_strength() {
+        // strong: nitro, carbonyl, ester next to the OH (2-nitrophenol, salicylaldehyde,
+        // methyl salicylate, 2-hydroxyacetophenone)
+        for smi in [
+            "Oc1ccccc1[N+](=O)[O-]",
+            "Oc1ccccc1C=O",
+            "COC(=O)c1ccccc1O",
+            "CC(=O)c1ccccc1O",
+        ] {
+            assert_eq!(has(smi, "ortho OH...acceptor"), 1, "{smi}");
+            assert_eq!(has(smi, "ortho OH...halogen or ether"), 0, "{smi}");
+        }
+        // weak: halogen or ether oxygen next to the OH (2-chlorophenol, 2-bromophenol,
+        // 2-fluorophenol, guaiacol, 2,6-dichlorophenol counted once)
+        for smi in [
+            "Oc1ccccc1Cl",
+            "Oc1ccccc1Br",
+            "Oc1ccccc1F",
+            "COc1ccccc1O",
+            "Oc1c(Cl)cccc1Cl",
+        ] {
+            assert_eq!(has(smi, "ortho OH...halogen or ether"), 1, "{smi}");
+            assert_eq!(has(smi, "ortho OH...acceptor"), 0, "{smi}");
+        }
+        // meta and para isomers: no intramolecular bond
+        for smi in [
+            "Oc1cccc(Cl)c1",
+            "Oc1ccc(Cl)cc1",
+            "COc1ccc(O)cc1",
+            "Oc1ccc(cc1)C=O",
+        ] {
+            assert_eq!(has(smi, "ortho OH...halogen or ether"), 0, "{smi}");
+            assert_eq!(has(smi, "ortho OH...acceptor"), 0, "{smi}");
+        }
+    }
+
+    #[test]
+    fn withdrawing_groups_on_acidic_rings_are_counted_per_group() {
+        assert_eq!(has("Oc1ccc(Cl)cc1", "withdrawing group on OH/NH ring"), 1);
+        assert_eq!(has("Oc1ccc(Cl)cc1Cl", "withdrawing group on OH/NH ring"), 2);
+        assert_eq!(
+            has(
+                "Oc1c(Cl)c(Cl)c(Cl)c(Cl)c1Cl",
+                "withdrawing group on OH/NH ring"
+            ),
+            5
+        );
+        assert_eq!(
+            has("Nc1ccc(cc1)[N+](=O)[O-]", "withdrawing group on OH/NH ring"),
+            1
+        );
+        assert_eq!(has("Oc1ccc(cc1)C#N", "withdrawing group on OH/NH ring"), 1);
+        // donors and alkyls do not count; a chlorine on another ring does not either
+        assert_eq!(has("Cc1ccc(O)cc1", "withdrawing group on OH/NH ring"), 0);
+        assert_eq!(
+            has(
+                "Oc1ccc(cc1)-c1ccc(Cl)cc1",
+                "withdrawing group on OH/NH ring"
+            ),
+            0
+        );
+        assert_eq!(has("Clc1ccccc1", "withdrawing group on OH/NH ring"), 0);
+    }
+
+    #[test]
+    fn ortho_pairs_are_typed_by_kind() {
+        assert_eq!(has("Cc1ccccc1C", "ortho pair"), 1);
+        assert_eq!(has("CCc1ccccc1C", "ortho pair"), 1);
+        assert_eq!(has("Cc1cccc(C)c1C", "ortho pair"), 2);
+        assert_eq!(has("Clc1ccccc1Cl", "ortho pair, halogens"), 1);
+        assert_eq!(has("Clc1ccccc1Br", "ortho pair, halogens"), 1);
+        assert_eq!(has("Clc1cccc(Cl)c1Cl", "ortho pair, halogens"), 2);
+        // a para halogen cancels the pair's dipole: 1,2,4-trichloro-, hexachlorobenzene
+        assert_eq!(has("Clc1ccc(Cl)c(Cl)c1", "ortho pair, halogens"), 0);
+        assert_eq!(
+            has("Clc1c(Cl)c(Cl)c(Cl)c(Cl)c1Cl", "ortho pair, halogens"),
+            0
+        );
+        assert_eq!(has("Cc1ccccc1Cl", "ortho pair"), 1);
+        assert_eq!(has("CCOC(=O)c1ccccc1C(=O)OCC", "ortho pair, polar"), 1);
+        assert_eq!(has("Cc1ccccc1C#N", "ortho pair, polar"), 1);
+        assert_eq!(has("Cc1ccccc1O", "ortho pair, heteroatom"), 1);
+        assert_eq!(has("Cc1ccccc1N", "ortho pair, heteroatom"), 1);
+        assert_eq!(has("COc1ccccc1C", "ortho pair, heteroatom"), 1);
+        // para and meta isomers and ring fusions: no pair
+        for smi in [
+            "Cc1ccc(C)cc1",
+            "Cc1cccc(O)c1",
+            "c1ccc2ccccc2c1",
+            "Clc1ccc(Cl)cc1",
+        ] {
+            assert!(
+                !counts(smi).iter().any(|(f, _)| f.starts_with("ortho pair")),
+                "{smi}"
+            );
+        }
+    }
+
+    #[test]
+    fn alcohols_are_typed_by_carbinol_substitution() {
+        assert_eq!(has("CO", "alcohol OH"), 1);
+        assert_eq!(has("CCCCO", "alcohol OH"), 1);
+        assert_eq!(has("OCc1ccccc1", "alcohol OH"), 1);
+        assert_eq!(has("CC(C)O", "secondary alcohol OH"), 1);
+        assert_eq!(has("OC1CCCCC1", "secondary alcohol OH"), 1);
+        assert_eq!(has("CC(C)(C)O", "tertiary alcohol OH"), 1);
+        assert_eq!(has("CC(O)(CC)CC", "tertiary alcohol OH"), 1);
+        assert_eq!(has("OCC(O)CO", "alcohol OH"), 2);
+        assert_eq!(has("OCC(O)CO", "secondary alcohol OH"), 1);
+    }
+
+    #[test]
+    fn ethers_and_pyridine_neighbours_are_typed() {
+        assert_eq!(has("c1ccc(cc1)Oc1ccccc1", "diaryl ether O"), 1);
+        assert_eq!(has("COc1ccccc1", "aryl ether O"), 1);
+        assert_eq!(has("COc1ccccc1", "diaryl ether O"), 0);
+        assert_eq!(has("Cc1ccccn1", "substituent next to pyridine n"), 1);
+        assert_eq!(has("Cc1cccc(C)n1", "substituent next to pyridine n"), 2);
+        assert_eq!(has("Clc1ccccn1", "substituent next to pyridine n"), 1);
+        assert_eq!(has("Cc1cccnc1", "substituent next to pyridine n"), 0);
+        assert_eq!(has("Cc1ccncc1", "substituent next to pyridine n"), 0);
+        assert_eq!(has("c1ccc2ncccc2c1", "substituent next to pyridine n"), 0);
     }
 
     #[test]

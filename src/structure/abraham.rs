@@ -58,14 +58,22 @@ pub enum Fragment {
     CarboxylicAcid,
     /// Amide (C(=O)N with the nitrogen).
     Amide,
-    /// Aliphatic hydroxyl.
+    /// Aliphatic hydroxyl on a primary carbon (or methanol).
     AlcoholOh,
+    /// Aliphatic hydroxyl on a secondary carbon (2-propanol-type: lower A and S, higher B than
+    /// a primary alcohol; Abraham's tables, from memory).
+    AlcoholOhSecondary,
+    /// Aliphatic hydroxyl on a tertiary carbon (tert-butanol-type).
+    AlcoholOhTertiary,
     /// Hydroxyl on an aromatic ring.
     PhenolOh,
     /// Ether oxygen between aliphatic carbons.
     EtherO,
-    /// Ether oxygen on at least one aromatic carbon.
+    /// Ether oxygen on one aromatic and one aliphatic carbon (anisole-type).
     ArylEtherO,
+    /// Ether oxygen between two aromatic carbons (diphenyl ether-type: the two rings twist out of
+    /// conjugation, so less dipolarity and basicity than two anisole oxygens would give).
+    DiarylEtherO,
     /// Aromatic oxygen (furan-type).
     AromaticO,
     /// Primary amine on aliphatic carbon.
@@ -104,13 +112,43 @@ pub enum Fragment {
     P,
     /// Silicon.
     Si,
-    /// Phenolic OH with an acceptor on the neighbouring ring atom (intramolecular H-bond
-    /// correction, counted in addition to [`Fragment::PhenolOh`]).
+    /// Phenolic OH with a strong acceptor (nitro, carbonyl, ester, acid) on the neighbouring
+    /// ring atom: a six-membered intramolecular hydrogen bond that removes almost all of its
+    /// acidity (2-nitrophenol A 0.05 against phenol 0.60; counted in addition to
+    /// [`Fragment::PhenolOh`]).
     OrthoHBond,
-    /// Two substituents on neighbouring aromatic ring atoms (ortho pair; o-xylene against m- and
-    /// p-xylene: E +0.04, S +0.04, L +0.10, from memory of Abraham's tables), counted once per
-    /// pair.
+    /// Phenolic OH with a weak acceptor (halogen, ether oxygen) on the neighbouring ring atom: a
+    /// five-membered intramolecular hydrogen bond that removes about half of its acidity and
+    /// makes it more volatile (2-chlorophenol A 0.32 against 4-chlorophenol 0.67, guaiacol A
+    /// 0.22; from memory of Abraham's tables).
+    OrthoHBondWeak,
+    /// Two non-polar substituents on neighbouring aromatic ring atoms, at least one of them a
+    /// carbon (ortho pair; o-xylene against m- and p-xylene: E +0.04, S +0.04, L +0.10, from
+    /// memory of Abraham's tables), counted once per pair.
     OrthoPair,
+    /// Two halogens on neighbouring aromatic ring atoms (1,2-dichlorobenzene E 0.872 S 0.78
+    /// L 4.518 against 1,3-dichlorobenzene E 0.847 S 0.73 L 4.410, from memory), counted once
+    /// per pair, and not when a halogen para to either member cancels the pair's dipole.
+    OrthoPairHalogen,
+    /// Two substituents on neighbouring aromatic ring atoms of which at least one is a planar
+    /// polar group conjugated with the ring (nitro, carbonyl, ester, acid, amide, nitrile):
+    /// steric crowding twists it out of the ring plane and lowers L (2-nitrotoluene L 4.88
+    /// against 4-nitrotoluene 5.15, from memory), counted once per pair.
+    OrthoPairPolar,
+    /// Two substituents on neighbouring aromatic ring atoms of which at least one is attached
+    /// through a heteroatom (OH, NH2, OMe, SR, phosphate) and none is a planar polar group:
+    /// the crowded OH or NH is a weaker hydrogen-bond donor (o-cresol A 0.52 L 4.218 against
+    /// p-cresol A 0.57 L 4.312, from memory), counted once per pair.
+    OrthoPairHetero,
+    /// A substituent on an aromatic carbon next to a pyridine-type nitrogen: it shields the
+    /// nitrogen's lone pair (2-methylpyridine S 0.75 L 3.422 against 3-methylpyridine S 0.81
+    /// L 3.631, from memory), counted once per substituted neighbour.
+    PyridineAlphaSubstituent,
+    /// An electron-withdrawing substituent (halogen, nitro, nitrile, carbonyl, ester, acid) on
+    /// a ring bearing a phenolic OH or an aromatic NH: raises the hydrogen-bond acidity of the
+    /// OH or NH (4-chlorophenol A 0.67 against phenol 0.60, 4-nitrophenol 0.82; 4-chloroaniline
+    /// A 0.30 against aniline 0.26; from memory), counted once per substituent and acidic group.
+    RingEwgOnAcidicH,
     /// Hydrogen-bond-acidic C-H of a carbon carrying two or more Cl or Br (dichloromethane,
     /// chloroform: A 0.10-0.15; counted in addition to the carbon's own fragment).
     AcidicCh,
@@ -119,7 +157,7 @@ pub enum Fragment {
 }
 
 /// Every fragment in table order (the order of `data/gc_solute_fragments.tsv`).
-pub const ALL_FRAGMENTS: [Fragment; 44] = [
+pub const ALL_FRAGMENTS: [Fragment; 53] = [
     Fragment::Ch3,
     Fragment::Ch2,
     Fragment::Ch,
@@ -138,9 +176,12 @@ pub const ALL_FRAGMENTS: [Fragment; 44] = [
     Fragment::CarboxylicAcid,
     Fragment::Amide,
     Fragment::AlcoholOh,
+    Fragment::AlcoholOhSecondary,
+    Fragment::AlcoholOhTertiary,
     Fragment::PhenolOh,
     Fragment::EtherO,
     Fragment::ArylEtherO,
+    Fragment::DiarylEtherO,
     Fragment::AromaticO,
     Fragment::AmineNh2,
     Fragment::AnilineNh2,
@@ -161,7 +202,13 @@ pub const ALL_FRAGMENTS: [Fragment; 44] = [
     Fragment::P,
     Fragment::Si,
     Fragment::OrthoHBond,
+    Fragment::OrthoHBondWeak,
     Fragment::OrthoPair,
+    Fragment::OrthoPairHalogen,
+    Fragment::OrthoPairPolar,
+    Fragment::OrthoPairHetero,
+    Fragment::PyridineAlphaSubstituent,
+    Fragment::RingEwgOnAcidicH,
     Fragment::AcidicCh,
     Fragment::InGroup,
 ];
@@ -188,9 +235,12 @@ impl Fragment {
             Fragment::CarboxylicAcid => "acid C(=O)OH",
             Fragment::Amide => "amide C(=O)N",
             Fragment::AlcoholOh => "alcohol OH",
+            Fragment::AlcoholOhSecondary => "secondary alcohol OH",
+            Fragment::AlcoholOhTertiary => "tertiary alcohol OH",
             Fragment::PhenolOh => "phenol OH",
             Fragment::EtherO => "ether O",
             Fragment::ArylEtherO => "aryl ether O",
+            Fragment::DiarylEtherO => "diaryl ether O",
             Fragment::AromaticO => "aromatic o",
             Fragment::AmineNh2 => "amine NH2",
             Fragment::AnilineNh2 => "aryl NH2",
@@ -211,7 +261,13 @@ impl Fragment {
             Fragment::P => "P",
             Fragment::Si => "Si",
             Fragment::OrthoHBond => "ortho OH...acceptor",
+            Fragment::OrthoHBondWeak => "ortho OH...halogen or ether",
             Fragment::OrthoPair => "ortho pair",
+            Fragment::OrthoPairHalogen => "ortho pair, halogens",
+            Fragment::OrthoPairPolar => "ortho pair, polar",
+            Fragment::OrthoPairHetero => "ortho pair, heteroatom",
+            Fragment::PyridineAlphaSubstituent => "substituent next to pyridine n",
+            Fragment::RingEwgOnAcidicH => "withdrawing group on OH/NH ring",
             Fragment::AcidicCh => "acidic CHX2",
             Fragment::InGroup => "in-group",
         }
@@ -427,8 +483,18 @@ fn type_atoms(g: &MolGraph) -> Result<Vec<Fragment>, FragmentError> {
                     if aromatic_neighbours > 0 {
                         Fragment::PhenolOh
                     } else {
-                        Fragment::AlcoholOh
+                        // carbinol carbon: how many heavy atoms besides this O it carries
+                        let carbon_substituents = nb
+                            .first()
+                            .map_or(0, |&(c, _)| g.degree(c).saturating_sub(1));
+                        match carbon_substituents {
+                            0 | 1 => Fragment::AlcoholOh,
+                            2 => Fragment::AlcoholOhSecondary,
+                            _ => Fragment::AlcoholOhTertiary,
+                        }
                     }
+                } else if aromatic_neighbours >= 2 {
+                    Fragment::DiarylEtherO
                 } else if aromatic_neighbours > 0 {
                     Fragment::ArylEtherO
                 } else {
@@ -482,49 +548,7 @@ fn type_atoms(g: &MolGraph) -> Result<Vec<Fragment>, FragmentError> {
         })?;
         out.push(t);
     }
-    // intramolecular hydrogen bond of a phenolic OH with an acceptor on the neighbouring ring atom
-    for i in 0..n {
-        if out[i] != Fragment::PhenolOh {
-            continue;
-        }
-        let Some(&(ring_c, _)) = g.neighbours[i].first() else {
-            continue;
-        };
-        let ortho_acceptor = g.neighbours[ring_c]
-            .iter()
-            .filter(|&&(m, _)| m != i && g.atoms[m].aromatic)
-            .any(|&(m, _)| {
-                g.neighbours[m].iter().any(|&(x, _)| {
-                    !g.atoms[x].aromatic
-                        && matches!(
-                            out[x],
-                            Fragment::Nitro
-                                | Fragment::Ketone
-                                | Fragment::Aldehyde
-                                | Fragment::Ester
-                                | Fragment::ArylEtherO
-                                | Fragment::ClAromatic
-                                | Fragment::Br
-                        )
-                })
-            });
-        if ortho_acceptor {
-            out.push(Fragment::OrthoHBond);
-        }
-    }
-    // substituents on neighbouring aromatic atoms (not across a ring fusion)
-    for bond in &g.bonds {
-        let substituted = |i: usize| {
-            g.atoms[i].aromatic
-                && g.atoms[i].hydrogens == 0
-                && g.neighbours[i]
-                    .iter()
-                    .any(|&(m, _)| !g.atoms[m].aromatic || !g.atoms[m].in_ring)
-        };
-        if bond.order == BondOrder::Aromatic && substituted(bond.a) && substituted(bond.b) {
-            out.push(Fragment::OrthoPair);
-        }
-    }
+    push_ring_corrections(g, &mut out);
     // acidic C-H next to two or more heavy halogens
     for i in 0..n {
         let a = &g.atoms[i];
@@ -539,6 +563,184 @@ fn type_atoms(g: &MolGraph) -> Result<Vec<Fragment>, FragmentError> {
         }
     }
     Ok(out)
+}
+
+/// Substituent atoms of aromatic ring atom `r`: neighbours outside the aromatic ring system
+/// (non-aromatic, or aromatic but not in a ring).
+fn ring_substituents(g: &MolGraph, r: usize) -> impl Iterator<Item = usize> + '_ {
+    g.neighbours[r]
+        .iter()
+        .map(|&(m, _)| m)
+        .filter(move |&m| !g.atoms[m].aromatic || !g.atoms[m].in_ring)
+}
+
+/// A substituent that accepts a strong (six-membered) intramolecular hydrogen bond from a
+/// neighbouring phenolic OH.
+fn strong_ortho_acceptor(t: Fragment) -> bool {
+    matches!(
+        t,
+        Fragment::Nitro
+            | Fragment::Ketone
+            | Fragment::Aldehyde
+            | Fragment::Ester
+            | Fragment::CarboxylicAcid
+    )
+}
+
+/// A substituent that accepts a weak (five-membered) intramolecular hydrogen bond.
+fn weak_ortho_acceptor(t: Fragment) -> bool {
+    matches!(
+        t,
+        Fragment::ClAromatic
+            | Fragment::Br
+            | Fragment::I
+            | Fragment::F
+            | Fragment::ArylEtherO
+            | Fragment::DiarylEtherO
+    )
+}
+
+/// An electron-withdrawing ring substituent (raises the acidity of a ring OH or NH).
+fn withdrawing(g: &MolGraph, x: usize, t: Fragment) -> bool {
+    matches!(
+        t,
+        Fragment::ClAromatic
+            | Fragment::Br
+            | Fragment::I
+            | Fragment::F
+            | Fragment::Nitro
+            | Fragment::Ketone
+            | Fragment::Aldehyde
+            | Fragment::Ester
+            | Fragment::CarboxylicAcid
+    ) || (t == Fragment::InGroup && g.atoms[x].atomic_number == 6)
+}
+
+/// A planar polar ortho substituent conjugated with the ring (the carbon or nitrogen of a
+/// nitro, carbonyl, ester, acid, amide or nitrile group).
+fn planar_polar_substituent(t: Fragment) -> bool {
+    matches!(
+        t,
+        Fragment::Nitro
+            | Fragment::Ketone
+            | Fragment::Aldehyde
+            | Fragment::Ester
+            | Fragment::CarboxylicAcid
+            | Fragment::Amide
+            | Fragment::InGroup
+    )
+}
+
+fn is_halogen(g: &MolGraph, x: usize) -> bool {
+    matches!(g.atoms[x].atomic_number, 9 | 17 | 35 | 53)
+}
+
+/// True when the atom para to `a` in the six-membered ring through `a` and `b` carries a
+/// halogen.
+fn para_halogen(g: &MolGraph, a: usize, b: usize) -> bool {
+    g.rings
+        .iter()
+        .filter(|r| r.len() == 6 && r.contains(&a) && r.contains(&b))
+        .any(|r| {
+            let Some(ia) = r.iter().position(|&x| x == a) else {
+                return false;
+            };
+            ring_substituents(g, r[(ia + 3) % 6]).any(|x| is_halogen(g, x))
+        })
+}
+
+/// Non-additive corrections of aromatic rings: intramolecular hydrogen bonds of phenols, ortho
+/// pairs, and withdrawing groups on rings carrying an acidic OH or NH.
+fn push_ring_corrections(g: &MolGraph, out: &mut Vec<Fragment>) {
+    let n = g.atoms.len();
+    // intramolecular hydrogen bond of a phenolic OH with an acceptor on the neighbouring ring atom
+    for i in 0..n {
+        if out[i] != Fragment::PhenolOh {
+            continue;
+        }
+        let Some(&(ring_c, _)) = g.neighbours[i].first() else {
+            continue;
+        };
+        let ortho_types: Vec<Fragment> = g.neighbours[ring_c]
+            .iter()
+            .filter(|&&(m, _)| m != i && g.atoms[m].aromatic)
+            .flat_map(|&(m, _)| ring_substituents(g, m).map(|x| out[x]))
+            .collect();
+        if ortho_types.iter().any(|&t| strong_ortho_acceptor(t)) {
+            out.push(Fragment::OrthoHBond);
+        } else if ortho_types.iter().any(|&t| weak_ortho_acceptor(t)) {
+            out.push(Fragment::OrthoHBondWeak);
+        }
+    }
+    // substituents on neighbouring aromatic atoms (not across a ring fusion)
+    for bond in &g.bonds {
+        if bond.order != BondOrder::Aromatic
+            || g.atoms[bond.a].hydrogens > 0
+            || g.atoms[bond.b].hydrogens > 0
+        {
+            continue;
+        }
+        let subs_a: Vec<usize> = ring_substituents(g, bond.a).collect();
+        let subs_b: Vec<usize> = ring_substituents(g, bond.b).collect();
+        if subs_a.is_empty() || subs_b.is_empty() {
+            continue;
+        }
+        let both = || subs_a.iter().chain(&subs_b);
+        out.push(if both().any(|&x| planar_polar_substituent(out[x])) {
+            Fragment::OrthoPairPolar
+        } else if both().any(|&x| matches!(g.atoms[x].atomic_number, 7 | 8 | 15 | 16)) {
+            Fragment::OrthoPairHetero
+        } else if both().all(|&x| is_halogen(g, x)) {
+            // the pair's dipole is what retains it: a halogen para to either member cancels it
+            // (1,2-dichlorobenzene 2.5 D; 1,2,4-trichloro- and hexachlorobenzene much less)
+            if para_halogen(g, bond.a, bond.b) || para_halogen(g, bond.b, bond.a) {
+                continue;
+            }
+            Fragment::OrthoPairHalogen
+        } else {
+            Fragment::OrthoPair
+        });
+    }
+    // substituted aromatic carbons next to a pyridine-type nitrogen
+    for i in 0..n {
+        if out[i] != Fragment::PyridineN {
+            continue;
+        }
+        let substituted = g.neighbours[i]
+            .iter()
+            .filter(|&&(c, _)| {
+                g.atoms[c].aromatic
+                    && g.atoms[c].hydrogens == 0
+                    && ring_substituents(g, c).next().is_some()
+            })
+            .count();
+        out.extend(std::iter::repeat_n(
+            Fragment::PyridineAlphaSubstituent,
+            substituted,
+        ));
+    }
+    // withdrawing substituents on a ring that carries a phenolic OH or aromatic NH
+    for i in 0..n {
+        if !matches!(
+            out[i],
+            Fragment::PhenolOh | Fragment::AnilineNh2 | Fragment::ArylNh
+        ) {
+            continue;
+        }
+        let Some(&(ring_c, _)) = g.neighbours[i].iter().find(|&&(m, _)| g.atoms[m].aromatic) else {
+            continue;
+        };
+        let Some(ring) = g.rings.iter().find(|r| r.contains(&ring_c)) else {
+            continue;
+        };
+        let count = ring
+            .iter()
+            .filter(|&&q| q != ring_c)
+            .flat_map(|&q| ring_substituents(g, q))
+            .filter(|&x| withdrawing(g, x, out[x]))
+            .count();
+        out.extend(std::iter::repeat_n(Fragment::RingEwgOnAcidicH, count));
+    }
 }
 
 /// True for an unbranched acyclic alkane (CnH2n+2, n >= 1): its descriptors are exact by the
@@ -624,7 +826,7 @@ mod tests {
                 ("aCH", 4),
                 ("aC-substituted", 2),
                 ("nitro NO2", 1),
-                ("ortho pair", 1),
+                ("ortho pair, polar", 1),
                 ("in-group", 2)
             ]
         );
@@ -649,6 +851,139 @@ mod tests {
             vec![("CH3", 1), ("nitrile C#N", 1), ("in-group", 1)]
         );
         assert_eq!(counts("c1ccncc1"), vec![("aCH", 5), ("pyridine n", 1)]);
+    }
+
+    fn has(smiles: &str, id: &str) -> u32 {
+        counts(smiles)
+            .iter()
+            .find(|(f, _)| *f == id)
+            .map_or(0, |(_, n)| *n)
+    }
+
+    // Classes of non-additive corrections (each with cases beyond the reference set).
+    #[test]
+    fn intramolecular_hydrogen_bonds_are_typed_by_acceptor_strength() {
+        // strong: nitro, carbonyl, ester next to the OH (2-nitrophenol, salicylaldehyde,
+        // methyl salicylate, 2-hydroxyacetophenone)
+        for smi in [
+            "Oc1ccccc1[N+](=O)[O-]",
+            "Oc1ccccc1C=O",
+            "COC(=O)c1ccccc1O",
+            "CC(=O)c1ccccc1O",
+        ] {
+            assert_eq!(has(smi, "ortho OH...acceptor"), 1, "{smi}");
+            assert_eq!(has(smi, "ortho OH...halogen or ether"), 0, "{smi}");
+        }
+        // weak: halogen or ether oxygen next to the OH (2-chlorophenol, 2-bromophenol,
+        // 2-fluorophenol, guaiacol, 2,6-dichlorophenol counted once)
+        for smi in [
+            "Oc1ccccc1Cl",
+            "Oc1ccccc1Br",
+            "Oc1ccccc1F",
+            "COc1ccccc1O",
+            "Oc1c(Cl)cccc1Cl",
+        ] {
+            assert_eq!(has(smi, "ortho OH...halogen or ether"), 1, "{smi}");
+            assert_eq!(has(smi, "ortho OH...acceptor"), 0, "{smi}");
+        }
+        // meta and para isomers: no intramolecular bond
+        for smi in [
+            "Oc1cccc(Cl)c1",
+            "Oc1ccc(Cl)cc1",
+            "COc1ccc(O)cc1",
+            "Oc1ccc(cc1)C=O",
+        ] {
+            assert_eq!(has(smi, "ortho OH...halogen or ether"), 0, "{smi}");
+            assert_eq!(has(smi, "ortho OH...acceptor"), 0, "{smi}");
+        }
+    }
+
+    #[test]
+    fn withdrawing_groups_on_acidic_rings_are_counted_per_group() {
+        assert_eq!(has("Oc1ccc(Cl)cc1", "withdrawing group on OH/NH ring"), 1);
+        assert_eq!(has("Oc1ccc(Cl)cc1Cl", "withdrawing group on OH/NH ring"), 2);
+        assert_eq!(
+            has(
+                "Oc1c(Cl)c(Cl)c(Cl)c(Cl)c1Cl",
+                "withdrawing group on OH/NH ring"
+            ),
+            5
+        );
+        assert_eq!(
+            has("Nc1ccc(cc1)[N+](=O)[O-]", "withdrawing group on OH/NH ring"),
+            1
+        );
+        assert_eq!(has("Oc1ccc(cc1)C#N", "withdrawing group on OH/NH ring"), 1);
+        // donors and alkyls do not count; a chlorine on another ring does not either
+        assert_eq!(has("Cc1ccc(O)cc1", "withdrawing group on OH/NH ring"), 0);
+        assert_eq!(
+            has(
+                "Oc1ccc(cc1)-c1ccc(Cl)cc1",
+                "withdrawing group on OH/NH ring"
+            ),
+            0
+        );
+        assert_eq!(has("Clc1ccccc1", "withdrawing group on OH/NH ring"), 0);
+    }
+
+    #[test]
+    fn ortho_pairs_are_typed_by_kind() {
+        assert_eq!(has("Cc1ccccc1C", "ortho pair"), 1);
+        assert_eq!(has("CCc1ccccc1C", "ortho pair"), 1);
+        assert_eq!(has("Cc1cccc(C)c1C", "ortho pair"), 2);
+        assert_eq!(has("Clc1ccccc1Cl", "ortho pair, halogens"), 1);
+        assert_eq!(has("Clc1ccccc1Br", "ortho pair, halogens"), 1);
+        assert_eq!(has("Clc1cccc(Cl)c1Cl", "ortho pair, halogens"), 2);
+        // a para halogen cancels the pair's dipole: 1,2,4-trichloro-, hexachlorobenzene
+        assert_eq!(has("Clc1ccc(Cl)c(Cl)c1", "ortho pair, halogens"), 0);
+        assert_eq!(
+            has("Clc1c(Cl)c(Cl)c(Cl)c(Cl)c1Cl", "ortho pair, halogens"),
+            0
+        );
+        assert_eq!(has("Cc1ccccc1Cl", "ortho pair"), 1);
+        assert_eq!(has("CCOC(=O)c1ccccc1C(=O)OCC", "ortho pair, polar"), 1);
+        assert_eq!(has("Cc1ccccc1C#N", "ortho pair, polar"), 1);
+        assert_eq!(has("Cc1ccccc1O", "ortho pair, heteroatom"), 1);
+        assert_eq!(has("Cc1ccccc1N", "ortho pair, heteroatom"), 1);
+        assert_eq!(has("COc1ccccc1C", "ortho pair, heteroatom"), 1);
+        // para and meta isomers and ring fusions: no pair
+        for smi in [
+            "Cc1ccc(C)cc1",
+            "Cc1cccc(O)c1",
+            "c1ccc2ccccc2c1",
+            "Clc1ccc(Cl)cc1",
+        ] {
+            assert!(
+                !counts(smi).iter().any(|(f, _)| f.starts_with("ortho pair")),
+                "{smi}"
+            );
+        }
+    }
+
+    #[test]
+    fn alcohols_are_typed_by_carbinol_substitution() {
+        assert_eq!(has("CO", "alcohol OH"), 1);
+        assert_eq!(has("CCCCO", "alcohol OH"), 1);
+        assert_eq!(has("OCc1ccccc1", "alcohol OH"), 1);
+        assert_eq!(has("CC(C)O", "secondary alcohol OH"), 1);
+        assert_eq!(has("OC1CCCCC1", "secondary alcohol OH"), 1);
+        assert_eq!(has("CC(C)(C)O", "tertiary alcohol OH"), 1);
+        assert_eq!(has("CC(O)(CC)CC", "tertiary alcohol OH"), 1);
+        assert_eq!(has("OCC(O)CO", "alcohol OH"), 2);
+        assert_eq!(has("OCC(O)CO", "secondary alcohol OH"), 1);
+    }
+
+    #[test]
+    fn ethers_and_pyridine_neighbours_are_typed() {
+        assert_eq!(has("c1ccc(cc1)Oc1ccccc1", "diaryl ether O"), 1);
+        assert_eq!(has("COc1ccccc1", "aryl ether O"), 1);
+        assert_eq!(has("COc1ccccc1", "diaryl ether O"), 0);
+        assert_eq!(has("Cc1ccccn1", "substituent next to pyridine n"), 1);
+        assert_eq!(has("Cc1cccc(C)n1", "substituent next to pyridine n"), 2);
+        assert_eq!(has("Clc1ccccn1", "substituent next to pyridine n"), 1);
+        assert_eq!(has("Cc1cccnc1", "substituent next to pyridine n"), 0);
+        assert_eq!(has("Cc1ccncc1", "substituent next to pyridine n"), 0);
+        assert_eq!(has("c1ccc2ncccc2c1", "substituent next to pyridine n"), 0);
     }
 
     #[test]

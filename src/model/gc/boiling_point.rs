@@ -42,80 +42,41 @@ struct GroupTerm {
     sigma_ri: f64,
 }
 
+/// A [`GroupTerm`] from its squalane increment, McReynolds weights and 1-sigma uncertainty.
+const fn group(squalane_increment_ri: f64, weights: [f64; 5], sigma_ri: f64) -> GroupTerm {
+    GroupTerm {
+        squalane_increment_ri,
+        weights,
+        sigma_ri,
+    }
+}
+
 // Increments fitted so that the McReynolds probes reach their squalane indices (see the module
 // docs); the rest are from memory of typical indices on dimethylpolysiloxane. Rough.
-const AROMATIC_RING: GroupTerm = GroupTerm {
-    squalane_increment_ri: 17.0,
-    weights: [1.0, 0.0, 0.0, 0.0, 0.0],
-    sigma_ri: 10.0,
-};
+const AROMATIC_RING: GroupTerm = group(17.0, [1.0, 0.0, 0.0, 0.0, 0.0], 10.0);
 // Rings after the first: fused and linked polyaromatics elute earlier than their boiling points
 // suggest (fitted to naphthalene near 1180 and biphenyl near 1380 on dimethylpolysiloxane, from
 // memory); the benzene-probe weight per extra ring is reduced to 0.8 (naphthalene is retained
 // about 560 units more on polyethylene glycol, from memory).
-const ADDITIONAL_RING: GroupTerm = GroupTerm {
-    squalane_increment_ri: -75.0,
-    weights: [0.8, 0.0, 0.0, 0.0, 0.0],
-    sigma_ri: 25.0,
-};
+const ADDITIONAL_RING: GroupTerm = group(-75.0, [0.8, 0.0, 0.0, 0.0, 0.0], 25.0);
 // Small alcohols lose more index to hydrogen bonding than the 1-butanol probe: an extra
 // decrement growing to 75 units at ethanol's molar mass (ethanol near 430 on
 // dimethylpolysiloxane, from memory), applied per hydroxyl below 1-butanol's molar mass.
 const SMALL_ALCOHOL_EXTRA_RI: f64 = -75.0;
 const BUTANOL_M_G_MOL: f64 = 74.12;
 const ETHANOL_M_G_MOL: f64 = 46.07;
-const HYDROXYL: GroupTerm = GroupTerm {
-    squalane_increment_ri: -180.0,
-    weights: [0.0, 1.0, 0.0, 0.0, 0.0],
-    sigma_ri: 20.0,
-};
-const CARBOXYLIC_ACID: GroupTerm = GroupTerm {
-    squalane_increment_ri: -250.0,
-    weights: [0.0, 1.4, 0.5, 0.0, 0.0],
-    sigma_ri: 40.0,
-};
-const CARBONYL: GroupTerm = GroupTerm {
-    squalane_increment_ri: -86.0,
-    weights: [0.0, 0.0, 1.0, 0.0, 0.0],
-    sigma_ri: 15.0,
-};
-const ETHER: GroupTerm = GroupTerm {
-    squalane_increment_ri: -15.0,
-    weights: [0.0, 0.0, 0.5, 0.0, 0.0],
-    sigma_ri: 15.0,
-};
-const ESTER: GroupTerm = GroupTerm {
-    squalane_increment_ri: -55.0,
-    weights: [0.0, 0.0, 0.9, 0.0, 0.0],
-    sigma_ri: 15.0,
-};
-const NITRILE: GroupTerm = GroupTerm {
-    squalane_increment_ri: -190.0,
-    weights: [0.0, 0.0, 0.0, 1.0, 0.0],
-    sigma_ri: 30.0,
-};
-const NITRO: GroupTerm = GroupTerm {
-    squalane_increment_ri: -169.0,
-    weights: [0.0, 0.0, 0.0, 1.0, 0.0],
-    sigma_ri: 20.0,
-};
-const HALOGEN: GroupTerm = GroupTerm {
-    squalane_increment_ri: 10.0,
-    weights: [0.0, 0.0, 0.0, 0.2, 0.0],
-    sigma_ri: 10.0,
-};
-const AMINE: GroupTerm = GroupTerm {
-    squalane_increment_ri: -35.0,
-    weights: [0.0, 0.1, 0.0, 0.0, 0.5],
-    sigma_ri: 25.0,
-};
+const HYDROXYL: GroupTerm = group(-180.0, [0.0, 1.0, 0.0, 0.0, 0.0], 20.0);
+const CARBOXYLIC_ACID: GroupTerm = group(-250.0, [0.0, 1.4, 0.5, 0.0, 0.0], 40.0);
+const CARBONYL: GroupTerm = group(-86.0, [0.0, 0.0, 1.0, 0.0, 0.0], 15.0);
+const ETHER: GroupTerm = group(-15.0, [0.0, 0.0, 0.5, 0.0, 0.0], 15.0);
+const ESTER: GroupTerm = group(-55.0, [0.0, 0.0, 0.9, 0.0, 0.0], 15.0);
+const NITRILE: GroupTerm = group(-190.0, [0.0, 0.0, 0.0, 1.0, 0.0], 30.0);
+const NITRO: GroupTerm = group(-169.0, [0.0, 0.0, 0.0, 1.0, 0.0], 20.0);
+const HALOGEN: GroupTerm = group(10.0, [0.0, 0.0, 0.0, 0.2, 0.0], 10.0);
+const AMINE: GroupTerm = group(-35.0, [0.0, 0.1, 0.0, 0.0, 0.5], 25.0);
 // A pyridine-like nitrogen turns one ring's benzene-like weight into the pyridine probe's weight
 // (the pyridine probe already carries its ring's aromaticity).
-const PYRIDINE_LIKE: GroupTerm = GroupTerm {
-    squalane_increment_ri: -78.0,
-    weights: [-1.0, 0.0, 0.0, 0.0, 1.0],
-    sigma_ri: 20.0,
-};
+const PYRIDINE_LIKE: GroupTerm = group(-78.0, [-1.0, 0.0, 0.0, 0.0, 1.0], 20.0);
 const META_DIPOLE_U: f64 = 0.012;
 const ORTHO_DIPOLE_U: f64 = 0.035;
 
@@ -194,6 +155,27 @@ pub struct RetentionIndexPrediction {
 }
 
 impl RetentionIndexPrediction {
+    /// A prediction with its approximate 95 % interval (index +- 1.96 sigma).
+    pub(super) fn with_interval(
+        phase_id: &str,
+        retention_index: f64,
+        sigma_ri: f64,
+        boiling_point_index: f64,
+        phase_shift_ri: f64,
+        path: String,
+    ) -> Self {
+        RetentionIndexPrediction {
+            phase_id: phase_id.to_string(),
+            retention_index,
+            sigma_ri,
+            low_95_ri: retention_index - 1.96 * sigma_ri,
+            high_95_ri: retention_index + 1.96 * sigma_ri,
+            boiling_point_index,
+            phase_shift_ri,
+            path,
+        }
+    }
+
     /// The route of the index in a few words, for reports: `n-alkane` (100 n by definition),
     /// `solvation model`, `boiling-point route` (also when the boiling-point route stood in
     /// for a structure the solvation route could not type).
@@ -246,16 +228,14 @@ pub fn predict_retention_index(
     analyte.validate()?;
     if let Some(n) = analyte.is_n_alkane_carbon_count {
         let index = 100.0 * f64::from(n);
-        return Ok(RetentionIndexPrediction {
-            phase_id: phase.id().to_string(),
-            retention_index: index,
-            sigma_ri: 0.0,
-            low_95_ri: index,
-            high_95_ri: index,
-            boiling_point_index: index,
-            phase_shift_ri: 0.0,
-            path: "n-alkane: index 100 n by definition (Kovats)".to_string(),
-        });
+        return Ok(RetentionIndexPrediction::with_interval(
+            phase.id(),
+            index,
+            0.0,
+            index,
+            0.0,
+            "n-alkane: index 100 n by definition (Kovats)".to_string(),
+        ));
     }
     let carbon = alkane_equivalent_carbon_number(analyte.tb_k).ok_or(GcError::BadAnalyte {
         field: "tb_k",
@@ -279,16 +259,14 @@ pub fn predict_retention_index(
         + (SHIFT_RELATIVE_SIGMA * phase_shift_ri).powi(2)
         + size_term.powi(2))
     .sqrt();
-    Ok(RetentionIndexPrediction {
-        phase_id: phase.id().to_string(),
+    Ok(RetentionIndexPrediction::with_interval(
+        phase.id(),
         retention_index,
         sigma_ri,
-        low_95_ri: retention_index - 1.96 * sigma_ri,
-        high_95_ri: retention_index + 1.96 * sigma_ri,
         boiling_point_index,
         phase_shift_ri,
-        path: "boiling-point index on the n-alkane ladder (Kreglewski-Zwolinski Tb) + functional-group increments (squalane) + McReynolds-type phase shift".to_string(),
-    })
+        "boiling-point index on the n-alkane ladder (Kreglewski-Zwolinski Tb) + functional-group increments (squalane) + McReynolds-type phase shift".to_string(),
+    ))
 }
 
 /// True when two predicted indices on the same phase differ by less than

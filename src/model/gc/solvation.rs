@@ -263,17 +263,15 @@ pub fn predict_retention_index_from_structure(
         let beyond = (d.l - 11.0).max(0.0) * EXTRAPOLATION_SIGMA_PER_L;
         (base * base + beyond * beyond).sqrt()
     };
-    Ok(RetentionIndexPrediction {
-        phase_id: phase.id().to_string(),
+    Ok(RetentionIndexPrediction::with_interval(
+        phase.id(),
         retention_index,
         sigma_ri,
-        low_95_ri: retention_index - 1.96 * sigma_ri,
-        high_95_ri: retention_index + 1.96 * sigma_ri,
-        boiling_point_index: dispersion,
-        phase_shift_ri: retention_index - dispersion,
-        path: format!(
+        dispersion,
+        retention_index - dispersion,
+        format!(
             "solvation-parameter model: descriptors E {:.2}, S {:.2}, A {:.2}, B {:.2}, L {:.2} from structure fragments, system constants of this phase ({}), index against the n-alkane ladder",
             d.e, d.s, d.a, d.b, d.l, constants.source
         ),
-    })
+    ))
 }

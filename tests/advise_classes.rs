@@ -157,3 +157,62 @@ fn every_reason_names_its_rule_or_model() {
         }
     }
 }
+
+/// GC phase choice for volatile and semivolatile oxygenates other than the panels' (issue 15):
+/// a volatile list (alcohols, esters, an aldehyde, all boiling below 420 K) goes to the
+/// thick-film 6 % cyanopropylphenyl or polyethylene glycol, never to a thin-film
+/// semivolatile phase; oxygenated monoterpenes (semivolatile) go to 5 % phenyl, dimethyl or
+/// polyethylene glycol, not to a mid-polarity confirmation phase picked on index differences
+/// smaller than the index model's own error (common practice for volatile congeners and for
+/// essential-oil profiling, from memory).
+#[test]
+fn gc_phase_for_oxygenates_follows_volatility_not_index_noise() {
+    let ctx = Ctx::new();
+    let volatile = advise(
+        &ctx,
+        &[
+            "--modes",
+            "gc",
+            "ethanol=CCO",
+            "1-butanol=CCCCO",
+            "2-butanol=CCC(C)O",
+            "ethyl formate=CCOC=O",
+            "methyl acetate=COC(C)=O",
+            "propanal=CCC=O",
+        ],
+    );
+    let (mode, phase, _) = first(&volatile);
+    assert_eq!(mode, "gc");
+    assert!(
+        ["gc-6-cyanopropylphenyl", "gc-wax"].contains(&phase),
+        "{phase}"
+    );
+    let terpenes = advise(
+        &ctx,
+        &[
+            "--modes",
+            "gc",
+            "p-cymene=Cc1ccc(cc1)C(C)C",
+            "1,8-cineole=CC12CCC(CC1)C(C)(C)O2",
+            "menthol=CC(C)C1CCC(C)CC1O",
+            "carvone=CC(=C)C1CC=C(C)C(=O)C1",
+            "alpha-terpineol=CC1=CCC(CC1)C(C)(C)O",
+            "borneol=CC1(C)C2CCC1(C)C(O)C2",
+        ],
+    );
+    let (_, phase, _) = first(&terpenes);
+    assert!(
+        ["gc-5-phenyl", "gc-dimethyl", "gc-wax"].contains(&phase),
+        "{phase}"
+    );
+    // the credited separation is stated beside the predicted one
+    let sep = terpenes["recommendations"][0]["reasons"]
+        .as_array()
+        .expect("reasons")
+        .iter()
+        .find(|r| r["source"] == "model:predicted-separation")
+        .and_then(|r| r["text"].as_str())
+        .unwrap_or("")
+        .to_string();
+    assert!(sep.contains("counted as"), "{sep}");
+}

@@ -390,8 +390,9 @@ pub fn candidate(
         run_time_min: prog.total_time_min(),
         pressure_bar: None,
     };
-    let (mut rec, sep, sep_reason) =
-        unscored_recommendation("gc", phase, conditions, preds, coelutions);
+    let (mut rec, _, _) = unscored_recommendation("gc", phase, conditions, preds, coelutions);
+    let credible = credible_index_resolution(&rec, &sig, &formulas);
+    let (sep, sep_reason) = super::separation_score_counting(&rec, credible);
     let mut reasons = vec![Reason {
         source: "model:gc-retention-index".into(),
         text: "retention indices from the solvation-parameter model (solute descriptors from structure, the phase's system constants; boiling-point route when the structure cannot be read), times through the n-alkane ladder (docs/gc-retention.md)".into(),
@@ -421,6 +422,57 @@ pub fn candidate(
     rec.reasons = reasons;
     rec.score = (0.6 * sep + 0.4 * (0.5 + rule_sum)).clamp(0.0, 1.0);
     Ok(rec)
+}
+
+/// The critical resolution a GC phase is credited with: for every adjacent pair, only the part
+/// of the predicted index difference beyond one standard deviation of that difference counts,
+/// Rs_credited = Rs · max(|ΔI| − σ_ΔI, 0) / |ΔI|, with σ_ΔI² = σ_a² + σ_b² − 2ρσ_aσ_b
+/// ([`ERROR_CORRELATION`], [`ISOMER_ERROR_CORRELATION`] for isomers). A phase is not preferred
+/// for a separation the index model only guesses (the same rule as the LC credited
+/// separation, `model:predicted-separation`; common practice, no source). `None` for a single
+/// analyte.
+fn credible_index_resolution(
+    rec: &Recommendation,
+    sig: &[(String, f64, f64)],
+    formulas: &[Option<String>],
+) -> Option<(f64, String)> {
+    let find = |name: &str| sig.iter().position(|s| s.0 == name);
+    let mut best: Option<(f64, f64)> = None;
+    for w in rec.predictions.windows(2) {
+        let (Some(i), Some(j)) = (find(&w[0].analyte), find(&w[1].analyte)) else {
+            continue;
+        };
+        let isomers = matches!((&formulas[i], &formulas[j]), (Some(a), Some(b)) if a == b);
+        let rho = if isomers {
+            ISOMER_ERROR_CORRELATION
+        } else {
+            ERROR_CORRELATION
+        };
+        let (s1, s2) = (sig[i].2, sig[j].2);
+        let sd = (s1 * s1 + s2 * s2 - 2.0 * rho * s1 * s2).max(0.0).sqrt();
+        let delta = (sig[j].1 - sig[i].1).abs();
+        let width = w[0].peak_width_half_min + w[1].peak_width_half_min;
+        if !(width > 0.0 && sd.is_finite() && delta.is_finite()) {
+            continue;
+        }
+        let rs = 1.18 * (w[1].retention_time_min - w[0].retention_time_min).abs() / width;
+        let credited = if delta > 0.0 {
+            rs * (delta - sd).max(0.0) / delta
+        } else {
+            0.0
+        };
+        if best.is_none_or(|b| credited < b.0) {
+            best = Some((credited, sd));
+        }
+    }
+    best.map(|(rs, sd)| {
+        (
+            rs,
+            format!(
+                "counted as {rs:.2}: only the index difference beyond one standard deviation of the predicted difference of the least separated pair ({sd:.0} index units) is credited (common practice, no source)"
+            ),
+        )
+    })
 }
 
 /// The separation part of a GC phase's score, with the index model's uncertainty: the critical
@@ -531,7 +583,14 @@ fn rules(profiles: &[AnalyteProfile], phase: &StationaryPhase) -> Vec<Reason> {
         })
     };
     match phase.id() {
-        "gc-5-phenyl" => rule("rule:gc-general-purpose", "5 % phenyl is the usual general-purpose first GC column".into(), 0.1),
+        // the usual first column of its class weighs as much as the other classes' usual
+        // columns (0.15); a volatile list has its own usual column, thick-film 6 %
+        // cyanopropylphenyl (common practice, from memory)
+        "gc-5-phenyl" => rule("rule:gc-general-purpose", if volatile {
+            "5 % phenyl is the usual general-purpose first GC column for semivolatiles; for a list that boils below 420 K the thick-film 6 % cyanopropylphenyl is the usual first column".into()
+        } else {
+            "5 % phenyl is the usual general-purpose first GC column for semivolatiles".into()
+        }, if volatile { 0.0 } else { 0.15 }),
         "gc-dimethyl" => rule("rule:gc-boiling-point-order", "100 % dimethylpolysiloxane separates mainly by boiling point".into(), 0.06),
         "gc-6-cyanopropylphenyl" => rule("rule:gc-volatile-solvent-screen", "6 % cyanopropylphenyl with a thick film is the usual phase for volatile solvent screens".into(), if volatile { 0.15 } else { 0.0 }),
         "gc-wax" => rule("rule:gc-polar-analytes", format!("{:.0} % of analytes carry OH/NH/acid groups and {:.0} % are esters or alcohols: polyethylene glycol retains and shapes them better, and separates esters by polarity", polar * 100.0, oxygenates * 100.0), if oxygenates >= 0.5 { 0.18 } else if polar > 0.25 { 0.12 } else { 0.0 }),

@@ -133,7 +133,9 @@ mod tests {
         assert_eq!(csv_num(1234.5678, None), "1234.57");
         assert_eq!(csv_num(123_456.789, None), "123457");
         assert_eq!(csv_num(56.2, Some(0)), "56");
-        assert_eq!(csv_num(0.000_123_456_78, Some(8)), "0.000123457");
+        // decimals given: the coarser of the two rules (8 decimals here, not 6 significant digits)
+        assert_eq!(csv_num(0.000_123_456_78, Some(8)), "0.00012346");
+        assert_eq!(csv_num(0.000_123_456_78, None), "0.000123457");
         assert_eq!(csv_num(f64::NAN, None), "");
         assert_eq!(csv_num(-0.0, None), "0");
         assert_eq!(csv_opt(None, None), "");

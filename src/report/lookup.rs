@@ -149,18 +149,15 @@ impl LookupReport {
             let mut prows = Vec::new();
             for (_, a) in &distinct {
                 for p in &a.properties {
+                    let w = plain_property(p);
                     prows.push(vec![
                         a.name.clone(),
-                        p.property.clone(),
-                        csv_num(p.value, None),
-                        if p.unit.is_empty() {
-                            "(log units)".into()
-                        } else {
-                            p.unit.clone()
-                        },
+                        w.label,
+                        w.value,
+                        w.unit,
                         p.kind.as_str().to_string(),
                         p.source.clone(),
-                        p.detail.clone(),
+                        w.detail,
                     ]);
                 }
             }
@@ -292,5 +289,156 @@ impl LookupReport {
             line(c);
         }
         out
+    }
+}
+
+/// A property as a practitioner reads it in the table: a plain label, the value rounded to
+/// what its uncertainty supports, in the unit read first (°C for boiling points; JSON and CSV
+/// keep the stored key, value and unit), and the qualifiers in words.
+struct PlainProperty {
+    label: String,
+    value: String,
+    unit: String,
+    detail: String,
+}
+
+/// Joback & Reid's group contributions were fitted on compounds boiling below about 800 K (from
+/// memory); an estimate above that says only "not volatile".
+const JOBACK_FITTED_UP_TO_K: f64 = 800.0;
+
+fn plain_property(p: &crate::property::Property) -> PlainProperty {
+    let mut qualifiers: Vec<(String, String)> = p
+        .detail
+        .split(';')
+        .filter(|q| !q.trim().is_empty())
+        .map(|q| match q.split_once('=') {
+            Some((k, v)) => (k.trim().to_string(), v.trim().to_string()),
+            None => (String::new(), q.trim().to_string()),
+        })
+        .collect();
+    let typical_error = qualifiers
+        .iter()
+        .find(|(k, _)| k == "typical_error_k")
+        .and_then(|(_, v)| v.parse::<f64>().ok())
+        .filter(|e| e.is_finite() && *e > 0.0);
+    let estimated = p.kind == crate::property::PropertyKind::Estimated;
+    let label = match p.property.as_str() {
+        "logp" => "log P (octanol/water)".to_string(),
+        "pka" => "pKa".to_string(),
+        "tpsa" => "polar surface area".to_string(),
+        "hbd" => "H-bond donors".to_string(),
+        "hba" => "H-bond acceptors".to_string(),
+        "mcgowan_volume" => "McGowan volume".to_string(),
+        "charge" => "net charge".to_string(),
+        other => other.replace('_', " "),
+    };
+    let (value, unit) = match (p.property.as_str(), p.unit.as_str()) {
+        ("boiling_point", "K") => {
+            let c = p.value - 273.15;
+            // experimental to 0.1 °C; an estimate to whole degrees, to tens when its typical
+            // error is 100 K or more (two significant digits of the error)
+            let v = match (estimated, typical_error) {
+                (false, _) => num(c, 1),
+                (true, Some(e)) if e >= 100.0 => num((c / 10.0).round() * 10.0, 0),
+                (true, _) => num(c, 0),
+            };
+            (v, "°C".to_string())
+        }
+        ("pka", _) => (
+            num(p.value, if estimated { 1 } else { 2 }),
+            "(log units)".into(),
+        ),
+        ("logp", _) => (num(p.value, 2), "(log units)".into()),
+        (_, "count") | ("charge", _) => (num(p.value, 0), p.unit.clone()),
+        (_, "") => (csv_num(p.value, None), "(log units)".into()),
+        _ => (csv_num(p.value, None), p.unit.clone()),
+    };
+    let mut words: Vec<String> = Vec::new();
+    if p.property == "boiling_point" && p.unit == "K" {
+        words.push(format!("{} K", num(p.value, if estimated { 0 } else { 1 })));
+    }
+    for (k, v) in qualifiers.drain(..) {
+        words.push(match k.as_str() {
+            "typical_error_k" => format!("typical error ± {v} K"),
+            "spread" => format!("class spread ± {v}"),
+            "temp_c" => format!("at {v} °C"),
+            "type" | "class" | "" => v.replace('_', " "),
+            other => format!("{} {v}", other.replace('_', " ")),
+        });
+    }
+    if p.property == "boiling_point" && estimated && p.value > JOBACK_FITTED_UP_TO_K {
+        words.push(format!(
+            "beyond the range the method was fitted on (about {JOBACK_FITTED_UP_TO_K:.0} K): read as not volatile"
+        ));
+    }
+    PlainProperty {
+        label,
+        value,
+        unit,
+        detail: words.join("; "),
+    }
+}
+
+#[cfg(test)]
+mod plain_tests {
+    use super::*;
+    use crate::property::{Property, PropertyKind};
+
+    fn prop(name: &str, value: f64, unit: &str, kind: PropertyKind, detail: &str) -> Property {
+        Property {
+            property: name.into(),
+            value,
+            unit: unit.into(),
+            kind,
+            source: String::new(),
+            licence: String::new(),
+            detail: detail.into(),
+            origin: crate::property::Origin::Shipped,
+        }
+    }
+
+    #[test]
+    fn boiling_points_read_in_celsius_at_the_precision_of_their_error() {
+        let e = PropertyKind::Estimated;
+        let w = plain_property(&prop("boiling_point", 386.44, "K", e, "typical_error_k=18"));
+        assert_eq!(
+            (w.label.as_str(), w.value.as_str(), w.unit.as_str()),
+            ("boiling point", "113", "°C")
+        );
+        assert_eq!(w.detail, "386 K; typical error ± 18 K");
+        let big = plain_property(&prop(
+            "boiling_point",
+            4040.45,
+            "K",
+            e,
+            "typical_error_k=372",
+        ));
+        assert_eq!(big.value, "3770");
+        assert!(big.detail.contains("not volatile"), "{}", big.detail);
+        let x = PropertyKind::Experimental;
+        let w = plain_property(&prop("boiling_point", 384.26, "K", x, ""));
+        assert_eq!((w.value.as_str(), w.detail.as_str()), ("111.1", "384.3 K"));
+    }
+
+    #[test]
+    fn qualifiers_and_names_are_words() {
+        let e = PropertyKind::Estimated;
+        let w = plain_property(&prop(
+            "pka",
+            9.89,
+            "",
+            e,
+            "type=acidic;class=phenol;spread=0.6",
+        ));
+        assert_eq!((w.label.as_str(), w.value.as_str()), ("pKa", "9.9"));
+        assert_eq!(w.detail, "acidic; phenol; class spread ± 0.6");
+        for (k, u) in [
+            ("mcgowan_volume", "cm³/mol/100"),
+            ("hbd", "count"),
+            ("tpsa", "Å²"),
+        ] {
+            let w = plain_property(&prop(k, 2.0, u, e, ""));
+            assert!(!w.label.contains('_') && w.label != k, "{k} -> {}", w.label);
+        }
     }
 }

@@ -214,7 +214,7 @@ impl DescribeReport {
                 &self
                     .methods
                     .iter()
-                    .map(|(p, m)| format!("{p}: {m}"))
+                    .map(|(p, m)| format!("{}: {m}", p.replace('_', " ")))
                     .collect::<Vec<_>>()
                     .join("; "),
             );

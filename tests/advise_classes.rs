@@ -216,3 +216,83 @@ fn gc_phase_for_oxygenates_follows_volatility_not_index_noise() {
         .to_string();
     assert!(sep.contains("counted as"), "{sep}");
 }
+
+/// A selectivity rule weighs by the share of analytes it concerns, and the phenyl-type rules
+/// of one phase together never outweigh C18's general-purpose rule (rule:selectivity-by-share;
+/// common practice, no source: a new RP method starts on C18 unless another phase is predicted
+/// to separate better). One halogenated aromatic among four analytes.
+#[test]
+fn one_halogenated_analyte_does_not_make_pfp_the_favourite() {
+    let ctx = Ctx::new();
+    let phases = ctx.path("phases.txt");
+    std::fs::write(&phases, "rp-c18\nrp-pfp\n").unwrap();
+    let r = advise(
+        &ctx,
+        &[
+            "--modes",
+            "rp",
+            "--phases-available",
+            phases.to_str().unwrap(),
+            "benzyl alcohol=OCc1ccccc1",
+            "paracetamol=CC(=O)Nc1ccc(O)cc1",
+            "diclofenac=OC(=O)Cc1ccccc1Nc1c(Cl)cccc1Cl",
+            "ibuprofen=CC(C)Cc1ccc(cc1)C(C)C(O)=O",
+        ],
+    );
+    let recs = r["recommendations"].as_array().expect("recommendations");
+    let weight = |phase: &str, rules: &[&str]| -> f64 {
+        recs.iter()
+            .find(|x| x["phase"]["id"] == phase)
+            .and_then(|x| x["reasons"].as_array())
+            .map(|rs| {
+                rs.iter()
+                    .filter(|x| rules.iter().any(|r| x["source"] == *r))
+                    .filter_map(|x| x["weight"].as_f64())
+                    .sum()
+            })
+            .unwrap_or(f64::NAN)
+    };
+    let pfp = weight(
+        "rp-pfp",
+        &[
+            "rule:pi-rich-analytes",
+            "rule:halogenated-or-positional-isomers",
+        ],
+    );
+    let c18 = weight("rp-c18", &["rule:general-purpose-first-choice"]);
+    assert!((c18 - 0.12).abs() < 1e-9, "C18 rule weight {c18}");
+    // one of four halogenated: 0.12 x 0.25 = 0.03, no pi-rich bonus (one analyte of four has
+    // two aromatic rings)
+    assert!((pfp - 0.03).abs() < 1e-9, "PFP rule weights {pfp}");
+    // with a purine added (two aromatic rings: half the list pi-rich), the two rules together
+    // stop at C18's 0.12
+    let r = advise(
+        &ctx,
+        &[
+            "--modes",
+            "rp",
+            "--phases-available",
+            phases.to_str().unwrap(),
+            "caffeine=Cn1cnc2c1c(=O)n(C)c(=O)n2C",
+            "paracetamol=CC(=O)Nc1ccc(O)cc1",
+            "diclofenac=OC(=O)Cc1ccccc1Nc1c(Cl)cccc1Cl",
+            "ibuprofen=CC(C)Cc1ccc(cc1)C(C)C(O)=O",
+        ],
+    );
+    let recs = r["recommendations"].as_array().expect("recommendations");
+    let both: f64 = recs
+        .iter()
+        .find(|x| x["phase"]["id"] == "rp-pfp")
+        .and_then(|x| x["reasons"].as_array())
+        .map(|rs| {
+            rs.iter()
+                .filter(|x| {
+                    x["source"] == "rule:pi-rich-analytes"
+                        || x["source"] == "rule:halogenated-or-positional-isomers"
+                })
+                .filter_map(|x| x["weight"].as_f64())
+                .sum()
+        })
+        .unwrap_or(f64::NAN);
+    assert!((both - 0.12).abs() < 1e-9, "PFP rule weights {both}");
+}

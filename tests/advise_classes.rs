@@ -296,3 +296,63 @@ fn one_halogenated_analyte_does_not_make_pfp_the_favourite() {
         .unwrap_or(f64::NAN);
     assert!((both - 0.12).abs() < 1e-9, "PFP rule weights {both}");
 }
+
+/// Pyrethroid insecticides other than any panel's (issue 15): GC on a low-polarity phase with
+/// electron capture (common practice for their residue analysis, from memory). Their Joback
+/// boiling points (about 770 K after correction) called them too involatile for GC; the
+/// alkane-equivalent boiling point of their predicted dimethylpolysiloxane index decides
+/// elution instead (rule:gc-elution-by-index).
+#[test]
+fn pyrethroids_go_to_gc_with_electron_capture() {
+    let ctx = Ctx::new();
+    let r = advise(
+        &ctx,
+        &[
+            "bifenthrin=CC1=C(C=CC=C1c1ccccc1)COC(=O)C1C(C=C(Cl)C(F)(F)F)C1(C)C",
+            "fenvalerate=CC(C)C(c1ccc(Cl)cc1)C(=O)OC(C#N)c1cccc(Oc2ccccc2)c1",
+            "tefluthrin=Cc1c(F)c(F)c(COC(=O)C2C(C=C(Cl)C(F)(F)F)C2(C)C)c(F)c1F",
+            "permethrin=CC1(C)C(C=C(Cl)Cl)C1C(=O)OCc1cccc(Oc2ccccc2)c1",
+        ],
+    );
+    let (mode, phase, _) = first(&r);
+    assert_eq!(mode, "gc");
+    assert!(
+        ["gc-5-phenyl", "gc-dimethyl", "gc-35-phenyl"].contains(&phase),
+        "{phase}"
+    );
+    let det = r["recommendations"][0]["conditions"]["detection"]
+        .as_str()
+        .unwrap_or("");
+    assert!(det.contains("electron capture"), "{det}");
+}
+
+/// Organophosphorus pesticides (no Joback group for phosphorus) are not "unknown" for GC: the
+/// index route gives their elution (rule:gc-elution-by-index), and a GC method detects them
+/// with a phosphorus-selective detector or MS (common practice, from memory).
+#[test]
+fn organophosphorus_pesticides_are_gc_suitable_and_detected_selectively() {
+    let ctx = Ctx::new();
+    let r = advise(
+        &ctx,
+        &[
+            "--modes",
+            "gc",
+            "fenitrothion=COP(=S)(OC)Oc1ccc(c(C)c1)[N+]([O-])=O",
+            "pirimiphos-methyl=CCN(CC)c1nc(C)cc(OP(=S)(OC)OC)n1",
+            "ethion=CCOP(=S)(OCC)SCSP(=S)(OCC)OCC",
+            "chlorpyrifos-methyl=COP(=S)(OC)Oc1nc(Cl)c(Cl)cc1Cl",
+        ],
+    );
+    let gc = r["mode_scores"]
+        .as_array()
+        .expect("mode scores")
+        .iter()
+        .find(|m| m["mode"] == "gc")
+        .and_then(|m| m["score"].as_f64())
+        .unwrap_or(0.0);
+    assert!(gc >= 0.7, "GC mode score {gc}");
+    let det = r["recommendations"][0]["conditions"]["detection"]
+        .as_str()
+        .unwrap_or("");
+    assert!(det.contains("phosphorus"), "{det}");
+}

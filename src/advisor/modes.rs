@@ -16,7 +16,9 @@ fn logistic(x: f64) -> f64 {
 }
 
 /// A neutral, low-polarity analyte that GC handles as is: no H-bond donor, polar surface
-/// area at most 40 Å², no group ionised between pH 2 and 12, GC-suitable and boiling below
+/// area at most 40 Å² (or at most 80 Å² with logP at least 3, where the hydrocarbon part
+/// dominates: organophosphorus and pyrethroid pesticides), no group ionised between pH 2 and
+/// 12, GC-suitable and boiling below
 /// [`GC_MAX_TB_K`] (hydrocarbons, halogenated pesticides and PCBs, esters including fatty-acid
 /// methyl esters, ethers, ketones). GC is the usual technique for these classes (rule
 /// `rule:gc-volatile-neutral-class`; common practice, no source).
@@ -27,7 +29,8 @@ pub fn gc_neutral_class(p: &AnalyteProfile) -> bool {
     p.gc_verdict() == Some(GcVerdict::Suitable)
         && !p.inorganic_ion
         && e.descriptors.hbond_donors == 0
-        && e.descriptors.tpsa_a2 <= 40.0
+        && (e.descriptors.tpsa_a2 <= 40.0
+            || (e.descriptors.tpsa_a2 <= 80.0 && p.log_p.is_some_and(|(l, _)| l >= 3.0)))
         && p.tb_k.is_some_and(|(t, _)| t <= GC_MAX_TB_K)
         && !p.sites.iter().any(|s| {
             matches!(s.kind, SiteKind::PermanentAnion | SiteKind::PermanentCation)

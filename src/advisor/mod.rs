@@ -362,6 +362,21 @@ pub fn advise(
             }
         }
     }
+    // the best-fitting mode could not be evaluated at all (no retention data for these
+    // analytes there): say so plainly, so that the ranked methods of another mode are not read
+    // as the best fit (unknown is unknown)
+    if let Some(best) = mode_scores.first()
+        && !candidates.is_empty()
+        && !candidates.iter().any(|c| c.rec.mode == best.mode)
+        && let Some(m) = PhaseMode::parse(&best.mode)
+    {
+        warnings.push(format!(
+            "the analytes fit {} best (mode score {:.2}), but no phase of that mode could be evaluated (see above): its retention cannot be predicted for them, so the methods below come from the next modes; consider {} with scouting runs",
+            detection::mode_words(m),
+            best.score,
+            detection::mode_words(m)
+        ));
+    }
     if candidates.is_empty() {
         let why: Vec<&str> = warnings
             .iter()

@@ -38,7 +38,35 @@ pub fn gc_neutral_class(p: &AnalyteProfile) -> bool {
         })
 }
 
-/// A small organic acid that ion exclusion serves: a carboxylic acid (pKa below 6), no basic
+/// Acids with a pKa below this are strong: fully ionised at the pH of an ion-exclusion eluent
+/// (dilute sulfuric acid, about pH 2.3-2.5) and so excluded to the void there, and barely
+/// retained by reversed phase at any usable pH (haloacetic acids, perfluorinated short-chain
+/// acids, sulfonic acids). Common practice, no source.
+pub const STRONG_ACID_MAX_PKA: f64 = 2.5;
+
+/// The lowest acid pKa of a small hydrophilic acid: an acid site with a known pKa, no basic
+/// group above pKa 8 (not a zwitterion), molar mass below 250 g/mol and logP below 2; `None`
+/// otherwise. Anion exchange suits it the better the stronger it is, and reversed phase the
+/// worse (rule `rule:strong-acids-to-anion-exchange`; common practice for haloacetic acids by
+/// ion chromatography, from memory).
+pub fn small_acid_pka(p: &AnalyteProfile) -> Option<f64> {
+    let mw = p.molar_mass_g_mol.unwrap_or(f64::INFINITY);
+    if p.inorganic_ion
+        || p.strong_base(8.0)
+        || mw >= 250.0
+        || !p.log_p.is_some_and(|(l, _)| l < 2.0)
+    {
+        return None;
+    }
+    p.sites
+        .iter()
+        .filter(|s| s.kind == SiteKind::Acid)
+        .filter_map(|s| s.pka)
+        .min_by(f64::total_cmp)
+}
+
+/// A small organic acid that ion exclusion serves: a carboxylic acid (pKa below 6, and not a
+/// strong acid, which the eluent's low pH leaves ionised and the resin excludes), no basic
 /// group above pKa 8 (not an amino acid), molar mass below 250 g/mol and logP below 1.5
 /// (rule `rule:ion-exclusion-organic-acids`; common practice, no source).
 pub fn small_organic_acid(p: &AnalyteProfile) -> bool {
@@ -47,6 +75,10 @@ pub fn small_organic_acid(p: &AnalyteProfile) -> bool {
         && p.sites
             .iter()
             .any(|s| s.kind == SiteKind::Acid && s.pka.is_some_and(|k| k < 6.0))
+        && !p
+            .sites
+            .iter()
+            .any(|s| s.kind == SiteKind::Acid && s.pka.is_some_and(|k| k < STRONG_ACID_MAX_PKA))
         && !p.strong_base(8.0)
         && mw < 250.0
         && p.log_p.is_some_and(|(l, _)| l < 1.5)
@@ -180,6 +212,22 @@ pub fn fit(p: &AnalyteProfile, mode: PhaseMode) -> (f64, String) {
                 ),
                 None => (0.3, "unknown: no logP known".into()),
             };
+            let (f, why) = match small_acid_pka(p) {
+                Some(k) if k < 3.5 => {
+                    let cap = 0.6 + 0.4 * ((k - 1.5) / 2.0).clamp(0.0, 1.0);
+                    if f > cap {
+                        (
+                            cap,
+                            format!(
+                                "{why}; but a small hydrophilic acid of pKa {k:.1} stays largely ionised at every pH silica allows (pH 2 and above), so reversed phase retains it weakly unless ion-paired: fit at most {cap:.2} (rule:strong-acids-to-anion-exchange)"
+                            ),
+                        )
+                    } else {
+                        (f, why)
+                    }
+                }
+                _ => (f, why),
+            };
             measured_rp_fit(p, f, why)
         }
         PhaseMode::Hilic => match p.log_d(3.0) {
@@ -202,6 +250,22 @@ pub fn fit(p: &AnalyteProfile, mode: PhaseMode) -> (f64, String) {
                         .map_or("inorganic or small anion".into(), |i| {
                             format!("{} (rule:ions-to-ic)", i.how)
                         }),
+                )
+            } else if let Some(k) = small_acid_pka(p) {
+                // the stronger the acid, the more anion exchange suits it (and the less
+                // reversed phase): 0.9 at pKa 2.5 and below, 0.6 at 4.5 and above
+                let f = 0.6 + 0.3 * ((4.5 - k) / 2.0).clamp(0.0, 1.0);
+                (
+                    f,
+                    if k < STRONG_ACID_MAX_PKA {
+                        format!(
+                            "strong acid (pKa {k:.1}): an anion at every eluent pH, retained and separated by anion exchange, while reversed phase barely retains it and ion exclusion excludes it (rule:strong-acids-to-anion-exchange)"
+                        )
+                    } else {
+                        format!(
+                            "small hydrophilic acid (pKa {k:.1}): anionic at the eluent pH (rule:strong-acids-to-anion-exchange)"
+                        )
+                    },
                 )
             } else if p.has_acid() && mw < 200.0 && p.log_p.is_some_and(|(l, _)| l < 1.0) {
                 (

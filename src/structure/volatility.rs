@@ -456,6 +456,11 @@ fn assess_gc_inner(
     })
 }
 
+/// Lowest pKa of a free carboxylic acid that runs underivatised on an acid-modified
+/// polyethylene glycol phase (formic acid 3.75 and the fatty acids above; chloroacetic acid
+/// 2.9 and pyruvic acid 2.5 below). Common practice, no source.
+const WEAK_ACID_MIN_PKA: f64 = 3.0;
+
 fn acid_flags(sites: &[IonisableSite], tb_k: Option<f64>, donor_h: u32, flags: &mut Vec<GcFlag>) {
     let has_strong_base = sites
         .iter()
@@ -471,9 +476,13 @@ fn acid_flags(sites: &[IonisableSite], tb_k: Option<f64>, donor_h: u32, flags: &
             )
         })
         .count();
+    // a weak acid only (pKa at least 3): halogenated acetic acids and keto acids are strong
+    // enough to adsorb irreversibly, and trichloroacetic acid decarboxylates in a hot inlet;
+    // they are methylated first (common practice for haloacetic acids, from memory)
     let volatile_monoacid = carboxyls == 1
         && sites.len() == 1
         && donor_h == 1
+        && sites[0].pka.is_some_and(|k| k >= WEAK_ACID_MIN_PKA)
         && tb_k.is_some_and(|t| t < VOLATILE_ACID_MAX_TB_K);
     for s in sites {
         if volatile_monoacid && s.class == GroupClass::CarboxylicAcid {

@@ -648,7 +648,14 @@ pub fn separation_score_counting(
     let s = (0.7 * rs_part + 0.3 * (1.0 - penalty)).clamp(0.0, 1.0);
     let text = match &rec.critical_pair {
         Some((a, b)) => format!(
-            "predicted critical pair {a} / {b} at resolution {predicted:.2}{}; {} pair(s) with co-elution probability above 0.2",
+            "predicted critical pair {a} / {b} at resolution {}{}; {} pair(s) with co-elution probability above 0.2",
+            // beyond 50 a predicted resolution only says "far apart" (and past the end of the
+            // program, nothing): the number is not printed
+            if predicted > 50.0 {
+                "above 50".to_string()
+            } else {
+                format!("{predicted:.2}")
+            },
             credible
                 .as_ref()
                 .map_or(String::new(), |c| format!("; {}", c.1)),

@@ -350,6 +350,8 @@ def is_code(n):
     """A catalogue or registry code: one token of letters and at least two digits whose letter
     runs are at most three long (`ac1l197p`, `agn-pc-047i3u`, `nsc-12345`, `brd-a612...`)."""
     t = n.strip().lower()
+    if re.fullmatch(r"[a-z][a-z0-9]{1,7}[ -]\d[\d-]{3,}", t):
+        return True   # a registry number with its prefix (`brn 0014598`, `einecs 215-123-4`)
     if " " in t or "," in t or "(" in t or "[" in t or len(t) < 5:
         return False
     if not re.fullmatch(r"[a-z0-9\-._]+", t):
@@ -695,6 +697,10 @@ def candidates(r, why, officials):
         rest = [n for n in names if useful_name(n) and not CAS_SHAPE.match(n) and not is_code(n)
                 and not is_formula(n) and not name_tag(n)[1] and len(n) <= MAX_NAME_LEN]
         out += sorted(rest, key=name_tier)
+    if why == "CAS number":
+        # no name at all: say so, with the record's own CAS number (a bare number in the name
+        # column reads as a name, and may be another registry entry than the record's)
+        out.append("unnamed, CAS " + (r["cas"] or o))
     seen, uniq = set(), []
     for n in out:
         if n.lower() not in seen and n.lower() != o.lower():
@@ -773,6 +779,8 @@ def rename_preferred(recs, report=None):
             old_names = r["names"]
             idx.replace(i, n, names)
             after = (idx.decision(on), idx.decision(nn))
+            if before[1][0] is None and after[1][0] == i:
+                before = (before[0], after[1])   # a name new to the base (`aflatoxin m1`) finds this record
             if after != before:
                 idx.replace(i, o, old_names)
                 continue
@@ -872,7 +880,7 @@ def main():
         names = names[:MAX_SYNONYMS]
         # "|" separates synonyms; drop it from names themselves (very rare)
         names = [n.replace("|", "/") for n in names]
-        recs.append(dict(key=c["key"], cid=c["cid"], smiles=c["smiles"], formula=c["formula"], pref=c["pref"].replace("|", "/"),
+        recs.append(dict(key=c["key"], cid=c["cid"], cas=c["cas"], smiles=c["smiles"], formula=c["formula"], pref=c["pref"].replace("|", "/"),
                          names=names, retention_names=ret, c=c))
     set_skeletons(recs)
     report = []

@@ -582,7 +582,7 @@ def bad_preferred_name(r, officials):
     """Why the preferred name is not a name to show, or None."""
     o = r["pref"].strip()
     low = o.lower()
-    names = r["names"]
+    names = r.get("all_names", r["names"])
     stereo_less = r["key"].split("-")[1:2] == ["UHFFFAOYSA"]
     if CAS_SHAPE.match(o):
         return "CAS number"
@@ -758,7 +758,8 @@ def rename_preferred(recs, report=None):
         pref_of.setdefault(normalise(r["pref"]), set()).add(i)
     renamed, kept = 0, {}
     for i, r in enumerate(recs):
-        officials = [n for n in official_names(r["names"]) if fits_record(r, n)]
+        # official names from all the source's synonyms (beyond the cap on stored synonyms)
+        officials = [n for n in official_names(r.get("all_names", r["names"])) if fits_record(r, n)]
         why = bad_preferred_name(r, officials)
         if not why:
             continue
@@ -881,7 +882,7 @@ def main():
         # "|" separates synonyms; drop it from names themselves (very rare)
         names = [n.replace("|", "/") for n in names]
         recs.append(dict(key=c["key"], cid=c["cid"], cas=c["cas"], smiles=c["smiles"], formula=c["formula"], pref=c["pref"].replace("|", "/"),
-                         names=names, retention_names=ret, c=c))
+                         names=names, all_names=c["names"], retention_names=ret, c=c))
     set_skeletons(recs)
     report = []
     rename_preferred(recs, report)

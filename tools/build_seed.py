@@ -594,6 +594,8 @@ def bad_preferred_name(r, officials):
         return "catalogue code"
     if is_mixture_label(o):
         return "mixture or solution label"
+    if name_tag(o)[1] & (OFFICIAL_TAGS | {"tn"}):
+        return "list tag"
     if is_abbreviation(o, names):
         return "abbreviation"
     off = {n.lower() for n in officials}
@@ -675,6 +677,18 @@ def candidates(r, why, officials):
     out = list(officials)
     if why == "brand":
         return out
+    if why == "list tag":
+        # `teloxantrone [inn]` is `teloxantrone`; a trade name `sedotussin (tn)` gives way to
+        # an official name first
+        # (only these: the synonyms of such records are at times another compound's)
+        base, tags = name_tag(o)
+        out = [base] if tags & OFFICIAL_TAGS else out
+        seen, uniq = set(), []
+        for n in out:
+            if n.lower() not in seen and n.lower() != o.lower():
+                seen.add(n.lower())
+                uniq.append(n)
+        return uniq
     if why == "abbreviation":
         # only a name the abbreviation stands for (`aflatoxin b1` for `afb1`)
         out += [n for n in names if expands(o, n) and proper_name(n, 60)]

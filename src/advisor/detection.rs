@@ -227,7 +227,7 @@ fn cl_br(p: &AnalyteProfile) -> usize {
 /// The GC detector in plain words, with its reason: the user's (FID, ECD or MS), else electron
 /// capture when at least half the analytes carry three or more electron-capturing groups (two on a semivolatile analyte), else a phosphorus-selective detector or MS when half contain phosphorus, else flame
 /// ionisation; mass spectrometry named for confirmation. Electron-capturing groups are
-/// counted by [`cl_br`].
+/// counted as in `cl_br` (each Cl, Br, I, nitro group, or three F).
 pub fn for_gc(profiles: &[AnalyteProfile], named: Detector) -> (String, Reason) {
     // three or more Cl/Br atoms, or two on a semivolatile analyte (boiling above 450 K:
     // halogenated pesticides such as pyrethroids, not dichlorinated solvents, which labs run

@@ -251,7 +251,7 @@ pub fn fit(p: &AnalyteProfile, mode: PhaseMode) -> (f64, String) {
                             format!("{} (rule:ions-to-ic)", i.how)
                         }),
                 )
-            } else if let Some(k) = small_acid_pka(p) {
+            } else if let Some(k) = small_acid_pka(p).filter(|k| *k < 6.0) {
                 // the stronger the acid, the more anion exchange suits it (and the less
                 // reversed phase): 0.9 at pKa 2.5 and below, 0.6 at 4.5 and above
                 let f = 0.6 + 0.3 * ((4.5 - k) / 2.0).clamp(0.0, 1.0);

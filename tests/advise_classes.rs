@@ -29,6 +29,30 @@ fn first(r: &Value) -> (&str, &str, Option<f64>) {
     )
 }
 
+/// Sum of the weights of the listed rules in the reasons of the recommendation on `phase`
+/// (NaN when that phase is not among the recommendations).
+fn rule_weight(r: &Value, phase: &str, rules: &[&str]) -> f64 {
+    r["recommendations"]
+        .as_array()
+        .and_then(|recs| recs.iter().find(|x| x["phase"]["id"] == phase))
+        .and_then(|x| x["reasons"].as_array())
+        .map_or(f64::NAN, |rs| {
+            rs.iter()
+                .filter(|x| rules.iter().any(|r| x["source"] == *r))
+                .filter_map(|x| x["weight"].as_f64())
+                .sum()
+        })
+}
+
+/// The score of `mode` in the mode ranking (0 when absent).
+fn mode_score(r: &Value, mode: &str) -> f64 {
+    r["mode_scores"]
+        .as_array()
+        .and_then(|ms| ms.iter().find(|m| m["mode"] == mode))
+        .and_then(|m| m["score"].as_f64())
+        .unwrap_or(0.0)
+}
+
 /// Fluoroquinolones other than the panel's (common practice for quinolone residues, no source:
 /// reversed phase at low pH with an acid modifier). Before the microspecies-aware logD their
 /// zwitterion and cation counted as salts and the list went to HILIC.
@@ -239,27 +263,15 @@ fn one_halogenated_analyte_does_not_make_pfp_the_favourite() {
             "ibuprofen=CC(C)Cc1ccc(cc1)C(C)C(O)=O",
         ],
     );
-    let recs = r["recommendations"].as_array().expect("recommendations");
-    let weight = |phase: &str, rules: &[&str]| -> f64 {
-        recs.iter()
-            .find(|x| x["phase"]["id"] == phase)
-            .and_then(|x| x["reasons"].as_array())
-            .map(|rs| {
-                rs.iter()
-                    .filter(|x| rules.iter().any(|r| x["source"] == *r))
-                    .filter_map(|x| x["weight"].as_f64())
-                    .sum()
-            })
-            .unwrap_or(f64::NAN)
-    };
-    let pfp = weight(
+    let pfp = rule_weight(
+        &r,
         "rp-pfp",
         &[
             "rule:pi-rich-analytes",
             "rule:halogenated-or-positional-isomers",
         ],
     );
-    let c18 = weight("rp-c18", &["rule:general-purpose-first-choice"]);
+    let c18 = rule_weight(&r, "rp-c18", &["rule:general-purpose-first-choice"]);
     assert!((c18 - 0.12).abs() < 1e-9, "C18 rule weight {c18}");
     // one of four halogenated: 0.12 x 0.25 = 0.03, no pi-rich bonus (one analyte of four has
     // two aromatic rings)
@@ -279,21 +291,14 @@ fn one_halogenated_analyte_does_not_make_pfp_the_favourite() {
             "ibuprofen=CC(C)Cc1ccc(cc1)C(C)C(O)=O",
         ],
     );
-    let recs = r["recommendations"].as_array().expect("recommendations");
-    let both: f64 = recs
-        .iter()
-        .find(|x| x["phase"]["id"] == "rp-pfp")
-        .and_then(|x| x["reasons"].as_array())
-        .map(|rs| {
-            rs.iter()
-                .filter(|x| {
-                    x["source"] == "rule:pi-rich-analytes"
-                        || x["source"] == "rule:halogenated-or-positional-isomers"
-                })
-                .filter_map(|x| x["weight"].as_f64())
-                .sum()
-        })
-        .unwrap_or(f64::NAN);
+    let both = rule_weight(
+        &r,
+        "rp-pfp",
+        &[
+            "rule:pi-rich-analytes",
+            "rule:halogenated-or-positional-isomers",
+        ],
+    );
     assert!((both - 0.12).abs() < 1e-9, "PFP rule weights {both}");
 }
 
@@ -343,13 +348,7 @@ fn organophosphorus_pesticides_are_gc_suitable_and_detected_selectively() {
             "chlorpyrifos-methyl=COP(=S)(OC)Oc1nc(Cl)c(Cl)cc1Cl",
         ],
     );
-    let gc = r["mode_scores"]
-        .as_array()
-        .expect("mode scores")
-        .iter()
-        .find(|m| m["mode"] == "gc")
-        .and_then(|m| m["score"].as_f64())
-        .unwrap_or(0.0);
+    let gc = mode_score(&r, "gc");
     assert!(gc >= 0.7, "GC mode score {gc}");
     let det = r["recommendations"][0]["conditions"]["detection"]
         .as_str()
@@ -376,11 +375,7 @@ fn small_strong_acids_fit_anion_exchange_not_ion_exclusion() {
     );
     let scores = r["mode_scores"].as_array().expect("mode scores");
     assert_eq!(scores[0]["mode"], "ic-anion", "{scores:?}");
-    let ionexcl = scores
-        .iter()
-        .find(|m| m["mode"] == "ion-exclusion")
-        .and_then(|m| m["score"].as_f64())
-        .unwrap_or(0.0);
+    let ionexcl = mode_score(&r, "ion-exclusion");
     assert!(ionexcl < 0.3, "ion exclusion {ionexcl}");
     if r["recommendations"][0]["mode"] != "ic-anion" {
         let warned = r["warnings"]

@@ -44,6 +44,20 @@ pub fn gc_neutral_class(p: &AnalyteProfile) -> bool {
 /// acids, sulfonic acids). Common practice, no source.
 pub const STRONG_ACID_MAX_PKA: f64 = 2.5;
 
+/// Anion-exchange fit of a small hydrophilic acid of pKa `k`: the stronger the acid, the better
+/// anion exchange suits it; 0.9 at pKa 2.5 and below, 0.6 at 4.5 and above
+/// (rule `rule:strong-acids-to-anion-exchange`).
+fn anion_exchange_fit_for_acid(k: f64) -> f64 {
+    0.6 + 0.3 * ((4.5 - k) / 2.0).clamp(0.0, 1.0)
+}
+
+/// Highest reversed-phase fit of a small hydrophilic acid of pKa `k`: ionised at every pH
+/// silica allows when strong; 0.6 at pKa 1.5 and below, 1 at 3.5 and above
+/// (rule `rule:strong-acids-to-anion-exchange`).
+fn rp_cap_for_acid(k: f64) -> f64 {
+    0.6 + 0.4 * ((k - 1.5) / 2.0).clamp(0.0, 1.0)
+}
+
 /// The lowest acid pKa of a small hydrophilic acid: an acid site with a known pKa, no basic
 /// group above pKa 8 (not a zwitterion), molar mass below 250 g/mol and logP below 2; `None`
 /// otherwise. Anion exchange suits it the better the stronger it is, and reversed phase the
@@ -214,7 +228,7 @@ pub fn fit(p: &AnalyteProfile, mode: PhaseMode) -> (f64, String) {
             };
             let (f, why) = match small_acid_pka(p) {
                 Some(k) if k < 3.5 => {
-                    let cap = 0.6 + 0.4 * ((k - 1.5) / 2.0).clamp(0.0, 1.0);
+                    let cap = rp_cap_for_acid(k);
                     if f > cap {
                         (
                             cap,
@@ -254,7 +268,7 @@ pub fn fit(p: &AnalyteProfile, mode: PhaseMode) -> (f64, String) {
             } else if let Some(k) = small_acid_pka(p).filter(|k| *k < 6.0) {
                 // the stronger the acid, the more anion exchange suits it (and the less
                 // reversed phase): 0.9 at pKa 2.5 and below, 0.6 at 4.5 and above
-                let f = 0.6 + 0.3 * ((4.5 - k) / 2.0).clamp(0.0, 1.0);
+                let f = anion_exchange_fit_for_acid(k);
                 (
                     f,
                     if k < STRONG_ACID_MAX_PKA {
@@ -402,6 +416,26 @@ mod tests {
     use super::*;
     use crate::advisor::profile::{AnalyteProfile, test_profile};
     use crate::property::{Analyte, Origin};
+
+    /// Directions of the acid-strength rule over the whole pKa range: a stronger acid never
+    /// fits anion exchange worse nor reversed phase better; both stay inside 0-1 (common
+    /// practice, no source).
+    #[test]
+    fn acid_strength_moves_anion_exchange_up_and_reversed_phase_down() {
+        let mut last = (f64::INFINITY, f64::NEG_INFINITY);
+        for i in 0..=140 {
+            let k = -1.0 + 0.1 * f64::from(i);
+            let (ic, rp) = (anion_exchange_fit_for_acid(k), rp_cap_for_acid(k));
+            assert!(
+                (0.0..=1.0).contains(&ic) && (0.0..=1.0).contains(&rp),
+                "pKa {k}"
+            );
+            assert!(ic <= last.0 + 1e-12 && rp >= last.1 - 1e-12, "pKa {k}");
+            last = (ic, rp);
+        }
+        assert!(anion_exchange_fit_for_acid(0.7) > anion_exchange_fit_for_acid(4.8));
+        assert!(rp_cap_for_acid(0.7) < rp_cap_for_acid(4.8));
+    }
 
     // Expectations: common practice, no source.
     #[test]

@@ -230,17 +230,15 @@ pub fn resolve_all(kb: &Kb, entries: &[ListEntry]) -> Result<(Vec<Analyte>, Vec<
                 matched_by: "smiles (not in knowledge base)".into(),
                 properties: Vec::new(),
             }),
-            Resolution::Unresolved(u) if ion_table_entry(&u.query).is_some() => {
-                if let Some(ion) = ion_table_entry(&u.query) {
-                    found.push(ion_analyte(ion, e.label.as_deref(), &u.query));
+            Resolution::Unresolved(mut u) => match ion_table_entry(&u.query) {
+                Some(ion) => found.push(ion_analyte(ion, e.label.as_deref(), &u.query)),
+                None => {
+                    if let Some(l) = &e.label {
+                        u.query = format!("{l} ({})", u.query);
+                    }
+                    missing.push(u)
                 }
-            }
-            Resolution::Unresolved(mut u) => {
-                if let Some(l) = &e.label {
-                    u.query = format!("{l} ({})", u.query);
-                }
-                missing.push(u)
-            }
+            },
         }
     }
     Ok((found, missing))

@@ -424,6 +424,27 @@ pub fn advise(
     if backup.is_none() && !req.no_backup {
         warnings.push(no_backup_reason(&candidates[0].rec, &candidates));
     }
+    // analytes the first choice is predicted to keep on the column: say so, with what to try
+    let first = &candidates[0].rec;
+    let late: Vec<&str> = first
+        .predictions
+        .iter()
+        .filter(|p| !elutes_in_run(first, p))
+        .map(|p| p.analyte.as_str())
+        .collect();
+    if !late.is_empty() {
+        warnings.push(format!(
+            "{} of {} analytes are predicted not to elute before the first choice's run ends ({}): extend the program or raise the final eluent strength{}, or consider another mode; a scouting run decides (the prediction may lie beyond the model's range)",
+            late.len(),
+            first.total_analytes.max(first.predictions.len()),
+            late.join(", "),
+            if first.mode == "hilic" {
+                " (in HILIC: more water at the end, or a stronger buffer for charged analytes)"
+            } else {
+                ""
+            }
+        ));
+    }
     let first_mode = candidates[0].rec.mode.clone();
     let first_ph = candidates[0].rec.conditions.ph;
     let mut recommendations: Vec<Recommendation> = candidates
@@ -525,7 +546,14 @@ pub fn coverage(rec: &Recommendation) -> f64 {
 pub fn apply_coverage(rec: &mut Recommendation, total: usize) {
     rec.total_analytes = total;
     rec.predicted_analytes = rec.predictions.len();
-    let n = rec.predicted_analytes;
+    // an analyte predicted to stay on the column past the end of the program is not handled by
+    // this method as proposed either (issue 14: it counts against it, like one not predicted)
+    let late = rec
+        .predictions
+        .iter()
+        .filter(|p| !elutes_in_run(rec, p))
+        .count();
+    let n = rec.predicted_analytes - late;
     if n >= total {
         return;
     }
@@ -536,7 +564,7 @@ pub fn apply_coverage(rec: &mut Recommendation, total: usize) {
         for r in &mut rec.reasons {
             if r.source == "model:predicted-separation" {
                 r.text = format!(
-                    "only {n} of {total} analytes predicted: the separation is unknown, not perfect (counted at half)"
+                    "only {n} of {total} analytes predicted to elute: the separation is unknown, not perfect (counted at half)"
                 );
             }
         }
@@ -546,7 +574,13 @@ pub fn apply_coverage(rec: &mut Recommendation, total: usize) {
     rec.reasons.push(Reason {
         source: "rule:coverage".into(),
         text: format!(
-            "predicted for {n} of {total} analytes: the analytes this method cannot predict or handle count against it (score x {factor:.2}; common practice, no source)"
+            "predicted for {} of {total} analytes{}: the analytes this method cannot predict or handle count against it (score x {factor:.2}; common practice, no source)",
+            rec.predicted_analytes,
+            if late > 0 {
+                format!(", {late} of them predicted not to elute before the run ends")
+            } else {
+                String::new()
+            }
         ),
         weight: Some(rec.score - before),
     });
@@ -598,15 +632,32 @@ pub fn unscored_recommendation(
     (rec, sep, reason)
 }
 
-/// Sort predictions by time and compute the adjacent-pair critical resolution.
+/// Whether `p` is predicted to elute before the recommendation's run ends (always, when the
+/// run time is not known).
+pub fn elutes_in_run(rec: &Recommendation, p: &PredictionRow) -> bool {
+    let end = rec.conditions.run_time_min;
+    !(end > 0.0 && p.retention_time_min > end)
+}
+
+/// Sort predictions by time and compute the adjacent-pair critical resolution, among the
+/// analytes that elute before the run ends (a pair that stays on the column has no resolution
+/// the run can show; issue 14).
 pub fn finish_predictions(rec: &mut Recommendation) {
     rec.predictions.sort_by(|a, b| {
         a.retention_time_min
             .total_cmp(&b.retention_time_min)
             .then_with(|| a.analyte.cmp(&b.analyte))
     });
+    let eluting: Vec<PredictionRow> = rec
+        .predictions
+        .iter()
+        .filter(|p| elutes_in_run(rec, p))
+        .cloned()
+        .collect();
+    rec.critical_resolution = None;
+    rec.critical_pair = None;
     let mut best: Option<(f64, String, String)> = None;
-    for w in rec.predictions.windows(2) {
+    for w in eluting.windows(2) {
         let rs = resolution(&w[0], &w[1]);
         if best.as_ref().is_none_or(|b| rs < b.0) {
             best = Some((rs, w[0].analyte.clone(), w[1].analyte.clone()));
@@ -616,6 +667,15 @@ pub fn finish_predictions(rec: &mut Recommendation) {
         rec.critical_resolution = Some(rs);
         rec.critical_pair = Some((a, b));
     }
+    // a pair that stays on the column has no co-elution the run can show
+    let late: Vec<String> = rec
+        .predictions
+        .iter()
+        .filter(|p| !elutes_in_run(rec, p))
+        .map(|p| p.analyte.clone())
+        .collect();
+    rec.coelutions
+        .retain(|c| !late.contains(&c.a) && !late.contains(&c.b));
     rec.coelutions.sort_by(|x, y| {
         y.probability
             .total_cmp(&x.probability)

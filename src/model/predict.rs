@@ -4,7 +4,7 @@
 
 use super::features::AnalyteFeatures;
 use super::fitted::Model;
-use super::linear::{PSI_MAX, PSI_MIN, system_features};
+use super::linear::{psi_bounds, system_features};
 use super::lss::{lss_s, rt_from_psi};
 use super::memory::SourceRelation;
 use super::prediction::{Prediction, PredictionPath};
@@ -144,7 +144,8 @@ impl Model {
         // bounded: psi_k1 stays inside the training target range; beyond the descriptors'
         // training range (or at a bound) the interval widens with the distance
         let excess = self.linear.extrapolation_sd(&z);
-        let clamped = psi.clamp(PSI_MIN, PSI_MAX);
+        let (psi_lo, psi_hi) = psi_bounds(sys.mode);
+        let clamped = psi.clamp(psi_lo, psi_hi);
         let widen = 1.0 + 0.5 * excess + if clamped == psi { 0.0 } else { 0.5 };
         let psi = clamped;
         let rt = rt_from_psi(sys, s, psi);

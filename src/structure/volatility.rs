@@ -43,6 +43,12 @@ pub const MANY_DONOR_HYDROGENS: u32 = 3;
 pub const VOLATILE_ACID_MAX_TB_K: f64 = 520.0;
 /// Molar mass above which GC is doubtful, g/mol (common practice, no source).
 pub const GC_MAX_MOLAR_MASS_G_MOL: f64 = 600.0;
+/// Molar mass of a derivative above which GC is not practical even on a high-temperature
+/// column, g/mol (per-trimethylsilyl disaccharides, about 920 g/mol, are about the heaviest run
+/// routinely; common practice, no source).
+pub const GC_MAX_DERIVATISED_MOLAR_MASS_G_MOL: f64 = 1000.0;
+/// Mass added per trimethylsilyl group replacing a hydrogen, g/mol (Si(CH3)3 − H = 72.2).
+const SILYL_MASS_G_MOL: f64 = 72.2;
 /// Hydroxyl count at which a molecule needs silylation for GC (common practice, no source).
 pub const MANY_HYDROXYLS: usize = 3;
 
@@ -375,6 +381,35 @@ fn assess_gc_inner(
                 "molar mass {m:.0} g/mol is above about {GC_MAX_MOLAR_MASS_G_MOL:.0} g/mol: too involatile for GC; derivatisation adds mass"
             ),
         });
+    }
+    // derivatisation adds mass: a trimethylsilyl group per capped donor atom (+72 g/mol each)
+    // takes heavy polyols and polyamines (aminoglycosides, glycosides, cardiac glycosides)
+    // beyond what elutes even from a high-temperature column, while per-silylated mono- and
+    // disaccharides (up to about 920 g/mol) still do (common practice, no source)
+    let donor_atoms = (0..v.len())
+        .filter(|&i| matches!(v.z(i), 7 | 8 | 16) && v.h(i) > 0)
+        .count();
+    let needs_derivatisation = flags
+        .iter()
+        .any(|f| f.severity == Severity::NeedsDerivatisation)
+        || tb_k.is_some_and(|t| t > GC_MAX_TB_K);
+    if let Some(m) = molar_mass_g_mol
+        && m <= GC_MAX_MOLAR_MASS_G_MOL
+        && derivatisable
+        && needs_derivatisation
+    {
+        let derivatised = m + SILYL_MASS_G_MOL * donor_atoms as f64;
+        if derivatised > GC_MAX_DERIVATISED_MOLAR_MASS_G_MOL {
+            flags.push(GcFlag {
+                issue: GcIssue::HighMolarMass,
+                severity: Severity::Unsuitable,
+                atoms: Vec::new(),
+                derivatisation: None,
+                reason: format!(
+                    "silylated at its {donor_atoms} H-bond donor atoms it would weigh about {derivatised:.0} g/mol, above about {GC_MAX_DERIVATISED_MOLAR_MASS_G_MOL:.0} g/mol: too involatile for GC even after derivatisation"
+                ),
+            });
+        }
     }
     match tb_k {
         Some(t) if t > GC_HIGH_TB_K && t <= GC_MAX_TB_K => flags.push(GcFlag {
@@ -909,6 +944,58 @@ mod polarity_tests {
                 assess(smi).verdict,
                 GcVerdict::SuitableAfterDerivatisation,
                 "{smi}"
+            );
+        }
+    }
+
+    /// Derivatisation adds mass: heavy polyols and polyamines stay out of GC even silylated,
+    /// while mono- and disaccharides, steroids and amino acids are run as silyl derivatives
+    /// (common practice, no source; structures from memory).
+    #[test]
+    fn heavy_polyols_and_polyamines_stay_unsuitable_after_derivatisation() {
+        for (smi, what) in [
+            // tobramycin, kanamycin-type aminoglycosides (10 donor atoms, 467-484 g/mol)
+            (
+                "NCC1OC(OC2C(N)CC(N)C(OC3OC(CO)C(O)C(N)C3O)C2O)C(N)CC1O",
+                "tobramycin",
+            ),
+            (
+                "NCC1OC(OC2C(N)CC(N)C(OC3OC(CO)C(O)C(N)C3O)C2O)C(O)C(O)C1O",
+                "kanamycin A",
+            ),
+            // a trisaccharide (raffinose-like: 11 OH, 504 g/mol)
+            (
+                "OCC1OC(OCC2OC(OC3(CO)OC(CO)C(O)C3O)C(O)C(O)C2O)C(O)C(O)C1O",
+                "raffinose",
+            ),
+        ] {
+            let a = assess(smi);
+            assert_eq!(a.verdict, GcVerdict::Unsuitable, "{what}: {a:?}");
+            assert!(
+                a.flags.iter().any(|f| f.issue == GcIssue::HighMolarMass
+                    && f.reason.contains("even after derivatisation")),
+                "{what}: {a:?}"
+            );
+        }
+        for (smi, what) in [
+            ("OCC1OC(O)C(O)C(O)C1O", "glucose"),
+            (
+                "OCC1OC(OC2(CO)OC(CO)C(O)C2O)C(O)C(O)C1O",
+                "sucrose (8 OH, about 920 g/mol silylated)",
+            ),
+            (
+                "CC(C)CCCC(C)C1CCC2C3CC=C4CC(O)CCC4(C)C3CCC12C",
+                "cholesterol",
+            ),
+            ("NC(Cc1ccccc1)C(=O)O", "phenylalanine"),
+        ] {
+            let v = assess(smi).verdict;
+            assert!(
+                matches!(
+                    v,
+                    GcVerdict::Suitable | GcVerdict::SuitableAfterDerivatisation
+                ),
+                "{what}: {v:?}"
             );
         }
     }

@@ -120,6 +120,20 @@ pub const PRIOR_SD: [f64; 5] = [0.10, 0.15, 0.10, 0.10, 0.15];
 /// Assumed reference-index scatter in index units, the weight of one observation in the fit.
 pub const OBSERVATION_SD_RI: f64 = 15.0;
 
+/// Prior standard deviation that holds a physical zero in place (effectively fixed).
+pub const PHYSICAL_ZERO_SD: f64 = 1e-6;
+
+/// True when descriptor `d` (E, S, A, B, L) of an atom-centred fragment has a prior of exactly
+/// zero: a property the atom does not have (no hydrogen-bond acidity on a carbon or an
+/// acceptor atom; no dipolarity, polarisability excess or basicity on an sp3 carbon, as in
+/// Abraham's alkanes). The fit may not give it one: left free, it used the acidity of an
+/// aromatic CH as a polyethylene-glycol-only adjustment (benzene A 0.3), which a structure never
+/// has. Corrections are free (a zero prior there means no prior knowledge, not a zero property)
+/// except those of [`Fragment::zero_is_physical`].
+pub fn physical_zero(prior: &Prior, d: usize) -> bool {
+    prior.fragment.zero_is_physical() && values_array(&prior.values)[d] == 0.0
+}
+
 fn values_array(v: &FragmentValues) -> [f64; 5] {
     [v.e, v.s, v.a, v.b, v.l]
 }
@@ -139,11 +153,16 @@ pub fn fit(
     let n = free.len() * 5;
     let mut ata = vec![vec![0.0_f64; n]; n];
     let mut atb = vec![0.0_f64; n];
-    // prior penalty
+    // prior penalty; a physical zero of an atom-centred fragment stays zero
     for (k, &pi) in free.iter().enumerate() {
         let p = values_array(&priors[pi].values);
         for d in 0..5 {
-            let w = 1.0 / (PRIOR_SD[d] * PRIOR_SD[d]);
+            let sd = if physical_zero(&priors[pi], d) {
+                PHYSICAL_ZERO_SD
+            } else {
+                PRIOR_SD[d]
+            };
+            let w = 1.0 / (sd * sd);
             ata[5 * k + d][5 * k + d] += w;
             atb[5 * k + d] += w * p[d];
         }

@@ -120,6 +120,24 @@ pub const PRIOR_SD: [f64; 5] = [0.10, 0.15, 0.10, 0.10, 0.15];
 /// Assumed reference-index scatter in index units, the weight of one observation in the fit.
 pub const OBSERVATION_SD_RI: f64 = 15.0;
 
+/// Descriptors (index 0 E, 1 S, 2 A, 3 B, 4 L) that the fit keeps equal across two
+/// fragments, because the compounds that define them show no difference the reference set
+/// could resolve: the dipolarity S of a C=C bond is about 0.08 whatever its substitution
+/// (propene, 1-hexene, cis-2-butene, 2-methyl-2-butene all S 0.08), and its excess molar
+/// refraction E 0.08-0.16 rises only slowly with substitution (from memory of Abraham's
+/// tables), so the three alkene carbons share one S and one E per carbon. Left free, the fit
+/// gave a terminal =CH2 five times the dipolarity of an internal =CH- and none to a =C< (or,
+/// with S tied, E 0.20 to =CH2 and a negative E to =C<), which ranked exocyclic-methylene
+/// terpenes above ring-alkene ones on polyethylene glycol for no structural reason.
+pub const TIES: &[(Fragment, Fragment, usize)] = &[
+    (Fragment::AlkeneCh2, Fragment::AlkeneCh, 0),
+    (Fragment::AlkeneCh, Fragment::AlkeneC, 0),
+    (Fragment::AlkeneCh2, Fragment::AlkeneCh, 1),
+    (Fragment::AlkeneCh, Fragment::AlkeneC, 1),
+];
+/// Standard deviation of a tie's penalty on the difference of the tied values.
+pub const TIE_SD: f64 = 0.005;
+
 /// Prior standard deviation that holds a physical zero in place (effectively fixed).
 pub const PHYSICAL_ZERO_SD: f64 = 1e-6;
 
@@ -166,6 +184,21 @@ pub fn fit(
             ata[5 * k + d][5 * k + d] += w;
             atb[5 * k + d] += w * p[d];
         }
+    }
+    // ties: descriptors that physics says are equal across fragments
+    for &(f1, f2, d) in TIES {
+        let (Some(k1), Some(k2)) = (
+            free.iter().position(|&i| priors[i].fragment == f1),
+            free.iter().position(|&i| priors[i].fragment == f2),
+        ) else {
+            continue;
+        };
+        let w = 1.0 / (TIE_SD * TIE_SD);
+        let (i, j) = (5 * k1 + d, 5 * k2 + d);
+        ata[i][i] += w;
+        ata[j][j] += w;
+        ata[i][j] -= w;
+        ata[j][i] -= w;
     }
     let phase_constants: Vec<&SystemConstants> = REFERENCE_PHASES
         .iter()

@@ -300,10 +300,16 @@ impl Fragment {
     }
 
     /// True when a zero in this fragment's prior is a physical zero (the property is absent),
-    /// not a lack of prior knowledge: every atom-centred fragment, and the alicyclic ring
-    /// carbon (no hydrogen-bond acidity or basicity from ring closure).
+    /// not a lack of prior knowledge: every atom-centred fragment, the alicyclic ring carbon
+    /// (no hydrogen-bond acidity or basicity from ring closure) and the two non-polar ortho
+    /// pairs (two carbons or halogens side by side have no hydrogen-bond donor or acceptor to
+    /// change).
     pub fn zero_is_physical(self) -> bool {
-        !self.is_correction() || self == Fragment::AlicyclicRingCarbon
+        !self.is_correction()
+            || matches!(
+                self,
+                Fragment::AlicyclicRingCarbon | Fragment::OrthoPair | Fragment::OrthoPairHalogen
+            )
     }
 
     /// Fragment with this id.
@@ -588,7 +594,10 @@ fn type_atoms(g: &MolGraph) -> Result<Vec<Fragment>, FragmentError> {
         .iter()
         .filter(|a| a.atomic_number == 6 && a.in_ring && !a.aromatic)
         .count();
-    out.extend(std::iter::repeat_n(Fragment::AlicyclicRingCarbon, alicyclic));
+    out.extend(std::iter::repeat_n(
+        Fragment::AlicyclicRingCarbon,
+        alicyclic,
+    ));
     // acidic C-H next to two or more heavy halogens
     for i in 0..n {
         let a = &g.atoms[i];

@@ -187,10 +187,10 @@ fn held_out_figures_do_not_regress() {
     }
 }
 
-// measured 2026-12-05 (docs/gc-retention.md): held-out medians 13, 13, 34; close pairs in the
-// right order 78 %, 78 %, 61 %
-const HELD_OUT_MEDIAN_BOUND: [f64; 3] = [16.0, 16.0, 37.0];
-const HELD_OUT_CLOSE_PAIR_BOUND: [f64; 3] = [0.75, 0.74, 0.59];
+// measured 2026-12-05 after the ring correction and the alkene ties (docs/gc-retention.md):
+// held-out medians 13, 14, 24; close pairs in the right order 79 %, 77 %, 66 %
+const HELD_OUT_MEDIAN_BOUND: [f64; 3] = [16.0, 17.0, 27.0];
+const HELD_OUT_CLOSE_PAIR_BOUND: [f64; 3] = [0.76, 0.74, 0.63];
 
 /// Positional isomers whose elution order follows from structure, on every reference phase
 /// (pairs mostly outside the reference set; orders from memory of retention-index compilations

@@ -191,3 +191,32 @@ fn unusual_atoms_are_named() {
     let err = fragment_counts(&g).unwrap_err().to_string();
     assert!(err.contains("Hg") && err.contains("no fragment"), "{err}");
 }
+
+fn alicyclic(smiles: &str) -> u32 {
+    counts(smiles)
+        .into_iter()
+        .find(|(id, _)| *id == "alicyclic ring carbon")
+        .map_or(0, |(_, n)| n)
+}
+
+/// Every carbon of a non-aromatic ring gets the ring correction, whatever its own fragment
+/// (ring CH2, ring alkene, ring carbonyl, bridged cage carbon); ring heteroatoms, aromatic
+/// carbons and chains do not.
+#[test]
+fn alicyclic_ring_carbons_are_counted_once_each() {
+    for (smiles, n) in [
+        ("C1CCCCC1", 6),
+        ("O=C1CCCCC1", 6),
+        ("C1CCOC1", 4),
+        ("C1Cc2ccccc2C1", 3),
+        ("C1CC2CCC1C2", 7),
+        ("CC1=CCC2CC1C2(C)C", 7),
+        ("C1=CCCCC1", 6),
+        ("c1ccccc1", 0),
+        ("CCCCCC=C", 0),
+        ("c1ccc2ccccc2c1", 0),
+        ("CC(C)c1ccc(C)cc1", 0),
+    ] {
+        assert_eq!(alicyclic(smiles), n, "{smiles}");
+    }
+}

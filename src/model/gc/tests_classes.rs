@@ -1,9 +1,9 @@
 //! Class tests of the solvation route added with issue 18's ring and alkene fixes: the
 //! polarisability of alicyclic rings, the physical zeros the fit keeps, and the alkene
-//! carbons' shared dipolarity. Cases are this module's own (mostly outside the reference set);
+//! values held at their priors. Cases are this module's own (mostly outside the reference set);
 //! each expectation names its source.
 
-use super::calibration::{TIE_SD, TIES, parse_priors, physical_zero};
+use super::calibration::{HELD_AT_PRIOR, parse_priors, physical_zero};
 use super::solvation::{shipped_fragment_values, solute_descriptors};
 use super::*;
 use crate::phase::{Catalogue, StationaryPhase};
@@ -132,30 +132,31 @@ fn hydrocarbons_have_no_hydrogen_bond_acidity() {
     }
 }
 
-/// The tied descriptors are equal in the shipped table within a few tie widths, and the
-/// alkene carbons' shared dipolarity is positive and near Abraham's 0.08 per C=C (0.04 per
-/// carbon; between 0.01 and 0.08 per carbon).
+/// The held descriptors are their priors in the shipped table, and the alkene carbons' polar
+/// descriptors are Abraham's (S 0.08 per C=C whatever the substitution, E 0.08-0.16; from
+/// memory of Abraham's tables): between 0.03 and 0.05 S per carbon, positive E.
 #[test]
-fn alkene_carbons_share_their_dipolarity_and_refraction() {
-    for &(f1, f2, d) in TIES {
-        let (a, b) = (values_array(&shipped(f1))[d], values_array(&shipped(f2))[d]);
+fn held_alkene_values_are_their_priors() {
+    let priors = parse_priors(PRIORS).unwrap();
+    for &(f, d) in HELD_AT_PRIOR {
+        let prior = priors.iter().find(|p| p.fragment == f).unwrap();
+        let (want, got) = (values_array(&prior.values)[d], values_array(&shipped(f))[d]);
         assert!(
-            (a - b).abs() < 5.0 * TIE_SD,
-            "{} / {} descriptor {d}: {a} against {b}",
-            f1.id(),
-            f2.id()
+            (want - got).abs() < 1e-4,
+            "{} descriptor {d}: {got} against {want}",
+            f.id()
         );
     }
     for f in [Fragment::AlkeneCh2, Fragment::AlkeneCh, Fragment::AlkeneC] {
         let v = shipped(f);
-        assert!((0.01..0.08).contains(&v.s), "{}: S {}", f.id(), v.s);
+        assert!((0.03..=0.05).contains(&v.s), "{}: S {}", f.id(), v.s);
         assert!(v.e > 0.0, "{}: E {}", f.id(), v.e);
     }
 }
 
 /// On polyethylene glycol each cis double bond of a C18 fatty-acid methyl ester adds retention,
-/// so stearate < oleate < linoleate < linolenate (the usual order of C18 methyl esters on polar
-/// columns; common practice, no source), while on poly(dimethylsiloxane) oleate elutes before
+/// so stearate < oleate < linoleate < linolenate, each some 35-45 units apart (the usual order
+/// of C18 methyl esters on polar columns; common practice, no source), while on poly(dimethylsiloxane) oleate elutes before
 /// stearate (reference set: 2085 against 2108, from memory).
 #[test]
 fn double_bonds_raise_fatty_acid_methyl_esters_on_polyethylene_glycol_only() {
@@ -166,8 +167,10 @@ fn double_bonds_raise_fatty_acid_methyl_esters_on_polyethylene_glycol_only() {
         "CC/C=C\\C/C=C\\C/C=C\\CCCCCCCC(=O)OC",
     ];
     let wax: Vec<f64> = c18.iter().map(|s| ri(s, "gc-wax")).collect();
+    // each cis double bond about 35-45 units later (reference set: oleate +35 on stearate,
+    // linoleate +45 on oleate); at least 20
     for w in wax.windows(2) {
-        assert!(w[1] > w[0], "polyethylene glycol: {wax:?}");
+        assert!(w[1] > w[0] + 20.0, "polyethylene glycol: {wax:?}");
     }
     assert!(ri(c18[1], "gc-dimethyl") < ri(c18[0], "gc-dimethyl"));
 }

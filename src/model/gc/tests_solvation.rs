@@ -187,10 +187,11 @@ fn held_out_figures_do_not_regress() {
     }
 }
 
-// measured 2026-12-05 after the ring correction and the alkene ties (docs/gc-retention.md):
-// held-out medians 13, 14, 24; close pairs in the right order 79 %, 77 %, 66 %
-const HELD_OUT_MEDIAN_BOUND: [f64; 3] = [16.0, 17.0, 27.0];
-const HELD_OUT_CLOSE_PAIR_BOUND: [f64; 3] = [0.76, 0.74, 0.63];
+// measured 2026-12-05 after the ring correction, the physical zeros and the held alkene values
+// (docs/gc-retention.md): held-out medians 13.1, 14.4, 25.2; close pairs in the right order
+// 80 %, 78 %, 68 %
+const HELD_OUT_MEDIAN_BOUND: [f64; 3] = [16.0, 17.0, 28.0];
+const HELD_OUT_CLOSE_PAIR_BOUND: [f64; 3] = [0.77, 0.75, 0.65];
 
 /// Positional isomers whose elution order follows from structure, on every reference phase
 /// (pairs mostly outside the reference set; orders from memory of retention-index compilations

@@ -15,7 +15,7 @@ Usage:  python3 tools/build_seed.py [--chemicals-wheel PATH] [--pka PATH]
 Without --chemicals-wheel the wheel is fetched with `pip download chemicals==1.5.2`.
 Output is deterministic (sorted rows, gzip mtime 0).
 """
-import argparse, csv, gzip, io, os, subprocess, sys, tempfile, zipfile
+import argparse, csv, gzip, io, os, re, subprocess, sys, tempfile, zipfile
 
 HERE = os.path.dirname(os.path.abspath(__file__))
 ROOT = os.path.dirname(HERE)
@@ -257,10 +257,566 @@ def fix_stereo_less_names(compounds):
     print(f"stereo-less records renamed: {renamed}", file=sys.stderr)
 
 
+# ---------------------------------------------------------------------------------------------
+# Preferred names a practitioner recognises (issue 13, item 2)
+# ---------------------------------------------------------------------------------------------
+# The source tables' preferred name (the second name column) is at times a CAS number, a
+# catalogue code, a molecular formula, an abbreviation, a brand or a mixture label, while a
+# proper name sits among the synonyms. The rule below replaces the preferred name only when it
+# is recognisably one of those, and only with a synonym that is a proper name, keeps the
+# record's stereo, is no other record's preferred name, and changes what no name resolves to.
+# Common practice, no source: the shapes and word lists are the author's, checked by eye on a
+# random sample of the renamed records (see the commit message).
+
+# official non-proprietary names in English (INN, USAN, BAN, JAN, ISO common names of
+# pesticides, pharmacopoeia titles); the French (DCF) and Italian (DCIT) lists alone mark a name
+# in another language, and reference-work tags (Merck Index `[mi]`, HSDB) also mark mixtures
+# (`saffron [mi]` on crocin), so neither counts
+OFFICIAL_TAGS = {"inn", "usan", "ban", "jan", "iso", "usp", "nf", "who-dd", "mart.", "vandf", "usp-rs",
+                 "jp15", "jp16", "jp17", "jp18"}
+# trailing `[...]`/`(...)` tags that mark a name as not the name itself (language variants,
+# hazard notes) or as a trade name (KEGG's `(TN)`)
+OTHER_TAGS = {"german", "french", "dutch", "polish", "latin", "russian", "czech", "spanish", "italian",
+              "inn-latin", "inn-french", "inn-spanish", "iso-french", "forbidden", "poison", "corrosive",
+              "tn", "ep impurity", "8ci", "9ci", "ci", "van", "iupac", "dcf", "dcit", "mi", "hsdb", "inci",
+              "fhfi", "fcc", "ep", "ansi", "bsi"}
+TAG_RE = re.compile(r"^(.*?)\s*[\[(]([^\[\]()]+)[\])]\s*$")
+
+# Abbreviations that are the names practitioners use (solvents, buffers, nucleotides, classic
+# pesticides and explosives); never replaced. Common practice, no source.
+KEPT_ABBREVIATIONS = {
+    "dmso", "dmf", "thf", "dma", "dmac", "nmp", "dcm", "mtbe", "etbe", "tame", "tbme", "hmpa", "dme",
+    "edta", "egta", "dtpa", "nta", "hepes", "mops", "mes", "tris", "pipes", "caps", "ches", "taps",
+    "tes", "bes", "tapso", "mopso", "popso", "epps", "dtt", "tcep", "sds", "tnt", "rdx", "hmx",
+    "petn", "ddt", "dde", "ddd", "mcpa", "mcpp", "mcpb", "dnoc", "atp", "adp", "amp", "gtp", "gdp",
+    "gmp", "ctp", "utp", "nad", "nadh", "nadp", "fad", "fmn", "camp", "cgmp", "gaba", "dopa", "nmda",
+    "ampa", "paba", "deet", "tempo", "dabco", "dbu", "dmap", "tfa", "bht", "bha", "tbhq", "pfoa",
+    "pfos", "lsd", "mdma", "mdea", "mda", "thc", "cbd", "pcp", "gbl", "ghb", "dmt", "tmb", "opd",
+    "abts", "dpph", "mtt", "nbt", "bcip", "ans", "tns", "dapi"}
+
+SALT_WORDS = ("hydrochloride", "sulfate", "sulphate", "sodium", "potassium", "calcium", "mesylate",
+              "maleate", "tartrate", "citrate", "phosphate", "acetate", "bromide", "chloride", "iodide",
+              "hydrobromide", "fumarate", "succinate", "besylate", "tosylate", "nitrate", "lactate",
+              "magnesium", "lithium", "ammonium", " salt", "hcl", "hydrate")
+
+# Names of one configuration of a sugar or sugar alcohol: a record without stereo, which stands
+# for every configuration of its skeleton, must not be named by one of them (the stereo-less
+# hex-2-ulopyranose is not `psicose`, nor `fructose`).
+CONFIG_SUGAR_STEMS = ("allos", "altros", "glucos", "mannos", "gulos", "idos", "galactos", "talos",
+                      "psicos", "fructos", "sorbos", "tagatos", "ribos", "arabinos", "xylos", "lyxos",
+                      "erythros", "threos", "ribulos", "xylulos", "glucitol", "sorbitol", "mannitol",
+                      "galactitol", "dulcitol", "allitol", "iditol", "talitol", "arabitol", "arabinitol",
+                      "ribitol", "threitol", "levulos", "laevulos", "dextros")
+
+# (named reagents, `lawesson reagent`, are what chemists call them: not a label here)
+MIXTURE_WORDS = ("crude", "solution", "mixture", "mixt", "technical", "tech.", "tech grade",
+                 "in methanol", "in acetonitrile", "in water", "in ethanol", "in hexane",
+                 "certified reference", "from ")
+MIXTURE_TAIL = re.compile(r"(,? (?:crude|solution|mixture|mixt\.?|technical|tech\.?|tech grade)|"
+                          r" solution in .*| in (?:methanol|acetonitrile|water|ethanol|hexane).*| from .*)$")
+
+OPENEYE_WORDS = ("azanyl", "oxidanyl", "bromanyl", "chloranyl", "fluoranyl", "iodanyl", "sulfanylidene",
+                 "azanium", "oxidanide", "azanide", "lambda")
+
+CHEMICAL_SUFFIXES = ("ane", "ene", "yne", "ol", "al", "one", "ide", "ate", "ite", "ium", "ose", "ole",
+                     "oxide", "acid", "amine", "amide", "aldehyde", "ether", "ester", "yl", "ic",
+                     "azole", "ine", "ane", "phenol", "ol")
+
+CAS_SHAPE = re.compile(r"^\d{2,7}-\d{2}-\d$")
+FORMULA_SHAPE = re.compile(r"^(?:[A-Za-z][a-z]?\d*){2,}$")
+
+
+def name_tag(n):
+    """(name without its trailing tag, tag words) for `x [usan:inn]` / `x (tn)`; (n, set())."""
+    m = TAG_RE.match(n.strip())
+    if not m:
+        return n.strip(), set()
+    words = {w.strip().lower() for w in re.split(r"[:/,]", m.group(2))}
+    if words & (OFFICIAL_TAGS | OTHER_TAGS):
+        return m.group(1).strip(), words
+    return n.strip(), set()
+
+
+def official_names(names):
+    out = []
+    for n in names:
+        base, tags = name_tag(n)
+        if tags & OFFICIAL_TAGS and not tags & OTHER_TAGS and base:
+            out.append(base)
+    return out
+
+
+def is_code(n):
+    """A catalogue or registry code: one token of letters and at least two digits whose letter
+    runs are at most three long (`ac1l197p`, `agn-pc-047i3u`, `nsc-12345`, `brd-a612...`)."""
+    t = n.strip().lower()
+    if re.fullmatch(r"[a-z][a-z0-9]{1,7}[ -]\d[\d-]{3,}", t):
+        return True   # a registry number with its prefix (`brn 0014598`, `einecs 215-123-4`)
+    if " " in t or "," in t or "(" in t or "[" in t or len(t) < 5:
+        return False
+    if not re.fullmatch(r"[a-z0-9\-._]+", t):
+        return False
+    if re.search(r"\d{2,7}-\d\d-\d", t):
+        return True   # a CAS number inside a code (`ambotz10236-47-2`)
+    digits = sum(ch.isdigit() for ch in t)
+    runs = re.findall(r"[a-z]+", t)
+    return digits >= 2 and bool(runs) and max(len(r) for r in runs) <= 3
+
+
+def is_formula(n):
+    """A molecular formula written as the name (`c21h43n5o7`), five characters or more."""
+    t = n.strip()
+    if len(t) < 5 or not FORMULA_SHAPE.fullmatch(t) or not any(ch.isdigit() for ch in t):
+        return False
+    # every element symbol is a known one, written with its first letter and digits (`c21h43`)
+    elements = re.findall(r"([A-Za-z][a-z]?)\d*", t)
+    return all(e.lower() in ELEMENTS for e in elements)
+
+
+ELEMENTS = {e.lower() for e in (
+    "H He Li Be B C N O F Ne Na Mg Al Si P S Cl Ar K Ca Sc Ti V Cr Mn Fe Co Ni Cu Zn Ga Ge As Se Br "
+    "Kr Rb Sr Y Zr Nb Mo Tc Ru Rh Pd Ag Cd In Sn Sb Te I Xe Cs Ba La Ce Pr Nd Pm Sm Eu Gd Tb Dy Ho Er "
+    "Tm Yb Lu Hf Ta W Re Os Ir Pt Au Hg Tl Pb Bi Po At Rn Fr Ra Ac Th Pa U Np Pu Am Cm").split()}
+
+VOWELS = set("aeiouy")
+ONSETS = {"bl", "br", "ch", "cl", "cr", "dr", "fl", "fr", "gl", "gr", "kl", "kr", "ph", "pl", "pr", "qu",
+          "rh", "sc", "sh", "sk", "sl", "sm", "sn", "sp", "st", "sw", "th", "tr", "tw", "wh", "wr", "ps",
+          "pn", "xy", "zw"}
+
+
+def pronounceable(word):
+    """Whether a short letter string reads as a word (`furan`, `morin`, `nopol`) rather than as
+    initials (`dmba`, `nnal`, `aibn`, `ksdk`)."""
+    w = word.lower()
+    if not w.isalpha() or not (set(w) & VOWELS):
+        return False
+    if w[0] not in VOWELS and len(w) > 1 and w[1] not in VOWELS and w[:2] not in ONSETS:
+        return False
+    if re.search(r"[^aeiouy]{3,}", w) and not re.search(r"(sch|str|chr|phr|thr|spr|scr|ngs|nts|rst)", w):
+        return False
+    if re.search(r"[aeiouy]{3,}", w) or w[:2] in ("aa", "ee", "ii", "uu"):
+        return False
+    if len(w) >= 3 and w[-1] not in VOWELS and w[-2] not in VOWELS and w[-2:] not in {
+            "ng", "nk", "nt", "nd", "st", "sk", "rt", "rd", "rn", "rm", "rl", "ld", "lt", "lk", "ct",
+            "pt", "ft", "mp", "ns", "ls", "rs", "ts", "ck", "sh", "th", "ch", "ph", "ll", "ss", "ff",
+            "tt", "rk", "rb", "rg", "rc", "lm", "lp", "nc", "xt", "ms", "ds", "ps", "ks", "gs", "bs"}:
+        return False
+    return True
+
+
+def is_abbreviation(n, names):
+    """A preferred name of at most five characters that reads as initials, is not one of the
+    abbreviations practitioners name the compound by, nor a name the record's synonyms use as a
+    word (`nopol (terpene)`), nor itself an official name."""
+    t = n.strip().lower()
+    if len(t) > 5 or len(t) < 2 or t in KEPT_ABBREVIATIONS:
+        return False
+    if not re.fullmatch(r"[a-z0-9\-]+", t) or sum(ch.isalpha() for ch in t) < 2:
+        return False
+    letters = t.replace("-", "")
+    if letters.isalpha() and pronounceable(letters):
+        return False
+    if re.fullmatch(r"[a-z]{1,3}-?\d{1,3}", t) and not re.fullmatch(r"[a-z]{2,3}\d", t):
+        # `e-64`, `ipa-3`, `src-7`: a code-number name, not initials of anything in the record
+        pass
+    word = re.compile(r"(?<![a-z0-9])" + re.escape(t) + r"(?![a-z0-9])")
+    for s in names:
+        sl = s.lower()
+        if sl != t and len(sl) > len(t) + 1 and word.search(sl) and not name_tag(s)[1]:
+            return False
+    return True
+
+
+def expands(abbr, name):
+    """Whether `name` reads as the long form of `abbr`: the abbreviation's letters appear in
+    order in it, the first one first (`afb1` in `aflatoxin b1`)."""
+    a = [ch for ch in abbr.lower() if ch.isalnum()]
+    letters = [ch for ch in name.lower() if ch.isalnum()]
+    if not a or not letters or letters[0] != a[0]:
+        return False
+    it = iter(letters)
+    return all(ch in it for ch in a)
+
+
+def is_mixture_label(n):
+    low = n.lower()
+    return any(re.search(r"(?<![a-z])" + re.escape(w), low) for w in MIXTURE_WORDS)
+
+
+def chemical_looking(n):
+    low = n.lower()
+    return (any(ch.isdigit() for ch in low) or " " in low or "-" in low or "," in low or "(" in low
+            or low.endswith(CHEMICAL_SUFFIXES))
+
+
+def stereo_marked(n):
+    """A stereo descriptor anywhere in the name (`fructose, (d)`, `beta-d-(-)-fructose`)."""
+    low = n.lower()
+    if has_stereo_word(low):
+        return True
+    return bool(re.search(r"(\((?:[rsez+\-±]|d|l|dl|rs|sr|[0-9]+[rsez][^)]*)\))|(?<![a-z])(?:d|l|dl|cis|trans|"
+                          r"erythro|threo|meso|endo|exo|syn|anti|rel|rac)-|(?:alpha|beta)-[dl]-|\.alpha\.|\.beta\.|"
+                          r"(?<![a-z])[dl]\(", low))
+
+
+def configuration_name(n):
+    low = n.lower()
+    return any(s in low for s in CONFIG_SUGAR_STEMS)
+
+
+def proper_name(n, max_len):
+    """A synonym fit to be shown as the compound's name."""
+    t = n.strip()
+    low = t.lower()
+    if not t or len(t) > max_len or not useful_name(t) or cas_ok(t) or CAS_SHAPE.match(t):
+        return False
+    if is_code(t) or is_formula(t) or is_mixture_label(t) or name_tag(t)[1]:
+        return False
+    if any(w in low for w in OPENEYE_WORDS) or "?" in t or "\ufffd" in t:
+        return False
+    if re.search(r", [0-9a-z(\[]", low) and low.endswith("-"):
+        return False   # CA index name, inverted (`benzoxazolium, 3-(2-carboxyethyl)-...-`)
+    if low.endswith(("-", ",")) or low.count("(") != low.count(")") or low.count("[") != low.count("]"):
+        return False
+    if re.search(r",\d+$", low):
+        return False   # cut short (`2,2-difluoro-1,3-dimethyl-2-phenyl-1,3,2`)
+    if re.search(r"[%<>;®™]|&reg;|\d m in |\d+(?:\.\d+)? ?(?:m|mm|mg/ml|g/l) ", low):
+        return False   # a grade, a concentration or a list of components (`magnesium;octane;chloride`)
+    if len(t) <= 5 and not pronounceable(low.replace("-", "")) and low not in KEPT_ABBREVIATIONS:
+        return False   # an abbreviation does not replace an abbreviation
+    return True
+
+
+GREEK_WORDS = dict(zip("αβγδεζηθικλμνξοπρστυφχψω",
+                       "alpha beta gamma delta epsilon zeta eta theta iota kappa lambda mu nu xi omicron pi "
+                       "rho sigma tau upsilon phi chi psi omega".split()))
+PRIMES = "'′’‘ʹ`´″"
+STEREO_FREE_PREFIXES = ("(+/-)-", "(±)-", "(+-)-", "(rs)-", "(sr)-", "(r,s)-", "(r)-", "(s)-", "(+)-", "(-)-",
+                        "rac-", "dl-", "d-", "l-", "(d)-", "(l)-", "(dl)-")
+
+
+def normalise(name, drop_stereo=False):
+    """The name key of src/kb/normalise.rs (same rules), to foresee how the built base
+    resolves a name."""
+    rest = name.strip().lower()
+    while drop_stereo:
+        before = len(rest)
+        for p in STEREO_FREE_PREFIXES:
+            if rest.startswith(p):
+                r = rest[len(p):]
+                if any(ch.isalnum() for ch in r):
+                    rest = r
+                break
+        if len(rest) == before:
+            break
+    out = []
+    for ch in rest:
+        if ch in GREEK_WORDS:
+            out.append(GREEK_WORDS[ch])
+        elif ch == "µ":
+            out.append("mu")
+        elif ch.isalnum():
+            out.append(ch)
+        elif ch in PRIMES and out and (out[-1][-1:].isdigit() or out[-1][-1:] == "'"):
+            out.append("''" if ch == "″" else "'")
+    return "".join(out)
+
+
+class NameIndex:
+    """Which records hold which name key at which rank, as kb/build.rs stores them: 0 the
+    preferred name, 1 the first synonym, 2 the others, 3 a name's stereo-free key."""
+
+    def __init__(self, recs):
+        self.recs = recs          # list of dict(key, cid, smiles, pref, names)
+        self.by_norm = {}
+        self.held = [None] * len(recs)
+        for i in range(len(recs)):
+            self._add(i)
+
+    def entries(self, i):
+        r = self.recs[i]
+        seen, out = set(), []
+        for j, n in enumerate([r["pref"]] + r["names"]):
+            norm = normalise(n)
+            if not norm or norm in seen:
+                continue
+            out.append((norm, min(j, 2)))
+            seen.add(norm)
+            free = normalise(n, True)
+            if free and free not in seen:
+                out.append((free, 3))
+                seen.add(free)
+        return out
+
+    def _add(self, i):
+        self.held[i] = self.entries(i)
+        for norm, rank in self.held[i]:
+            self.by_norm.setdefault(norm, []).append((i, rank))
+
+    def _remove(self, i):
+        for norm, rank in self.held[i]:
+            self.by_norm[norm].remove((i, rank))
+
+    def replace(self, i, pref, names):
+        self._remove(i)
+        self.recs[i]["pref"], self.recs[i]["names"] = pref, names
+        self._add(i)
+
+    def decision(self, norm):
+        """(record the name resolves to, skeletons holding it at the best rank)."""
+        rows = self.by_norm.get(norm, [])
+        if not rows:
+            return (None, frozenset())
+        def order(e):
+            i, rank = e
+            r = self.recs[i]
+            return (0 if rank == 3 else rank, rank == 3, rank == 3 and "@" not in r["smiles"],
+                    r["cid"] == "", r["cid"] if r["cid"] != "" else 0, i)
+        best = min(rows, key=order)
+        eff = 0 if best[1] == 3 else best[1]
+        blocks = frozenset(self.recs[i]["skel"] for i, rank in rows if (0 if rank == 3 else rank) == eff)
+        return (best[0], blocks)
+
+
+def bad_preferred_name(r, officials):
+    """Why the preferred name is not a name to show, or None."""
+    o = r["pref"].strip()
+    low = o.lower()
+    names = r.get("all_names", r["names"])
+    stereo_less = r["key"].split("-")[1:2] == ["UHFFFAOYSA"]
+    if CAS_SHAPE.match(o):
+        return "CAS number"
+    if re.fullmatch(r"[A-Z]{14}-[A-Z]{10}-[A-Z]", o):
+        return "InChIKey"
+    if is_code(o):
+        return "catalogue code"
+    if is_formula(o):
+        return "catalogue code"
+    if is_mixture_label(o):
+        return "mixture or solution label"
+    if name_tag(o)[1] & (OFFICIAL_TAGS | {"tn"}):
+        return "list tag"
+    if is_abbreviation(o, names):
+        return "abbreviation"
+    off = {n.lower() for n in officials}
+    # a brand: one word, not official itself, not a spelling variant of an official name
+    # (`nordiazepam` beside `nordazepam [inn]` is no brand), not chemical-looking, and shown to be
+    # a brand by the record: marked as a trade name (`vancocin (tn)`), named as a product
+    # (`garamycin otic solution`), or second to an official name that is the record's first
+    # synonym (`taxol` after `paclitaxel`). An older or other-language generic name (`rutin`
+    # beside `rutoside [inn]`, `methiocarb` beside `mercaptodimethur [iso]`) has none of these.
+    first = names[0].lower() if names else ""
+    if (re.fullmatch(r"[a-z]+", low) and low not in off and officials and low not in KEPT_ABBREVIATIONS
+            and not any(spelling_variant(low, x) for x in off)
+            and not any(name_tag(n)[1] and name_tag(n)[0].lower() in (low + "e", low + "um", low + "a", low + "o")
+                        for n in names)
+            and not chemical_looking(low)
+            and (first in off
+                 or any(n.lower() == low + " (tn)" for n in names)
+                 or any(re.fullmatch(re.escape(low) + r" (?:" + DOSAGE_FORMS + r")\b.*", n.lower()) for n in names))):
+        return "brand"
+    if stereo_less:
+        stems = {s for s in CONFIG_SUGAR_STEMS for n in names + [o] if s in n.lower()}
+        if len(stems) >= 2 and (has_stereo_word(o) or configuration_name(o)
+                                or (is_plain_sugar(r["formula"]) and not chemical_looking(o))):
+            return "one configuration's name on a record without stereo"
+    return None
+
+
+def spelling_variant(a, b):
+    """Whether two names differ only in spelling (`nordiazepam`/`nordazepam`,
+    `cephalothin`/`cefalotin`): at most one edit apart once ph/f, th/t, y/i, k/c, ae/e, oe/e
+    are read alike."""
+    def key(w):
+        for x, y in (("ph", "f"), ("th", "t"), ("ae", "e"), ("oe", "e"), ("y", "i"), ("k", "c")):
+            w = w.replace(x, y)
+        return w
+    a, b = key(a), key(b)
+    if abs(len(a) - len(b)) > 1:
+        return False
+    prev = list(range(len(b) + 1))
+    for i, ca in enumerate(a, 1):
+        cur = [i]
+        for j, cb in enumerate(b, 1):
+            cur.append(min(prev[j] + 1, cur[j - 1] + 1, prev[j - 1] + (ca != cb)))
+        prev = cur
+    return prev[-1] <= 1
+
+
+DOSAGE_FORMS = ("otic|ophthalmic|cream|injection|injectable|tablets?|oral|ointment|drops|sterile|"
+                "suspension|capsules?|elixir|syrup|gel|lotion|i\\.v\\.|iv|im|depot|forte|retard|sr|xl|er|la|"
+                "liquifilm|s\\.o\\.p\\.|pediatric|powder|spray|inhaler|aerosol|pulvules|kapseals")
+
+
+def is_plain_sugar(formula):
+    """A monosaccharide or sugar alcohol formula, CnH2nOn or CnH2n+2On (n 3 to 7)."""
+    m = re.fullmatch(r"C(\d)H(\d+)O(\d)", formula or "")
+    if not m:
+        return False
+    c, h, o = map(int, m.groups())
+    return 3 <= c <= 7 and o == c and h in (2 * c, 2 * c + 2)
+
+
+def name_tier(n):
+    """0 a proper name, 1 a systematic name in the `azanyl`/`oxidanyl` style, 2 an inverted
+    index name (`phenol, 2-(...)-4-methyl-`), 3 anything else."""
+    low = n.lower()
+    if proper_name(n, MAX_NAME_LEN):
+        return 0
+    if any(w in low for w in OPENEYE_WORDS) and not low.endswith("-"):
+        return 1
+    if ", " in low:
+        return 2
+    return 3
+
+
+def candidates(r, why, officials):
+    """Replacement names, best first."""
+    o = r["pref"]
+    names = r["names"]
+    out = list(officials)
+    if why == "brand":
+        return out
+    if why == "list tag":
+        # `teloxantrone [inn]` is `teloxantrone`; a trade name `sedotussin (tn)` gives way to
+        # an official name first
+        # (only these: the synonyms of such records are at times another compound's)
+        base, tags = name_tag(o)
+        out = [base] if tags & OFFICIAL_TAGS else out
+        seen, uniq = set(), []
+        for n in out:
+            if n.lower() not in seen and n.lower() != o.lower():
+                seen.add(n.lower())
+                uniq.append(n)
+        return uniq
+    if why == "abbreviation":
+        # only a name the abbreviation stands for (`aflatoxin b1` for `afb1`)
+        out += [n for n in names if expands(o, n) and proper_name(n, 60)]
+        return [n for n in out if n.lower() != o.lower()]
+    if why.startswith("one configuration"):
+        # a systematic name fits a record of no configuration (`hex-2-ulopyranose`)
+        return sorted((n for n in names if name_tier(n) <= 1 and len(n) <= 80 and not configuration_name(n)
+                       and any(ch.isdigit() for ch in n) and not stereo_marked(n)), key=name_tier)
+    if why == "mixture or solution label":
+        # the compound's own name, without the label (`aflatoxin m1 solution`), or a synonym
+        # that names one compound of it (`aflatoxin g1` for `aflatoxin, crude`)
+        stripped = MIXTURE_TAIL.sub("", o.lower()).strip(" ,")
+        if stripped and stripped != o.lower():
+            out += [n for n in names if n.lower().startswith(stripped) and proper_name(n, 80)]
+            if " " in stripped or any(ch.isdigit() for ch in stripped):
+                out.append(stripped)
+    out += [n for n in r.get("retention_names", []) if proper_name(n, 80)]
+    out += [n for n in names if proper_name(n, 80)]
+    if why in ("CAS number", "catalogue code", "formula", "InChIKey"):
+        rest = [n for n in names if useful_name(n) and not CAS_SHAPE.match(n) and not is_code(n)
+                and not is_formula(n) and not name_tag(n)[1] and len(n) <= MAX_NAME_LEN]
+        out += sorted(rest, key=name_tier)
+    if why == "CAS number":
+        # no name at all: say so, with the record's own CAS number (a bare number in the name
+        # column reads as a name, and may be another registry entry than the record's)
+        out.append("unnamed, CAS " + (r["cas"] or o))
+    seen, uniq = set(), []
+    for n in out:
+        if n.lower() not in seen and n.lower() != o.lower():
+            seen.add(n.lower())
+            uniq.append(n)
+    return uniq
+
+
+UNAMBIGUOUS_SALT_WORDS = ("hydrochloride", "hydrobromide", "mesylate", "maleate", "tartrate", "citrate",
+                          "fumarate", "succinate", "besylate", "tosylate", " salt", " hcl", "sodium",
+                          "potassium", "calcium", "magnesium", "lithium", "hydrate")
+
+
+def fits_record(r, n):
+    """Whether a name agrees with the record's stereo and its salt form."""
+    stereo_less = r["key"].split("-")[1:2] == ["UHFFFAOYSA"]
+    if stereo_less and (stereo_marked(n) or configuration_name(n)):
+        return False
+    if not stereo_less and stereo_marked(r["pref"]) and not stereo_marked(n):
+        return False
+    if "." not in r["smiles"] and any(w in n.lower() for w in UNAMBIGUOUS_SALT_WORDS):
+        return False
+    return True
+
+
+def set_skeletons(recs):
+    """Each record's skeleton as kb/ambiguity.rs groups records (a salt with its parent, every
+    stereoisomer together): the first InChIKey block of the largest fragment."""
+    try:
+        from rdkit import Chem, RDLogger
+        RDLogger.DisableLog("rdApp.*")
+    except ImportError:
+        Chem = None
+    for r in recs:
+        r["skel"] = r["key"].split("-")[0]
+        if Chem is None or "." not in r["smiles"]:
+            continue
+        frags = [f for f in r["smiles"].split(".")]
+        m = Chem.MolFromSmiles(max(frags, key=lambda f: (sum(ch.isalpha() for ch in f), f)))
+        if m is not None:
+            k = Chem.MolToInchiKey(m)
+            if k:
+                r["skel"] = k.split("-")[0]
+
+
+def rename_preferred(recs, report=None):
+    """Replace recognisably bad preferred names (see `bad_preferred_name`) by a synonym that is
+    a proper name; the old name stays a synonym. A replacement is taken only when no other
+    record has it as preferred name and when the names involved resolve, in the built base, to
+    what they resolved to before (checked on a model of kb/build.rs's name ranks): renaming never
+    moves a name to another compound nor settles an ambiguity."""
+    idx = NameIndex(recs)
+    pref_of = {}
+    for i, r in enumerate(recs):
+        pref_of.setdefault(normalise(r["pref"]), set()).add(i)
+    renamed, kept = 0, {}
+    for i, r in enumerate(recs):
+        # official names from all the source's synonyms (beyond the cap on stored synonyms)
+        officials = [n for n in official_names(r.get("all_names", r["names"])) if fits_record(r, n)]
+        why = bad_preferred_name(r, officials)
+        if not why:
+            continue
+        o = r["pref"]
+        done = False
+        for n in candidates(r, why, officials):
+            if not fits_record(r, n):
+                continue
+            nn, on = normalise(n), normalise(o)
+            if not nn or pref_of.get(nn, set()) - {i}:
+                continue
+            if n.isupper() and len(n) > 5:
+                n = n.lower()
+            before = (idx.decision(on), idx.decision(nn))
+            names = list(r["names"])
+            if o not in names:
+                names.insert(1 if names else 0, o)
+            old_names = r["names"]
+            idx.replace(i, n, names)
+            after = (idx.decision(on), idx.decision(nn))
+            if before[1][0] is None and after[1][0] == i:
+                before = (before[0], after[1])   # a name new to the base (`aflatoxin m1`) finds this record
+            if after != before:
+                idx.replace(i, o, old_names)
+                continue
+            pref_of[on].discard(i)
+            pref_of.setdefault(nn, set()).add(i)
+            renamed += 1
+            if report is not None:
+                report.append((r["key"], why, o, n))
+            done = True
+            break
+        if not done:
+            kept[why] = kept.get(why, 0) + 1
+    print(f"preferred names replaced: {renamed}; bad names kept for want of a safe replacement: {kept}",
+          file=sys.stderr)
+
+
 def main():
     ap = argparse.ArgumentParser()
     ap.add_argument("--chemicals-wheel")
     ap.add_argument("--retention", default=os.path.join(ROOT, "..", "shared", "data", "retention", "retention.tsv"))
+    ap.add_argument("--renames", help="write the replaced preferred names (TSV) to this file")
     ap.add_argument("--pka", default=os.path.join(ROOT, "..", "shared", "data", "pka", "pka_train.tsv"))
     a = ap.parse_args()
     wheel = a.chemicals_wheel or fetch_wheel()
@@ -320,7 +876,7 @@ def main():
             with gzip.GzipFile(fileobj=fh, mode="wb", compresslevel=9, mtime=0, filename="") as g:
                 g.write(buf.getvalue().encode("utf-8"))
 
-    rows = []
+    recs = []
     for k in sorted(compounds):
         c = compounds[k]
         names = []
@@ -339,8 +895,21 @@ def main():
         names = names[:MAX_SYNONYMS]
         # "|" separates synonyms; drop it from names themselves (very rare)
         names = [n.replace("|", "/") for n in names]
+        recs.append(dict(key=c["key"], cid=c["cid"], cas=c["cas"], smiles=c["smiles"], formula=c["formula"], pref=c["pref"].replace("|", "/"),
+                         names=names, all_names=c["names"], retention_names=ret, c=c))
+    set_skeletons(recs)
+    report = []
+    rename_preferred(recs, report)
+    if a.renames:
+        with open(a.renames, "w", encoding="utf-8") as fh:
+            fh.write("inchikey\twhy\tsource preferred name\tpreferred name\n")
+            for row in report:
+                fh.write("\t".join(row) + "\n")
+    rows = []
+    for r in recs:
+        c = r["c"]
         rows.append([c["key"], c["cid"], c["cas"], c["formula"], c["mw"], c["smiles"],
-                     c["pref"].replace("|", "/"), c["source"], "|".join(names)])
+                     r["pref"], c["source"], "|".join(r["names"])])
     write_gz(os.path.join(OUT, "compounds.tsv.gz"),
              ["inchikey", "cid", "cas", "formula", "molar_mass_g_mol", "smiles", "preferred_name", "table", "synonyms"], rows)
 

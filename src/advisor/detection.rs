@@ -144,6 +144,26 @@ pub fn for_lc(profiles: &[AnalyteProfile], named: Detector) -> (Detector, Reason
             )),
         );
     }
+    // semivolatile analytes without a chromophore are lost by aerosol detectors: MS
+    let volatile: Vec<&str> = known
+        .iter()
+        .filter(|p| !p.chromophore.is_some_and(ChromophoreClass::uv_suitable))
+        .filter(|p| p.tb_k.is_some_and(|(t, _)| t < AEROSOL_MIN_TB_K))
+        .map(|p| p.name())
+        .collect();
+    if !volatile.is_empty() && !known.iter().all(|p| ionises(p)) {
+        return (
+            Detector::Ms,
+            rule(format!(
+                "no detector named: {} ha{} no UV chromophore and {} boil{} below about {AEROSOL_MIN_TB_K:.0} K, so an aerosol detector would lose {} with the eluent; mass spectrometry (atmospheric-pressure chemical ionisation, or electrospray with ammonium or sodium adducts for neutral analytes; volatile buffer) is chosen; a derivatisation is the alternative (common practice, no source){unknown_note}",
+                without.join(", "),
+                if without.len() == 1 { "s" } else { "ve" },
+                volatile.join(", "),
+                if volatile.len() == 1 { "s" } else { "" },
+                if volatile.len() == 1 { "it" } else { "them" }
+            )),
+        );
+    }
     if known.iter().all(|p| ionises(p)) {
         (
             Detector::Ms,
@@ -165,22 +185,67 @@ pub fn for_lc(profiles: &[AnalyteProfile], named: Detector) -> (Detector, Reason
     }
 }
 
-/// Chlorine and bromine atoms of an analyte.
+/// Boiling point above which an analyte counts as semivolatile for detection: a charged-aerosol
+/// detector loses analytes more volatile than this with the evaporated eluent, and two Cl/Br
+/// atoms on such an analyte (halogenated pesticides) are enough for electron capture
+/// (common practice, no source).
+const SEMIVOLATILE_TB_K: f64 = 450.0;
+
+/// Boiling point below which a charged-aerosol (or light-scattering) detector is not chosen:
+/// the analyte evaporates with the eluent in the detector's drying step (common practice,
+/// no source; the detector needs analytes clearly less volatile than the mobile phase).
+const AEROSOL_MIN_TB_K: f64 = 600.0;
+
+/// Electron-capturing groups of an analyte: each chlorine, bromine or iodine atom, each nitro
+/// group, and each three fluorine atoms (a trifluoromethyl group captures about as one
+/// chlorine does; fluorine alone captures weakly). Common practice, no source.
 fn cl_br(p: &AnalyteProfile) -> usize {
     p.estimate.as_ref().map_or(0, |e| {
-        e.graph
-            .atoms
+        let atoms = &e.graph.atoms;
+        let heavy = atoms
             .iter()
-            .filter(|a| matches!(a.atomic_number, 17 | 35))
-            .count()
+            .filter(|a| matches!(a.atomic_number, 17 | 35 | 53))
+            .count();
+        let fluorine = atoms.iter().filter(|a| a.atomic_number == 9).count();
+        // a nitro group: N bonded to two O, one of them charged or both double-bonded
+        let nitro = (0..atoms.len())
+            .filter(|&i| atoms[i].atomic_number == 7)
+            .filter(|&i| {
+                e.graph
+                    .bonds
+                    .iter()
+                    .filter(|b| b.a == i || b.b == i)
+                    .filter(|b| atoms[if b.a == i { b.b } else { b.a }].atomic_number == 8)
+                    .count()
+                    >= 2
+            })
+            .count();
+        heavy + nitro + fluorine / 3
     })
 }
 
 /// The GC detector in plain words, with its reason: the user's (FID, ECD or MS), else electron
-/// capture when at least half the analytes carry three or more Cl/Br atoms, else flame
-/// ionisation; mass spectrometry named for confirmation.
+/// capture when at least half the analytes carry three or more electron-capturing groups (two on a semivolatile analyte), else a phosphorus-selective detector or MS when half contain phosphorus, else flame
+/// ionisation; mass spectrometry named for confirmation. Electron-capturing groups are
+/// counted as in `cl_br` (each Cl, Br, I, nitro group, or three F).
 pub fn for_gc(profiles: &[AnalyteProfile], named: Detector) -> (String, Reason) {
-    let poly = profiles.iter().filter(|p| cl_br(p) >= 3).count();
+    // three or more Cl/Br atoms, or two on a semivolatile analyte (boiling above 450 K:
+    // halogenated pesticides such as pyrethroids, not dichlorinated solvents, which labs run
+    // at levels flame ionisation sees)
+    let poly = profiles
+        .iter()
+        .filter(|p| {
+            cl_br(p) >= 3 || (cl_br(p) >= 2 && p.tb_k.is_some_and(|(t, _)| t > SEMIVOLATILE_TB_K))
+        })
+        .count();
+    let phosphorus = profiles
+        .iter()
+        .filter(|p| {
+            p.estimate
+                .as_ref()
+                .is_some_and(|e| e.graph.atoms.iter().any(|a| a.atomic_number == 15))
+        })
+        .count();
     let rule = |text: String| Reason {
         source: "rule:detector-from-structure".into(),
         text,
@@ -223,9 +288,16 @@ pub fn for_gc(profiles: &[AnalyteProfile], named: Detector) -> (String, Reason) 
             )
         }
         _ if 2 * poly >= profiles.len().max(1) => (
-            "electron capture (halogenated analytes), 300 °C; confirm on a second column of another polarity or by mass spectrometry".into(),
+            "electron capture (halogenated or nitro analytes), 300 °C; confirm on a second column of another polarity or by mass spectrometry".into(),
             rule(format!(
-                "no detector named: {poly} of {} analytes carry three or more chlorine or bromine atoms, so electron capture (selective and sensitive for them) is chosen; mass spectrometry confirms identity (common practice, no source)",
+                "no detector named: {poly} of {} analytes carry three or more electron-capturing groups (Cl, Br, I, nitro, or three F; two on a semivolatile analyte), so electron capture (selective and sensitive for them) is chosen; mass spectrometry confirms identity (common practice, no source)",
+                profiles.len()
+            )),
+        ),
+        _ if 2 * phosphorus >= profiles.len().max(1) => (
+            "mass spectrometry (electron ionisation), or a phosphorus-selective detector (flame photometric in phosphorus mode, or nitrogen-phosphorus)".into(),
+            rule(format!(
+                "no detector named: {phosphorus} of {} analytes contain phosphorus (organophosphorus pesticides), which phosphorus-selective detectors see at trace levels in matrix, and mass spectrometry identifies; flame ionisation sees them but not selectively (common practice, no source)",
                 profiles.len()
             )),
         ),
@@ -292,12 +364,19 @@ mod tests {
         // sugars: no chromophore, not ionised: an aerosol detector
         let sugars = [
             test_profile("glucose", "OCC1OC(O)C(O)C(O)C1O"),
-            test_profile("glycerol", "OCC(O)CO"),
+            test_profile("sorbitol", "OCC(O)C(O)C(O)C(O)CO"),
         ];
         assert_eq!(
             for_lc(&sugars, Detector::FromStructure).0,
             Detector::ChargedAerosol
         );
+        // semivolatile neutrals without a chromophore (an aliphatic ester and ether): an aerosol
+        // detector would lose them, MS is chosen
+        let volatile = [
+            test_profile("dibutyl adipate", "CCCCOC(=O)CCCCC(=O)OCCCC"),
+            test_profile("dibutyl ether", "CCCCOCCCC"),
+        ];
+        assert_eq!(for_lc(&volatile, Detector::FromStructure).0, Detector::Ms);
         // amino acids and perfluorinated acids: no chromophore but ionised: MS
         let ions = [
             test_profile("glycine", "NCC(=O)O"),
@@ -330,6 +409,40 @@ mod tests {
                 .0
                 .contains("flame ionisation")
         );
+        // pyrethroids (two Cl or Br on a semivolatile ester; common practice for their residue
+        // analysis by electron capture, from memory)
+        let pyrethroids = [
+            test_profile(
+                "permethrin",
+                "CC1(C)C(C=C(Cl)Cl)C1C(=O)OCc1cccc(Oc2ccccc2)c1",
+            ),
+            test_profile(
+                "deltamethrin",
+                "CC1(C)C(C=C(Br)Br)C1C(=O)OC(C#N)c1cccc(Oc2ccccc2)c1",
+            ),
+        ];
+        assert!(
+            for_gc(&pyrethroids, Detector::FromStructure)
+                .0
+                .contains("electron capture")
+        );
+        // dichlorinated solvents stay on flame ionisation
+        let chlorinated = [
+            test_profile("dichloromethane", "ClCCl"),
+            test_profile("1,2-dichloroethane", "ClCCCl"),
+        ];
+        assert!(
+            for_gc(&chlorinated, Detector::FromStructure)
+                .0
+                .contains("flame ionisation")
+        );
+        // organophosphorus pesticides: a phosphorus-selective detector or MS
+        let ops = [
+            test_profile("diazinon", "CCOP(=S)(OCC)Oc1cc(C)nc(n1)C(C)C"),
+            test_profile("malathion", "CCOC(=O)CC(SP(=S)(OC)OC)C(=O)OCC"),
+        ];
+        let d = for_gc(&ops, Detector::FromStructure).0;
+        assert!(d.contains("phosphorus"), "{d}");
         let (_, r) = for_gc(&solvents, Detector::Ecd);
         assert!(r.text.contains("no halogen"), "{}", r.text);
     }

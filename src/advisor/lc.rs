@@ -770,13 +770,16 @@ pub fn rules(
         let halo = profiles
             .iter()
             .filter(|p| p.halogens() > 0 && p.aromatic_rings() > 0)
-            .count();
+            .count() as f64
+            / n;
         let formulas: Vec<Option<String>> =
             profiles.iter().map(|p| p.analyte.formula.clone()).collect();
-        let isomers = formulas
+        let isomer_share = formulas
             .iter()
-            .enumerate()
-            .any(|(i, f)| f.is_some() && formulas[i + 1..].contains(f));
+            .filter(|f| f.is_some() && formulas.iter().filter(|g| g == f).count() > 1)
+            .count() as f64
+            / n;
+        let isomers = isomer_share > 0.0;
         let bases = profiles
             .iter()
             .filter(|p| {
@@ -805,18 +808,39 @@ pub fn rules(
             "rp-mixed-mode-c18-scx" => rule("rule:mixed-mode-for-bases", "mixed-mode C18/cation exchange retains protonated bases".into(), if bases > 0 { 0.05 } else { -0.1 }),
             _ => {}
         }
+        // a selectivity rule weighs in proportion to the share of analytes it concerns, and
+        // the selectivity rules of one phenyl-type phase together never outweigh C18's
+        // general-purpose rule (0.12): C18 is where a new method starts, and a phenyl-type or
+        // PFP phase is chosen first only when it is predicted to separate better
+        // (rule:selectivity-by-share; common practice, no source)
+        let mut phenyl_bonus = 0.0;
         if id.contains("phenyl") || id.contains("pfp") {
+            let w = if pi_rich >= 0.3 {
+                0.12 * (pi_rich / 0.6).min(1.0)
+            } else {
+                0.0
+            };
+            phenyl_bonus += w;
             rule(
                 "rule:pi-rich-analytes",
                 format!(
-                    "{:.0} % of analytes have two or more aromatic rings: phenyl-type phases add pi-pi selectivity",
+                    "{:.0} % of analytes have two or more aromatic rings: phenyl-type phases add pi-pi selectivity (full weight from 60 %)",
                     pi_rich * 100.0
                 ),
-                if pi_rich >= 0.3 { 0.12 } else { 0.0 },
+                w,
             );
         }
-        if id == "rp-pfp" && (halo > 0 || isomers) {
-            rule("rule:halogenated-or-positional-isomers", "halogenated aromatics or positional isomers: pentafluorophenyl adds dipole and shape selectivity".into(), 0.12);
+        if id == "rp-pfp" && (halo > 0.0 || isomers) {
+            let share = halo.max(isomer_share);
+            let w = (0.12 * share).min((0.12 - phenyl_bonus).max(0.0));
+            rule(
+                "rule:halogenated-or-positional-isomers",
+                format!(
+                    "{:.0} % of analytes are halogenated aromatics or positional isomers: pentafluorophenyl adds dipole and shape selectivity (weight by share; with the pi-pi rule at most that of C18's general-purpose rule)",
+                    share * 100.0
+                ),
+                w,
+            );
         }
         if id == "rp-biphenyl" && isomers {
             rule(

@@ -362,6 +362,21 @@ pub fn advise(
             }
         }
     }
+    // the best-fitting mode could not be evaluated at all (no retention data for these
+    // analytes there): say so plainly, so that the ranked methods of another mode are not read
+    // as the best fit (unknown is unknown)
+    if let Some(best) = mode_scores.first()
+        && !candidates.is_empty()
+        && !candidates.iter().any(|c| c.rec.mode == best.mode)
+        && let Some(m) = PhaseMode::parse(&best.mode)
+    {
+        warnings.push(format!(
+            "the analytes fit {} best (mode score {:.2}), but no phase of that mode could be evaluated (see above): its retention cannot be predicted for them, so the methods below come from the next modes; consider {} with scouting runs",
+            detection::mode_words(m),
+            best.score,
+            detection::mode_words(m)
+        ));
+    }
     if candidates.is_empty() {
         let why: Vec<&str> = warnings
             .iter()
@@ -633,7 +648,14 @@ pub fn separation_score_counting(
     let s = (0.7 * rs_part + 0.3 * (1.0 - penalty)).clamp(0.0, 1.0);
     let text = match &rec.critical_pair {
         Some((a, b)) => format!(
-            "predicted critical pair {a} / {b} at resolution {predicted:.2}{}; {} pair(s) with co-elution probability above 0.2",
+            "predicted critical pair {a} / {b} at resolution {}{}; {} pair(s) with co-elution probability above 0.2",
+            // beyond 50 a predicted resolution only says "far apart" (and past the end of the
+            // program, nothing): the number is not printed
+            if predicted > 50.0 {
+                "above 50".to_string()
+            } else {
+                format!("{predicted:.2}")
+            },
             credible
                 .as_ref()
                 .map_or(String::new(), |c| format!("; {}", c.1)),

@@ -16,7 +16,9 @@ fn logistic(x: f64) -> f64 {
 }
 
 /// A neutral, low-polarity analyte that GC handles as is: no H-bond donor, polar surface
-/// area at most 40 Å², no group ionised between pH 2 and 12, GC-suitable and boiling below
+/// area at most 40 Å² (or at most 80 Å² with logP at least 3, where the hydrocarbon part
+/// dominates: organophosphorus and pyrethroid pesticides), no group ionised between pH 2 and
+/// 12, GC-suitable and boiling below
 /// [`GC_MAX_TB_K`] (hydrocarbons, halogenated pesticides and PCBs, esters including fatty-acid
 /// methyl esters, ethers, ketones). GC is the usual technique for these classes (rule
 /// `rule:gc-volatile-neutral-class`; common practice, no source).
@@ -27,7 +29,8 @@ pub fn gc_neutral_class(p: &AnalyteProfile) -> bool {
     p.gc_verdict() == Some(GcVerdict::Suitable)
         && !p.inorganic_ion
         && e.descriptors.hbond_donors == 0
-        && e.descriptors.tpsa_a2 <= 40.0
+        && (e.descriptors.tpsa_a2 <= 40.0
+            || (e.descriptors.tpsa_a2 <= 80.0 && p.log_p.is_some_and(|(l, _)| l >= 3.0)))
         && p.tb_k.is_some_and(|(t, _)| t <= GC_MAX_TB_K)
         && !p.sites.iter().any(|s| {
             matches!(s.kind, SiteKind::PermanentAnion | SiteKind::PermanentCation)
@@ -35,7 +38,49 @@ pub fn gc_neutral_class(p: &AnalyteProfile) -> bool {
         })
 }
 
-/// A small organic acid that ion exclusion serves: a carboxylic acid (pKa below 6), no basic
+/// Acids with a pKa below this are strong: fully ionised at the pH of an ion-exclusion eluent
+/// (dilute sulfuric acid, about pH 2.3-2.5) and so excluded to the void there, and barely
+/// retained by reversed phase at any usable pH (haloacetic acids, perfluorinated short-chain
+/// acids, sulfonic acids). Common practice, no source.
+pub const STRONG_ACID_MAX_PKA: f64 = 2.5;
+
+/// Anion-exchange fit of a small hydrophilic acid of pKa `k`: the stronger the acid, the better
+/// anion exchange suits it; 0.9 at pKa 2.5 and below, 0.6 at 4.5 and above
+/// (rule `rule:strong-acids-to-anion-exchange`).
+fn anion_exchange_fit_for_acid(k: f64) -> f64 {
+    0.6 + 0.3 * ((4.5 - k) / 2.0).clamp(0.0, 1.0)
+}
+
+/// Highest reversed-phase fit of a small hydrophilic acid of pKa `k`: ionised at every pH
+/// silica allows when strong; 0.6 at pKa 1.5 and below, 1 at 3.5 and above
+/// (rule `rule:strong-acids-to-anion-exchange`).
+fn rp_cap_for_acid(k: f64) -> f64 {
+    0.6 + 0.4 * ((k - 1.5) / 2.0).clamp(0.0, 1.0)
+}
+
+/// The lowest acid pKa of a small hydrophilic acid: an acid site with a known pKa, no basic
+/// group above pKa 8 (not a zwitterion), molar mass below 250 g/mol and logP below 2; `None`
+/// otherwise. Anion exchange suits it the better the stronger it is, and reversed phase the
+/// worse (rule `rule:strong-acids-to-anion-exchange`; common practice for haloacetic acids by
+/// ion chromatography, from memory).
+pub fn small_acid_pka(p: &AnalyteProfile) -> Option<f64> {
+    let mw = p.molar_mass_g_mol.unwrap_or(f64::INFINITY);
+    if p.inorganic_ion
+        || p.strong_base(8.0)
+        || mw >= 250.0
+        || !p.log_p.is_some_and(|(l, _)| l < 2.0)
+    {
+        return None;
+    }
+    p.sites
+        .iter()
+        .filter(|s| s.kind == SiteKind::Acid)
+        .filter_map(|s| s.pka)
+        .min_by(f64::total_cmp)
+}
+
+/// A small organic acid that ion exclusion serves: a carboxylic acid (pKa below 6, and not a
+/// strong acid, which the eluent's low pH leaves ionised and the resin excludes), no basic
 /// group above pKa 8 (not an amino acid), molar mass below 250 g/mol and logP below 1.5
 /// (rule `rule:ion-exclusion-organic-acids`; common practice, no source).
 pub fn small_organic_acid(p: &AnalyteProfile) -> bool {
@@ -44,6 +89,10 @@ pub fn small_organic_acid(p: &AnalyteProfile) -> bool {
         && p.sites
             .iter()
             .any(|s| s.kind == SiteKind::Acid && s.pka.is_some_and(|k| k < 6.0))
+        && !p
+            .sites
+            .iter()
+            .any(|s| s.kind == SiteKind::Acid && s.pka.is_some_and(|k| k < STRONG_ACID_MAX_PKA))
         && !p.strong_base(8.0)
         && mw < 250.0
         && p.log_p.is_some_and(|(l, _)| l < 1.5)
@@ -177,6 +226,22 @@ pub fn fit(p: &AnalyteProfile, mode: PhaseMode) -> (f64, String) {
                 ),
                 None => (0.3, "unknown: no logP known".into()),
             };
+            let (f, why) = match small_acid_pka(p) {
+                Some(k) if k < 3.5 => {
+                    let cap = rp_cap_for_acid(k);
+                    if f > cap {
+                        (
+                            cap,
+                            format!(
+                                "{why}; but a small hydrophilic acid of pKa {k:.1} stays largely ionised at every pH silica allows (pH 2 and above), so reversed phase retains it weakly unless ion-paired: fit at most {cap:.2} (rule:strong-acids-to-anion-exchange)"
+                            ),
+                        )
+                    } else {
+                        (f, why)
+                    }
+                }
+                _ => (f, why),
+            };
             measured_rp_fit(p, f, why)
         }
         PhaseMode::Hilic => match p.log_d(3.0) {
@@ -199,6 +264,22 @@ pub fn fit(p: &AnalyteProfile, mode: PhaseMode) -> (f64, String) {
                         .map_or("inorganic or small anion".into(), |i| {
                             format!("{} (rule:ions-to-ic)", i.how)
                         }),
+                )
+            } else if let Some(k) = small_acid_pka(p).filter(|k| *k < 6.0) {
+                // the stronger the acid, the more anion exchange suits it (and the less
+                // reversed phase): 0.9 at pKa 2.5 and below, 0.6 at 4.5 and above
+                let f = anion_exchange_fit_for_acid(k);
+                (
+                    f,
+                    if k < STRONG_ACID_MAX_PKA {
+                        format!(
+                            "strong acid (pKa {k:.1}): an anion at every eluent pH, retained and separated by anion exchange, while reversed phase barely retains it and ion exclusion excludes it (rule:strong-acids-to-anion-exchange)"
+                        )
+                    } else {
+                        format!(
+                            "small hydrophilic acid (pKa {k:.1}): anionic at the eluent pH (rule:strong-acids-to-anion-exchange)"
+                        )
+                    },
                 )
             } else if p.has_acid() && mw < 200.0 && p.log_p.is_some_and(|(l, _)| l < 1.0) {
                 (
@@ -336,6 +417,26 @@ mod tests {
     use crate::advisor::profile::{AnalyteProfile, test_profile};
     use crate::property::{Analyte, Origin};
 
+    /// Directions of the acid-strength rule over the whole pKa range: a stronger acid never
+    /// fits anion exchange worse nor reversed phase better; both stay inside 0-1 (common
+    /// practice, no source).
+    #[test]
+    fn acid_strength_moves_anion_exchange_up_and_reversed_phase_down() {
+        let mut last = (f64::INFINITY, f64::NEG_INFINITY);
+        for i in 0..=140 {
+            let k = -1.0 + 0.1 * f64::from(i);
+            let (ic, rp) = (anion_exchange_fit_for_acid(k), rp_cap_for_acid(k));
+            assert!(
+                (0.0..=1.0).contains(&ic) && (0.0..=1.0).contains(&rp),
+                "pKa {k}"
+            );
+            assert!(ic <= last.0 + 1e-12 && rp >= last.1 - 1e-12, "pKa {k}");
+            last = (ic, rp);
+        }
+        assert!(anion_exchange_fit_for_acid(0.7) > anion_exchange_fit_for_acid(4.8));
+        assert!(rp_cap_for_acid(0.7) < rp_cap_for_acid(4.8));
+    }
+
     // Expectations: common practice, no source.
     #[test]
     fn missing_evidence_never_favours_gc() {
@@ -356,9 +457,14 @@ mod tests {
         let (f, why) = fit(&p, PhaseMode::Gc);
         assert_eq!(f, 0.0);
         assert!(why.starts_with("unknown"), "{why}");
-        // no boiling point (Joback has no silicon group)
-        let (f, why) = fit(&test_profile("tms", "C[Si](C)(C)C"), PhaseMode::Gc);
+        // no boiling point: neither Joback nor the index route has groups for boron
+        let (f, why) = fit(&test_profile("triethylborane", "CCB(CC)CC"), PhaseMode::Gc);
         assert_eq!(f, 0.0, "{why}");
+        // Joback has no silicon group, but the retention-index route gives the elution of
+        // tetramethylsilane (boiling point 26.6 °C, handbook value, from memory), so it is
+        // volatile, not unknown (rule:gc-elution-by-index)
+        let (f, why) = fit(&test_profile("tms", "C[Si](C)(C)C"), PhaseMode::Gc);
+        assert!(f > 0.9, "{why}");
         // ions of the ion table, whatever the name: not GC, IC
         for (name, smi) in [
             ("sodium", "[Na]"),

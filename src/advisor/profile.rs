@@ -9,7 +9,9 @@ use crate::property::{Analyte, Origin, PropertyKind};
 use crate::structure::chromophore::{ChromophoreClass, classify};
 use crate::structure::graph::{BondOrder, MolGraph};
 use crate::structure::ionisable::{AcidBase, IonisableSite, SiteKind, apply_experimental};
-use crate::structure::volatility::{GcAssessment, GcVerdict, assess_gc};
+use crate::structure::volatility::{
+    GC_HIGH_TB_K, GcAssessment, GcVerdict, TbSource, assess_gc, assess_gc_with_tb,
+};
 
 /// The ion of the ion-chromatography table an analyte is, or is analysed as (a salt by its
 /// ion), whatever name the user gave it.
@@ -26,6 +28,44 @@ pub struct IonMatch {
 /// Counter-ions that a salt is rarely analysed for: a salt of one of them is analysed by its
 /// other ion (sodium nitrate by nitrate); common practice, no source.
 const COMMON_COUNTER_IONS: [&str; 3] = ["sodium", "potassium", "chloride"];
+
+/// Most N-H and O-H hydrogens for which the index route ([`elution_by_index`]) is used: the
+/// boiling point of an H-bond donor is raised by self-association that a dimethylpolysiloxane
+/// index does not see, and its adsorption and lability are what limit it in GC.
+const INDEX_ROUTE_MAX_DONOR_H: u32 = 1;
+
+/// The GC assessment with the alkane-equivalent boiling point of the retention index predicted
+/// on dimethylpolysiloxane (solvation-parameter model, `model::gc::solvation`) in place of the
+/// Joback estimate: elution in GC is decided by the index, and the index route covers elements
+/// Joback has no groups for (organophosphorus pesticides) and large non-polar molecules where
+/// Joback's error grows to 30-70 K (pyrethroids). Used only when no experimental boiling point
+/// is known, the Joback estimate is missing or above `GC_HIGH_TB_K`, and the analyte has at
+/// most [`INDEX_ROUTE_MAX_DONOR_H`] N-H/O-H hydrogens (rule:gc-elution-by-index; the n-alkane
+/// boiling points of Kreglewski & Zwolinski 1961, from memory). The 1σ is the index's,
+/// converted, and never below the Joback floor. `None` when the model gives no index.
+fn elution_by_index(graph: &MolGraph) -> Option<GcAssessment> {
+    let donor_h: u32 = graph
+        .atoms
+        .iter()
+        .filter(|a| matches!(a.atomic_number, 7 | 8))
+        .map(|a| u32::from(a.hydrogens))
+        .sum();
+    if donor_h > INDEX_ROUTE_MAX_DONOR_H {
+        return None;
+    }
+    let cat = crate::phase::Catalogue::builtin().ok()?;
+    let phase = cat.phase("gc-dimethyl").ok()?;
+    let ri = crate::model::gc::predict_retention_index_from_structure(graph, phase).ok()?;
+    if !(ri.retention_index.is_finite() && ri.retention_index > 0.0) {
+        return None;
+    }
+    let n = ri.retention_index / 100.0;
+    let tb = crate::model::gc::alkane_boiling_point_k(n);
+    let slope = crate::model::gc::alkane_boiling_point_k(n + 0.5)
+        - crate::model::gc::alkane_boiling_point_k(n - 0.5);
+    let sigma = (ri.sigma_ri / 100.0 * slope).max(JOBACK_TB_SIGMA_FLOOR_K);
+    assess_gc_with_tb(graph, tb, sigma, TbSource::AlkaneEquivalentFromIndex).ok()
+}
 
 /// Match an analyte to the ion table: by the name or query as typed (`fluoride`, `methylamine`),
 /// by the words of a salt name (`potassium nitrate`), or by the components of a salt SMILES.
@@ -226,6 +266,12 @@ impl AnalyteProfile {
             .filter(|(_, k)| *k == PropertyKind::Experimental || user_tb)
             .map(|(v, _)| v);
         let gc = est.as_ref().and_then(|e| assess_gc(&e.graph, exp_tb).ok());
+        let gc = match (gc, exp_tb, est.as_ref()) {
+            (Some(g), None, Some(e)) if g.tb_k.is_none_or(|t| t > GC_HIGH_TB_K) => {
+                Some(elution_by_index(&e.graph).unwrap_or(g))
+            }
+            (gc, _, _) => gc,
+        };
         // one boiling point and one uncertainty for every decision (docs/science.md §
         // boiling point): experimental, else the GC assessment's corrected Joback estimate
         let (tb_k, tb_sigma_k) = match (exp_tb, gc.as_ref().and_then(|g| g.tb_k)) {

@@ -200,11 +200,22 @@ pub fn resolve_all(kb: &Kb, entries: &[ListEntry]) -> Result<(Vec<Analyte>, Vec<
     let resolved = kb.resolve_panel(&queries)?;
     for (e, r) in entries.iter().zip(resolved) {
         match r {
+            // an explicit ion form (`ClO3-`) never resolves to an uncharged record that holds
+            // it as a synonym (the chlorine trioxide radical): the ion table's ion is meant
             Resolution::Found(mut a) => {
-                if let Some(l) = &e.label {
-                    a.query = l.clone();
+                let uncharged = !a.formula.as_deref().is_some_and(|f| f.contains(['+', '-']));
+                match (explicit_ion_form(&e.query) && uncharged)
+                    .then(|| ion_table_entry(&e.query))
+                    .flatten()
+                {
+                    Some(ion) => found.push(ion_analyte(ion, e.label.as_deref(), &e.query)),
+                    None => {
+                        if let Some(l) = &e.label {
+                            a.query = l.clone();
+                        }
+                        found.push(*a);
+                    }
                 }
-                found.push(*a);
             }
             Resolution::StructureOnly { query, smiles } => found.push(Analyte {
                 query: e.label.clone().unwrap_or_else(|| query.trim().to_string()),
@@ -219,15 +230,56 @@ pub fn resolve_all(kb: &Kb, entries: &[ListEntry]) -> Result<(Vec<Analyte>, Vec<
                 matched_by: "smiles (not in knowledge base)".into(),
                 properties: Vec::new(),
             }),
-            Resolution::Unresolved(mut u) => {
-                if let Some(l) = &e.label {
-                    u.query = format!("{l} ({})", u.query);
+            Resolution::Unresolved(mut u) => match ion_table_entry(&u.query) {
+                Some(ion) => found.push(ion_analyte(ion, e.label.as_deref(), &u.query)),
+                None => {
+                    if let Some(l) = &e.label {
+                        u.query = format!("{l} ({})", u.query);
+                    }
+                    missing.push(u)
                 }
-                missing.push(u)
-            }
+            },
         }
     }
     Ok((found, missing))
+}
+
+/// The ion of the ion-chromatography table (`data/ic_ions.tsv`) a name the knowledge base does
+/// not hold denotes (`chlorate`, `ClO3-`): chromatographers analyse these ions, so every one of
+/// them resolves, as the ion (issue 13: oxyanions present as ions).
+fn ion_table_entry(query: &str) -> Option<&'static phasewise::phase::IcIon> {
+    phasewise::phase::Catalogue::builtin()
+        .ok()?
+        .ic_ion(query.trim())
+        .ok()
+}
+
+/// Whether a query is written as an ion: a formula-like token ending in a charge sign
+/// (`ClO3-`, `SO4 2-`, `Na+`).
+fn explicit_ion_form(query: &str) -> bool {
+    let q = query.trim();
+    q.ends_with(['+', '-']) && q.len() > 1 && !q.contains(char::is_whitespace)
+        || q.split_whitespace().count() == 2
+            && q.split_whitespace().nth(1).is_some_and(|c| {
+                c.ends_with(['+', '-']) && c[..c.len() - 1].chars().all(|d| d.is_ascii_digit())
+            })
+}
+
+/// An analyte for an ion of the ion table, known by its structure only.
+fn ion_analyte(ion: &phasewise::phase::IcIon, label: Option<&str>, query: &str) -> Analyte {
+    Analyte {
+        query: label.map_or_else(|| query.trim().to_string(), str::to_string),
+        name: ion.name().to_string(),
+        inchikey: None,
+        smiles: Some(ion.smiles().to_string()),
+        formula: Some(ion.formula().to_string()),
+        molar_mass_g_mol: None,
+        cid: None,
+        cas: None,
+        origin: Origin::Structure,
+        matched_by: "ion of the ion-chromatography table (not in the knowledge base)".into(),
+        properties: Vec::new(),
+    }
 }
 
 /// The user's stored scouting fits (`scout --store`) of the resolved analytes, as the model

@@ -115,6 +115,20 @@ fn ring_chain_family(r: &Row) -> (String, bool) {
         .unwrap_or_else(|| (r.skeleton.clone(), false))
 }
 
+/// Whether a record's structure carries an unpaired electron (a radical).
+fn is_radical(r: &Row) -> bool {
+    r.candidate
+        .smiles
+        .as_deref()
+        .and_then(|s| {
+            let keep = crate::structure::adapter::ParseOptions {
+                allow_radicals: true,
+            };
+            crate::structure::adapter::parse_smiles_with(s, &keep).ok()
+        })
+        .is_some_and(|p| p.graph.atoms.iter().any(|a| a.radical_electrons > 0))
+}
+
 /// Rank of a name as [`super::resolve`] orders it (a stereoisomer's name without descriptor,
 /// rank 3, counts as a preferred name).
 fn effective_rank(rank: i64) -> i64 {
@@ -195,7 +209,17 @@ fn common_form(raw: &str, rows: &[Row]) -> Option<NameDecision> {
 /// # Errors
 /// SQLite failures.
 pub fn decide(conn: &Connection, raw: &str, norm: &str) -> rusqlite::Result<NameDecision> {
-    let rows = rows(conn, norm)?;
+    let mut rows = rows(conn, norm)?;
+    // a radical record never competes with a closed-shell one for a name: PubChem files some
+    // names of a compound on its radical as well (`2-methylphenol` on the 2-hydroxybenzyl
+    // radical), and a chromatographer never means the radical (common practice, no source)
+    if rows.len() > 1 {
+        let radical: Vec<bool> = rows.iter().map(is_radical).collect();
+        if radical.iter().any(|r| *r) && radical.iter().any(|r| !*r) {
+            let mut keep = radical.iter().map(|r| !*r);
+            rows.retain(|_| keep.next().unwrap_or(true));
+        }
+    }
     let Some(first) = rows.first() else {
         return Ok(NameDecision::None);
     };

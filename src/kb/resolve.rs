@@ -335,6 +335,13 @@ impl Kb {
                 }),
             });
         }
+        // a drug name whose base holds only its salts (`amikacin` -> `amikacin sulfate`): the
+        // salt record is found and standardised to its parent structure (issue 13)
+        if let Query::Name(n) = &q
+            && let Some(a) = self.find_salt_of(raw, n)?
+        {
+            return Ok(Resolution::Found(Box::new(a)));
+        }
         let reason = match &q {
             Query::Name(_) => "no compound with this name or synonym".to_string(),
             Query::Cas(_) => "no compound with this CAS number".to_string(),
@@ -352,6 +359,47 @@ impl Kb {
             suggestions,
             candidates: Vec::new(),
         }))
+    }
+
+    /// The salt record of a name the base holds only as salts: `name` followed by one of the
+    /// usual pharmaceutical counter-ion words (sulfate, hydrochloride, sodium, ...), a record
+    /// whose SMILES has more than one fragment. The standardisation then makes its parent the
+    /// analyte and says so. `None` when no such salt record exists.
+    fn find_salt_of(&self, raw: &str, name: &str) -> Result<Option<Analyte>, KbError> {
+        const SALT_WORDS: [&str; 18] = [
+            "sulfate",
+            "sulphate",
+            "hydrochloride",
+            "sodium",
+            "potassium",
+            "calcium",
+            "hydrobromide",
+            "mesylate",
+            "maleate",
+            "tartrate",
+            "citrate",
+            "phosphate",
+            "fumarate",
+            "besylate",
+            "succinate",
+            "acetate",
+            "hcl",
+            "sodium salt",
+        ];
+        let base = name.trim();
+        if base.is_empty() || base.split_whitespace().count() > 3 {
+            return Ok(None);
+        }
+        for w in SALT_WORDS {
+            let salt_name = format!("{base} {w}");
+            if let Some(a) = self.find_anywhere(raw, &Query::Name(salt_name.clone()))?
+                && a.smiles.as_deref().is_some_and(|s| s.contains('.'))
+                && normalise_name(&a.name) == normalise_name(&salt_name)
+            {
+                return Ok(Some(a));
+            }
+        }
+        Ok(None)
     }
 
     /// `label=SMILES` (or `label=CAS`, `label=CID`, `label=InChIKey`): the right-hand side

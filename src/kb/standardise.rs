@@ -6,9 +6,13 @@
 //!   largest organic fragment) is what is analysed; the counter-ions are named so that ion
 //!   chromatography can still see them;
 //! - a name that matched a record **without stereo** although the compound has
-//!   stereoisomers is flagged when the name was only a synonym of that record or itself
+//!   stereoisomers is flagged when the name was only a synonym of that record, itself
 //!   denotes a stereoisomer (`dieldrin` held as a synonym of the stereo-less `endrin`
-//!   record): the base cannot tell the stereoisomers apart.
+//!   record), or names a compound with two or more possible stereo elements (a trivial name
+//!   such as `aflatoxin b1` denotes one diastereomer, which a stereo-less record cannot be):
+//!   the base cannot tell the stereoisomers apart. A compound with one stereocentre named
+//!   without descriptor (`ibuprofen`) is its racemate or either enantiomer, and is not
+//!   flagged. Common practice, no source.
 
 use rusqlite::OptionalExtension;
 
@@ -51,9 +55,7 @@ impl Kb {
         // stereo-less record can change below; any other record is kept without parsing it.
         let by_name = a.matched_by.starts_with("name") || a.matched_by.starts_with("synonym");
         let salt_possible = smiles.contains('.') && !a.matched_by.contains("salt");
-        let stereo_possible = by_name
-            && (a.matched_by.starts_with("synonym") || has_stereo_word(&a.query))
-            && !a.matched_by.contains(STEREO_LESS_NOTE);
+        let stereo_possible = by_name && !a.matched_by.contains(STEREO_LESS_NOTE);
         if !salt_possible && !stereo_possible {
             return Ok(Resolution::Found(a));
         }
@@ -91,13 +93,14 @@ impl Kb {
                 "{how}; salt record: its parent structure is the analyte (counter-ion {dropped})"
             );
         }
-        if by_name
-            && key.stereo_elements == 0
-            && (a.matched_by.starts_with("synonym") || has_stereo_word(&a.query))
-            && !a.matched_by.contains(STEREO_LESS_NOTE)
-            && possible_stereo_elements(&parsed.graph) > 0
-        {
-            a.matched_by = format!("{}; {STEREO_LESS_NOTE}", a.matched_by);
+        if by_name && key.stereo_elements == 0 && !a.matched_by.contains(STEREO_LESS_NOTE) {
+            let possible = possible_stereo_elements(&parsed.graph);
+            let flag = possible >= 2
+                || (possible == 1
+                    && (a.matched_by.starts_with("synonym") || has_stereo_word(&a.query)));
+            if flag {
+                a.matched_by = format!("{}; {STEREO_LESS_NOTE}", a.matched_by);
+            }
         }
         Ok(Resolution::Found(a))
     }

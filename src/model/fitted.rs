@@ -3,7 +3,6 @@
 //! stores. Prediction lives in `predict`, training in `train`.
 
 use std::collections::BTreeMap;
-use std::io::Read;
 
 use serde::{Deserialize, Serialize};
 
@@ -107,13 +106,7 @@ impl Model {
     /// # Errors
     /// `ModelError::Io` on a decoding error.
     pub fn from_gz_bytes(bytes: &[u8], label: &str) -> Result<Self, ModelError> {
-        let mut s = String::new();
-        flate2::read::GzDecoder::new(bytes)
-            .read_to_string(&mut s)
-            .map_err(|e| ModelError::Io {
-                path: label.into(),
-                reason: e.to_string(),
-            })?;
+        let s = super::gz::gunzip(bytes, label)?;
         serde_json::from_str(&s).map_err(|e| ModelError::Io {
             path: label.into(),
             reason: e.to_string(),

@@ -613,15 +613,18 @@ fn predictions_table(r: &Recommendation) -> String {
         .predictions
         .iter()
         .map(|p| {
+            let (rt, interval, k) = super::elution_cells(
+                p.retention_time_min,
+                p.interval_low_min,
+                p.interval_high_min,
+                p.retention_factor,
+                r.conditions.run_time_min,
+            );
             vec![
                 p.analyte.clone(),
-                num(p.retention_time_min, 2),
-                format!(
-                    "{}-{}",
-                    num(p.interval_low_min, 2),
-                    num(p.interval_high_min, 2)
-                ),
-                num(p.retention_factor, 2),
+                rt,
+                interval,
+                k,
                 num(p.peak_width_half_min, 3),
                 p.retention_index.map_or("-".into(), |ri| num(ri, 0)),
                 p.path_label(),

@@ -71,6 +71,33 @@ pub fn sig(v: f64, digits: usize) -> String {
     num(v, decimals)
 }
 
+/// Table cells for a predicted retention time, its interval and retention factor: a time past
+/// the end of the program (`run_end_min`, 0 when unknown) is the model's extrapolation of an
+/// endless final hold, not a time the run will show, so it reads "does not elute" with the
+/// program's end, and the interval and k are not printed (issue 14: never a number of minutes
+/// the run cannot reach). JSON and CSV keep the numbers.
+pub fn elution_cells(
+    rt_min: f64,
+    low_min: f64,
+    high_min: f64,
+    k: f64,
+    run_end_min: f64,
+) -> (String, String, String) {
+    if run_end_min > 0.0 && rt_min > run_end_min {
+        (
+            format!("does not elute (> {} min)", num(run_end_min, 1)),
+            "-".into(),
+            "-".into(),
+        )
+    } else {
+        (
+            num(rt_min, 2),
+            format!("{}-{}", num(low_min, 2), num(high_min, 2)),
+            num(k, 2),
+        )
+    }
+}
+
 /// Significant digits of every number in CSV/TSV output (see [`csv_num`]).
 pub const CSV_SIGNIFICANT_DIGITS: usize = 6;
 
@@ -140,6 +167,18 @@ mod tests {
         assert_eq!(csv_num(-0.0, None), "0");
         assert_eq!(csv_opt(None, None), "");
         assert_eq!(csv_num(1.234_567_8e-9, None), "1.23457e-9");
+    }
+
+    #[test]
+    fn a_time_past_the_program_reads_does_not_elute() {
+        let (rt, iv, k) = elution_cells(7_167_974.9, 21_807.0, 4.2e8, 4.5e6, 28.0);
+        assert_eq!(rt, "does not elute (> 28 min)");
+        assert_eq!((iv.as_str(), k.as_str()), ("-", "-"));
+        let (rt, iv, k) = elution_cells(12.345, 10.0, 14.5, 6.2, 28.0);
+        assert_eq!(
+            (rt.as_str(), iv.as_str(), k.as_str()),
+            ("12.35", "10-14.5", "6.2")
+        );
     }
 
     #[test]

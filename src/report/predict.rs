@@ -89,16 +89,14 @@ impl PredictionOutput<'_> {
                     .predictions
                     .iter()
                     .map(|p| {
-                        let mut row = vec![
-                            p.analyte.clone(),
-                            num(p.retention_time_min, 2),
-                            format!(
-                                "{}-{}",
-                                num(p.interval_low_min, 2),
-                                num(p.interval_high_min, 2)
-                            ),
-                            num(p.retention_factor, 2),
-                        ];
+                        let (rt, interval, k) = super::elution_cells(
+                            p.retention_time_min,
+                            p.interval_low_min,
+                            p.interval_high_min,
+                            p.retention_factor,
+                            rec.conditions.run_time_min,
+                        );
+                        let mut row = vec![p.analyte.clone(), rt, interval, k];
                         match mode {
                             PhaseMode::Gc => {
                                 row.push(p.retention_index.map_or("-".into(), |ri| num(ri, 0)))

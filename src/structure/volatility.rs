@@ -196,6 +196,9 @@ pub enum TbSource {
     Experimental,
     /// Joback estimate (with the Stein & Brown correction).
     JobackSteinBrown,
+    /// Alkane-equivalent boiling point from a retention index predicted on
+    /// dimethylpolysiloxane (supplied by the caller; see [`assess_gc_with_tb`]).
+    AlkaneEquivalentFromIndex,
     /// None available.
     Unknown,
 }
@@ -285,30 +288,65 @@ pub fn assess_gc(
     graph: &MolGraph,
     experimental_tb_k: Option<f64>,
 ) -> Result<GcAssessment, VolatilityError> {
+    assess_gc_inner(graph, experimental_tb_k, None)
+}
+
+/// [`assess_gc`] with a boiling point estimated elsewhere (`tb_k` with its 1σ `error_k` and its
+/// `source`), used instead of the Joback estimate: for the alkane-equivalent boiling point of a
+/// predicted retention index, which is what decides elution in GC and which covers elements
+/// Joback has no groups for (phosphorus, silicon).
+///
+/// # Errors
+/// As [`assess_gc`]; a non-finite or non-positive `tb_k` is a bad boiling point.
+pub fn assess_gc_with_tb(
+    graph: &MolGraph,
+    tb_k: f64,
+    error_k: f64,
+    source: TbSource,
+) -> Result<GcAssessment, VolatilityError> {
+    assess_gc_inner(graph, None, Some((tb_k, error_k, source)))
+}
+
+fn assess_gc_inner(
+    graph: &MolGraph,
+    experimental_tb_k: Option<f64>,
+    estimated: Option<(f64, f64, TbSource)>,
+) -> Result<GcAssessment, VolatilityError> {
     let v = GraphView::new(graph)?;
     let sites = detect_sites(graph)?;
     let mut flags = Vec::new();
 
-    let (tb_k, tb_error_k, tb_source, tb_note) = match experimental_tb_k {
-        Some(t) => {
+    let (tb_k, tb_error_k, tb_source, tb_note) = match (experimental_tb_k, estimated) {
+        (None, Some((t, e, source))) => {
             volatility_class(t)?;
-            (Some(t), Some(0.0), TbSource::Experimental, None)
+            (Some(t), Some(e.max(0.0)), source, None)
         }
-        None => match joback_tb(
-            graph,
-            JobackOptions {
-                stein_brown_correction: true,
+        (experimental_tb_k, _) => match experimental_tb_k {
+            Some(t) => {
+                volatility_class(t)?;
+                (Some(t), Some(0.0), TbSource::Experimental, None)
+            }
+            None => match joback_tb(
+                graph,
+                JobackOptions {
+                    stein_brown_correction: true,
+                },
+            ) {
+                Ok(e) => (
+                    Some(e.tb_k),
+                    Some(e.typical_error_k),
+                    TbSource::JobackSteinBrown,
+                    None,
+                ),
+                Err(JobackError::Graph(g)) => return Err(g.into()),
+                Err(e) => (None, None, TbSource::Unknown, Some(e.to_string())),
             },
-        ) {
-            Ok(e) => (
-                Some(e.tb_k),
-                Some(e.typical_error_k),
-                TbSource::JobackSteinBrown,
-                None,
-            ),
-            Err(JobackError::Graph(g)) => return Err(g.into()),
-            Err(e) => (None, None, TbSource::Unknown, Some(e.to_string())),
         },
+    };
+    let what = if tb_source == TbSource::AlkaneEquivalentFromIndex {
+        "alkane-equivalent boiling point (from the predicted retention index)"
+    } else {
+        "boiling point"
     };
     let molar_mass_g_mol = v.molar_mass_g_mol();
 
@@ -345,7 +383,7 @@ pub fn assess_gc(
             atoms: Vec::new(),
             derivatisation: None,
             reason: format!(
-                "boiling point {t:.0} K ({:.0} °C): elutes only near the top of the oven program; use a thin film (0.1-0.25 µm) and a final temperature of 300-330 °C",
+                "{what} {t:.0} K ({:.0} °C): elutes only near the top of the oven program; use a thin film (0.1-0.25 µm) and a final temperature of 300-330 °C",
                 t - 273.15
             ),
         }),
@@ -365,7 +403,7 @@ pub fn assess_gc(
                 atoms: Vec::new(),
                 derivatisation,
                 reason: format!(
-                    "boiling point {t:.0} K ({:.0} °C) is above about {GC_MAX_TB_K:.0} K, beyond typical upper column temperatures{extra}",
+                    "{what} {t:.0} K ({:.0} °C) is above about {GC_MAX_TB_K:.0} K, beyond typical upper column temperatures{extra}",
                     t - 273.15
                 ),
             });
@@ -418,6 +456,11 @@ pub fn assess_gc(
     })
 }
 
+/// Lowest pKa of a free carboxylic acid that runs underivatised on an acid-modified
+/// polyethylene glycol phase (formic acid 3.75 and the fatty acids above; chloroacetic acid
+/// 2.9 and pyruvic acid 2.5 below). Common practice, no source.
+const WEAK_ACID_MIN_PKA: f64 = 3.0;
+
 fn acid_flags(sites: &[IonisableSite], tb_k: Option<f64>, donor_h: u32, flags: &mut Vec<GcFlag>) {
     let has_strong_base = sites
         .iter()
@@ -433,9 +476,13 @@ fn acid_flags(sites: &[IonisableSite], tb_k: Option<f64>, donor_h: u32, flags: &
             )
         })
         .count();
+    // a weak acid only (pKa at least 3): halogenated acetic acids and keto acids are strong
+    // enough to adsorb irreversibly, and trichloroacetic acid decarboxylates in a hot inlet;
+    // they are methylated first (common practice for haloacetic acids, from memory)
     let volatile_monoacid = carboxyls == 1
         && sites.len() == 1
         && donor_h == 1
+        && sites[0].pka.is_some_and(|k| k >= WEAK_ACID_MIN_PKA)
         && tb_k.is_some_and(|t| t < VOLATILE_ACID_MAX_TB_K);
     for s in sites {
         if volatile_monoacid && s.class == GroupClass::CarboxylicAcid {

@@ -5,7 +5,7 @@
 use super::profile::AnalyteProfile;
 use super::{AdviseRequest, coelution, unscored_recommendation};
 use crate::model::gc::{
-    GcColumn, OvenSuggestion, alkane_ladder, predict_analyte_index, suggest_oven_program,
+    GcAnalyte, GcColumn, OvenSuggestion, alkane_ladder, predict_analyte_index, suggest_oven_program,
 };
 use crate::phase::{Catalogue, StationaryPhase};
 use crate::report::advice::{Conditions, PredictionRow, ProgramStep, Reason, Recommendation};
@@ -540,6 +540,32 @@ fn polyhalogenated_share(profiles: &[AnalyteProfile]) -> f64 {
     profiles.iter().filter(|p| p.halogens() >= 3).count() as f64 / profiles.len().max(1) as f64
 }
 
+/// The classes a mid-polarity phase is chosen first for, in words (rule:gc-confirmation-phase;
+/// the selectivity column of data/phases.tsv, common practice, no source).
+fn confirmation_phase_targets(id: &str) -> &'static str {
+    match id {
+        "gc-35-phenyl" | "gc-50-phenyl" => "analytes with two or more aromatic rings",
+        "gc-14-cyanopropylphenyl" => "nitro compounds and nitriles",
+        "gc-trifluoropropyl" => "ketones, nitro and halogenated compounds",
+        _ => "none",
+    }
+}
+
+/// Share of `profiles` in the classes of [`confirmation_phase_targets`].
+fn confirmation_phase_target_share(profiles: &[AnalyteProfile], id: &str) -> f64 {
+    let hit = |a: &GcAnalyte| match id {
+        "gc-35-phenyl" | "gc-50-phenyl" => a.n_aromatic_rings >= 2,
+        "gc-14-cyanopropylphenyl" => a.n_nitro + a.n_nitrile > 0,
+        "gc-trifluoropropyl" => a.n_carbonyl + a.n_nitro + a.n_halogen > 0 && a.n_ester == 0,
+        _ => false,
+    };
+    profiles
+        .iter()
+        .filter(|p| p.gc_analyte().is_some_and(|a| hit(&a)))
+        .count() as f64
+        / profiles.len().max(1) as f64
+}
+
 /// GC phase rules (common practice, no source).
 fn rules(profiles: &[AnalyteProfile], phase: &StationaryPhase) -> Vec<Reason> {
     let n = profiles.len().max(1) as f64;
@@ -591,10 +617,30 @@ fn rules(profiles: &[AnalyteProfile], phase: &StationaryPhase) -> Vec<Reason> {
         } else {
             "5 % phenyl is the usual general-purpose first GC column for semivolatiles".into()
         }, if volatile { 0.0 } else { 0.15 }),
-        "gc-dimethyl" => rule("rule:gc-boiling-point-order", "100 % dimethylpolysiloxane separates mainly by boiling point".into(), 0.06),
+        // boiling-point order is the merit of the non-polar phase for non-polar lists; free
+        // alcohols, amines and acids of low molar mass tail on it and are separated better by a
+        // phase with some dipolarity (common practice, no source)
+        "gc-dimethyl" => {
+            let (w, text) = if polar >= 0.5 {
+                (-0.05, format!("100 % dimethylpolysiloxane separates mainly by boiling point; {:.0} % of analytes carry OH/NH/acid groups, which tail on it and are better separated on a phase with some polarity", polar * 100.0))
+            } else if polar >= 0.25 {
+                (0.0, format!("100 % dimethylpolysiloxane separates mainly by boiling point; {:.0} % of analytes carry OH/NH/acid groups, which tail on it", polar * 100.0))
+            } else {
+                (0.06, "100 % dimethylpolysiloxane separates mainly by boiling point".to_string())
+            };
+            rule("rule:gc-boiling-point-order", text, w)
+        }
         "gc-6-cyanopropylphenyl" => rule("rule:gc-volatile-solvent-screen", "6 % cyanopropylphenyl with a thick film is the usual phase for volatile solvent screens".into(), if volatile { 0.15 } else { 0.0 }),
         "gc-wax" => rule("rule:gc-polar-analytes", format!("{:.0} % of analytes carry OH/NH/acid groups and {:.0} % are esters or alcohols: polyethylene glycol retains and shapes them better, and separates esters by polarity", polar * 100.0, oxygenates * 100.0), if oxygenates >= 0.5 { 0.18 } else if polar > 0.25 { 0.12 } else { 0.0 }),
         "gc-wax-acid" => rule("rule:gc-free-acids", "free carboxylic acids tail less on acid-modified polyethylene glycol".into(), if acids > 0 { 0.15 } else { -0.05 }),
+        // mid- and high-polarity polysiloxanes are usually the second (confirmation) column,
+        // chosen for a selectivity the general-purpose first column lacks; first for a list
+        // only when most analytes are of the classes the phase is made for (common practice,
+        // no source)
+        "gc-35-phenyl" | "gc-50-phenyl" | "gc-14-cyanopropylphenyl" | "gc-trifluoropropyl" => {
+            let targets = confirmation_phase_target_share(profiles, phase.id());
+            rule("rule:gc-confirmation-phase", format!("a mid-polarity phase is usually the second (confirmation) column; {:.0} % of analytes are of the classes it is chosen first for ({})", targets * 100.0, confirmation_phase_targets(phase.id())), if targets >= 0.5 { 0.0 } else { -0.05 })
+        }
         id if id.starts_with("gc-plot") => rule("rule:gc-porous-layer", "porous-layer phases are for permanent gases and very light analytes".into(), if gases { 0.3 } else { -0.3 }),
         _ => {}
     }

@@ -166,6 +166,8 @@ pub enum GcError {
 #[cfg(test)]
 mod tests;
 #[cfg(test)]
+mod tests_classes;
+#[cfg(test)]
 mod tests_solvation;
 
 /// Predicts the retention index of one analyte on `phase` by the best route available: the

@@ -233,6 +233,45 @@ fn residual_sigma(constants: &SystemConstants) -> Result<f64, GcError> {
     }
 }
 
+/// Typical error of a fragment-estimated solute descriptor (E, S, A, B): about 0.1 for E and S
+/// and 0.05 for A and B (from memory of the accuracy reported for group-contribution schemes of
+/// Abraham descriptors; order of magnitude only).
+const DESCRIPTOR_SD: [f64; 4] = [0.10, 0.10, 0.05, 0.05];
+
+/// 1-sigma index uncertainty from extrapolating the descriptors beyond the reference phases.
+///
+/// The fragment values were fitted to indices on the reference phases (those with a held-out
+/// residual row), so a descriptor error is checked only along the constant ratios (e/l, s/l,
+/// a/l, b/l) those phases span. On a phase whose ratio lies outside that span, the part of the
+/// error no reference phase saw adds 100 / 0.505 x (distance of the ratio beyond the span) x the
+/// descriptor's typical error ([`DESCRIPTOR_SD`]), summed in quadrature over the four
+/// descriptors. Zero for the reference phases and for phases inside their span.
+fn extrapolation_sigma(constants: &SystemConstants) -> Result<f64, GcError> {
+    let t = tables()?;
+    let ratios = |c: &SystemConstants| [c.e / c.l, c.s / c.l, c.a / c.l, c.b / c.l];
+    let reference: Vec<[f64; 4]> = t
+        .constants
+        .iter()
+        .filter(|c| t.residual_sd.iter().any(|(id, _)| *id == c.phase_id))
+        .map(ratios)
+        .collect();
+    if reference.is_empty() {
+        return Ok(0.0);
+    }
+    let own = ratios(constants);
+    let mut sum = 0.0;
+    for (k, (r, sd)) in own.iter().zip(DESCRIPTOR_SD).enumerate() {
+        let lo = reference.iter().map(|x| x[k]).fold(f64::INFINITY, f64::min);
+        let hi = reference
+            .iter()
+            .map(|x| x[k])
+            .fold(f64::NEG_INFINITY, f64::max);
+        let beyond = (lo - r).max(r - hi).max(0.0);
+        sum += (beyond * sd).powi(2);
+    }
+    Ok(100.0 / L_PER_CH2 * sum.sqrt())
+}
+
 /// Relative uncertainty added per unit of L beyond the reference set's range (L above 11, about
 /// index 2300): extrapolation (assumption, no source).
 const EXTRAPOLATION_SIGMA_PER_L: f64 = 10.0;
@@ -260,8 +299,9 @@ pub fn predict_retention_index_from_structure(
         0.0
     } else {
         let base = residual_sigma(constants)?;
+        let phase_beyond = extrapolation_sigma(constants)?;
         let beyond = (d.l - 11.0).max(0.0) * EXTRAPOLATION_SIGMA_PER_L;
-        (base * base + beyond * beyond).sqrt()
+        (base * base + phase_beyond * phase_beyond + beyond * beyond).sqrt()
     };
     Ok(RetentionIndexPrediction::with_interval(
         phase.id(),

@@ -187,10 +187,11 @@ fn held_out_figures_do_not_regress() {
     }
 }
 
-// measured 2026-12-05 (docs/gc-retention.md): held-out medians 13, 13, 34; close pairs in the
-// right order 78 %, 78 %, 61 %
-const HELD_OUT_MEDIAN_BOUND: [f64; 3] = [16.0, 16.0, 37.0];
-const HELD_OUT_CLOSE_PAIR_BOUND: [f64; 3] = [0.75, 0.74, 0.59];
+// measured 2026-12-05 after the ring correction, the physical zeros and the held alkene values
+// (docs/gc-retention.md): held-out medians 13.1, 14.4, 25.2; close pairs in the right order
+// 80 %, 78 %, 68 %
+const HELD_OUT_MEDIAN_BOUND: [f64; 3] = [16.0, 17.0, 28.0];
+const HELD_OUT_CLOSE_PAIR_BOUND: [f64; 3] = [0.77, 0.75, 0.65];
 
 /// Positional isomers whose elution order follows from structure, on every reference phase
 /// (pairs mostly outside the reference set; orders from memory of retention-index compilations
@@ -384,5 +385,35 @@ fn mid_polarity_phases_agree_with_their_mcreynolds_probe_shifts() {
                 );
             }
         }
+    }
+}
+
+/// An index on a phase whose constant ratios lie outside those of the reference phases (the
+/// fluorinated phase's negative e/l) carries more uncertainty than on a reference phase and than
+/// on a phase inside their span; the reference phases themselves keep their held-out residual.
+#[test]
+fn phases_beyond_the_reference_span_carry_the_extrapolation_uncertainty() {
+    let sigma = |smiles: &str, id: &str| {
+        let g = parse_smiles(smiles).unwrap().graph;
+        predict_retention_index_from_structure(&g, phase(id))
+            .unwrap()
+            .sigma_ri
+    };
+    for smiles in ["CC(C)C1CCC(C)CC1O", "CC(=O)c1ccccc1", "Clc1ccccc1Cl"] {
+        // reference phases: exactly the held-out residual of data/gc_retention_residuals.tsv
+        assert!((sigma(smiles, "gc-dimethyl") - 19.5).abs() < 1e-9);
+        assert!((sigma(smiles, "gc-wax") - 37.7).abs() < 1e-9);
+        // 35 % phenyl lies inside the reference span: interpolated residual only, between the
+        // non-polar and the polyethylene-glycol residuals
+        let mid = sigma(smiles, "gc-35-phenyl");
+        assert!((19.5..37.7).contains(&mid), "{mid}");
+        // trifluoropropyl: e/l = -1.1 against 0.05-0.6 on the reference phases
+        let tfp = sigma(smiles, "gc-trifluoropropyl");
+        let interpolated_only =
+            19.5 + (37.7 - 19.5) * ((1.12 / 0.4 - 0.19 / 0.498) / (1.3 / 0.43 - 0.19 / 0.498));
+        assert!(
+            tfp > interpolated_only + 5.0,
+            "{tfp} vs {interpolated_only}"
+        );
     }
 }

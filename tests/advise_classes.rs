@@ -464,3 +464,40 @@ fn analytes_that_do_not_elute_count_against_the_method() {
         );
     }
 }
+
+/// Neutral organophosphorus triester pesticides are classic GC analytes whatever their logP
+/// (phosphorus-selective detection or MS; the standard GC methods for organophosphorus
+/// pesticides, e.g. US EPA method 8141, from memory), even when the open retention data
+/// measured them by reversed phase; the small, polar organophosphorus compounds with N-H
+/// (methamidophos, acephate, omethoate) are run by LC (common practice, no source). Structures
+/// from memory; a set of my own, not the probe of any panel.
+#[test]
+fn organophosphorus_triesters_go_to_gc_and_polar_ones_to_lc() {
+    let ctx = Ctx::new();
+    let r = advise(
+        &ctx,
+        &[
+            "fenthion=COP(=S)(OC)Oc1ccc(SC)c(C)c1",
+            "ethoprophos=CCCSP(=O)(OCC)SCCC",
+            "profenofos=CCCSP(=O)(OCC)Oc1ccc(Br)cc1Cl",
+            "quinalphos=CCOP(=S)(OCC)Oc1cnc2ccccc2n1",
+            "tolclofos-methyl=COP(=S)(OC)Oc1c(Cl)cc(C)cc1Cl",
+        ],
+    );
+    let (mode, _, _) = first(&r);
+    assert_eq!(mode, "gc", "{}", r["mode_scores"]);
+    let det = r["recommendations"][0]["conditions"]["detection"]
+        .as_str()
+        .unwrap_or("");
+    assert!(det.contains("phosphorus") || det.contains("mass"), "{det}");
+    let polar = advise(
+        &ctx,
+        &[
+            "methamidophos=COP(N)(=O)SC",
+            "acephate=COP(=O)(NC(C)=O)SC",
+            "omethoate=CNC(=O)CSP(=O)(OC)OC",
+        ],
+    );
+    let (mode, _, _) = first(&polar);
+    assert!(["rp", "hilic"].contains(&mode), "{mode}");
+}

@@ -17,7 +17,8 @@ fn logistic(x: f64) -> f64 {
 
 /// A neutral, low-polarity analyte that GC handles as is: no H-bond donor, polar surface
 /// area at most 40 Å² (or at most 80 Å² with logP at least 3, where the hydrocarbon part
-/// dominates: organophosphorus and pyrethroid pesticides), no group ionised between pH 2 and
+/// dominates: pyrethroid pesticides; or at most 80 Å² for neutral organophosphorus esters,
+/// whatever their logP), no group ionised between pH 2 and
 /// 12, GC-suitable and boiling below
 /// [`GC_MAX_TB_K`] (hydrocarbons, halogenated pesticides and PCBs, esters including fatty-acid
 /// methyl esters, ethers, ketones). GC is the usual technique for these classes (rule
@@ -30,12 +31,24 @@ pub fn gc_neutral_class(p: &AnalyteProfile) -> bool {
         && !p.inorganic_ion
         && e.descriptors.hbond_donors == 0
         && (e.descriptors.tpsa_a2 <= 40.0
-            || (e.descriptors.tpsa_a2 <= 80.0 && p.log_p.is_some_and(|(l, _)| l >= 3.0)))
+            || (e.descriptors.tpsa_a2 <= 80.0
+                && (p.log_p.is_some_and(|(l, _)| l >= 3.0) || organophosphorus_ester(p))))
         && p.tb_k.is_some_and(|(t, _)| t <= GC_MAX_TB_K)
         && !p.sites.iter().any(|s| {
             matches!(s.kind, SiteKind::PermanentAnion | SiteKind::PermanentCation)
                 || s.pka.is_some_and(|k| (2.0..=12.0).contains(&k))
         })
+}
+
+/// A neutral organophosphorus ester (phosphate, phosphorothioate or phosphorodithioate
+/// triester; no P–OH, which would be an ionisable site, and no H-bond donor, checked by the
+/// caller): the organophosphorus pesticides, run by GC with a phosphorus-selective detector
+/// whatever their logP (malathion 2.4, methyl parathion 2.9, dichlorvos 1.4; the standard
+/// GC methods for organophosphorus pesticides, e.g. US EPA method 8141, from memory).
+fn organophosphorus_ester(p: &AnalyteProfile) -> bool {
+    p.estimate
+        .as_ref()
+        .is_some_and(|e| e.graph.atoms.iter().any(|a| a.atomic_number == 15))
 }
 
 /// Acids with a pKa below this are strong: fully ionised at the pH of an ion-exclusion eluent
@@ -105,13 +118,18 @@ pub fn small_organic_acid(p: &AnalyteProfile) -> bool {
 /// estimated logD (large zwitterions such as tetracyclines, whose logD from the neutral
 /// fraction understates their retention): fit at least 0.4 + 2·ψ (at most 0.9). Below 3 %
 /// it elutes near the dead time even at low organic: fit at most 0.3.
-fn measured_rp_fit(p: &AnalyteProfile, f: f64, why: String) -> (f64, String) {
+///
+/// `gc_scale` is the factor the caller applied for analytes GC serves better
+/// (rule:gc-volatile-neutral-class, 0.6; else 1): retention measured by reversed phase says the
+/// analyte is retained there, not that reversed phase beats GC for it, so the floor carries
+/// the same factor.
+fn measured_rp_fit(p: &AnalyteProfile, f: f64, why: String, gc_scale: f64) -> (f64, String) {
     let Some((psi, n)) = p.measured_rp_psi_k1 else {
         return (f, why);
     };
     let pct = 100.0 * psi;
     if psi >= 0.10 {
-        let floor = (0.4 + 2.0 * psi).min(0.9);
+        let floor = gc_scale * (0.4 + 2.0 * psi).min(0.9);
         if floor > f {
             return (
                 floor,
@@ -242,7 +260,7 @@ pub fn fit(p: &AnalyteProfile, mode: PhaseMode) -> (f64, String) {
                 }
                 _ => (f, why),
             };
-            measured_rp_fit(p, f, why)
+            measured_rp_fit(p, f, why, if volatile || gc_class { 0.6 } else { 1.0 })
         }
         PhaseMode::Hilic => match p.log_d(3.0) {
             _ if p.inorganic_ion => (

@@ -203,17 +203,34 @@ pub(super) fn draw_detail(s: &mut String, peaks: &[Peak], w: &DetailWindow, left
     });
     for (i, p) in named.iter().enumerate() {
         let x = x_of(p.row.retention_time_min);
-        let width = p.row.analyte.chars().count() as f64 * LABEL_CHAR_PX;
+        // a name wider than the panel is shortened with "…" (the main plot has it in full)
+        let max_chars = ((DETAIL_WIDTH_PX - 6.0) / LABEL_CHAR_PX).floor() as usize;
+        let name: String = if p.row.analyte.chars().count() > max_chars {
+            let mut t: String = p.row.analyte.chars().take(max_chars - 1).collect();
+            t.push('…');
+            t
+        } else {
+            p.row.analyte.clone()
+        };
+        let width = name.chars().count() as f64 * LABEL_CHAR_PX;
         let right = left + DETAIL_WIDTH_PX;
-        // a label that would cross the panel's edge is turned back inside it
+        // a label that would cross the panel's edge is centred over its own apex instead,
+        // shifted just enough to stay inside the panel (so it never seems to name a cut-off
+        // neighbour at the edge)
+        let centred = || {
+            (
+                x.clamp(left + 3.0 + width / 2.0, right - 3.0 - width / 2.0),
+                "middle",
+            )
+        };
         let (lx, anchor) = if i == 0 {
             if x - 2.0 - width < left + 3.0 {
-                (left + 3.0, "start")
+                centred()
             } else {
                 (x - 2.0, "end")
             }
         } else if x + 2.0 + width > right - 3.0 {
-            (right - 3.0, "end")
+            centred()
         } else {
             (x + 2.0, "start")
         };
@@ -222,7 +239,7 @@ pub(super) fn draw_detail(s: &mut String, peaks: &[Peak], w: &DetailWindow, left
             "<text class=\"detail-label\" x=\"{}\" y=\"{}\" font-size=\"10\" text-anchor=\"{anchor}\">{}</text>",
             f2(lx),
             f2(y_of(1.0) - 5.0),
-            escape_xml(&p.row.analyte)
+            escape_xml(&name)
         );
     }
     s.push_str("</g>\n");

@@ -206,7 +206,7 @@ fn class_points(svg: &str, class: &str) -> Vec<(f64, f64)> {
     let d = &d[d.find(" d=\"").unwrap() + 4..];
     let d = &d[..d.find('"').unwrap()];
     let nums: Vec<f64> = d
-        .split(|c: char| c == ' ' || c == 'M' || c == 'L')
+        .split([' ', 'M', 'L'])
         .filter(|t| !t.is_empty())
         .map(|t| t.parse().unwrap())
         .collect();
@@ -390,8 +390,11 @@ fn close_up_labels_and_titles_stay_inside_their_panels() {
                     v[..v.find('"').unwrap()].to_string()
                 };
                 let x: f64 = attr(" x=\"").parse().unwrap();
-                let anchor = if t[..t.find('>').unwrap()].contains("text-anchor=\"end\"") {
+                let head = &t[..t.find('>').unwrap()];
+                let anchor = if head.contains("text-anchor=\"end\"") {
                     "end".to_string()
+                } else if head.contains("text-anchor=\"middle\"") {
+                    "middle".to_string()
                 } else {
                     "start".to_string()
                 };
@@ -404,10 +407,10 @@ fn close_up_labels_and_titles_stay_inside_their_panels() {
     assert!(!labels.is_empty());
     for (x, anchor, body) in &labels {
         let w = body.chars().count() as f64 * 5.6;
-        let (lo, hi) = if anchor == "end" {
-            (x - w, *x)
-        } else {
-            (*x, x + w)
+        let (lo, hi) = match anchor.as_str() {
+            "end" => (x - w, *x),
+            "middle" => (x - w / 2.0, x + w / 2.0),
+            _ => (*x, x + w),
         };
         assert!(
             panels

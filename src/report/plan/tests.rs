@@ -305,3 +305,21 @@ fn a_buffer_catalogue_id_is_not_shown_as_the_buffer() {
     assert!(row.contains("buffer id phosphate-1"), "{row}");
     assert!(!md.contains("| Buffer or additive | phosphate-1"), "{row}");
 }
+
+#[test]
+fn print_style_is_a4_and_keeps_headings_with_what_follows() {
+    // print-to-PDF review (issue 16): a section heading and its one-line introduction were left
+    // at the foot of a page, the table on the next
+    let html = render_html(
+        &lc_report(),
+        &PlanOptions {
+            title: "t".into(),
+            date: None,
+        },
+    );
+    let print = &html[html.find("@media print").expect("print style")..];
+    assert!(print.contains("size:A4"));
+    assert!(print.contains("h2,h3{page-break-after:avoid;break-after:avoid}"));
+    assert!(print.contains("h2+p,h3+p{page-break-after:avoid;break-after:avoid}"));
+    assert!(print.contains("table,tr{page-break-inside:avoid}"));
+}

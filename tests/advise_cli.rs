@@ -278,6 +278,18 @@ fn methylxanthines_go_to_reversed_phase_and_the_dimethylxanthine_isomers_are_the
         "{:?}",
         pgc.reasons
     );
+    // the chemistry is named in words, not by the training data's class key (issue 16)
+    for x in pgc
+        .reasons
+        .iter()
+        .filter(|x| x.source == "model:training-support")
+    {
+        assert!(
+            x.text.contains("(porous graphitic carbon)") && !x.text.contains('_'),
+            "{}",
+            x.text
+        );
+    }
     // Each pair the back-up is compared on appears once.
     let changes = &r.backup.as_ref().expect("a back-up").changes;
     for (i, c) in changes.iter().enumerate() {

@@ -161,6 +161,30 @@ fn suitability_table_carries_units_in_headers_and_limit_sources() {
                 .and(predicate::str::contains("8.43"))
                 .and(predicate::str::contains("Result: PASS")),
         );
+    // issue 16: each limit source is printed once, under the table, and named by number on the
+    // rows; the width basis of Rs is in words
+    let out = phasewise()
+        .args(["suitability", "--t0", "1.0", "--length-mm", "150"])
+        .arg(&p)
+        .output()
+        .unwrap();
+    let text = String::from_utf8(out.stdout).unwrap();
+    assert!(
+        text.contains("half-height widths") && !text.contains("half_height"),
+        "{text}"
+    );
+    let sources = &text[text.find("Limit sources:").expect("sources listed")..];
+    assert!(
+        sources.contains(" [1] default 1.5: general pharmacopoeial"),
+        "{sources}"
+    );
+    assert_eq!(
+        text.matches("general pharmacopoeial chromatography chapters (critical pair)")
+            .count(),
+        1,
+        "{text}"
+    );
+    assert!(!text.contains("SKD"), "an unexplained abbreviation: {text}");
 }
 
 #[test]
@@ -499,6 +523,83 @@ fn scout_accepts_retention_time_only_tables_with_lab_headings_and_says_where_wid
         .assert()
         .code(2)
         .stderr(predicate::str::contains("no width column"));
+}
+
+/// Issue 16: a long scouting run is never silent; each stage prints one line on stderr when the
+/// tables hold more than 10,000 analytes, and an ordinary table prints none.
+#[test]
+fn scout_on_a_very_large_table_reports_progress_line_by_line() {
+    let dir = tempfile::tempdir().unwrap();
+    let n = 10_001;
+    let mut paths = Vec::new();
+    for (name, program) in [("big-10.csv", "0:5,10:95"), ("big-30.csv", "0:5,30:95")] {
+        let prog = GradientProgram::parse(program).unwrap();
+        let mut text =
+            String::from("# invented: synthetic stress table, not a measurement\nname,rt\n");
+        for i in 0..n {
+            // invented parameters as in tools/make_scout_stress.py: log kw 1-4, S = 2 + 0.8 log kw
+            // with a spread of ±0.3, so that every analyte elutes within the searched programs
+            let x = i as f64 / n as f64;
+            let log_kw = 1.0 + 3.0 * x;
+            let p = LssParameters {
+                log_kw,
+                s: 2.0 + 0.8 * log_kw + 0.6 * (((i * 7919) % n) as f64 / n as f64 - 0.5),
+            };
+            let tr = gradient_elution(&p, &prog, &SYSTEM)
+                .unwrap()
+                .retention_time_min;
+            text.push_str(&format!("x{i},{tr}\n"));
+        }
+        paths.push(write(dir.path(), name, &text));
+    }
+    let out = phasewise()
+        .arg("scout")
+        .args(&paths)
+        .args([
+            "--gradients",
+            "0:5,10:95;0:5,30:95",
+            "--t0",
+            "1.5",
+            "--flow",
+            "1",
+            "--dwell",
+            "1",
+        ])
+        .output()
+        .unwrap();
+    let err = String::from_utf8_lossy(&out.stderr);
+    for stage in [
+        "peak tables read",
+        "searching gradient programs",
+        "writing the report",
+    ] {
+        assert!(
+            err.lines().any(|l| l.starts_with("scout: ")
+                && l.contains(stage)
+                && l.contains("10001 analytes")),
+            "no progress line for `{stage}`: {err}"
+        );
+    }
+    // the small simulated tables of the tests above print no progress
+    let small: Vec<_> = [("s-10.csv", "0:5,10:95"), ("s-30.csv", "0:5,30:95")]
+        .iter()
+        .map(|(n, p)| simulated_run(dir.path(), n, p))
+        .collect();
+    phasewise()
+        .arg("scout")
+        .args(&small)
+        .args([
+            "--gradients",
+            "0:5,10:95;0:5,30:95",
+            "--t0",
+            "1.5",
+            "--flow",
+            "1",
+            "--dwell",
+            "1",
+        ])
+        .assert()
+        .stderr(predicate::str::contains("scout: ").not());
 }
 
 #[test]

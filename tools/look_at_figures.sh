@@ -2,8 +2,10 @@
 # Renders what a reviewer looks at with the release binary and headless Chromium (issue 16):
 # the HTML plan of an LC and a GC example panel (screenshot, and print-to-PDF on A4 with every
 # page turned into a PNG to check the page breaks), the predicted chromatograms of the LC and
-# GC scouting optima (with their close-up panels) and the two window diagrams, each SVG as a
-# PNG. The panels and peak tables are the invented examples of examples/.
+# GC scouting optima (with their close-up panels), the two window diagrams and the figures
+# embedded in the plans, each SVG as a PNG. Look at every PNG: overlapping or clipped labels,
+# legends listing marks that are not drawn, empty panels, axes running far past the last peak.
+# The panels and peak tables are the invented examples of examples/.
 # Needs chromium and pdftoppm (Debian: apt-get install chromium poppler-utils) and a release
 # build (cargo build --release). Not part of `cargo test`; rendering tests assert on structure.
 #   tools/look_at_figures.sh [OUTDIR]   (default: target/figures-look)
@@ -38,7 +40,19 @@ for p in plan-lc plan-gc; do
         --print-to-pdf="$out/$p.pdf" "file://$out/$p.html" >/dev/null 2>&1
     pdftoppm -r 50 -png "$out/$p.pdf" "$out/$p-page"
 done
+# the figures embedded in the plans (first choice and back-up), each on its own at full size
+python3 - "$out" <<'PY'
+import re, sys
+out = sys.argv[1]
+for plan in ["plan-lc", "plan-gc"]:
+    html = open(f"{out}/{plan}.html", encoding="utf-8").read()
+    for i, svg in enumerate(re.findall(r"<svg.*?</svg>", html, re.S), 1):
+        open(f"{out}/{plan}-fig{i}.svg", "w", encoding="utf-8").write(svg)
+PY
 for f in window-lc window-gc optimum-lc optimum-gc; do
     shot "$out/$f.svg" "$out/$f.png" 1000,800
+done
+for f in "$out"/plan-*-fig*.svg; do
+    shot "$f" "${f%.svg}.png" 1000,900
 done
 ls -1 "$out"

@@ -681,7 +681,7 @@ pub fn candidate(
                 text: format!(
                     "the model was trained on {n} {} system(s) of this chemistry ({}): predicted separation {sep:.2} counted as {used:.2} (weight n/(n + {TRAINING_SUPPORT_HALF:.0}) = {trust:.2}, the rest towards the lower of the prediction and neutral 0.5, less 0.1; an uncertain prediction never scores better than it predicts; common practice, no source)",
                     sys.mode.label(),
-                    sys.chem_class.name()
+                    sys.chem_class.name().replace('_', " ")
                 ),
                 weight: Some(used - sep),
             });

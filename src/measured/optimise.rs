@@ -560,15 +560,7 @@ pub fn optimise(req: &OptimiseRequest) -> Result<OptimiseReport, OptimiseError> 
     }
     // Best few grid points (stable order: grid order breaks ties).
     let mut order: Vec<usize> = (0..grid.len()).collect();
-    order.sort_by(|&a, &b| {
-        if grid[a].0.better_than(&grid[b].0) {
-            std::cmp::Ordering::Less
-        } else if grid[b].0.better_than(&grid[a].0) {
-            std::cmp::Ordering::Greater
-        } else {
-            a.cmp(&b)
-        }
-    });
+    order.sort_by(|&a, &b| grid[a].0.rank_cmp(&grid[b].0).then(a.cmp(&b)));
     if order.is_empty() || !grid[order[0]].0.feasible {
         return Err(OptimiseError::NoFeasibleCondition {
             max_run_time_min: req.max_run_time_min,

@@ -6,7 +6,7 @@
 
 /// Score for comparison; see the module documentation for the rule.
 /// Also used by the GC optimiser ([`crate::measured::gc_optimise`]), so both apply one rule.
-#[derive(Clone, Copy, PartialEq)]
+#[derive(Debug, Clone, Copy, PartialEq)]
 pub(crate) struct Score {
     /// Every peak out within the maximum run time and a finite smallest resolution.
     pub(crate) feasible: bool,
@@ -46,6 +46,37 @@ impl Score {
             return self.min_rs > o.min_rs;
         }
         self.run < o.run - RUN_TIE_MIN
+    }
+
+    /// A total order that ranks conditions as [`Score::better_than`] does, but with exact
+    /// comparisons (`f64::total_cmp`), for sorting: the tolerances of `better_than` make it
+    /// intransitive (a ≈ b and b ≈ c while a ≠ c), and a sort given such a comparison may
+    /// panic ("does not correctly implement a total order"); found with a table of 10,001
+    /// invented analytes (issue 16). Best first.
+    pub(crate) fn rank_cmp(&self, o: &Score) -> std::cmp::Ordering {
+        use std::cmp::Ordering;
+        o.feasible
+            .cmp(&self.feasible)
+            .then_with(|| {
+                if self.feasible {
+                    Ordering::Equal
+                } else {
+                    self.run.total_cmp(&o.run)
+                }
+            })
+            .then_with(|| o.retained.cmp(&self.retained))
+            .then_with(|| o.meets.cmp(&self.meets))
+            .then_with(|| {
+                if self.meets {
+                    self.run
+                        .total_cmp(&o.run)
+                        .then_with(|| o.min_rs.total_cmp(&self.min_rs))
+                } else {
+                    o.min_rs
+                        .total_cmp(&self.min_rs)
+                        .then_with(|| self.run.total_cmp(&o.run))
+                }
+            })
     }
 
     /// Better by a margin worth a harder-to-run program (two-segment gradient): 0.1 min shorter
@@ -111,6 +142,62 @@ pub(crate) fn compass_search<const D: usize>(
 #[cfg(test)]
 mod tests {
     use super::*;
+    use proptest::prelude::*;
+
+    /// Scores whose numbers are either on a coarse grid (`fine` false) or 1e-10 apart, inside
+    /// the tolerances of `better_than` (`fine` true).
+    fn any_score(fine: bool) -> impl Strategy<Value = Score> {
+        let v = if fine {
+            (0u32..4).prop_map(|i| 1.0 + f64::from(i) * 1e-10).boxed()
+        } else {
+            (0u32..40).prop_map(|i| f64::from(i) * 0.5).boxed()
+        };
+        (any::<bool>(), any::<bool>(), any::<bool>(), v.clone(), v).prop_map(
+            |(feasible, retained, meets, min_rs, run)| Score {
+                feasible,
+                retained,
+                meets,
+                min_rs,
+                run,
+            },
+        )
+    }
+
+    proptest! {
+        /// `rank_cmp` is a total order (antisymmetric and transitive) even for numbers inside
+        /// the tolerances of `better_than`, so a sort with it cannot panic.
+        #[test]
+        fn rank_cmp_is_a_total_order(
+            a in any_score(true), b in any_score(true), c in any_score(true),
+            d in any_score(false), e in any_score(false),
+        ) {
+            use std::cmp::Ordering::*;
+            let all = [a, b, c, d, e];
+            for x in &all {
+                for y in &all {
+                    prop_assert_eq!(x.rank_cmp(y), y.rank_cmp(x).reverse());
+                    for z in &all {
+                        if x.rank_cmp(y) != Greater && y.rank_cmp(z) != Greater {
+                            prop_assert_ne!(x.rank_cmp(z), Greater);
+                        }
+                    }
+                }
+            }
+            let mut v = all.to_vec();
+            v.sort_by(Score::rank_cmp);
+        }
+
+        /// Outside the tolerances it ranks as `better_than` does: the best comes first.
+        #[test]
+        fn rank_cmp_agrees_with_better_than(a in any_score(false), b in any_score(false)) {
+            if a.better_than(&b) {
+                prop_assert_eq!(a.rank_cmp(&b), std::cmp::Ordering::Less);
+            }
+            if b.better_than(&a) {
+                prop_assert_eq!(a.rank_cmp(&b), std::cmp::Ordering::Greater);
+            }
+        }
+    }
 
     fn score(min_rs: f64, run: f64) -> Score {
         Score {

@@ -257,7 +257,7 @@ pub struct SuitabilityReport {
 }
 
 const SRC_RS: &str = "default 1.5: general pharmacopoeial chromatography chapters (critical pair), in general terms; the applicable chapter governs";
-const SRC_K: &str = "default 1–10: common practice (SKD 2010 ch. 2, from memory)";
+const SRC_K: &str = "default 1–10: common practice (Snyder, Kirkland & Dolan, Introduction to Modern Liquid Chromatography, 3rd ed., Wiley 2010, ch. 2; from memory)";
 const SRC_T: &str = "default 2.0: general pharmacopoeial chromatography chapters, in general terms; the monograph governs";
 const SRC_USER: &str = "set by the user";
 

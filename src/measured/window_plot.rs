@@ -220,11 +220,18 @@ pub(crate) fn render_window_plot(diagram: &WindowPlot) -> String {
         "<text x=\"{ml}\" y=\"16\" font-weight=\"bold\">{}</text>\n",
         esc(&diagram.heading)
     ));
-    // Target line.
+    // Target line, labelled at the end away from the chosen point (a chosen point at the
+    // right end, often on the target line itself, would sit under the label).
     let yt = sy(diagram.target_resolution);
+    let chosen_right = sx(diagram.optimum_x.clamp(x0, x1)) > ml + 0.5 * pw;
+    let (tx, tanchor) = if chosen_right {
+        (ml + 4.0, "start")
+    } else {
+        (ml + pw - 4.0, "end")
+    };
     s.push_str(&format!(
-        "<line x1=\"{ml}\" y1=\"{yt:.1}\" x2=\"{}\" y2=\"{yt:.1}\" stroke=\"black\" stroke-dasharray=\"6 4\"/><text x=\"{}\" y=\"{:.1}\" text-anchor=\"end\">target Rs = {}</text>\n",
-        ml + pw, ml + pw - 4.0, yt - 4.0, diagram.target_resolution
+        "<line x1=\"{ml}\" y1=\"{yt:.1}\" x2=\"{}\" y2=\"{yt:.1}\" stroke=\"black\" stroke-dasharray=\"6 4\"/><text class=\"target-label\" x=\"{tx:.1}\" y=\"{:.1}\" text-anchor=\"{tanchor}\">target Rs = {}</text>\n",
+        ml + pw, yt - 4.0, diagram.target_resolution
     ));
     // Series.
     let poly: Vec<String> = pts
@@ -399,6 +406,31 @@ mod tests {
         rest[..rest.find('"').expect("closing quote")]
             .parse()
             .expect("number")
+    }
+
+    /// Attribute `name` of the target-line label.
+    fn target_label_attr<'a>(svg: &'a str, name: &str) -> &'a str {
+        let el = &svg[svg.find("class=\"target-label\"").expect("target label")..];
+        let key = format!(" {name}=\"");
+        let rest = &el[el.find(&key).expect("attribute") + key.len()..];
+        &rest[..rest.find('"').expect("closing quote")]
+    }
+
+    /// Issue 16 (screenshot review): with the chosen point at the right end (a GC ramp just
+    /// meeting the target), the "target Rs" label sat on the point; it now goes to the other
+    /// end of the line.
+    #[test]
+    fn the_target_label_sits_at_the_end_away_from_the_chosen_point() {
+        let right = render_window_plot(&plot(58.0, false, false));
+        let left = render_window_plot(&plot(6.0, false, false));
+        assert_eq!(target_label_attr(&right, "text-anchor"), "start");
+        assert_eq!(target_label_attr(&left, "text-anchor"), "end");
+        for svg in [&right, &left] {
+            let tx: f64 = target_label_attr(svg, "x").parse().unwrap();
+            let cx = chosen_attr(svg, "cx");
+            // the label (about 95 px wide) starts or ends at least 200 px from the point
+            assert!((tx - cx).abs() > 200.0, "label at {tx}, point at {cx}");
+        }
     }
 
     #[test]

@@ -24,7 +24,10 @@ pub enum ModelError {
         expected: &'static str,
     },
     /// A descriptor the model needs is missing or not finite.
-    #[error("analyte descriptor {0:?} is missing or not finite; compute it before predicting")]
+    #[error(
+        "the retention model needs the analyte's {}, which could not be computed from its structure (a bare ion, or an element the descriptors do not cover)",
+        .0.replace('_', " ")
+    )]
     MissingDescriptor(String),
     /// The analyte elutes at the dead time (retention time not above t0).
     #[error(

@@ -456,7 +456,13 @@ impl AdviceReport {
         }
         out.push_str("\nCautions\n");
         for c in &self.cautions {
-            out.push_str(&format!("  - [{}] {}\n", c.topic, c.text));
+            // plain sentences: the topic (`solvent`, `ph`) stays in the JSON, not in the table
+            let mut chars = c.text.chars();
+            let text = match chars.next() {
+                Some(first) => first.to_uppercase().chain(chars).collect::<String>(),
+                None => String::new(),
+            };
+            out.push_str(&format!("  - {text}\n"));
         }
         out
     }
@@ -689,5 +695,35 @@ mod tests {
         assert_eq!(reason_weight(&r(Some(-0.05))), ", weight -0.05");
         assert!(reason_weight(&r(Some(0.0))).contains("not scored"));
         assert_eq!(reason_weight(&r(None)), "");
+    }
+
+    /// Issue 16: cautions in the table are plain sentences; the topic (`solvent`, `ph`) is a
+    /// JSON field, not a prefix a reader has to decode.
+    #[test]
+    fn table_cautions_are_sentences_without_topic_tags() {
+        let mut report: AdviceReport =
+            serde_json::from_str(include_str!("../../tests/data/plan/lc_impurity_panel.json"))
+                .unwrap();
+        report.cautions = vec![
+            Caution {
+                topic: "solvent".into(),
+                text: "acetonitrile: highly flammable liquid and vapour".into(),
+            },
+            Caution {
+                topic: "ph".into(),
+                text: "keep the mobile-phase pH inside the column's stated range".into(),
+            },
+        ];
+        let table = report.render_table();
+        let block = &table[table.find("\nCautions\n").expect("cautions block")..];
+        assert!(
+            block.contains("  - Acetonitrile: highly flammable"),
+            "{block}"
+        );
+        assert!(block.contains("  - Keep the mobile-phase pH"), "{block}");
+        assert!(
+            !block.contains("[solvent]") && !block.contains("[ph]"),
+            "{block}"
+        );
     }
 }

@@ -350,6 +350,10 @@ fn plain_property(p: &crate::property::Property) -> PlainProperty {
         ),
         ("logp", _) => (num(p.value, 2), "(log units)".into()),
         (_, "count") | ("charge", _) => (num(p.value, 0), p.unit.clone()),
+        // atom-contribution estimates: two decimals (Crippen MR), three for the McGowan volume
+        // (a sum of tabulated atom volumes), as `describe` prints them
+        ("molar_refractivity", _) => (num(p.value, 2), p.unit.clone()),
+        ("mcgowan_volume", _) => (num(p.value, 3), p.unit.clone()),
         (_, "") => (csv_num(p.value, None), "(log units)".into()),
         _ => (csv_num(p.value, None), p.unit.clone()),
     };
@@ -362,6 +366,8 @@ fn plain_property(p: &crate::property::Property) -> PlainProperty {
             "typical_error_k" => format!("typical error ± {v} K"),
             "spread" => format!("class spread ± {v}"),
             "temp_c" => format!("at {v} °C"),
+            // the pKa data sets that do not say whether a value is acidic or basic
+            "type" if v == "unspecified" => "acid or base not stated by the source".to_string(),
             "type" | "class" | "" => v.replace('_', " "),
             other => format!("{} {v}", other.replace('_', " ")),
         });
@@ -432,6 +438,18 @@ mod plain_tests {
         ));
         assert_eq!((w.label.as_str(), w.value.as_str()), ("pKa", "9.9"));
         assert_eq!(w.detail, "acidic; phenol; class spread ± 0.6");
+        // issue 16: a pKa data set that does not say acid or base prints no code word
+        let x = PropertyKind::Experimental;
+        let w = plain_property(&prop("pka", 3.47, "", x, "type=unspecified;temp_c=25.0"));
+        assert_eq!(
+            w.detail,
+            "acid or base not stated by the source; at 25.0 °C"
+        );
+        assert!(!w.detail.contains("unspecified"));
+        let w = plain_property(&prop("molar_refractivity", 42.4105, "cm³/mol", e, ""));
+        assert_eq!(w.value, "42.41");
+        let w = plain_property(&prop("mcgowan_volume", 1.17241, "cm³/mol/100", e, ""));
+        assert_eq!(w.value, "1.172");
         for (k, u) in [
             ("mcgowan_volume", "cm³/mol/100"),
             ("hbd", "count"),

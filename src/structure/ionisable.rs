@@ -245,9 +245,9 @@ impl Detector<'_, '_> {
                 Some(round2(p + shift)),
                 PkaSource::Estimated {
                     path: if path.is_empty() {
-                        format!("{class:?} {p:.1}")
+                        format!("{} {p:.1}", class_words(class))
                     } else {
-                        format!("{class:?} {p:.1}; {path}")
+                        format!("{} {p:.1}; {path}", class_words(class))
                     },
                 },
             ),
@@ -290,6 +290,15 @@ enum HammettKind {
     Benzoic,
     Phenol,
     Aniline,
+}
+
+/// The class in plain words (its snake_case serde name with spaces, as the reports write it),
+/// so that the estimate's path never shows a Rust name.
+fn class_words(class: GroupClass) -> String {
+    match serde_json::to_value(class) {
+        Ok(serde_json::Value::String(s)) => s.replace('_', " "),
+        _ => "ionisable group".to_string(),
+    }
 }
 
 /// Join two correction descriptions, skipping empty ones.

@@ -18,7 +18,7 @@ use phasewise::report::measured::gc_scout::{
     GC_SAFETY, GcScoutOutput, SCOUT_GC_SCHEMA_VERSION, gc_window_tsv,
 };
 
-use super::{ScoutArgs, per_run, refuse_options, too_few_peaks, write_scout_outputs};
+use super::{ScoutArgs, per_run, progress, refuse_options, too_few_peaks, write_scout_outputs};
 use crate::cli::input::{NumberRange, check_option_range, parse_gc_column, read_retention_peaks};
 use crate::cli::output::check_writable;
 
@@ -188,6 +188,8 @@ pub(super) fn run(a: &ScoutArgs) -> Result<ExitCode> {
             peaks: read_retention_peaks(path)?,
         });
     }
+    let analytes = runs.first().map_or(0, |r| r.peaks.peaks().len());
+    progress(analytes, "peak tables read; fitting ln k = A + B/T");
     let fitted = fit_gc(&GcScoutRequest {
         runs: runs.clone(),
         holdup_time_min: holdup,
@@ -267,6 +269,10 @@ pub(super) fn run(a: &ScoutArgs) -> Result<ExitCode> {
         target_resolution: a.target_resolution,
         min_retention_factor: a.min_k,
     };
+    progress(
+        analytes,
+        "fit done; searching oven programs (time grows linearly with the analytes)",
+    );
     let report = optimise_gc(&req).map_err(|e| match e {
         GcOptimiseError::NoFeasibleCondition { .. } => anyhow::anyhow!(
             "no oven program within --initial-range {},{} °C and --ramp-range {},{} °C/min (limit {max_temperature} °C) elutes every analyte within --max-run-time {} min; raise --max-run-time or the top of --ramp-range",

@@ -22,7 +22,9 @@ use phasewise::report::measured::scout::{
 };
 
 use super::store::{store_fits, store_target};
-use super::{ScoutArgs, ScoutMode, per_run, refuse_options, too_few_peaks, write_scout_outputs};
+use super::{
+    ScoutArgs, ScoutMode, per_run, progress, refuse_options, too_few_peaks, write_scout_outputs,
+};
 use crate::cli::Cli;
 use crate::cli::exit::success_unless_partial;
 use crate::cli::input::{
@@ -185,6 +187,8 @@ pub(super) fn run(cli: &Cli, a: &ScoutArgs) -> Result<ExitCode> {
         }
         None => None,
     };
+    let analytes = runs.first().map_or(0, |r| r.peaks.peaks().len());
+    progress(analytes, "peak tables read; fitting log kw and S");
     let fit_runs = |runs: Vec<ScoutRun>| {
         fit_in(
             &ScoutRequest {
@@ -246,6 +250,10 @@ pub(super) fn run(cli: &Cli, a: &ScoutArgs) -> Result<ExitCode> {
         gradient_time_steps: 25,
         composition_step_pct: 5.0,
     };
+    progress(
+        analytes,
+        "fit done; searching gradient programs (time grows linearly with the analytes)",
+    );
     let optimise_error = |e: OptimiseError| optimise_error(e, a, &ranges);
     let (mut report, temperature) = if temperature_fits.is_empty() {
         (optimise(&req).map_err(optimise_error)?, None)
@@ -301,6 +309,7 @@ pub(super) fn run(cli: &Cli, a: &ScoutArgs) -> Result<ExitCode> {
         optimisation: &report,
         temperature: temperature.as_ref(),
     };
+    progress(analytes, "search done; writing the report");
     let text = phasewise::report::measured::render(&output, a.format.into())?;
     let left_out = match &store {
         Some(t) => store_fits(cli, a, t, &fitted, &program_specs)?,

@@ -194,6 +194,20 @@ pub fn run(cli: &Cli, a: &ScoutArgs) -> Result<ExitCode> {
     }
 }
 
+/// Peak tables with more analytes than this get one progress line on stderr per stage of the
+/// work (reading, fitting, searching, writing), so a long run is never silent. At about 0.6 s
+/// of CPU per 1,000 analytes for the search (docs/performance.md), 10,000 analytes take a few
+/// seconds.
+pub(super) const PROGRESS_ABOVE_ANALYTES: usize = 10_000;
+
+/// One progress line on stderr (`scout: ...`) when the run has more than
+/// [`PROGRESS_ABOVE_ANALYTES`] analytes; nothing for ordinary tables.
+pub(super) fn progress(analytes: usize, stage: &str) {
+    if analytes > PROGRESS_ABOVE_ANALYTES {
+        crate::cli::output::note(&format!("scout: {stage} ({analytes} analytes)"));
+    }
+}
+
 /// Splits a `;`-separated list with one item per run file, parsing each item; messages name
 /// the option, the item's place and text.
 pub(super) fn per_run<T>(

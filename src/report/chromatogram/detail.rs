@@ -13,6 +13,10 @@ pub(super) const DETAIL_HEIGHT_PX: f64 = 120.0;
 pub(super) const DETAIL_GAP_PX: f64 = 55.0;
 /// At most this many detail panels fit across the image.
 const MAX_DETAILS: usize = 3;
+/// Estimated width of one character of a panel title (font size 11, bold), px.
+const TITLE_CHAR_PX: f64 = 6.6;
+/// Estimated width of one character of a peak label in a panel (font size 10), px.
+const LABEL_CHAR_PX: f64 = 5.6;
 
 /// A zoomed window on one flagged pair.
 pub(super) struct DetailWindow {
@@ -84,14 +88,42 @@ pub(super) fn draw_detail(s: &mut String, peaks: &[Peak], w: &DetailWindow, left
     } else {
         String::new()
     };
+    // The title takes two lines, so that it stays within its panel and the gap beside it
+    // (screenshot review, issue 16: one-line titles of long names ran into the next panel).
+    let max_chars = ((DETAIL_WIDTH_PX + DETAIL_GAP_PX - 10.0) / TITLE_CHAR_PX).floor() as usize;
+    let pair = format!("close-up: {} / {}", w.a, w.b);
+    let (line1, line2) = if pair.chars().count() <= max_chars {
+        (pair, rs.trim_start_matches(", ").to_string())
+    } else {
+        // long names: the resolution first, then the pair, each name shortened with "…" if
+        // needed (the full names are on the main plot's labels)
+        let each = (max_chars.saturating_sub(3) / 2).max(4);
+        let short = |n: &str| {
+            if n.chars().count() <= each
+                || w.a.chars().count() + w.b.chars().count() + 3 <= max_chars
+            {
+                n.to_string()
+            } else {
+                let mut t: String = n.chars().take(each - 1).collect();
+                t.push('…');
+                t
+            }
+        };
+        let head = if rs.is_empty() {
+            "close-up:".to_string()
+        } else {
+            format!("close-up{rs}:")
+        };
+        (head, format!("{} / {}", short(&w.a), short(&w.b)))
+    };
     let _ = writeln!(
         s,
-        "<g class=\"detail\"><text x=\"{}\" y=\"{}\" font-size=\"11\" font-weight=\"bold\">close-up: {} / {}{}</text>",
-        f2(left),
+        "<g class=\"detail\"><text class=\"detail-title\" x=\"{x}\" y=\"{}\" font-size=\"11\" font-weight=\"bold\">{}</text><text class=\"detail-title\" x=\"{x}\" y=\"{}\" font-size=\"11\">{}</text>",
+        f2(top - 21.0),
+        escape_xml(&line1),
         f2(top - 8.0),
-        escape_xml(&w.a),
-        escape_xml(&w.b),
-        rs
+        escape_xml(&line2),
+        x = f2(left),
     );
     let _ = writeln!(
         s,
@@ -171,17 +203,43 @@ pub(super) fn draw_detail(s: &mut String, peaks: &[Peak], w: &DetailWindow, left
     });
     for (i, p) in named.iter().enumerate() {
         let x = x_of(p.row.retention_time_min);
-        let (dx, anchor) = if i == 0 {
-            (-2.0, "end")
+        // a name wider than the panel is shortened with "…" (the main plot has it in full)
+        let max_chars = ((DETAIL_WIDTH_PX - 6.0) / LABEL_CHAR_PX).floor() as usize;
+        let name: String = if p.row.analyte.chars().count() > max_chars {
+            let mut t: String = p.row.analyte.chars().take(max_chars - 1).collect();
+            t.push('…');
+            t
         } else {
-            (2.0, "start")
+            p.row.analyte.clone()
+        };
+        let width = name.chars().count() as f64 * LABEL_CHAR_PX;
+        let right = left + DETAIL_WIDTH_PX;
+        // a label that would cross the panel's edge is centred over its own apex instead,
+        // shifted just enough to stay inside the panel (so it never seems to name a cut-off
+        // neighbour at the edge)
+        let centred = || {
+            (
+                x.clamp(left + 3.0 + width / 2.0, right - 3.0 - width / 2.0),
+                "middle",
+            )
+        };
+        let (lx, anchor) = if i == 0 {
+            if x - 2.0 - width < left + 3.0 {
+                centred()
+            } else {
+                (x - 2.0, "end")
+            }
+        } else if x + 2.0 + width > right - 3.0 {
+            centred()
+        } else {
+            (x + 2.0, "start")
         };
         let _ = writeln!(
             s,
-            "<text x=\"{}\" y=\"{}\" font-size=\"10\" text-anchor=\"{anchor}\">{}</text>",
-            f2(x + dx),
+            "<text class=\"detail-label\" x=\"{}\" y=\"{}\" font-size=\"10\" text-anchor=\"{anchor}\">{}</text>",
+            f2(lx),
             f2(y_of(1.0) - 5.0),
-            escape_xml(&p.row.analyte)
+            escape_xml(&name)
         );
     }
     s.push_str("</g>\n");

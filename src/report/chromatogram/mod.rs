@@ -201,6 +201,98 @@ pub struct ChromatogramData<'a> {
     pub program: Option<ProgramTrace>,
 }
 
+/// A white outline drawn under a text's glyphs (`paint-order`), so that lines behind a label
+/// do not strike through it.
+const HALO: &str =
+    " stroke=\"#fff\" stroke-width=\"3\" stroke-linejoin=\"round\" paint-order=\"stroke\"";
+
+/// Height of the program's lowest value above the time axis, px.
+const PROGRAM_BASE_PX: f64 = 12.0;
+
+/// Gap between the highest apex and the lowest level of risk brackets, px.
+const BRACKET_GAP_PX: f64 = 10.0;
+/// Height of one level of risk brackets (bracket and its Rs label), px.
+const BRACKET_LEVEL_PX: f64 = 15.0;
+/// Estimated width of one character of a bracket's label (font size 10, bold), px.
+const BRACKET_CHAR_PX: f64 = 6.4;
+
+/// One risk bracket: the pair, its horizontal extent in px, its label and its level (0 is the
+/// lowest).
+#[derive(Debug, Clone, PartialEq)]
+struct Bracket {
+    a: String,
+    b: String,
+    xl: f64,
+    xr: f64,
+    text: String,
+    level: usize,
+}
+
+/// Places one bracket per drawable pair at risk: greedy levels, left to right, so that
+/// neither two brackets nor two Rs labels of one level overlap (with a 4 px gap).
+fn layout_brackets(
+    coelutions: &[Coelution],
+    peaks: &[Peak],
+    x_of: &dyn Fn(f64) -> f64,
+) -> Vec<Bracket> {
+    let mut out: Vec<Bracket> = Vec::new();
+    for c in coelutions {
+        let find = |n: &str| peaks.iter().find(|p| p.row.analyte == n);
+        let (Some(pa), Some(pb)) = (find(&c.a), find(&c.b)) else {
+            continue;
+        };
+        let (xa, xb) = (
+            x_of(pa.row.retention_time_min),
+            x_of(pb.row.retention_time_min),
+        );
+        let (xl, xr) = if xa <= xb { (xa, xb) } else { (xb, xa) };
+        let (xl, xr) = if xr - xl < 8.0 {
+            ((xl + xr) / 2.0 - 4.0, (xl + xr) / 2.0 + 4.0)
+        } else {
+            (xl, xr)
+        };
+        let text = if c.resolution.is_finite() {
+            format!("Rs {:.2}", c.resolution)
+        } else {
+            "Rs ?".to_string()
+        };
+        out.push(Bracket {
+            a: c.a.clone(),
+            b: c.b.clone(),
+            xl,
+            xr,
+            text,
+            level: 0,
+        });
+    }
+    let extent = |b: &Bracket| {
+        let half = b.text.chars().count() as f64 * BRACKET_CHAR_PX / 2.0 + 2.0;
+        let xm = (b.xl + b.xr) / 2.0;
+        (b.xl.min(xm - half), b.xr.max(xm + half))
+    };
+    out.sort_by(|p, q| {
+        extent(p)
+            .0
+            .total_cmp(&extent(q).0)
+            .then_with(|| p.xr.total_cmp(&q.xr))
+            .then_with(|| (&p.a, &p.b).cmp(&(&q.a, &q.b)))
+    });
+    let mut level_right: Vec<f64> = Vec::new();
+    for b in &mut out {
+        let (left, right) = extent(b);
+        let level = match level_right.iter().position(|&r| r + 4.0 <= left) {
+            Some(l) => l,
+            None => {
+                level_right.push(f64::NEG_INFINITY);
+                level_right.len() - 1
+            }
+        };
+        level_right[level] = right;
+        b.level = level;
+    }
+    out
+}
+
 /// Row height of one interval bar, px.
 const INTERVAL_ROW_PX: f64 = 13.0;
 
@@ -305,13 +397,22 @@ pub fn render_chromatogram_svg(data: &ChromatogramData, title: &str) -> String {
         .map(|p| response(p.row.retention_time_min))
         .collect();
     let any_risk = peaks.iter().any(|p| p.flagged);
-    // headroom for the risk brackets
-    let y_top_value = grid
+    let brackets = layout_brackets(data.coelutions, &peaks, &x_of);
+    let levels = brackets.iter().map(|b| b.level + 1).max().unwrap_or(0);
+    let apex_max = grid
         .iter()
         .map(|&(_, v)| v)
         .chain(peak_sums.iter().copied())
-        .fold(1.0_f64, f64::max)
-        * if any_risk { 1.3 } else { 1.08 };
+        .fold(1.0_f64, f64::max);
+    // headroom for the risk brackets: each level of brackets (pairs whose brackets or labels
+    // would overlap go one level up) needs BRACKET_LEVEL_PX above the highest apex
+    let headroom_px = if levels == 0 {
+        0.0
+    } else {
+        (BRACKET_GAP_PX + levels as f64 * BRACKET_LEVEL_PX).min(0.6 * PLOT_HEIGHT_PX)
+    };
+    let y_top_value = (apex_max * if any_risk { 1.3 } else { 1.08 })
+        .max(apex_max / (1.0 - headroom_px / PLOT_HEIGHT_PX));
 
     // Labels: greedy tiers, lowest tier whose previous label ends left of this one.
     let mut tier_right: Vec<f64> = Vec::new();
@@ -391,7 +492,19 @@ pub fn render_chromatogram_svg(data: &ChromatogramData, title: &str) -> String {
         ));
     }
     if let Some(p) = program {
-        legend.push(("program", format!("program, right axis: {}", p.label)));
+        let held = p.points.last().is_some_and(|&(t, _)| t < t_max);
+        legend.push((
+            "program",
+            format!(
+                "program, right axis: {}{}",
+                p.label,
+                if held {
+                    "; final value held to the end"
+                } else {
+                    ""
+                }
+            ),
+        ));
     }
     if t0_drawn {
         legend.push(("t0", "t0: column dead time".to_string()));
@@ -401,7 +514,8 @@ pub fn render_chromatogram_svg(data: &ChromatogramData, title: &str) -> String {
     let notes_lines = if not_drawn.is_empty() { 0.0 } else { 1.0 };
     let details = detail_windows(data.coelutions, &peaks);
     let after_legend = legend_top + legend_rows * 18.0 + notes_lines * 16.0;
-    let detail_top = after_legend + 22.0;
+    // room for the two-line titles of the close-up panels
+    let detail_top = after_legend + 36.0;
     let height = if details.is_empty() {
         after_legend + 10.0
     } else {
@@ -511,6 +625,10 @@ pub fn render_chromatogram_svg(data: &ChromatogramData, title: &str) -> String {
             .collect();
         if prog.points.iter().any(|p| p.0 > t_max) {
             pts.push((t_max, program_at(&prog.points, t_max)));
+        } else if let Some(&(_, v_last)) = pts.last().filter(|p| p.0 < t_max) {
+            // peaks after the program's last step elute at its final value (the instrument
+            // holds it until the run stops): draw that hold to the end of the axis
+            pts.push((t_max, v_last));
         }
         let vmin_raw = prog
             .points
@@ -525,7 +643,13 @@ pub fn render_chromatogram_svg(data: &ChromatogramData, title: &str) -> String {
         let pstep = nice_step((vmax_raw - vmin_raw).max(1.0));
         let vlo = (vmin_raw / pstep).floor() * pstep;
         let vhi = ((vmax_raw / pstep).ceil() * pstep).max(vlo + pstep);
-        let py = |v: f64| plot_bottom - (v - vlo) / (vhi - vlo) * PLOT_HEIGHT_PX * 0.9;
+        // the lowest value sits a little above the time axis, so that an initial hold (a GC
+        // oven at its starting temperature) is not hidden under the axis line
+        let py = |v: f64| {
+            plot_bottom
+                - PROGRAM_BASE_PX
+                - (v - vlo) / (vhi - vlo) * (PLOT_HEIGHT_PX * 0.9 - PROGRAM_BASE_PX)
+        };
         let d = path_data(pts.iter().map(|&(t, v)| (x_of(t), py(v))));
         let _ = writeln!(
             s,
@@ -610,61 +734,43 @@ pub fn render_chromatogram_svg(data: &ChromatogramData, title: &str) -> String {
         "<path class=\"sum\" d=\"{d}\" fill=\"none\" stroke=\"#000\" stroke-width=\"1.8\"/>"
     );
 
-    // Risk brackets: one per pair at risk, above the higher apex, with the predicted Rs.
-    for c in data.coelutions {
-        let find = |n: &str| {
-            peaks
-                .iter()
-                .zip(&peak_sums)
-                .find(|(p, _)| p.row.analyte == n)
-        };
-        let (Some((pa, sa)), Some((pb, sb))) = (find(&c.a), find(&c.b)) else {
-            continue;
-        };
-        let (xa, xb) = (
-            x_of(pa.row.retention_time_min),
-            x_of(pb.row.retention_time_min),
-        );
-        let (xl, xr) = if xa <= xb { (xa, xb) } else { (xb, xa) };
-        let (xl, xr) = if xr - xl < 8.0 {
-            ((xl + xr) / 2.0 - 4.0, (xl + xr) / 2.0 + 4.0)
-        } else {
-            (xl, xr)
-        };
-        let top = y_of(sa.max(*sb)) - 10.0;
-        let rs = if c.resolution.is_finite() {
-            format!("Rs {:.2}", c.resolution)
-        } else {
-            "Rs ?".to_string()
-        };
+    // Risk brackets: one per pair at risk, above the highest apex, with the predicted Rs;
+    // overlapping brackets are stacked in levels so that no two labels collide.
+    let bracket_base = y_of(apex_max) - BRACKET_GAP_PX;
+    for b in &brackets {
+        let top = bracket_base - b.level as f64 * BRACKET_LEVEL_PX;
         let _ = writeln!(
             s,
-            "<g class=\"risk-bracket\" data-pair=\"{a} / {b}\"><path d=\"M {xl} {y1} L {xl} {y0} L {xr} {y0} L {xr} {y1}\" fill=\"none\" stroke=\"#000\" stroke-width=\"1.4\"/>\
-             <text x=\"{xm}\" y=\"{yt}\" font-size=\"10\" font-weight=\"bold\" text-anchor=\"middle\">{rs}</text></g>",
-            a = escape_xml(&c.a),
-            b = escape_xml(&c.b),
-            xl = f2(xl),
-            xr = f2(xr),
+            "<g class=\"risk-bracket\" data-pair=\"{a} / {b_name}\" data-level=\"{level}\"><path d=\"M {xl} {y1} L {xl} {y0} L {xr} {y0} L {xr} {y1}\" fill=\"none\" stroke=\"#000\" stroke-width=\"1.4\"/>\
+             <text x=\"{xm}\" y=\"{yt}\" font-size=\"10\" font-weight=\"bold\" text-anchor=\"middle\"{HALO}>{rs}</text></g>",
+            a = escape_xml(&b.a),
+            b_name = escape_xml(&b.b),
+            level = b.level,
+            xl = f2(b.xl),
+            xr = f2(b.xr),
             y0 = f2(top),
             y1 = f2(top + 6.0),
-            xm = f2((xl + xr) / 2.0),
+            xm = f2((b.xl + b.xr) / 2.0),
             yt = f2(top - 3.0),
+            rs = escape_xml(&b.text),
         );
     }
 
-    // Labels with leader lines.
-    for (p, ((text, cx, tier), sum)) in peaks.iter().zip(placed.iter().zip(&peak_sums)) {
-        let ly = title_h + (tiers - *tier as f64) * TIER_PX;
-        let apex_x = x_of(p.row.retention_time_min);
-        let apex_y = y_of(*sum);
+    // Labels with leader lines: every leader first, then every label over them with a white
+    // halo, so that a leader from a higher tier never strikes through a lower label (screenshot
+    // review, issue 16).
+    let label_y = |tier: usize| title_h + (tiers - tier as f64) * TIER_PX;
+    for (p, ((_, cx, tier), sum)) in peaks.iter().zip(placed.iter().zip(&peak_sums)) {
         let _ = writeln!(
             s,
             "<line class=\"leader\" x1=\"{}\" y1=\"{}\" x2=\"{}\" y2=\"{}\" stroke=\"#000\" stroke-width=\"0.6\" stroke-dasharray=\"1 2\"/>",
             f2(*cx),
-            f2(ly + 3.0),
-            f2(apex_x),
-            f2(apex_y - 3.0)
+            f2(label_y(*tier) + 3.0),
+            f2(x_of(p.row.retention_time_min)),
+            f2(y_of(*sum) - 3.0)
         );
+    }
+    for (p, (text, cx, tier)) in peaks.iter().zip(placed.iter()) {
         let weight = if p.flagged {
             " font-weight=\"bold\""
         } else {
@@ -672,10 +778,10 @@ pub fn render_chromatogram_svg(data: &ChromatogramData, title: &str) -> String {
         };
         let _ = writeln!(
             s,
-            "<text class=\"label\" data-analyte=\"{}\" x=\"{}\" y=\"{}\" font-size=\"11\" text-anchor=\"middle\"{}>{}</text>",
+            "<text class=\"label\" data-analyte=\"{}\" x=\"{}\" y=\"{}\" font-size=\"11\" text-anchor=\"middle\"{}{HALO}>{}</text>",
             escape_xml(&p.row.analyte),
             f2(*cx),
-            f2(ly),
+            f2(label_y(*tier)),
             weight,
             escape_xml(text)
         );

@@ -1,5 +1,6 @@
 use super::*;
 use crate::measured::optimise::Prediction;
+use crate::report::advice::ProgramStep;
 
 #[test]
 fn an_optimum_is_drawn_with_its_program_and_pairs_below_target_bracketed() {
@@ -194,4 +195,260 @@ fn a_gc_recommendation_draws_the_oven_program_on_the_second_axis() {
     let svg = render_svg(&bare, "t");
     assert!(!svg.contains("class=\"program\"") && !svg.contains("class=\"axis-right\""));
     assert!(!svg.contains("data-kind=\"program\""));
+}
+
+/// The `d` attribute's points of the first element of `class`.
+fn class_points(svg: &str, class: &str) -> Vec<(f64, f64)> {
+    let at = svg
+        .find(&format!("class=\"{class}\""))
+        .unwrap_or_else(|| panic!("no {class}"));
+    let d = &svg[at..];
+    let d = &d[d.find(" d=\"").unwrap() + 4..];
+    let d = &d[..d.find('"').unwrap()];
+    let nums: Vec<f64> = d
+        .split([' ', 'M', 'L'])
+        .filter(|t| !t.is_empty())
+        .map(|t| t.parse().unwrap())
+        .collect();
+    nums.chunks(2).map(|c| (c[0], c[1])).collect()
+}
+
+/// Attribute `name` of every element of `class`, as numbers.
+fn class_attr(svg: &str, class: &str, name: &str) -> Vec<f64> {
+    svg.match_indices(&format!("class=\"{class}\""))
+        .map(|(i, _)| {
+            let rest = &svg[i..];
+            let key = format!("{name}=\"");
+            let v = &rest[rest.find(&key).unwrap() + key.len()..];
+            v[..v.find('"').unwrap()].parse().unwrap()
+        })
+        .collect()
+}
+
+/// Issue 16 (screenshot review): three pairs at risk among three close peaks printed their
+/// "Rs" labels on top of each other; overlapping brackets now go to separate levels, and the
+/// labels of one level keep apart.
+#[test]
+fn overlapping_risk_brackets_are_stacked_and_their_labels_never_collide() {
+    let text = include_str!("../../../tests/data/plan/lc_impurity_panel.json");
+    let report: super::super::advice::AdviceReport = serde_json::from_str(text).unwrap();
+    let mut rec = report.recommendations[0].clone();
+    // three peaks 0.4 min apart (invented), every pair among them at risk
+    let names: Vec<String> = rec
+        .predictions
+        .iter()
+        .take(3)
+        .map(|p| p.analyte.clone())
+        .collect();
+    for (i, p) in rec.predictions.iter_mut().enumerate() {
+        p.retention_time_min = 8.0 + 0.4 * i as f64;
+    }
+    let template = rec.coelutions[0].clone();
+    rec.coelutions = [(0, 1, 1.1), (1, 2, 1.3), (0, 2, 2.4)]
+        .iter()
+        .map(|&(a, b, rs)| {
+            let mut c = template.clone();
+            c.a = names[a].clone();
+            c.b = names[b].clone();
+            c.resolution = rs;
+            c
+        })
+        .collect();
+    let svg = render_svg(&rec, "t");
+    assert_eq!(svg.matches("class=\"risk-bracket\"").count(), 3);
+    let levels = class_attr(&svg, "risk-bracket", "data-level");
+    // the wide bracket (first to third) cannot share a level with either narrow one
+    let mut distinct = levels.clone();
+    distinct.sort_by(f64::total_cmp);
+    distinct.dedup();
+    assert!(distinct.len() >= 2, "levels {levels:?}");
+    // no two Rs labels at the same height overlap horizontally (6.4 px per character)
+    let labels: Vec<(f64, f64, usize)> = svg
+        .match_indices("class=\"risk-bracket\"")
+        .map(|(i, _)| {
+            let g = &svg[i..];
+            let t = &g[g.find("<text").unwrap()..];
+            let num = |k: &str| -> f64 {
+                let v = &t[t.find(k).unwrap() + k.len()..];
+                v[..v.find('"').unwrap()].parse().unwrap()
+            };
+            let body = &t[t.find('>').unwrap() + 1..t.find("</text>").unwrap()];
+            (num(" x=\""), num(" y=\""), body.chars().count())
+        })
+        .collect();
+    for (i, a) in labels.iter().enumerate() {
+        for b in &labels[i + 1..] {
+            if (a.1 - b.1).abs() < 10.0 {
+                let half = (a.2.max(b.2) as f64) * 6.4 / 2.0;
+                assert!(
+                    (a.0 - b.0).abs() >= 2.0 * half,
+                    "labels {a:?} and {b:?} overlap"
+                );
+            }
+        }
+    }
+}
+
+/// The program is drawn to the end of the time axis (held at its final value after its last
+/// step, and the legend says so), and its lowest value sits above the time axis, so an
+/// initial oven hold is visible.
+#[test]
+fn the_program_is_held_to_the_axis_end_and_kept_off_the_time_axis() {
+    let text = include_str!("../../../tests/data/plan/lc_impurity_panel.json");
+    let report: super::super::advice::AdviceReport = serde_json::from_str(text).unwrap();
+    let mut rec = report.recommendations[0].clone();
+    // a short program that ends before the last peak (invented)
+    let last = rec
+        .predictions
+        .iter()
+        .map(|p| p.retention_time_min)
+        .fold(0.0, f64::max);
+    rec.conditions.program = vec![
+        ProgramStep {
+            time_min: 0.0,
+            value: 40.0,
+        },
+        ProgramStep {
+            time_min: 0.5 * last,
+            value: 95.0,
+        },
+    ];
+    let svg = render_svg(&rec, "t");
+    let pts = class_points(&svg, "program");
+    let x_end = 960.0 - 64.0;
+    let (xe, ye) = *pts.last().unwrap();
+    assert!(
+        (xe - x_end).abs() < 0.01,
+        "program ends at x = {xe}, axis at {x_end}"
+    );
+    assert!((ye - pts[pts.len() - 2].1).abs() < 0.01, "the hold is flat");
+    assert!(svg.contains("final value held to the end"));
+    // the lowest value is drawn above the time axis line
+    let axes = class_points(&svg, "axes");
+    let y_axis = axes[1].1;
+    let y_low = pts.iter().map(|p| p.1).fold(f64::NEG_INFINITY, f64::max);
+    assert!(
+        y_axis - y_low >= 8.0,
+        "lowest program value at {y_low}, axis at {y_axis}"
+    );
+}
+
+/// Screenshot review (issue 16): a close-up's peak label near the panel's edge ran over the
+/// panel's axis, and long one-line titles ran into the next panel. Every label now lies inside
+/// its panel and every title line inside its panel and the gap beside it.
+#[test]
+fn close_up_labels_and_titles_stay_inside_their_panels() {
+    let text = include_str!("../../../tests/data/plan/lc_impurity_panel.json");
+    let report: super::super::advice::AdviceReport = serde_json::from_str(text).unwrap();
+    let mut rec = report.recommendations[0].clone();
+    let names: Vec<String> = rec
+        .predictions
+        .iter()
+        .take(3)
+        .map(|p| p.analyte.clone())
+        .collect();
+    for (i, p) in rec.predictions.iter_mut().enumerate() {
+        p.retention_time_min = 8.0 + 0.4 * i as f64;
+        // a long name (invented), to test the title's wrapping
+        if i == 2 {
+            p.analyte = "impurity with a very long invented name X-17".into();
+        }
+    }
+    let long = rec.predictions[2].analyte.clone();
+    let template = rec.coelutions[0].clone();
+    rec.coelutions = [(0, 1, 1.1), (1, 2, 1.3)]
+        .iter()
+        .map(|&(a, b, rs)| {
+            let mut c = template.clone();
+            c.a = if a == 2 {
+                long.clone()
+            } else {
+                names[a].clone()
+            };
+            c.b = if b == 2 {
+                long.clone()
+            } else {
+                names[b].clone()
+            };
+            c.resolution = rs;
+            c
+        })
+        .collect();
+    let svg = render_svg(&rec, "t");
+    let panels: Vec<(f64, f64)> = (0..3)
+        .map(|i| {
+            let l = LEFT_PX + f64::from(i) * (detail::DETAIL_WIDTH_PX + detail::DETAIL_GAP_PX);
+            (l, l + detail::DETAIL_WIDTH_PX)
+        })
+        .collect();
+    let texts = |class: &str| -> Vec<(f64, String, String)> {
+        svg.match_indices(&format!("class=\"{class}\""))
+            .map(|(i, _)| {
+                let t = &svg[i..];
+                let attr = |k: &str| {
+                    let v = &t[t.find(k).unwrap() + k.len()..];
+                    v[..v.find('"').unwrap()].to_string()
+                };
+                let x: f64 = attr(" x=\"").parse().unwrap();
+                let head = &t[..t.find('>').unwrap()];
+                let anchor = if head.contains("text-anchor=\"end\"") {
+                    "end".to_string()
+                } else if head.contains("text-anchor=\"middle\"") {
+                    "middle".to_string()
+                } else {
+                    "start".to_string()
+                };
+                let body = t[t.find('>').unwrap() + 1..t.find("</text>").unwrap()].to_string();
+                (x, anchor, body)
+            })
+            .collect()
+    };
+    let labels = texts("detail-label");
+    assert!(!labels.is_empty());
+    for (x, anchor, body) in &labels {
+        let w = body.chars().count() as f64 * 5.6;
+        let (lo, hi) = match anchor.as_str() {
+            "end" => (x - w, *x),
+            "middle" => (x - w / 2.0, x + w / 2.0),
+            _ => (*x, x + w),
+        };
+        assert!(
+            panels
+                .iter()
+                .any(|&(l, r)| lo >= l - 0.01 && hi <= r + 0.01),
+            "label `{body}` spans {lo:.0}-{hi:.0}, outside every panel {panels:?}"
+        );
+    }
+    for (x, _, body) in texts("detail-title") {
+        let w = body.chars().count() as f64 * 6.6;
+        let panel = panels
+            .iter()
+            .find(|p| (p.0 - x).abs() < 0.01)
+            .expect("title at a panel");
+        assert!(
+            x + w <= panel.1 + detail::DETAIL_GAP_PX,
+            "title `{body}` runs into the next panel"
+        );
+    }
+}
+
+/// Screenshot review (issue 16): a leader line from an upper label tier struck through a lower
+/// label. Every leader is drawn before every label, and labels and Rs values carry a white
+/// halo that masks the lines behind them.
+#[test]
+fn labels_are_drawn_over_the_leader_lines_with_a_halo() {
+    let text = include_str!("../../../tests/data/plan/lc_impurity_panel.json");
+    let report: super::super::advice::AdviceReport = serde_json::from_str(text).unwrap();
+    let svg = render_svg(&report.recommendations[0], "t");
+    let last_leader = svg.rfind("class=\"leader\"").expect("leaders");
+    let first_label = svg.find("class=\"label\"").expect("labels");
+    assert!(last_leader < first_label, "a leader is drawn over a label");
+    for (i, _) in svg.match_indices("class=\"label\"") {
+        let el = &svg[i..i + svg[i..].find('>').unwrap()];
+        assert!(el.contains("paint-order=\"stroke\""), "{el}");
+    }
+    for (i, _) in svg.match_indices("class=\"risk-bracket\"") {
+        let g = &svg[i..i + svg[i..].find("</g>").unwrap()];
+        assert!(g.contains("paint-order=\"stroke\""), "{g}");
+    }
 }

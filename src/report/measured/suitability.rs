@@ -2,8 +2,8 @@
 
 use serde::Serialize;
 
-use super::{Render, csv_block, label, num};
-use crate::measured::suitability::{Criterion, Outcome, SuitabilityReport};
+use super::{Render, csv_block, num};
+use crate::measured::suitability::{Criterion, Outcome, ResolutionBasis, SuitabilityReport};
 use crate::report::csv_opt;
 use crate::report::table::render;
 
@@ -54,6 +54,15 @@ const CHECK_HEADER: [&str; 6] = [
     "result",
     "limit source",
 ];
+
+/// Which widths a resolution was computed from, in words.
+fn basis_text(b: ResolutionBasis) -> &'static str {
+    match b {
+        ResolutionBasis::HalfHeight => "half-height widths",
+        ResolutionBasis::BaseWidth => "base widths",
+        ResolutionBasis::MixedGaussian => "one width converted (Gaussian)",
+    }
+}
 
 fn criterion_text(c: Criterion) -> &'static str {
     match c {
@@ -109,7 +118,7 @@ fn suitability_rows(r: &SuitabilityReport, delimited: bool) -> [Vec<Vec<String>>
                 p.second.clone(),
                 num(p.selectivity, 3),
                 num(Some(p.resolution), 2),
-                label(&p.resolution_basis),
+                basis_text(p.resolution_basis).to_string(),
             ]
         })
         .collect();
@@ -144,15 +153,38 @@ fn suitability_table(r: &SuitabilityReport) -> String {
         s.push_str(&render(&PAIR_HEADER, &pairs));
         s.push('\n');
     }
-    s.push_str("\nChecks:\n");
+    // The table names each limit's source by number and lists the sources once below it (a
+    // source repeated on every row hides the values); the CSV keeps the text on every row.
+    let mut sources: Vec<String> = Vec::new();
+    let checks: Vec<Vec<String>> = checks
+        .into_iter()
+        .map(|mut row| {
+            if let Some(src) = row.last_mut() {
+                let n = match sources.iter().position(|x| x == src) {
+                    Some(i) => i + 1,
+                    None => {
+                        sources.push(src.clone());
+                        sources.len()
+                    }
+                };
+                *src = format!("[{n}]");
+            }
+            row
+        })
+        .collect();
+    s.push_str("\nChecks ((–) = dimensionless: Rs, k, tailing and N have no unit):\n");
     s.push_str(&render(&CHECK_HEADER, &checks));
+    s.push_str("\nLimit sources:\n");
+    for (i, src) in sources.iter().enumerate() {
+        s.push_str(&format!(" [{}] {src}\n", i + 1));
+    }
     let failed = r
         .checks
         .iter()
         .filter(|c| c.outcome == Outcome::Fail)
         .count();
     s.push_str(&format!(
-        "\n\nResult: {} ({} checks, {} failed, {} not evaluated)\n",
+        "\nResult: {} ({} checks, {} failed, {} not evaluated)\n",
         if r.passed { "PASS" } else { "FAIL" },
         r.checks.len(),
         failed,

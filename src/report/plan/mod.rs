@@ -470,11 +470,23 @@ fn conditions_blocks(rec: &Recommendation, blocks: &mut Vec<Block>) {
     if let Some(ph) = c.ph.filter(|p| p.is_finite()) {
         row("Aqueous pH", format!("{ph:.1}"));
     }
-    if let Some(b) = &c.buffer {
-        row("Buffer or additive", b.clone());
-    }
-    if let Some(p) = &c.buffer_preparation {
-        row("Buffer preparation", p.clone());
+    // The advisor stores the buffer's catalogue id (`phosphate-1`) beside the recipe; the plan
+    // gives the recipe in words and the id only as a reference (issue 16: no internal names).
+    match (&c.buffer, &c.buffer_preparation) {
+        (Some(b), Some(p)) if !b.trim().contains(char::is_whitespace) => {
+            row(
+                "Buffer or additive",
+                format!("{p} (buffer id {b} in the phase catalogue, docs/phases.md)"),
+            );
+        }
+        (b, p) => {
+            if let Some(b) = b {
+                row("Buffer or additive", b.clone());
+            }
+            if let Some(p) = p {
+                row("Buffer preparation", p.clone());
+            }
+        }
     }
     if let Some(g) = &c.carrier_gas {
         row("Carrier gas", g.clone());

@@ -96,7 +96,7 @@ th{background:#eee}\
 figure{margin:1em 0}figcaption{font-style:italic;font-size:.9em}\
 svg{max-width:100%;height:auto}\
 @media print{@page{size:A4;margin:16mm 14mm}body{max-width:none;margin:0;padding:0;font-size:10pt}\
-h2{page-break-after:avoid}figure,table,tr{page-break-inside:avoid}td,th{overflow-wrap:break-word}}";
+h2,h3{page-break-after:avoid;break-after:avoid}h2+p,h3+p{page-break-after:avoid;break-after:avoid}figure,table,tr{page-break-inside:avoid}td,th{overflow-wrap:break-word}}";
 
 /// Render the plan as one self-contained HTML file (inline CSS and SVG, no scripts, no
 /// external resources).

@@ -279,3 +279,47 @@ fn backup_changes_are_sentences_not_a_side_by_side_table() {
         "{st}"
     );
 }
+
+#[test]
+fn a_buffer_catalogue_id_is_not_shown_as_the_buffer() {
+    // the advisor stores the catalogue id (`phosphate-1`) beside the recipe; the plan shows
+    // the recipe in words and names the id only as a reference (issue 16)
+    let mut r = lc_report();
+    let c = &mut r.recommendations[0].conditions;
+    c.buffer = Some("phosphate-1".into());
+    c.buffer_preparation = Some(
+        "20 mM potassium phosphate, adjusted to pH 2.5 with phosphoric acid; measure the pH \
+         of the aqueous part before adding organic solvent"
+            .into(),
+    );
+    let opts = PlanOptions {
+        title: "t".into(),
+        date: None,
+    };
+    let md = render_markdown(&r, &opts);
+    let row = md
+        .lines()
+        .find(|l| l.starts_with("| Buffer or additive |"))
+        .expect("buffer row");
+    assert!(row.contains("20 mM potassium phosphate"), "{row}");
+    assert!(row.contains("buffer id phosphate-1"), "{row}");
+    assert!(!md.contains("| Buffer or additive | phosphate-1"), "{row}");
+}
+
+#[test]
+fn print_style_is_a4_and_keeps_headings_with_what_follows() {
+    // print-to-PDF review (issue 16): a section heading and its one-line introduction were left
+    // at the foot of a page, the table on the next
+    let html = render_html(
+        &lc_report(),
+        &PlanOptions {
+            title: "t".into(),
+            date: None,
+        },
+    );
+    let print = &html[html.find("@media print").expect("print style")..];
+    assert!(print.contains("size:A4"));
+    assert!(print.contains("h2,h3{page-break-after:avoid;break-after:avoid}"));
+    assert!(print.contains("h2+p,h3+p{page-break-after:avoid;break-after:avoid}"));
+    assert!(print.contains("table,tr{page-break-inside:avoid}"));
+}

@@ -177,7 +177,7 @@ impl Detector<'_, '_> {
             };
             shift += delta;
             if delta != 0.0 {
-                parts.push(format!("{}-{sub:?} {delta:+.2}", dist + 1));
+                parts.push(format!("{}-{} {delta:+.2}", dist + 1, sub.words()));
             }
         }
         let shift = shift.clamp(-7.0, 5.0);
@@ -240,7 +240,7 @@ impl Detector<'_, '_> {
                 _ => "p",
             };
             if delta != 0.0 {
-                parts.push(format!("{position}-{sub:?} {delta:+.2}"));
+                parts.push(format!("{position}-{} {delta:+.2}", sub.words()));
             }
         }
         let shift = shift.clamp(-6.0, 4.0);

@@ -103,6 +103,30 @@ pub(super) enum Substituent {
 }
 
 impl Substituent {
+    /// The substituent in plain words, as a pKa estimate's path shows it.
+    pub(super) fn words(self) -> &'static str {
+        use Substituent::*;
+        match self {
+            Nitro => "nitro",
+            Cyano => "cyano",
+            Trifluoromethyl => "trifluoromethyl",
+            Fluoro => "fluoro",
+            Chloro => "chloro",
+            Bromo => "bromo",
+            Iodo => "iodo",
+            Alkyl => "alkyl",
+            Alkoxy => "alkoxy",
+            Hydroxy => "hydroxy",
+            Amino => "amino",
+            Acylamino => "acylamino",
+            Acyl => "acyl",
+            Ester => "ester",
+            Carboxamide => "carboxamide",
+            Sulfonyl => "sulfonyl",
+            Alkylthio => "alkylthio",
+        }
+    }
+
     pub(super) fn sigma(self) -> (f64, f64, f64) {
         use Substituent::*;
         match self {

@@ -161,3 +161,26 @@ fn output_is_sorted_and_deterministic() {
     sorted.sort_unstable();
     assert_eq!(firsts, sorted);
 }
+
+/// Issue 16: the path of an estimate is read by users (`describe --format json`), so it names
+/// the class and the substituents in plain words, never a Rust name such as
+/// `AromaticCarboxylicAcid` or `o-Acylamino`.
+#[test]
+fn estimate_paths_are_plain_words() {
+    for smiles in [
+        "CC(=O)Oc1ccccc1C(=O)O", // aromatic acid with an ortho acyloxy group
+        "CC(=O)Nc1ccc(O)cc1",    // phenol with a para acylamino group
+        "NCC(=O)O",              // amino acid
+        "Clc1ccc(N)cc1",         // aniline with a para chloro
+        "c1ccncc1C#N",           // pyridine with a meta cyano
+    ] {
+        for site in sites(smiles) {
+            if let PkaSource::Estimated { path } = &site.pka_source {
+                let camel = path
+                    .split(|c: char| !c.is_alphanumeric())
+                    .any(|w| w.chars().any(char::is_uppercase));
+                assert!(!camel, "{smiles}: path `{path}` shows an internal name");
+            }
+        }
+    }
+}

@@ -343,11 +343,13 @@ impl Kb {
             // is a structure first: its letters, read as a name, can match a formula-like
             // synonym of another compound (`[O-][N+](=O)[O-]`, nitrate, reads `onooo`, a
             // synonym of peroxynitrite).
-            if n.contains(['[', '=', '#', '@', '/', '\\'])
-                && crate::structure::is_valid_smiles(n)
-                && let Some(a) = self.find_by_structure(raw, n)?
-            {
-                return Ok(Resolution::Found(Box::new(a)));
+            if n.contains(['[', '=', '#', '@', '/', '\\']) && crate::structure::is_valid_smiles(n) {
+                if let Some(a) = self.find_anywhere(raw, &Query::Smiles(n.clone()))? {
+                    return Ok(Resolution::Found(Box::new(a)));
+                }
+                if let Some(a) = self.find_by_structure(raw, n)? {
+                    return Ok(Resolution::Found(Box::new(a)));
+                }
             }
             if let Some(r @ Resolution::Found(_)) = self.resolve_ion(raw)? {
                 return Ok(r);

@@ -17,6 +17,13 @@ Output is deterministic (sorted rows, gzip mtime 0).
 """
 import argparse, csv, gzip, io, os, re, subprocess, sys, tempfile, zipfile
 
+try:
+    from rdkit import Chem, RDLogger
+    RDLogger.DisableLog("rdApp.*")
+    AMINO_ACID = Chem.MolFromSmarts("[CX4;!a]([NX3;!$(N=*)])[CX3](=O)[OX2H1,OX1-]")
+except ImportError:
+    Chem = None
+
 HERE = os.path.dirname(os.path.abspath(__file__))
 ROOT = os.path.dirname(HERE)
 OUT = os.path.join(ROOT, "data", "kb")
@@ -73,6 +80,39 @@ def clean_retention_name(n):
     return n
 
 
+COUNTER_ION_TAIL = re.compile(r"^(.*[a-z0-9)\]])\s+(?:chloride|dichloride|bromide|dibromide|iodide|diiodide|"
+                              r"methyl ?sulfate|metilsulfate|methosulfate|nitrate|hydroxide|tosylate)$")
+
+
+def add_ion_table(compounds, order, path):
+    """Every ion of the ion-chromatography table (data/ic_ions.tsv, written for phasewise)
+    is a record of the base, as the ion: oxyanions such as chlorate and chromate that the
+    PubChem tables hold only as acids or salts are found by name and by any form of their
+    structure."""
+    if Chem is None:
+        print("RDKit not installed: ion table not added", file=sys.stderr)
+        return
+    from rdkit.Chem.rdMolDescriptors import CalcMolFormula
+    from rdkit.Chem.Descriptors import MolWt
+    added = 0
+    with open(path, encoding="utf-8") as fh:
+        lines = [l for l in fh if not l.startswith("#")]
+    for row in csv.DictReader(lines, delimiter="\t"):
+        smi = (row.get("smiles") or "").strip()
+        m = Chem.MolFromSmiles(smi) if smi else None
+        if m is None:
+            continue
+        key = Chem.MolToInchiKey(m)
+        if not key or key in compounds:
+            continue
+        names = [row["name"]] + [n for n in (row.get("synonyms") or "").split(";") if n]
+        compounds[key] = dict(cid="", cas="", formula=CalcMolFormula(m), mw="%.5f" % MolWt(m), smiles=smi,
+                              key=key, pref=row["name"], names=names, source="ion-table")
+        order.append(key)
+        added += 1
+    print(f"ion table: {added} ions added", file=sys.stderr)
+
+
 def add_retention(compounds, order, path):
     """Every compound of the open retention data (RepoRT-derived, CC BY-SA 4.0) enters the
     base with its InChIKey, the data's SMILES and the names the data gives it.
@@ -114,9 +154,21 @@ def add_retention(compounds, order, path):
         cands = sorted(names_by_key.get(key, {}).values(),
                        key=lambda x: (-x[1], -len(x[0]) if len(x[0]) <= 30 else 0, x[0]))
         stereo_less = key.split("-")[1:2] == ["UHFFFAOYSA"]
+        smi = smiles_by_key[key]
+        cation = "." not in smi and "+]" in smi and "-]" not in smi
         good = []
         for n, _ in cands:
             low = n.lower()
+            # a quaternary ammonium or other cation measured under its salt's name (`Mepiquat
+            # chloride` for the cation alone) is the cation: the name without its counter-ion,
+            # when the salt's name is another record's
+            m = COUNTER_ION_TAIL.match(low)
+            if cation and m and held.get(low, set()) - {key}:
+                n = n[:len(m.group(1))]
+                low = n.lower()
+                if low in keys_by_name and keys_by_name[low] - {key}:
+                    continue
+                keys_by_name.setdefault(low, set()).add(key)
             if len(keys_by_name[low]) > 1:
                 continue
             if held.get(low, set()) - {key}:
@@ -491,14 +543,48 @@ GREEK_WORDS = dict(zip("αβγδεζηθικλμνξοπρστυφχψω",
                        "alpha beta gamma delta epsilon zeta eta theta iota kappa lambda mu nu xi omicron pi "
                        "rho sigma tau upsilon phi chi psi omega".split()))
 PRIMES = "'′’‘ʹ`´″"
-STEREO_FREE_PREFIXES = ("(+/-)-", "(±)-", "(+-)-", "(rs)-", "(sr)-", "(r,s)-", "(r)-", "(s)-", "(+)-", "(-)-",
+STEREO_FREE_PREFIXES = ("(+/-)-", "(±)-", "(+-)-", "(rs)-", "(sr)-", "(r,s)-", "(r)-", "(s)-", "(+)-", "(-)-", "(−)-", "(–)-",
                         "rac-", "dl-", "d-", "l-", "(d)-", "(l)-", "(dl)-")
+
+
+SIGN_CHARS = set("+-\u2212\u2013\u00b1/. ")
+CONFIG_PART = re.compile(r"^(?:r|s|rs|sr|d|l|dl|\d+[ab]?[rs])$")
+
+
+def rotation_sign(s):
+    """(sign or None, length) of a `(+)`/`(-)`/racemate group opening `s`, or None
+    (src/kb/normalise.rs `rotation_sign`)."""
+    close = s.find(")", 1)
+    if close < 0:
+        return None
+    inner = s[1:close]
+    if not inner or len(inner) > 6 or not all(ch in SIGN_CHARS for ch in inner):
+        return None
+    plus = "+" in inner
+    minus = any(ch in inner for ch in "-\u2212\u2013")
+    if "\u00b1" in inner or (plus and minus):
+        return (None, close + 1)
+    if plus:
+        return ("+", close + 1)
+    if minus:
+        return ("-", close + 1)
+    return None
+
+
+def has_configuration_descriptor(low):
+    """src/kb/normalise.rs `has_configuration_descriptor`."""
+    for inner in re.findall(r"\(([^()]*)\)", low):
+        parts = [p.strip().rstrip("*") for p in inner.split(",")]
+        if inner and all(CONFIG_PART.match(p) for p in parts):
+            return True
+    return bool(re.search(r"(?:^|[^a-z0-9])(?:d|l|dl)-", low))
 
 
 def normalise(name, drop_stereo=False):
     """The name key of src/kb/normalise.rs (same rules), to foresee how the built base
     resolves a name."""
     rest = name.strip().lower()
+    keep_sign = not has_configuration_descriptor(rest)
     while drop_stereo:
         before = len(rest)
         for p in STEREO_FREE_PREFIXES:
@@ -510,7 +596,17 @@ def normalise(name, drop_stereo=False):
         if len(rest) == before:
             break
     out = []
-    for ch in rest:
+    i = 0
+    while i < len(rest):
+        ch = rest[i]
+        if ch == "(":
+            sign = rotation_sign(rest[i:])
+            if sign is not None:
+                if keep_sign and sign[0]:
+                    out.append(sign[0])
+                i += sign[1]
+                continue
+        i += 1
         if ch in GREEK_WORDS:
             out.append(GREEK_WORDS[ch])
         elif ch == "µ":
@@ -562,6 +658,50 @@ class NameIndex:
         self.recs[i]["pref"], self.recs[i]["names"] = pref, names
         self._add(i)
 
+    def twin_without_stereo(self, j, i):
+        """Whether record j is the retention data's stereo-less twin of record i (same
+        skeleton, no CID) and i a compound with two or more possible stereo elements, whose
+        trivial name denotes i's diastereomer rather than the stereo-less record."""
+        a, b = self.recs[j], self.recs[i]
+        return (a["key"].split("-")[1] == "UHFFFAOYSA" and a["cid"] == "" and a["skel"] == b["skel"]
+                and "@" in b["smiles"] and Chem is not None and self.stereo_elements(i) >= 2)
+
+    def stereo_elements(self, i):
+        """Possible stereo elements of record i (RDKit's count stands in for
+        src/structure/canon.rs `possible_stereo_elements`)."""
+        r = self.recs[i]
+        if "n_stereo" not in r:
+            m = Chem.MolFromSmiles(r["smiles"]) if Chem is not None else None
+            r["n_stereo"] = len(Chem.FindPotentialStereo(m)) if m is not None else 0
+            r["amino_acid"] = m is not None and m.HasSubstructMatch(AMINO_ACID)
+        return r["n_stereo"]
+
+    def stereo_choice(self, rows, best, order):
+        """The rules of src/kb/resolve.rs `best_by_name` after the ranking: an alpha-amino
+        acid named without descriptor is the L-isomer; a compound with one possible stereo
+        element named without descriptor is the record of its skeleton without stereo."""
+        i, rank = best
+        r = self.recs[i]
+        if "@" not in r["smiles"] or Chem is None:
+            return best
+        n = self.stereo_elements(i)
+        if rank == 3 and r["amino_acid"]:
+            low = r["pref"].lower()
+            if low.startswith("d-"):
+                ls = [e for e in rows if e[1] == 3 and self.recs[e[0]]["pref"].lower() == "l-" + low[2:]]
+                if ls:
+                    return min(ls, key=lambda e: (self.recs[e[0]]["cid"] == "", self.recs[e[0]]["cid"] or 0, e[0]))
+            return best
+        if n != 1:
+            return best
+        eff = lambda k: 0 if k == 3 else k
+        for e in sorted(rows, key=order):
+            o = self.recs[e[0]]
+            if e != best and "@" not in o["smiles"] and o["skel"] == r["skel"] and (
+                    rank == 3 or (e[1] != 3 and eff(e[1]) <= eff(rank))):
+                return e
+        return best
+
     def decision(self, norm):
         """(record the name resolves to, skeletons holding it at the best rank)."""
         rows = self.by_norm.get(norm, [])
@@ -572,7 +712,7 @@ class NameIndex:
             r = self.recs[i]
             return (0 if rank == 3 else rank, rank == 3, rank == 3 and "@" not in r["smiles"],
                     r["cid"] == "", r["cid"] if r["cid"] != "" else 0, i)
-        best = min(rows, key=order)
+        best = self.stereo_choice(rows, min(rows, key=order), order)
         eff = 0 if best[1] == 3 else best[1]
         blocks = frozenset(self.recs[i]["skel"] for i, rank in rows if (0 if rank == 3 else rank) == eff)
         return (best[0], blocks)
@@ -783,7 +923,11 @@ def rename_preferred(recs, report=None):
             if not fits_record(r, n):
                 continue
             nn, on = normalise(n), normalise(o)
-            if not nn or pref_of.get(nn, set()) - {i}:
+            # a record with stereo may share its name with its twin without stereo that the
+            # retention data added (same skeleton, no CID): `t-2 toxin` for the PubChem
+            # record of CAS 21259-20-1 beside the data's stereo-less `T2 Toxin`
+            others = pref_of.get(nn, set()) - {i}
+            if not nn or (others and not all(idx.twin_without_stereo(j, i) for j in others)):
                 continue
             if n.isupper() and len(n) > 5:
                 n = n.lower()
@@ -796,7 +940,9 @@ def rename_preferred(recs, report=None):
             after = (idx.decision(on), idx.decision(nn))
             if before[1][0] is None and after[1][0] == i:
                 before = (before[0], after[1])   # a name new to the base (`aflatoxin m1`) finds this record
-            if after != before:
+            moved_from_twin = (after[1][0] == i and before[1][0] in others and after[0] == before[0]
+                               and after[1][1] == before[1][1])
+            if after != before and not moved_from_twin:
                 idx.replace(i, o, old_names)
                 continue
             pref_of[on].discard(i)
@@ -857,6 +1003,7 @@ def main():
         add_rows(read_member(z, "Identifiers/" + f), s)
 
     add_retention(compounds, order, a.retention)
+    add_ion_table(compounds, order, os.path.join(ROOT, "data", "ic_ions.tsv"))
     fix_tautomers(compounds)
     fix_stereo_less_names(compounds)
     for c in compounds.values():

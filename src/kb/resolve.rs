@@ -21,6 +21,10 @@ pub const STEREO_DROPPED: &str =
 pub const STEREO_ISOMER_NAME: &str =
     "name without stereo descriptor (the base holds this compound under a stereoisomer's name)";
 
+/// `matched_by` of a name without stereo descriptor that found the compound's record without
+/// stereo through a racemate's name (`mandelic acid` -> `dl-mandelic acid`).
+pub const RACEMATE_NAME: &str = "name without stereo descriptor (the base holds this compound without stereo, under a racemate's name)";
+
 /// Most suggestions offered for an unresolved query.
 pub const MAX_SUGGESTIONS: usize = 5;
 
@@ -89,41 +93,7 @@ fn find(conn: &Connection, q: &Query) -> rusqlite::Result<Option<(CompoundRow, &
             if norm.is_empty() {
                 return Ok(None);
             }
-            // one statement: the best-ranked name and its compound; a stereoisomer's name
-            // without its descriptor (rank 3) ranks as a preferred name, as every name did
-            // before descriptors were kept, so a name without descriptor finds what it did;
-            // but a record that holds the name exactly as its preferred name beats one that
-            // holds it only with a descriptor stripped (`fructose` is the fructose record,
-            // not a stereo-less record that some source also calls `l-(+)-fructose`). Among
-            // records that hold the name only with a descriptor stripped, one with its stereo
-            // beats a stereo-less one (`mannitol` is d-mannitol, not `hexitol`, any
-            // hexane-hexol), then the lowest CID, the isomer most sources deposited first
-            // (l-alanine before d-alanine); the record's own name says which isomer it is.
-            let hit = conn.prepare_cached(
-                "SELECT c.id, c.inchikey, c.preferred_name, c.smiles, c.formula, c.molar_mass_g_mol, c.cid, c.cas, n.rank
-                 FROM name n JOIN compound c ON c.id = n.compound_id
-                 WHERE n.norm = ?1 ORDER BY CASE n.rank WHEN 3 THEN 0 ELSE n.rank END, n.rank = 3, n.rank = 3 AND instr(coalesce(c.smiles, ''), '@') = 0, c.cid IS NULL, c.cid, c.id LIMIT 1",
-            )?
-            .query_row([&norm], |r| {
-                let rank: i64 = r.get(8)?;
-                Ok((
-                    compound_from_row(r)?,
-                    match rank {
-                        0 => "name",
-                        3 => STEREO_ISOMER_NAME,
-                        _ => "synonym",
-                    },
-                ))
-            })
-            .optional()?;
-            // α-Amino acids: a bare name is the L-isomer (the proteinogenic series; common
-            // practice, no source), whatever the CIDs say.
-            let hit = match hit {
-                Some((row, how)) if how == STEREO_ISOMER_NAME => {
-                    Some((l_amino_acid_instead(conn, &norm, row)?, how))
-                }
-                other => other,
-            };
+            let hit = best_by_name(conn, &norm)?;
             // A stereo descriptor the base does not hold: the compound under its stereo-free
             // name, said so (the caller sees `matched_by`).
             match hit {
@@ -147,6 +117,91 @@ fn find(conn: &Connection, q: &Query) -> rusqlite::Result<Option<(CompoundRow, &
     })
 }
 
+/// The record a normalised name finds in one database, with how it matched.
+///
+/// Order: the best-ranked name; a stereoisomer's name without its descriptor (rank 3) ranks
+/// as a preferred name, as every name did before descriptors were kept, so a name without
+/// descriptor finds what it did; but a record that holds the name exactly as its preferred
+/// name beats one that holds it only with a descriptor stripped (`fructose` is the fructose
+/// record, not a stereo-less record that some source also calls `l-(+)-fructose`). Among
+/// records that hold the name only with a descriptor stripped, one with its stereo beats a
+/// stereo-less one (`mannitol` is d-mannitol, not `hexitol`, any hexane-hexol), then the
+/// lowest CID, the isomer most sources deposited first; the record's own name says which
+/// isomer it is.
+///
+/// Then two rules on what the name without descriptor means when that choice is a
+/// stereoisomer (common practice, no source):
+/// - an α-amino acid named without descriptor is the L-isomer (the proteinogenic series),
+///   whatever the CIDs say;
+/// - a compound with a single possible stereo element (one stereocentre or one stereogenic
+///   double bond) named without descriptor is its racemate or an unspecified isomer: the
+///   record of the same skeleton without stereo is used when one holds the name (exactly,
+///   or with a racemate's descriptor, `dl-mandelic acid`), at any rank for a choice that
+///   held the name only without its descriptor, at an equal or better rank otherwise
+///   (`propylene glycol`, a synonym of the stereo-less propane-1,2-diol, is not the (R)-isomer
+///   whose name `(r)-propylene glycol` it also matches). A trivial name of a compound with two
+///   or more stereo elements denotes one diastereomer, which a stereo-less record cannot be.
+fn best_by_name(
+    conn: &Connection,
+    norm: &str,
+) -> rusqlite::Result<Option<(CompoundRow, &'static str)>> {
+    let has_keys: bool = conn
+        .prepare_cached(
+            "SELECT 1 FROM sqlite_master WHERE type = 'table' AND name = 'structure_key'",
+        )?
+        .exists([])?;
+    let skeleton = if has_keys {
+        "(SELECT k.skeleton FROM structure_key k WHERE k.compound_id = c.id)"
+    } else {
+        "NULL"
+    };
+    let rows: Vec<(CompoundRow, i64, Option<String>)> = conn
+        .prepare_cached(&format!(
+            "SELECT c.id, c.inchikey, c.preferred_name, c.smiles, c.formula, c.molar_mass_g_mol, c.cid, c.cas, n.rank, {skeleton}
+             FROM name n JOIN compound c ON c.id = n.compound_id
+             WHERE n.norm = ?1 ORDER BY CASE n.rank WHEN 3 THEN 0 ELSE n.rank END, n.rank = 3, n.rank = 3 AND instr(coalesce(c.smiles, ''), '@') = 0, c.cid IS NULL, c.cid, c.id LIMIT 64"
+        ))?
+        .query_map([norm], |r| Ok((compound_from_row(r)?, r.get(8)?, r.get(9)?)))?
+        .collect::<Result<_, _>>()?;
+    let how = |rank: i64| match rank {
+        0 => "name",
+        3 => STEREO_ISOMER_NAME,
+        _ => "synonym",
+    };
+    let mut rows = rows.into_iter();
+    let Some((first, rank, skeleton)) = rows.next() else {
+        return Ok(None);
+    };
+    let has_stereo = |r: &CompoundRow| r.smiles.as_deref().is_some_and(|s| s.contains('@'));
+    if !has_stereo(&first) {
+        return Ok(Some((first, how(rank))));
+    }
+    let smiles = first.smiles.clone().unwrap_or_default();
+    let Ok(parsed) = crate::structure::parse_smiles(&smiles) else {
+        return Ok(Some((first, how(rank))));
+    };
+    if rank == 3 && is_alpha_amino_acid(&parsed.graph) {
+        return Ok(Some((l_amino_acid_instead(conn, norm, first)?, how(rank))));
+    }
+    let (Some(skeleton), 1) = (
+        skeleton,
+        crate::structure::canon::possible_stereo_elements(&parsed.graph),
+    ) else {
+        return Ok(Some((first, how(rank))));
+    };
+    let effective = |r: i64| if r == 3 { 0 } else { r };
+    let stereo_less = rows.find(|(r, rk, sk)| {
+        !has_stereo(r)
+            && sk.as_deref() == Some(skeleton.as_str())
+            && (rank == 3 || (*rk != 3 && effective(*rk) <= effective(rank)))
+    });
+    Ok(Some(match stereo_less {
+        Some((r, 3, _)) => (r, RACEMATE_NAME),
+        Some((r, rk, _)) => (r, how(rk)),
+        None => (first, how(rank)),
+    }))
+}
+
 /// For a name held only by stereoisomers' names (rank 3) whose choice is a `d-` α-amino
 /// acid, the `l-` record holding the same name, when there is one; else `row` unchanged.
 fn l_amino_acid_instead(
@@ -158,9 +213,6 @@ fn l_amino_acid_instead(
     let Some(rest) = lower.strip_prefix("d-") else {
         return Ok(row);
     };
-    if !row.smiles.as_deref().is_some_and(is_alpha_amino_acid) {
-        return Ok(row);
-    }
     let l = conn
         .prepare_cached(&format!(
             "SELECT {COMPOUND_COLUMNS} FROM compound c WHERE c.id IN
@@ -172,14 +224,10 @@ fn l_amino_acid_instead(
     Ok(l.unwrap_or(row))
 }
 
-/// Whether a SMILES is an α-amino acid: a saturated carbon bearing an amine nitrogen and a
+/// Whether a structure is an α-amino acid: a saturated carbon bearing an amine nitrogen and a
 /// carboxylic acid (or carboxylate) carbon.
-fn is_alpha_amino_acid(smiles: &str) -> bool {
+fn is_alpha_amino_acid(g: &crate::structure::graph::MolGraph) -> bool {
     use crate::structure::graph::BondOrder;
-    let Ok(p) = crate::structure::parse_smiles(smiles) else {
-        return false;
-    };
-    let g = &p.graph;
     let carboxyl = |c: usize| {
         g.atoms[c].atomic_number == 6 && {
             let os: Vec<BondOrder> = g.neighbours[c]
@@ -291,6 +339,18 @@ impl Kb {
             if let Some(r) = self.resolve_labelled(raw)? {
                 return Ok(r);
             }
+            // Text written in SMILES-only syntax (brackets, `=`, `#`, `@`, `/`) that parses
+            // is a structure first: its letters, read as a name, can match a formula-like
+            // synonym of another compound (`[O-][N+](=O)[O-]`, nitrate, reads `onooo`, a
+            // synonym of peroxynitrite).
+            if n.contains(['[', '=', '#', '@', '/', '\\']) && crate::structure::is_valid_smiles(n) {
+                if let Some(a) = self.find_anywhere(raw, &Query::Smiles(n.clone()))? {
+                    return Ok(Resolution::Found(Box::new(a)));
+                }
+                if let Some(a) = self.find_by_structure(raw, n)? {
+                    return Ok(Resolution::Found(Box::new(a)));
+                }
+            }
             if let Some(r @ Resolution::Found(_)) = self.resolve_ion(raw)? {
                 return Ok(r);
             }
@@ -366,7 +426,18 @@ impl Kb {
     /// whose SMILES has more than one fragment. The standardisation then makes its parent the
     /// analyte and says so. `None` when no such salt record exists.
     fn find_salt_of(&self, raw: &str, name: &str) -> Result<Option<Analyte>, KbError> {
-        const SALT_WORDS: [&str; 18] = [
+        // the counter-ions of drugs, and of quaternary ammonium analytes (`mepiquat chloride`,
+        // `paraquat dichloride`, `diquat dibromide`, `difenzoquat methyl sulfate`)
+        const SALT_WORDS: [&str; 27] = [
+            "chloride",
+            "dichloride",
+            "bromide",
+            "dibromide",
+            "iodide",
+            "methyl sulfate",
+            "metilsulfate",
+            "nitrate",
+            "hydroiodide",
             "sulfate",
             "sulphate",
             "hydrochloride",
@@ -411,6 +482,18 @@ impl Kb {
         };
         let (label, rhs) = (label.trim(), rhs.trim());
         if label.is_empty() || rhs.is_empty() || crate::structure::is_valid_smiles(raw.trim()) {
+            return Ok(None);
+        }
+        // a label closes every bracket it opens: `[O-]Cl(=O)=O` is a SMILES, not the label
+        // `[O-]Cl(` of `O)=O`
+        let balanced = |open: char, close: char| {
+            let mut depth = 0i32;
+            label.chars().all(|c| {
+                depth += i32::from(c == open) - i32::from(c == close);
+                depth >= 0
+            }) && depth == 0
+        };
+        if !balanced('(', ')') || !balanced('[', ']') {
             return Ok(None);
         }
         if matches!(classify(rhs), Ok(Query::Name(_)) | Err(_)) && !could_be_smiles(rhs) {

@@ -12,7 +12,8 @@
 //!   such as `aflatoxin b1` denotes one diastereomer, which a stereo-less record cannot be):
 //!   the base cannot tell the stereoisomers apart. A compound with one stereocentre named
 //!   without descriptor (`ibuprofen`) is its racemate or either enantiomer, and is not
-//!   flagged. Common practice, no source.
+//!   flagged, nor is such a synonym when stereoisomer records carry it with their descriptor
+//!   (`propylene glycol` beside `(R)-propylene glycol`: the name of the racemate). Common practice, no source.
 
 use rusqlite::OptionalExtension;
 
@@ -97,12 +98,34 @@ impl Kb {
             let possible = possible_stereo_elements(&parsed.graph);
             let flag = possible >= 2
                 || (possible == 1
-                    && (a.matched_by.starts_with("synonym") || has_stereo_word(&a.query)));
+                    && (has_stereo_word(&a.query)
+                        || (a.matched_by.starts_with("synonym")
+                            && !self.racemate_name(&a.query, &key.skeleton)?)));
             if flag {
                 a.matched_by = format!("{}; {STEREO_LESS_NOTE}", a.matched_by);
             }
         }
         Ok(Resolution::Found(a))
+    }
+
+    /// Whether `query` is the name, without descriptor, of stereoisomer records of the same
+    /// skeleton (`propylene glycol` beside `(r)-propylene glycol` and `(s)-propylene glycol`):
+    /// then, on the record without stereo, it names the racemate or an unspecified isomer,
+    /// not one stereoisomer under a name of its own (`levetiracetam`).
+    fn racemate_name(&self, query: &str, skeleton: &str) -> Result<bool, KbError> {
+        let norm = super::normalise::normalise_name(query);
+        self.shipped
+            .prepare_cached(
+                "SELECT 1 FROM name n JOIN structure_key k ON k.compound_id = n.compound_id
+                 JOIN compound c ON c.id = n.compound_id
+                 WHERE n.norm = ?1 AND n.rank = 3 AND k.skeleton = ?2 AND instr(c.smiles, '@') > 0",
+            )
+            .and_then(|mut st| st.exists(rusqlite::params![norm, skeleton]))
+            .or_else(|e| match e {
+                rusqlite::Error::SqliteFailure(..) => Ok(false),
+                other => Err(other),
+            })
+            .map_err(|e| KbError::sql(&self.shipped_path, e))
     }
 
     /// A shipped record as an analyte (with user values of the same compound merged).

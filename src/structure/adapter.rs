@@ -391,6 +391,8 @@ pub fn parse_smiles_with(smiles: &str, options: &ParseOptions) -> Result<Parsed,
         kekule_order.push(o);
     }
 
+    clean_up_hypervalent(&mut atoms, &raw_bonds, &mut kekule_order);
+
     // --- implicit hydrogens and valence checks (on the Kekulé form) ---------
     let mut explicit_valence = vec![0u16; n];
     for (k, &(a, b, _, _)) in raw_bonds.iter().enumerate() {
@@ -410,7 +412,7 @@ pub fn parse_smiles_with(smiles: &str, options: &ParseOptions) -> Result<Parsed,
             } else {
                 0
             };
-        } else if !bracket[i] {
+        } else if !bracket[i] && charge == 0 {
             match implicit_h_organic(z, ev) {
                 Some(h) => atoms[i].hydrogens = h,
                 None => {
@@ -423,6 +425,8 @@ pub fn parse_smiles_with(smiles: &str, options: &ParseOptions) -> Result<Parsed,
                 }
             }
         } else {
+            // a bracket atom, or an unbracketed one charged by the clean-up above (its
+            // hydrogens are those written: none)
             let total = ev + u16::from(atoms[i].hydrogens);
             if let Some(valences) = charged_valences(z, charge) {
                 let max = valences.iter().copied().max().unwrap_or(0);
@@ -737,6 +741,65 @@ fn simple_cycle(graph: &MolGraph, ring_bonds: &[usize], bits: &[u64]) -> Option<
         cur = next;
     }
     (cycle.len() == edges.len()).then_some(cycle)
+}
+
+/// RDKit's clean-up of hypervalent forms before the valence check (`MolOps::cleanUp`,
+/// RDKit 2026.09.1 behaviour checked with `Chem.MolFromSmiles`): a neutral chlorine, bromine
+/// or iodine bonded only to oxygens with double bonds is written charge-separated
+/// (`[O-]Cl(=O)=O`, chlorate, becomes `[O-][Cl+2]([O-])[O-]`; perchlorate, bromate, iodate
+/// alike), and a neutral five-valent nitrogen with a double bond to a terminal oxygen takes
+/// one charge pair (`[O-]N(=O)=O`, nitrate, becomes `O=[N+]([O-])[O-]`; an uncharged nitro
+/// group `N(=O)=O` becomes `[N+](=O)[O-]`). Formula and net charge are unchanged.
+fn clean_up_hypervalent(atoms: &mut [Atom], bonds: &[(usize, usize, u8, bool)], order: &mut [u8]) {
+    let degree = |x: usize| bonds.iter().filter(|b| b.0 == x || b.1 == x).count();
+    for i in 0..atoms.len() {
+        let z = atoms[i].atomic_number;
+        if atoms[i].formal_charge != 0 || !matches!(z, 7 | 17 | 35 | 53) {
+            continue;
+        }
+        let mine: Vec<(usize, usize)> = bonds
+            .iter()
+            .enumerate()
+            .filter_map(|(k, b)| match (b.0 == i, b.1 == i) {
+                (true, _) => Some((k, b.1)),
+                (_, true) => Some((k, b.0)),
+                _ => None,
+            })
+            .collect();
+        let valence: u16 = mine.iter().map(|&(k, _)| u16::from(order[k])).sum::<u16>()
+            + u16::from(atoms[i].hydrogens);
+        let terminal_oxo = |k: usize, j: usize, atoms: &[Atom], order: &[u8]| {
+            order[k] == 2
+                && atoms[j].atomic_number == 8
+                && atoms[j].formal_charge == 0
+                && atoms[j].hydrogens == 0
+                && degree(j) == 1
+        };
+        if z == 7 {
+            if valence != 5 {
+                continue;
+            }
+            if let Some(&(k, j)) = mine
+                .iter()
+                .find(|&&(k, j)| terminal_oxo(k, j, atoms, order))
+            {
+                order[k] = 1;
+                atoms[j].formal_charge = -1;
+                atoms[i].formal_charge = 1;
+            }
+            continue;
+        }
+        if valence <= 1 || mine.iter().any(|&(_, j)| atoms[j].atomic_number != 8) {
+            continue;
+        }
+        for &(k, j) in &mine {
+            if terminal_oxo(k, j, atoms, order) {
+                order[k] = 1;
+                atoms[j].formal_charge = -1;
+                atoms[i].formal_charge += 1;
+            }
+        }
+    }
 }
 
 /// Implicit hydrogens of an unbracketed organic-subset atom: complete the

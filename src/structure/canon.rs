@@ -43,7 +43,7 @@ use super::adapter::{StructureError, parse_smiles};
 use super::graph::{BondOrder, MolGraph, StereoMark};
 
 /// Version of the key algorithm, the first part of every key.
-pub const KEY_VERSION: &str = "pk2";
+pub const KEY_VERSION: &str = "pk3";
 
 /// The canonical keys of one structure.
 #[derive(Debug, Clone, PartialEq, Eq, Serialize)]
@@ -158,6 +158,31 @@ impl View {
             })
             .collect();
         let mut notes = Vec::new();
+        // Oxo groups written charge-separated on a p-block atom that also has a hypervalent
+        // form (`[O-][S+2]([O-])([O-])[O-]` and `O=S(=O)([O-])[O-]`, sulfate; `[O-][Cl+2]([O-])[O-]`
+        // and `[O-]Cl(=O)=O`, chlorate; `C[S+](C)[O-]` and `CS(C)=O`) are one structure
+        // written two ways: the key sees the double-bond form. Nitrogen keeps its charge pair
+        // (nitro, N-oxides): it has no five-valent form. Not a chemical change, so no note.
+        for i in 0..atoms.len() {
+            if !matches!(atoms[i].0, 15 | 16 | 17 | 33 | 34 | 35 | 52 | 53) {
+                continue;
+            }
+            for &(j, k) in &g.neighbours[i] {
+                if atoms[i].2 <= 0 {
+                    break;
+                }
+                if atoms[j].0 == 8
+                    && atoms[j].2 == -1
+                    && atoms[j].3 == 0
+                    && bonds[k].2 == 1
+                    && g.neighbours[j].len() == 1
+                {
+                    bonds[k].2 = 2;
+                    atoms[j].2 = 0;
+                    atoms[i].2 -= 1;
+                }
+            }
+        }
         // Neutralise: an anion on O, S or N gains a proton, a cation on N with a hydrogen
         // loses it, unless the atom is part of a charge pair (nitro, N-oxide, ylide).
         let charge_of = |atoms: &[(u8, u16, i8, u8, bool, u8)], i: usize| atoms[i].2;

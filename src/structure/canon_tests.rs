@@ -332,3 +332,45 @@ fn possible_stereo() {
     assert_eq!(n("OC(=O)C(O)C(O)C(=O)O"), 2); // tartaric acid
     assert_eq!(n("c1ccccc1"), 0);
 }
+
+/// Oxyanions and oxoacids written hypervalent (`[O-]Cl(=O)=O`, as ion tables write them) or
+/// charge-separated (`[O-][Cl+2]([O-])[O-]`, RDKit's output) are one structure; so are
+/// sulfoxides, sulfates and phosphates written either way. The pairs are RDKit 2026.09.1
+/// readings (`Chem.MolFromSmiles` gives the charge-separated halogen and nitrogen forms and
+/// one InChIKey for each pair).
+#[test]
+fn hypervalent_and_charge_separated_oxo_forms_are_one_structure() {
+    // chlorate, perchlorate, chlorite, bromate, iodate, periodate
+    same("[O-]Cl(=O)=O", "[O-][Cl+2]([O-])[O-]");
+    same("[O-]Cl(=O)(=O)=O", "[O-][Cl+3]([O-])([O-])[O-]");
+    same("[O-]Cl=O", "[O-][Cl+][O-]");
+    same("[O-]Br(=O)=O", "[O-][Br+2]([O-])[O-]");
+    same("[O-]I(=O)=O", "[O-][I+2]([O-])[O-]");
+    same("[O-]I(=O)(=O)=O", "[O-][I+3]([O-])([O-])[O-]");
+    same("OCl(=O)(=O)=O", "O[Cl+3]([O-])([O-])[O-]");
+    // nitrate and nitric acid, a nitro group written without charges
+    same("[O-]N(=O)=O", "[O-][N+](=O)[O-]");
+    same("ON(=O)=O", "O[N+](=O)[O-]");
+    same("CN(=O)=O", "C[N+](=O)[O-]");
+    // sulfate, selenate, phosphate, arsenate, DMSO, a sulfone
+    same("[O-]S(=O)(=O)[O-]", "[O-][S+2]([O-])([O-])[O-]");
+    same("[O-][Se](=O)(=O)[O-]", "[O-][Se+2]([O-])([O-])[O-]");
+    same("[O-]P(=O)([O-])[O-]", "[O-][P+]([O-])([O-])[O-]");
+    same("[O-][As](=O)([O-])[O-]", "[O-][As+]([O-])([O-])[O-]");
+    same("CS(C)=O", "C[S+](C)[O-]");
+    same("CS(=O)(=O)c1ccccc1", "C[S+2]([O-])([O-])c1ccccc1");
+    // but the anions stay apart from their acids, and N-oxides from amines
+    assert_ne!(key("[O-]Cl(=O)=O").stereo, key("OCl(=O)=O").stereo);
+    assert_ne!(key("[O-]S(=O)(=O)[O-]").stereo, key("OS(=O)(=O)O").stereo);
+    differ("C[N+](C)(C)[O-]", "CN(C)C");
+    // formula and charge survive the clean-up of the hypervalent form
+    let p = parse_smiles("[O-]Cl(=O)=O").expect("chlorate parses");
+    let charge: i32 = p
+        .graph
+        .atoms
+        .iter()
+        .map(|a| i32::from(a.formal_charge))
+        .sum();
+    assert_eq!(charge, -1);
+    assert_eq!(p.graph.atoms.len(), 4);
+}

@@ -192,7 +192,7 @@ fn control_characters_in_stored_names_never_reach_the_terminal_raw() {
     assert!(out.status.success(), "{}", stderr(&out));
     let raw = |s: &str| s.chars().any(|c| c.is_control() && c != '\n' && c != '\t');
     assert!(!raw(&stderr(&out)), "kb add: {:?}", stderr(&out));
-    assert!(stderr(&out).contains("\\u{1b}[31m"), "{:?}", stderr(&out));
+    assert!(stderr(&out).contains("\\u001b[31m"), "{:?}", stderr(&out));
     for args in [
         vec!["lookup", name],
         vec!["lookup", name, "--format", "csv"],
@@ -207,11 +207,28 @@ fn control_characters_in_stored_names_never_reach_the_terminal_raw() {
         assert!(!raw(&stdout(&out)), "{args:?}: {:?}", stdout(&out));
         assert!(!raw(&stderr(&out)), "{args:?}: {:?}", stderr(&out));
     }
+    // JSON stays valid JSON with the same name, C1 controls (U+0080-U+009F, which the JSON
+    // writer leaves raw) included
+    let c1 = "mis\u{81}decoded \u{c2}\u{b9} name (invented)";
+    let add = ctx.run(&[
+        "kb", "add", "--name", c1, "--smiles", "CCCO", "--source", "invented",
+    ]);
+    assert!(add.status.success(), "{}", stderr(&add));
+    for n in [name, c1] {
+        let out = ctx.run(&["lookup", n, "--format", "json"]);
+        let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap_or_else(|e| {
+            panic!(
+                "lookup {n:?} --format json is not JSON ({e}): {}",
+                stdout(&out)
+            )
+        });
+        assert_eq!(v["analytes"][0]["name"], n, "{v}");
+    }
     // the name is still found and shown (escaped) where text is printed
     let out = ctx.run(&["lookup", name, "--format", "csv"]);
     assert!(out.status.success(), "{}", stderr(&out));
     assert!(
-        stdout(&out).contains("red\\u{1b}[31m alert"),
+        stdout(&out).contains("red\\u001b[31m alert"),
         "{}",
         stdout(&out)
     );

@@ -18,14 +18,19 @@ pub fn render(header: &[&str], rows: &[Vec<String>]) -> String {
 /// Control characters in user-supplied text are shown escaped, never sent to the terminal.
 pub fn printable(s: &str) -> String {
     s.chars()
-        .flat_map(|c| {
-            if c.is_control() {
-                c.escape_default().collect::<Vec<_>>()
-            } else {
-                vec![c]
-            }
-        })
+        .flat_map(|c| if c.is_control() { escaped(c) } else { vec![c] })
         .collect()
+}
+
+/// The escape of a control character: `\t`, `\r`, `\n`, else `\u` and four hex digits, the
+/// form JSON reads too (so that a JSON document passed through [`printable_text`] stays valid
+/// and keeps the same string: serde_json writes the C1 controls U+0080-U+009F raw, as JSON
+/// allows, and a Rust-style `\u{81}` would make the document unreadable).
+fn escaped(c: char) -> Vec<char> {
+    match c {
+        '\t' | '\r' | '\n' => c.escape_default().collect(),
+        _ => format!("\\u{:04x}", c as u32).chars().collect(),
+    }
 }
 
 /// A whole text (many lines) as [`printable`] would show it, line breaks and tabs kept: the one
@@ -38,7 +43,7 @@ pub fn printable_text(s: &str) -> String {
     s.chars()
         .flat_map(|c| {
             if c.is_control() && c != '\n' && c != '\t' {
-                c.escape_default().collect::<Vec<_>>()
+                escaped(c)
             } else {
                 vec![c]
             }
@@ -54,14 +59,19 @@ mod tests {
     fn whole_texts_keep_their_layout_but_lose_control_characters() {
         let t = "name,logp\n\u{1b}[31mred\t1.2\r\n\u{7}";
         let p = printable_text(t);
-        assert_eq!(p, "name,logp\n\\u{1b}[31mred\t1.2\\r\n\\u{7}");
+        assert_eq!(p, "name,logp\n\\u001b[31mred\t1.2\\r\n\\u0007");
         assert!(!p.chars().any(|c| c.is_control() && c != '\n' && c != '\t'));
         assert_eq!(printable_text("plain\ttext\n"), "plain\ttext\n");
     }
 
     #[test]
     fn control_characters_are_escaped() {
-        assert_eq!(printable("a\u{1b}[31mb"), "a\\u{1b}[31mb");
+        assert_eq!(printable("a\u{1b}[31mb"), "a\\u001b[31mb");
+        // a JSON document with a C1 control (written raw by serde_json) stays valid JSON
+        let doc = serde_json::to_string(&serde_json::json!({"name": "A\u{81}B"})).unwrap();
+        let shown = printable_text(&doc);
+        let back: serde_json::Value = serde_json::from_str(&shown).expect("still JSON");
+        assert_eq!(back["name"], "A\u{81}B");
         let t = render(&["x"], &[vec!["bell\u{7}".into()]]);
         assert!(!t.contains('\u{7}'));
     }

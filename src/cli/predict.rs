@@ -256,7 +256,7 @@ pub fn run(cli: &Cli, a: &PredictArgs) -> Result<ExitCode> {
         notes: &notes,
         unresolved: &report.unresolved,
         warnings: &report.warnings,
-        ic_reference_k: phasewise::advisor::ic::K_REFERENCE,
+        ic_reference_k: phasewise::advisor::ic::reference_retention_factor(catalogue, &rec),
     };
     write_out(&output.render(a.format.into())?)?;
     Ok(success_unless_partial(partial))

@@ -169,6 +169,32 @@ pub fn predict_ion_order(
     eluent_conc_mm: Option<f64>,
     ions: &[&str],
 ) -> Result<IcPrediction, IcError> {
+    predict_ion_order_with(catalogue, phase_id, eluent_id, eluent_conc_mm, ions, &[])
+}
+
+/// An ion outside the ion table, placed by the structure estimate of [`estimate`].
+#[derive(Debug, Clone, PartialEq)]
+pub struct EstimatedIon {
+    /// The name to report (also its id in the prediction).
+    pub name: String,
+    /// Its structure features at the eluent pH.
+    pub features: estimate::IonFeatures,
+}
+
+/// [`predict_ion_order`] with ions outside the table placed by the structure estimate
+/// ([`estimate::estimate_relative_retention`], wider interval); an estimated ion that carries
+/// too little charge at the eluent's pH is listed as unpredicted with the reason.
+///
+/// # Errors
+/// As [`predict_ion_order`].
+pub fn predict_ion_order_with(
+    catalogue: &Catalogue,
+    phase_id: &str,
+    eluent_id: &str,
+    eluent_conc_mm: Option<f64>,
+    ions: &[&str],
+    estimated: &[EstimatedIon],
+) -> Result<IcPrediction, IcError> {
     let phase = catalogue.phase(phase_id)?;
     let exchanger = match (phase.mode(), phase.ic_exchanger()) {
         (PhaseMode::IonExclusion, _) => {
@@ -197,7 +223,7 @@ pub fn predict_ion_order(
     if !(conc.is_finite() && conc > 0.0 && conc <= 500.0) {
         return Err(IcError::BadConcentration { conc_mm: conc });
     }
-    if ions.is_empty() {
+    if ions.is_empty() && estimated.is_empty() {
         return Err(IcError::NoIons);
     }
     let (panel, reference_ion_id) = match phase.mode() {
@@ -276,6 +302,53 @@ pub fn predict_ion_order(
             coelutes_with: Vec::new(),
         });
     }
+    for e in estimated {
+        if predicted.iter().any(|p| p.ion_id == e.name) {
+            continue;
+        }
+        let Some(reference_value) =
+            estimate::estimate_relative_retention(catalogue, exchanger, &e.features)?
+        else {
+            unpredicted.push(UnpredictedIon {
+                ion_id: e.name.clone(),
+                reason: format!(
+                    "{} carries a charge of only {:.2} of the exchanger's sign at the eluent's pH (about {:.1}): it is mostly neutral and passes near the void",
+                    e.name,
+                    e.features.charge.max(0.0),
+                    estimate::eluent_ph(exchanger)
+                ),
+            });
+            continue;
+        };
+        let charge = e.features.charge;
+        let exponent = -(charge - reference_charge) / eluent_charge;
+        let relative_retention = reference_value * 10f64.powf(exponent * decades);
+        let sigma = (estimate::SIGMA_LN_ESTIMATE.powi(2)
+            + (SIGMA_LN_PER_DECADE * decades).powi(2)
+            + if proxy { SIGMA_LN_PROXY.powi(2) } else { 0.0 })
+        .sqrt();
+        let sign: f64 = if panel == IonPanel::Anion { -1.0 } else { 1.0 };
+        predicted.push(IonRetention {
+            ion_id: e.name.clone(),
+            name: e.name.clone(),
+            charge: (sign * charge.round()).clamp(-9.0, 9.0) as i8,
+            relative_retention,
+            low_95: relative_retention * (-1.96 * sigma).exp(),
+            high_95: relative_retention * (1.96 * sigma).exp(),
+            elution_rank: 0,
+            coelutes_with: Vec::new(),
+        });
+    }
+    if !estimated.is_empty()
+        && predicted
+            .iter()
+            .any(|p| estimated.iter().any(|e| e.name == p.ion_id))
+    {
+        notes.push(format!(
+            "ions outside the ion table are placed by a rough structure estimate (charge at the eluent's pH, halogens, size, aromatic rings; docs/science.md), with a 95 % interval of about a factor {:.1} either way",
+            (1.96 * estimate::SIGMA_LN_ESTIMATE).exp()
+        ));
+    }
     predicted.sort_by(|a, b| {
         a.relative_retention
             .total_cmp(&b.relative_retention)
@@ -311,6 +384,8 @@ pub fn predict_ion_order(
         ),
     })
 }
+
+pub mod estimate;
 
 #[cfg(test)]
 mod tests;

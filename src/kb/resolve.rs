@@ -9,7 +9,7 @@ use rusqlite::{Connection, OptionalExtension, params};
 
 use super::identifier::{Query, classify, could_be_smiles};
 use super::normalise::normalise_name;
-use super::structure_match::{find_shipped, query_key};
+use super::structure_match::{find_shipped, find_shipped_tautomer, is_salt_of, query_key};
 use super::{Kb, KbError};
 use crate::property::{Analyte, Origin, Property, PropertyKind};
 
@@ -565,7 +565,27 @@ impl Kb {
         {
             return self.find_anywhere_by_id(raw, id, Origin::User, &how.describe(&key));
         }
-        match find_shipped(&self.shipped, &key).map_err(|e| KbError::sql(&self.shipped_path, e))? {
+        let exact =
+            find_shipped(&self.shipped, &key).map_err(|e| KbError::sql(&self.shipped_path, e))?;
+        // a salt record matched through its largest fragment gives way to the compound's own
+        // record held as another tautomer (same formula as the query, so never a salt)
+        let salt_only = match exact {
+            Some((id, _)) => is_salt_of(&self.shipped, id, smiles)
+                .map_err(|e| KbError::sql(&self.shipped_path, e))?,
+            None => true,
+        };
+        if salt_only
+            && let Some(id) = find_shipped_tautomer(&self.shipped, smiles)
+                .map_err(|e| KbError::sql(&self.shipped_path, e))?
+        {
+            return self.find_anywhere_by_id(
+                raw,
+                id,
+                Origin::Shipped,
+                "structure as another tautomer (hydrogens or charges on N, O or S placed differently from the base's record; check that the record is the compound meant)",
+            );
+        }
+        match exact {
             Some((id, how)) => {
                 self.find_anywhere_by_id(raw, id, Origin::Shipped, &how.describe(&key))
             }

@@ -12,6 +12,7 @@
 use rusqlite::{Connection, OptionalExtension, params};
 
 use crate::structure::canon::{StructureKey, structure_key};
+use crate::structure::tautomer::mobile_h_key;
 
 /// DDL of the key table (shipped base only; created by the build, not a numbered migration,
 /// because the shipped base is rebuilt whenever the seed or the key algorithm changes).
@@ -28,6 +29,7 @@ CREATE TABLE IF NOT EXISTS structure_key (
 pub(crate) const KEY_INDEX_SQL: &str = "
 CREATE INDEX IF NOT EXISTS structure_key_skeleton ON structure_key(skeleton);
 CREATE INDEX IF NOT EXISTS structure_key_stereo ON structure_key(stereo);
+CREATE INDEX IF NOT EXISTS compound_formula ON compound(formula);
 ";
 
 /// How a structure matched a record.
@@ -88,6 +90,55 @@ pub(crate) fn find_shipped(
         return Ok(Some((id, KeyMatch::Stereo)));
     }
     Ok(pick("skeleton", &key.skeleton)?.map(|id| (id, KeyMatch::SkeletonOnly)))
+}
+
+/// Whether a shipped record is a salt (or other several-fragment form) of the structure
+/// `smiles`: its stored formula differs from the structure's own.
+pub(crate) fn is_salt_of(conn: &Connection, id: i64, smiles: &str) -> rusqlite::Result<bool> {
+    let Ok(parsed) = crate::structure::parse_smiles(smiles) else {
+        return Ok(false);
+    };
+    let own = crate::structure::formula::molecular_formula(&parsed.graph);
+    let stored: Option<String> = conn
+        .prepare_cached("SELECT formula FROM compound WHERE id = ?1")?
+        .query_row(params![id], |r| r.get(0))
+        .optional()?
+        .flatten();
+    Ok(stored.is_some_and(|f| !f.is_empty() && f != own))
+}
+
+/// The shipped record that holds the query as another mobile-hydrogen tautomer
+/// ([`crate::structure::tautomer`]): among the records of the same molecular formula, the
+/// first (parent form, then the same presence of stereo as the query, then lowest PubChem
+/// CID) whose structure has the query's
+/// mobile-hydrogen key. Used only when neither structure key matched.
+pub(crate) fn find_shipped_tautomer(
+    conn: &Connection,
+    smiles: &str,
+) -> rusqlite::Result<Option<i64>> {
+    let Ok(parsed) = crate::structure::parse_smiles(smiles) else {
+        return Ok(None);
+    };
+    let formula = crate::structure::formula::molecular_formula(&parsed.graph);
+    let target = mobile_h_key(&parsed.graph);
+    // a query without stereo prefers a record without stereo, and one with stereo the reverse
+    let no_stereo = !crate::structure::canon::key_of_graph(&parsed.graph).has_stereo();
+    let mut st = conn.prepare_cached(
+        "SELECT c.id, c.smiles FROM compound c LEFT JOIN structure_key k ON k.compound_id = c.id
+         WHERE c.formula = ?1 AND c.smiles IS NOT NULL AND c.smiles != ''
+         ORDER BY k.parent DESC, (k.stereo = k.skeleton) = ?2 DESC, c.cid IS NULL, c.cid, c.id",
+    )?;
+    let rows: Vec<(i64, String)> = st
+        .query_map(params![formula, no_stereo], |r| Ok((r.get(0)?, r.get(1)?)))?
+        .collect::<Result<_, _>>()?;
+    for (id, record_smiles) in rows {
+        if let Ok(p) = crate::structure::parse_smiles(&record_smiles)
+            && mobile_h_key(&p.graph) == target
+        {
+            return Ok(Some(id));
+        }
+    }
+    Ok(None)
 }
 
 /// (row id, key, parent form) of each overlay structure.

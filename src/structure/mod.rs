@@ -29,6 +29,7 @@ pub mod mcgowan;
 pub mod query;
 pub mod rings;
 pub mod smarts;
+pub mod tautomer;
 pub mod tolerance;
 pub mod tpsa;
 pub mod volatility;

@@ -65,7 +65,7 @@ pub(super) fn credible_critical_resolution(
         let sigma = crate::model::coelution::difference_sigma_min(
             &a.difference_sd_psi,
             &b.difference_sd_psi,
-            0.5 * (a.rt_slope_min + b.rt_slope_min),
+            crate::model::coelution::pair_slope(a.rt_slope_min, b.rt_slope_min),
         );
         let width = w[0].peak_width_half_min + w[1].peak_width_half_min;
         if !(width > 0.0 && sigma.is_finite()) {

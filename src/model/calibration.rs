@@ -6,7 +6,7 @@
 
 use std::collections::BTreeMap;
 
-use super::coelution::{difference_sigma_min, fit_curve, separation_ratio};
+use super::coelution::{difference_sigma_min, fit_curve, pair_slope, separation_ratio};
 use super::fitted::{Model, PathCalibration};
 use super::linear::{Penalties, fit_linear, system_features};
 use super::lss::{lss_s, rt_from_psi};
@@ -392,7 +392,7 @@ fn coelution_points(
             .collect();
         for (i, a) in info.iter().enumerate() {
             for b in &info[i + 1..] {
-                let sigma = difference_sigma_min(sd, sd, 0.5 * (a.1 + b.1));
+                let sigma = difference_sigma_min(sd, sd, pair_slope(a.1, b.1));
                 pts.push((
                     separation_ratio(a.0 - b.0, sigma),
                     (a.2 - b.2).abs() < width,

@@ -12,7 +12,7 @@ use super::calibration::{
     PAIR_ROWS, cross_validate, pearson, quantile, rows_by_system, sorted, subsample,
 };
 use super::coelution::{
-    curve_probability, difference_sigma_min, normal_probability, separation_ratio,
+    curve_probability, difference_sigma_min, normal_probability, pair_slope, separation_ratio,
 };
 use super::features::PhasewiseDescriptors;
 use super::fitted::Model;
@@ -197,7 +197,7 @@ fn figures(
             let label = dm.abs() < width;
             let score = if use_prob {
                 let sigma =
-                    difference_sigma_min(&s.sd[a], &s.sd[b], 0.5 * (s.slope[a] + s.slope[b]));
+                    difference_sigma_min(&s.sd[a], &s.sd[b], pair_slope(s.slope[a], s.slope[b]));
                 let map = if s.memory[a] && s.memory[b] {
                     &s.map_memory
                 } else {

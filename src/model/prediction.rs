@@ -105,7 +105,7 @@ pub fn coelution_probability(
     let sigma = coelution::difference_sigma_min(
         &a.difference_sd_psi,
         &b.difference_sd_psi,
-        0.5 * (a.rt_slope_min + b.rt_slope_min),
+        coelution::pair_slope(a.rt_slope_min, b.rt_slope_min),
     );
     let normal = coelution::normal_probability(delta, sigma, peak_width_min);
     let both_fit = a.path.label() == "scouting fit" && b.path.label() == "scouting fit";

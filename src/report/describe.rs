@@ -104,10 +104,7 @@ impl DescribeReport {
     /// Render in a format (CSV is rendered as TSV columns with commas).
     pub fn render(&self, format: Format) -> String {
         match format {
-            Format::Json => format!(
-                "{}\n",
-                serde_json::to_string_pretty(self).unwrap_or_default()
-            ),
+            Format::Json => super::json_pretty(self, self.molecules.len() + self.failures.len()),
             Format::Table => self.table(),
             Format::Csv => self.delimited(','),
             Format::Tsv => self.delimited('\t'),

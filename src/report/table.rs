@@ -36,9 +36,10 @@ fn escaped(c: char) -> Vec<char> {
 /// A whole text (many lines) as [`printable`] would show it, line breaks and tabs kept: the one
 /// function every text the program prints passes through, so that a control character stored
 /// in a name (an escape sequence added with `kb add --name`, say) never reaches a terminal raw.
-pub fn printable_text(s: &str) -> String {
+/// A text without such characters is returned as it is (no copy: reports run to megabytes).
+pub fn printable_text(s: &str) -> std::borrow::Cow<'_, str> {
     if !s.chars().any(|c| c.is_control() && c != '\n' && c != '\t') {
-        return s.to_string();
+        return std::borrow::Cow::Borrowed(s);
     }
     s.chars()
         .flat_map(|c| {
@@ -48,7 +49,8 @@ pub fn printable_text(s: &str) -> String {
                 vec![c]
             }
         })
-        .collect()
+        .collect::<String>()
+        .into()
 }
 
 #[cfg(test)]

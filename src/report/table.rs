@@ -38,7 +38,13 @@ fn escaped(c: char) -> Vec<char> {
 /// in a name (an escape sequence added with `kb add --name`, say) never reaches a terminal raw.
 /// A text without such characters is returned as it is (no copy: reports run to megabytes).
 pub fn printable_text(s: &str) -> std::borrow::Cow<'_, str> {
-    if !s.chars().any(|c| c.is_control() && c != '\n' && c != '\t') {
+    // Control characters are C0 (bytes below 0x20), DEL (0x7f) and C1 (U+0080-U+009F, whose
+    // UTF-8 starts with 0xc2): a text without such bytes is printable as it is, which a byte
+    // scan tells faster than decoding every character of a megabyte report.
+    let suspect = |b: &u8| (*b < 0x20 && *b != b'\n' && *b != b'\t') || *b == 0x7f || *b == 0xc2;
+    if !s.as_bytes().iter().any(suspect)
+        || !s.chars().any(|c| c.is_control() && c != '\n' && c != '\t')
+    {
         return std::borrow::Cow::Borrowed(s);
     }
     s.chars()

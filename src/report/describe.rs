@@ -4,7 +4,9 @@
 use serde::{Deserialize, Serialize};
 
 use super::{Format, SCHEMA_VERSION, csv_cell, csv_num, num, table};
-use crate::property::estimate::{METHOD_JOBACK, METHOD_LOGP, METHOD_PKA, METHOD_TPSA, estimate};
+use crate::property::estimate::{
+    METHOD_JOBACK, METHOD_LOGP, METHOD_PKA, METHOD_TPSA, estimate_without_stereo,
+};
 use crate::structure::Descriptors;
 use crate::structure::ionisable::IonisableSite;
 use crate::structure::volatility::{GcAssessment, assess_gc};
@@ -66,7 +68,7 @@ impl DescribeReport {
                 Some((s, n)) => (s.trim(), n.trim()),
                 None => (input.trim(), input.trim()),
             };
-            match estimate(smiles) {
+            match estimate_without_stereo(smiles) {
                 Ok(e) => {
                     let gc = assess_gc(&e.graph, None).ok();
                     molecules.push(DescribedMolecule {

@@ -153,6 +153,9 @@ pub enum StructureError {
 pub struct ParseOptions {
     /// Keep radicals (recorded in [`Atom::radical_electrons`]) instead of failing.
     pub allow_radicals: bool,
+    /// Leave [`MolGraph::stereo`] empty: only the canonical keys read the stereo marks, and
+    /// working out a marked double bond is the slowest step of a parse (`describe`).
+    pub skip_stereo: bool,
 }
 
 /// The result of parsing: the selected fragment as a graph, plus what was dropped.
@@ -586,7 +589,9 @@ pub fn parse_smiles_with(smiles: &str, options: &ParseOptions) -> Result<Parsed,
     if perception.simple_cycles.is_none() {
         add_interchangeable_rings(&mut graph);
     }
-    graph.stereo = stereo::marks(&raw, &local, &removed);
+    if !options.skip_stereo {
+        graph.stereo = stereo::marks(&raw, &local, &removed);
+    }
 
     // --- dropped fragments as text -------------------------------------------
     let pieces = split_top_level_dots(text);

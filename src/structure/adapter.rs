@@ -1016,7 +1016,8 @@ mod tests {
             parse_smiles_with(
                 "C[CH2]",
                 &ParseOptions {
-                    allow_radicals: true
+                    allow_radicals: true,
+                    ..ParseOptions::default()
                 }
             )
             .is_ok()

@@ -43,6 +43,8 @@ pub struct StructureEstimate {
     pub descriptors: Descriptors,
     /// Ionisable sites with typical pKa values.
     pub sites: Vec<IonisableSite>,
+    /// Whether site detection succeeded (`sites` is empty when it did not).
+    pub sites_detected: bool,
     /// Joback normal boiling point, K, with its typical error, K.
     pub joback_tb_k: Option<(f64, f64)>,
     /// Why no Joback estimate was made, if none.
@@ -113,7 +115,9 @@ pub fn estimate_without_stereo(smiles: &str) -> Result<StructureEstimate, Struct
 fn estimate_parsed(parsed: Parsed) -> Result<StructureEstimate, StructureError> {
     let descriptors = describe_graph(&parsed.graph);
     // Site detection and Joback work on a valid graph; their errors are reasons, not failures.
-    let sites = detect_sites(&parsed.graph).unwrap_or_default();
+    let sites = detect_sites(&parsed.graph);
+    let sites_detected = sites.is_ok();
+    let sites = sites.unwrap_or_default();
     let (joback_tb_k, joback_note) = match joback_tb(&parsed.graph, JobackOptions::default()) {
         Ok(j) => (Some((j.tb_k, j.typical_error_k)), None),
         Err(e) => (None, Some(e.to_string())),
@@ -122,6 +126,7 @@ fn estimate_parsed(parsed: Parsed) -> Result<StructureEstimate, StructureError> 
         graph: parsed.graph,
         descriptors,
         sites,
+        sites_detected,
         joback_tb_k,
         joback_note,
         note: parsed.note,

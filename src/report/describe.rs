@@ -9,7 +9,7 @@ use crate::property::estimate::{
 };
 use crate::structure::Descriptors;
 use crate::structure::ionisable::IonisableSite;
-use crate::structure::volatility::{GcAssessment, assess_gc};
+use crate::structure::volatility::{GcAssessment, assess_gc, assess_gc_known};
 
 /// One described molecule.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
@@ -70,7 +70,13 @@ impl DescribeReport {
             };
             match estimate_without_stereo(smiles) {
                 Ok(e) => {
-                    let gc = assess_gc(&e.graph, None).ok();
+                    // the sites and the Joback sum found above are not worked out again
+                    let gc = match (e.sites_detected, e.joback_tb_k) {
+                        (true, Some((tb_joback_k, _))) => {
+                            assess_gc_known(&e.graph, &e.sites, tb_joback_k).ok()
+                        }
+                        _ => assess_gc(&e.graph, None).ok(),
+                    };
                     molecules.push(DescribedMolecule {
                         name: name.to_string(),
                         smiles: smiles.to_string(),

@@ -123,6 +123,7 @@ fn is_radical(r: &Row) -> bool {
         .and_then(|s| {
             let keep = crate::structure::adapter::ParseOptions {
                 allow_radicals: true,
+                ..Default::default()
             };
             crate::structure::adapter::parse_smiles_with(s, &keep).ok()
         })

@@ -17,7 +17,7 @@ use super::resolve::TRIGRAM_DF_SQL;
 use super::structure_match::{KEY_INDEX_SQL, KEY_TABLE_SQL, is_parent};
 use super::{KbError, SEED_HASH, migrate, open_read_only};
 use crate::property::estimate::{EstimatedValue, estimate};
-use crate::structure::canon::{StructureKey, key_of_graph};
+use crate::structure::canon::{StructureKey, key_of_graph, possible_stereo_elements};
 
 /// The embedded compound table.
 const COMPOUNDS_GZ: &[u8] = include_bytes!("../../data/kb/compounds.tsv.gz");
@@ -163,7 +163,8 @@ fn build_into(tmp: &Path, progress: &mut dyn FnMut(f64, &str)) -> Result<BuildCo
             .map_err(sql)?;
         let mut ins_k = tx
             .prepare(
-                "INSERT INTO structure_key(compound_id, skeleton, stereo, parent) VALUES (?1, ?2, ?3, ?4)",
+                "INSERT INTO structure_key(compound_id, skeleton, stereo, parent, stereo_elements, possible_stereo)
+                 VALUES (?1, ?2, ?3, ?4, ?5, ?6)",
             )
             .map_err(sql)?;
         let mut name_id: i64 = 0;
@@ -204,9 +205,18 @@ fn build_into(tmp: &Path, progress: &mut dyn FnMut(f64, &str)) -> Result<BuildCo
             counts.compounds += 1;
             if let Some((values, key)) = estimates.get(i) {
                 counts.properties += insert_values(&mut ins_p, id, values).map_err(sql)?;
-                if let Some((key, parent)) = key {
+                if let Some((key, parent, possible)) = key {
+                    let elements = i64::try_from(key.stereo_elements).unwrap_or(i64::MAX);
+                    let possible = i64::try_from(*possible).unwrap_or(i64::MAX);
                     ins_k
-                        .execute(params![id, key.skeleton, key.stereo, i64::from(*parent)])
+                        .execute(params![
+                            id,
+                            key.skeleton,
+                            key.stereo,
+                            i64::from(*parent),
+                            elements,
+                            possible
+                        ])
                         .map_err(sql)?;
                 }
             }
@@ -331,7 +341,14 @@ fn estimate_all(compounds: &str) -> Vec<Estimated> {
                                 Ok(e) => {
                                     let key = key_of_graph(&e.graph);
                                     let parent = is_parent(e.note.as_deref(), &key);
-                                    (e.values(), Some((key, parent)))
+                                    // read by the standardisation only for a record without
+                                    // stereo (kb::standardise)
+                                    let possible = if key.stereo_elements == 0 {
+                                        possible_stereo_elements(&e.graph)
+                                    } else {
+                                        0
+                                    };
+                                    (e.values(), Some((key, parent, possible)))
                                 }
                                 Err(_) => (Vec::new(), None),
                             }
@@ -353,8 +370,9 @@ fn estimate_all(compounds: &str) -> Vec<Estimated> {
     out
 }
 
-/// Estimates of one compound, and its structure key with its parent flag.
-type Estimated = (Vec<EstimatedValue>, Option<(StructureKey, bool)>);
+/// Estimates of one compound, and its structure key with its parent flag and, when the key
+/// has no stereo element, the number of possible stereo elements.
+type Estimated = (Vec<EstimatedValue>, Option<(StructureKey, bool, usize)>);
 
 /// Insert estimated rows of one compound. Returns the rows written.
 pub(crate) fn insert_values(

@@ -33,7 +33,7 @@ pub const SCHEMA_VERSION: i64 = 3;
 
 /// Fingerprint of the embedded seed data (set by `build.rs`) and of the way it is turned
 /// into a database: a base built by another version of either is stale and rebuilt.
-pub const SEED_HASH: &str = concat!(env!("PHASEWISE_SEED_HASH"), "-build10");
+pub const SEED_HASH: &str = concat!(env!("PHASEWISE_SEED_HASH"), "-build11");
 
 /// How long a writer waits for another process's lock before giving up.
 const BUSY_TIMEOUT_DEFAULT: Duration = Duration::from_secs(10);

@@ -60,6 +60,24 @@ impl Kb {
         if !salt_possible && !stereo_possible {
             return Ok(Resolution::Found(a));
         }
+        // A record of one fragment (no `.`: nothing to drop) needs only what the build stored
+        // from the same parse (its skeleton key, stereo elements and possible stereo
+        // elements); its SMILES is parsed only when the base lacks them.
+        if !smiles.contains('.')
+            && let Some((skeleton, elements, possible)) = self.stored_stereo_facts(&smiles)
+        {
+            if by_name && elements == 0 && !a.matched_by.contains(STEREO_LESS_NOTE) {
+                let flag = possible >= 2
+                    || (possible == 1
+                        && (has_stereo_word(&a.query)
+                            || (a.matched_by.starts_with("synonym")
+                                && !self.racemate_name(&a.query, &skeleton)?)));
+                if flag {
+                    a.matched_by = format!("{}; {STEREO_LESS_NOTE}", a.matched_by);
+                }
+            }
+            return Ok(Resolution::Found(a));
+        }
         let Ok(parsed) = crate::structure::parse_smiles(&smiles) else {
             return Ok(Resolution::Found(a));
         };
@@ -106,6 +124,25 @@ impl Kb {
             }
         }
         Ok(Resolution::Found(a))
+    }
+
+    /// (skeleton key, stereo elements, possible stereo elements) that the build stored for a
+    /// shipped record with this SMILES (the keys are a function of the SMILES text, so any
+    /// record with it will do); `None` when no record has a key (its SMILES did not parse)
+    /// or the base predates these columns.
+    fn stored_stereo_facts(&self, smiles: &str) -> Option<(String, i64, i64)> {
+        self.shipped
+            .prepare_cached(
+                "SELECT k.skeleton, k.stereo_elements, k.possible_stereo
+                 FROM compound c JOIN structure_key k ON k.compound_id = c.id
+                 WHERE c.smiles = ?1 LIMIT 1",
+            )
+            .and_then(|mut st| {
+                st.query_row([smiles], |r| Ok((r.get(0)?, r.get(1)?, r.get(2)?)))
+                    .optional()
+            })
+            .ok()
+            .flatten()
     }
 
     /// Whether `query` is the name, without descriptor, of stereoisomer records of the same

@@ -21,7 +21,12 @@ CREATE TABLE IF NOT EXISTS structure_key (
     compound_id INTEGER PRIMARY KEY,
     skeleton TEXT NOT NULL,
     stereo TEXT NOT NULL,
-    parent INTEGER NOT NULL
+    parent INTEGER NOT NULL,
+    -- stereo elements of the key (`StructureKey::stereo_elements`)
+    stereo_elements INTEGER NOT NULL,
+    -- possible stereo elements of the structure (`canon::possible_stereo_elements`) when the
+    -- key has none; 0 otherwise (read only for records without stereo)
+    possible_stereo INTEGER NOT NULL
 );
 ";
 

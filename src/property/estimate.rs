@@ -3,10 +3,13 @@
 //! analyte known only from its SMILES gets at run time. One function serves both, so the
 //! stored and the run-time estimates never disagree.
 
+use crate::structure::adapter::parse_smiles_with;
 use crate::structure::graph::MolGraph;
 use crate::structure::ionisable::{IonisableSite, SiteKind, detect_sites};
 use crate::structure::joback::{JobackOptions, joback_tb};
-use crate::structure::{Descriptors, StructureError, describe_graph, parse_smiles};
+use crate::structure::{
+    Descriptors, ParseOptions, Parsed, StructureError, describe_graph, parse_smiles,
+};
 
 /// Method label for Wildman–Crippen logP.
 pub const METHOD_LOGP: &str =
@@ -40,6 +43,8 @@ pub struct StructureEstimate {
     pub descriptors: Descriptors,
     /// Ionisable sites with typical pKa values.
     pub sites: Vec<IonisableSite>,
+    /// Whether site detection succeeded (`sites` is empty when it did not).
+    pub sites_detected: bool,
     /// Joback normal boiling point, K, with its typical error, K.
     pub joback_tb_k: Option<(f64, f64)>,
     /// Why no Joback estimate was made, if none.
@@ -90,10 +95,29 @@ pub fn attach_estimates(analyte: &mut crate::property::Analyte, e: &StructureEst
 /// # Errors
 /// [`StructureError`] when the SMILES string cannot be parsed.
 pub fn estimate(smiles: &str) -> Result<StructureEstimate, StructureError> {
-    let parsed = parse_smiles(smiles)?;
+    estimate_parsed(parse_smiles(smiles)?)
+}
+
+/// As [`estimate`], with the graph's stereo marks left empty ([`ParseOptions::skip_stereo`]):
+/// for reports of the estimates only (`describe`), whose numbers do not depend on them. The
+/// graph cannot give a stereo key.
+///
+/// # Errors
+/// As [`estimate`].
+pub fn estimate_without_stereo(smiles: &str) -> Result<StructureEstimate, StructureError> {
+    let options = ParseOptions {
+        skip_stereo: true,
+        ..ParseOptions::default()
+    };
+    estimate_parsed(parse_smiles_with(smiles, &options)?)
+}
+
+fn estimate_parsed(parsed: Parsed) -> Result<StructureEstimate, StructureError> {
     let descriptors = describe_graph(&parsed.graph);
     // Site detection and Joback work on a valid graph; their errors are reasons, not failures.
-    let sites = detect_sites(&parsed.graph).unwrap_or_default();
+    let sites = detect_sites(&parsed.graph);
+    let sites_detected = sites.is_ok();
+    let sites = sites.unwrap_or_default();
     let (joback_tb_k, joback_note) = match joback_tb(&parsed.graph, JobackOptions::default()) {
         Ok(j) => (Some((j.tb_k, j.typical_error_k)), None),
         Err(e) => (None, Some(e.to_string())),
@@ -102,6 +126,7 @@ pub fn estimate(smiles: &str) -> Result<StructureEstimate, StructureError> {
         graph: parsed.graph,
         descriptors,
         sites,
+        sites_detected,
         joback_tb_k,
         joback_note,
         note: parsed.note,

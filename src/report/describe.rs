@@ -4,10 +4,12 @@
 use serde::{Deserialize, Serialize};
 
 use super::{Format, SCHEMA_VERSION, csv_cell, csv_num, num, table};
-use crate::property::estimate::{METHOD_JOBACK, METHOD_LOGP, METHOD_PKA, METHOD_TPSA, estimate};
+use crate::property::estimate::{
+    METHOD_JOBACK, METHOD_LOGP, METHOD_PKA, METHOD_TPSA, estimate_without_stereo,
+};
 use crate::structure::Descriptors;
 use crate::structure::ionisable::IonisableSite;
-use crate::structure::volatility::{GcAssessment, assess_gc};
+use crate::structure::volatility::{GcAssessment, assess_gc, assess_gc_known};
 
 /// One described molecule.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
@@ -66,9 +68,15 @@ impl DescribeReport {
                 Some((s, n)) => (s.trim(), n.trim()),
                 None => (input.trim(), input.trim()),
             };
-            match estimate(smiles) {
+            match estimate_without_stereo(smiles) {
                 Ok(e) => {
-                    let gc = assess_gc(&e.graph, None).ok();
+                    // the sites and the Joback sum found above are not worked out again
+                    let gc = match (e.sites_detected, e.joback_tb_k) {
+                        (true, Some((tb_joback_k, _))) => {
+                            assess_gc_known(&e.graph, &e.sites, tb_joback_k).ok()
+                        }
+                        _ => assess_gc(&e.graph, None).ok(),
+                    };
                     molecules.push(DescribedMolecule {
                         name: name.to_string(),
                         smiles: smiles.to_string(),
@@ -104,10 +112,7 @@ impl DescribeReport {
     /// Render in a format (CSV is rendered as TSV columns with commas).
     pub fn render(&self, format: Format) -> String {
         match format {
-            Format::Json => format!(
-                "{}\n",
-                serde_json::to_string_pretty(self).unwrap_or_default()
-            ),
+            Format::Json => super::json_pretty(self, self.molecules.len() + self.failures.len()),
             Format::Table => self.table(),
             Format::Csv => self.delimited(','),
             Format::Tsv => self.delimited('\t'),

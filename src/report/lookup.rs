@@ -60,9 +60,7 @@ impl LookupReport {
                         .collect(),
                     unresolved: &self.unresolved,
                 };
-                let mut s = serde_json::to_string_pretty(&v).unwrap_or_default();
-                s.push('\n');
-                s
+                super::json_pretty(&v, self.analytes.len() + self.unresolved.len())
             }
             Format::Table => self.table(),
             Format::Csv => self.delimited(','),

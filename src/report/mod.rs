@@ -36,6 +36,21 @@ pub enum Format {
     Tsv,
 }
 
+/// Pretty JSON of `value` and a closing line break, written into one buffer sized for
+/// `records` records of a few kilobytes each: a report of thousands of records is built
+/// without copying it over and over as it grows (the same text as
+/// `serde_json::to_string_pretty`; an empty document when serialisation fails).
+pub fn json_pretty<T: Serialize + ?Sized>(value: &T, records: usize) -> String {
+    // at most 64 MiB up front; a larger report grows as usual
+    let mut buf = Vec::with_capacity(records.saturating_add(1).saturating_mul(4096).min(64 << 20));
+    if serde_json::to_writer_pretty(&mut buf, value).is_err() {
+        buf.clear();
+    }
+    buf.push(b'\n');
+    // serde_json writes valid UTF-8 only
+    String::from_utf8(buf).unwrap_or_else(|_| "\n".to_string())
+}
+
 /// Format a float for text output: up to `digits` decimals, trailing zeros trimmed. A value
 /// that rounds to zero prints as `0`, never `-0` (e.g. a net charge of −0.0004 e).
 pub fn num(v: f64, digits: usize) -> String {

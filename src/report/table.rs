@@ -36,9 +36,21 @@ fn escaped(c: char) -> Vec<char> {
 /// A whole text (many lines) as [`printable`] would show it, line breaks and tabs kept: the one
 /// function every text the program prints passes through, so that a control character stored
 /// in a name (an escape sequence added with `kb add --name`, say) never reaches a terminal raw.
-pub fn printable_text(s: &str) -> String {
-    if !s.chars().any(|c| c.is_control() && c != '\n' && c != '\t') {
-        return s.to_string();
+/// A text without such characters is returned as it is (no copy: reports run to megabytes).
+pub fn printable_text(s: &str) -> std::borrow::Cow<'_, str> {
+    // Control characters are C0 (bytes below 0x20), DEL (0x7f) and C1 (U+0080-U+009F, in
+    // UTF-8 0xc2 then 0x80-0x9f; a `°` or `±` is 0xc2 then 0xb0 or 0xb1): a text without such
+    // bytes is printable as it is, which a byte scan tells faster than decoding every
+    // character of a megabyte report.
+    let b = s.as_bytes();
+    let suspect = |i: usize| match b[i] {
+        b'\n' | b'\t' => false,
+        0..0x20 | 0x7f => true,
+        0xc2 => b.get(i + 1).is_some_and(|n| (0x80..0xa0).contains(n)),
+        _ => false,
+    };
+    if !(0..b.len()).any(suspect) || !s.chars().any(|c| c.is_control() && c != '\n' && c != '\t') {
+        return std::borrow::Cow::Borrowed(s);
     }
     s.chars()
         .flat_map(|c| {
@@ -48,7 +60,8 @@ pub fn printable_text(s: &str) -> String {
                 vec![c]
             }
         })
-        .collect()
+        .collect::<String>()
+        .into()
 }
 
 #[cfg(test)]
@@ -62,6 +75,10 @@ mod tests {
         assert_eq!(p, "name,logp\n\\u001b[31mred\t1.2\\r\n\\u0007");
         assert!(!p.chars().any(|c| c.is_control() && c != '\n' && c != '\t'));
         assert_eq!(printable_text("plain\ttext\n"), "plain\ttext\n");
+        // degree and plus-minus signs share the C1 controls' first UTF-8 byte: kept, no copy
+        let units = printable_text("25 \u{b0}C \u{b1} 1\n");
+        assert!(matches!(units, std::borrow::Cow::Borrowed(_)));
+        assert_eq!(printable_text("a\u{85}b\u{9f}"), "a\\u0085b\\u009f");
     }
 
     #[test]

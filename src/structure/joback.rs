@@ -338,7 +338,7 @@ pub fn joback_tb(graph: &MolGraph, options: JobackOptions) -> Result<JobackEstim
     } else {
         tb_joback_k
     };
-    let typical_error_k = 18.0 + 0.1 * (tb_k - 500.0).max(0.0);
+    let typical_error_k = typical_error_k(tb_k);
     Ok(JobackEstimate {
         tb_k,
         tb_joback_k,
@@ -346,6 +346,11 @@ pub fn joback_tb(graph: &MolGraph, options: JobackOptions) -> Result<JobackEstim
         groups: counts,
         typical_error_k,
     })
+}
+
+/// Typical error (K) of a Joback boiling point `tb_k` (K), as [`joback_tb`] reports it.
+pub fn typical_error_k(tb_k: f64) -> f64 {
+    18.0 + 0.1 * (tb_k - 500.0).max(0.0)
 }
 
 /// Stein & Brown (1994) correction of a group-sum boiling point (K); constants from memory.

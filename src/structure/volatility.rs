@@ -17,7 +17,7 @@ use serde::{Deserialize, Serialize};
 
 use super::graph::{BondOrder, MolGraph};
 use super::ionisable::{GroupClass, IonisableError, IonisableSite, SiteKind, detect_sites};
-use super::joback::{JobackError, JobackOptions, joback_tb};
+use super::joback::{JobackError, JobackOptions, joback_tb, stein_brown, typical_error_k};
 use super::query::{GraphError, GraphView};
 
 /// Very volatile below this Tb, K (100 °C).
@@ -294,7 +294,22 @@ pub fn assess_gc(
     graph: &MolGraph,
     experimental_tb_k: Option<f64>,
 ) -> Result<GcAssessment, VolatilityError> {
-    assess_gc_inner(graph, experimental_tb_k, None)
+    assess_gc_inner(graph, experimental_tb_k, None, None)
+}
+
+/// [`assess_gc`] without an experimental boiling point, for a graph whose ionisable sites
+/// (`detect_sites` succeeded) and Joback group-sum boiling point `tb_joback_k` (K, without the
+/// Stein–Brown correction) are already known, as `property::estimate` has them: the same
+/// assessment without detecting the sites and assigning the Joback groups a second time.
+///
+/// # Errors
+/// As [`assess_gc`].
+pub fn assess_gc_known(
+    graph: &MolGraph,
+    sites: &[IonisableSite],
+    tb_joback_k: f64,
+) -> Result<GcAssessment, VolatilityError> {
+    assess_gc_inner(graph, None, None, Some((sites, tb_joback_k)))
 }
 
 /// [`assess_gc`] with a boiling point estimated elsewhere (`tb_k` with its 1σ `error_k` and its
@@ -310,16 +325,24 @@ pub fn assess_gc_with_tb(
     error_k: f64,
     source: TbSource,
 ) -> Result<GcAssessment, VolatilityError> {
-    assess_gc_inner(graph, None, Some((tb_k, error_k, source)))
+    assess_gc_inner(graph, None, Some((tb_k, error_k, source)), None)
 }
 
 fn assess_gc_inner(
     graph: &MolGraph,
     experimental_tb_k: Option<f64>,
     estimated: Option<(f64, f64, TbSource)>,
+    known: Option<(&[IonisableSite], f64)>,
 ) -> Result<GcAssessment, VolatilityError> {
     let v = GraphView::new(graph)?;
-    let sites = detect_sites(graph)?;
+    let detected;
+    let sites: &[IonisableSite] = match known {
+        Some((s, _)) => s,
+        None => {
+            detected = detect_sites(graph)?;
+            &detected
+        }
+    };
     let mut flags = Vec::new();
 
     let (tb_k, tb_error_k, tb_source, tb_note) = match (experimental_tb_k, estimated) {
@@ -331,6 +354,15 @@ fn assess_gc_inner(
             Some(t) => {
                 volatility_class(t)?;
                 (Some(t), Some(0.0), TbSource::Experimental, None)
+            }
+            None if known.is_some() => {
+                let tb = stein_brown(known.map_or(0.0, |k| k.1));
+                (
+                    Some(tb),
+                    Some(typical_error_k(tb)),
+                    TbSource::JobackSteinBrown,
+                    None,
+                )
             }
             None => match joback_tb(
                 graph,
@@ -360,12 +392,12 @@ fn assess_gc_inner(
         .filter(|&i| matches!(v.z(i), 7 | 8))
         .map(|i| u32::from(v.h(i)))
         .sum();
-    acid_flags(&sites, tb_k, donor_h, &mut flags);
-    charge_flags(&sites, &mut flags);
+    acid_flags(sites, tb_k, donor_h, &mut flags);
+    charge_flags(sites, &mut flags);
     hydroxyl_flags(&v, &mut flags);
     amide_flags(&v, &mut flags);
-    amine_flags(&sites, &mut flags);
-    polarity_flags(&v, &sites, &mut flags);
+    amine_flags(sites, &mut flags);
+    polarity_flags(&v, sites, &mut flags);
 
     let derivatisable = flags.iter().any(|f| f.derivatisation.is_some())
         || (0..v.len()).any(|i| matches!(v.z(i), 7 | 8 | 16) && v.h(i) > 0);

@@ -82,10 +82,12 @@ pub(super) fn marks(raw: &Smiles, local: &[usize], removed: &[bool]) -> Vec<Ster
             if !directional(i) || !directional(j) {
                 continue;
             }
-            let (Some(config), Some((ra, rb))) = (
-                raw.double_bond_stereo_config(i, j),
-                raw.double_bond_stereo_atoms(i, j),
-            ) else {
+            // each call below works out every stereo double bond of the molecule: the
+            // configuration is asked for only when the bond has reference atoms
+            let Some((ra, rb)) = raw.double_bond_stereo_atoms(i, j) else {
+                continue;
+            };
+            let Some(config) = raw.double_bond_stereo_config(i, j) else {
                 continue;
             };
             let (Some(Some(a)), Some(Some(b)), Some(ref_a), Some(ref_b)) =

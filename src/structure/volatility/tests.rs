@@ -75,3 +75,30 @@ fn experimental_tb_is_used() {
     assert_eq!(a.volatility_class, Some(VolatilityClass::VeryVolatile));
     assert!(assess_gc(&g, Some(f64::NAN)).is_err());
 }
+
+/// The assessment from known sites and Joback sum (what `describe` uses) is the assessment
+/// itself, on the 2,000 structures of the RDKit reference set (acids, bases, zwitterions,
+/// salts, polyols, heavy and light molecules).
+#[test]
+fn assessment_from_known_sites_and_joback_sum_is_the_same() {
+    use crate::structure::ionisable::detect_sites;
+    use crate::structure::joback::{JobackOptions, joback_tb};
+    let data = include_str!("../../../tests/data/rdkit_descriptors.tsv");
+    let mut compared = 0;
+    for line in data.lines().skip(1) {
+        let Some(smiles) = line.split('\t').nth(1) else {
+            continue;
+        };
+        let Ok(parsed) = parse_smiles(smiles) else {
+            continue;
+        };
+        let g = &parsed.graph;
+        let (Ok(sites), Ok(j)) = (detect_sites(g), joback_tb(g, JobackOptions::default())) else {
+            continue;
+        };
+        let known = assess_gc_known(g, &sites, j.tb_joback_k);
+        assert_eq!(known, assess_gc(g, None), "{smiles}");
+        compared += 1;
+    }
+    assert!(compared > 1_400, "{compared}");
+}

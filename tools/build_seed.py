@@ -62,6 +62,15 @@ STEREO_PREFIXES = ("(+)", "(-)", "(±)", "(r)", "(s)", "(e)", "(z)", "cis-", "tr
                    "r-", "s-", "(r,", "(s,", "dl-", "rac-", "e-", "z-", "meso-", "endo-", "exo-", "alpha-d-", "beta-d-")
 
 
+# what a record without stereo adds to the name of its stereoisomer record (issue 13)
+STEREO_UNSPECIFIED = " (stereo unspecified)"
+
+
+def stereo_name(name):
+    """A name whose prefix names one enantiomer (`levomethadone`, `dextropropoxyphene`)."""
+    return name.strip().lower().startswith(("levo", "dextro"))
+
+
 def has_stereo_word(name):
     low = name.lower()
     return low.startswith(STEREO_PREFIXES) or "-(r)-" in low or "-(s)-" in low or "(e)-" in low or "(z)-" in low
@@ -179,7 +188,11 @@ def add_retention(compounds, order, path):
         if key in compounds:
             c = compounds[key]
             for n in good:
-                if n not in c["names"]:
+                same = [x for x in c["names"] if x.lower() == n.lower()]
+                if same:
+                    # a name the source table gives the record too
+                    c.setdefault("retention_confirmed", []).append(same[0])
+                else:
                     c["names"].append(n)
                     named += 1
                 c.setdefault("retention_names", []).append(n)
@@ -282,9 +295,13 @@ def fix_tautomers(compounds):
 
 def fix_stereo_less_names(compounds):
     """A stereo-less record (InChIKey stereo block UHFFFAOYSA) must not carry as its preferred
-    name the preferred name of a stereoisomer record of the same skeleton (PubChem's
-    stereo-less codeine record is titled `isocodeine`). It takes instead a name of its own:
-    the first of its names that no same-skeleton record uses as preferred name."""
+    name the preferred name of another record of the same skeleton (PubChem's stereo-less
+    codeine record is titled `isocodeine`). When that record has stereo and the name is a
+    proper name that says no stereo itself (`puromycin`, `cannabidiol`), the record keeps the
+    name marked `(stereo unspecified)`: the name a chemist knows, honest that the record stands
+    for no one stereoisomer, while the bare name stays the stereoisomer's (issue 13).
+    Otherwise (`cis-4-octene`; a twin that differs only in charge) the record takes a name of
+    its own: the first of its names that no same-skeleton record uses as preferred name."""
     by_skeleton = {}
     for k, c in compounds.items():
         by_skeleton.setdefault(k.split("-")[0], []).append(k)
@@ -298,6 +315,14 @@ def fix_stereo_less_names(compounds):
             c = compounds[k]
             others = {compounds[o]["pref"].lower() for o in keys if o != k}
             if c["pref"].lower() not in others:
+                continue
+            twins = {compounds[o]["pref"].lower() for o in keys if o.split("-")[1] != "UHFFFAOYSA"}
+            if (c["pref"].lower() in twins and not has_stereo_word(c["pref"]) and not stereo_name(c["pref"])
+                    and proper_name(c["pref"], MAX_NAME_LEN - len(STEREO_UNSPECIFIED))):
+                if c["pref"] not in c["names"]:
+                    c["names"].insert(1 if c["names"] else 0, c["pref"])
+                c["pref"] = c["pref"] + STEREO_UNSPECIFIED
+                renamed += 1
                 continue
             # the names the retention data measured it under first, then its other names in
             # source order (the IUPAC-style name first)
@@ -702,6 +727,26 @@ class NameIndex:
                 return e
         return best
 
+    # src/kb/resolve.rs `find_salt_of`: a name no record holds finds the salt record named
+    # `name <counter-ion word>` (standardised to its parent)
+    SALT_ROUTE_WORDS = ("chloride", "dichloride", "bromide", "dibromide", "iodide", "methyl sulfate",
+                        "metilsulfate", "nitrate", "hydroiodide", "sulfate", "sulphate", "hydrochloride",
+                        "sodium", "potassium", "calcium", "hydrobromide", "mesylate", "maleate", "tartrate",
+                        "citrate", "phosphate", "fumarate", "besylate", "succinate", "acetate", "hcl",
+                        "sodium salt")
+
+    def salt_route(self, name):
+        """The salt record a name that no record holds resolves to, or None."""
+        base = name.strip()
+        if not base or len(base.split()) > 3:
+            return None
+        for w in self.SALT_ROUTE_WORDS:
+            salt = normalise(base + " " + w)
+            j = self.decision(salt)[0]
+            if j is not None and "." in self.recs[j]["smiles"] and normalise(self.recs[j]["pref"]) == salt:
+                return j
+        return None
+
     def decision(self, norm):
         """(record the name resolves to, skeletons holding it at the best rank)."""
         rows = self.by_norm.get(norm, [])
@@ -716,6 +761,155 @@ class NameIndex:
         eff = 0 if best[1] == 3 else best[1]
         blocks = frozenset(self.recs[i]["skel"] for i, rank in rows if (0 if rank == 3 else rank) == eff)
         return (best[0], blocks)
+
+
+# Names a chemist uses for the record (issue 13): the names an official list tags (INN, USAN,
+# BAN, JAN, ISO, pharmacopoeias; also when a national standard's tag stands beside it, as in
+# `prometryn [ansi:bsi:iso]`, but not a language's form, `prometryne [iso-french]`), except a
+# name the record's synonyms also mark as a trade name (`mercurochrome (jp16)` beside
+# `mercurochrome (tn)`); best first: the name carrying the most official-list tags (`kanamycin
+# sulfate [usan:inn:ban]` before `kanamycin monosulfate [jan]`), then source order. With
+# `retention`, then the names the retention data measured the record under when the source
+# table gives it that name too.
+LANGUAGE_TAGS = {"german", "french", "dutch", "polish", "latin", "russian", "czech", "spanish", "italian",
+                 "inn-latin", "inn-french", "inn-spanish", "iso-french", "dcit"}
+NOT_A_NAME_TAGS = LANGUAGE_TAGS | {"tn", "forbidden", "poison", "corrosive", "ep impurity"}
+
+
+def usual_names(r, retention=False):
+    names = r.get("all_names", r["names"])
+    trade = {name_tag(n)[0].lower() for n in names if "tn" in name_tag(n)[1]}
+    tagged = {}
+    for k, n in enumerate(names):
+        base, tags = name_tag(n)
+        if (tags & OFFICIAL_TAGS and not tags & NOT_A_NAME_TAGS and base and "[" not in base
+                and base.lower() not in trade):
+            t = tagged.setdefault(base.lower(), [0, k, base])
+            t[0] -= len(tags & OFFICIAL_TAGS)
+    out = [v[2] for v in sorted(tagged.values())]
+    if retention:
+        out += [n for n in r.get("retention_confirmed", []) if proper_name(n, 60)
+                and not any(ch.isdigit() for ch in n) and n.lower() not in trade]
+    seen, uniq = set(), []
+    stereo_less = r["key"].split("-")[1:2] == ["UHFFFAOYSA"]
+    for n in out:
+        if n.lower() not in seen and fits_record(r, n) and not (stereo_less and stereo_name(n)):
+            seen.add(n.lower())
+            uniq.append(n)
+    return uniq
+
+
+def spelling_key(w):
+    """A word with the spellings of European languages read alike (ph/f, th/t, ae/e, oe/e,
+    y/i, k/c, j/i: `nikotyna`, `etakridin`, `jodoform` read as `nicotina`, `etacridin`,
+    `iodoform`)."""
+    for x, y in (("ph", "f"), ("th", "t"), ("ae", "e"), ("oe", "e"), ("y", "i"), ("k", "c"), ("j", "i")):
+        w = w.replace(x, y)
+    return w
+
+
+def foreign_form(p, o):
+    """Whether the one-word name `p` is the one-word name `o` written in another language: the
+    same word once spellings are read alike, but with the German or Dutch ending that drops
+    the final `e` of `-ine`, `-ole`, `-one` (`nikotin`, `vinblastin`, `pirlindol`), a Latin `-um`
+    (`valtratum`, `dithiazaninum`) or a Romance or Slavic `-a`/`-o` (`nicotina`, `nikotyna`).
+    English spelling variants, which read alike whole (`beclomethasone`/`beclometasone`), and
+    English names without the final `e` (`prometryn` beside `prometryne`) are no foreign forms:
+    the official name must be the English one."""
+    if not (re.fullmatch(r"[a-z]{5,}", p) and re.fullmatch(r"[a-z]{5,}", o)):
+        return False
+    kp, ko = spelling_key(p), spelling_key(o)
+    if kp == ko:
+        return False
+    stem = ko[:-1] if ko.endswith("e") else ko
+    if kp in (stem + "um", stem + "a", stem + "o"):
+        return True
+    return ko.endswith(("ine", "ole", "one")) and kp == stem
+
+
+def word_support(w, names):
+    """How many of the names, other than `w` itself, hold `w` as a word."""
+    c = re.compile(r"(?<![a-z])" + re.escape(w) + r"(?![a-z])")
+    return sum(1 for n in names if n.lower() != w and c.search(n.lower()))
+
+
+def foreign_evidence(p, o, names):
+    """A form without the final `e` (`nikotin` for `nicotine`) is also an English spelling of
+    some names (`psilocybin`, whose INN is `psilocybine`): it counts as foreign only with a
+    sign of it: a non-English letter (`k` for `c`: `nikotin`, `etakridin`), the source listing
+    the official form first (`vinblastine`, then `vinblastin`), or the official form recurring
+    in three synonyms or more and this form in none (`nicotine alkaloid`, `(-)-nicotine`)."""
+    ko = spelling_key(o)
+    if spelling_key(p) != (ko[:-1] if ko.endswith("e") else ko):
+        return True   # a Latin, Romance or Slavic ending
+    if p != o[:-1]:
+        return True
+    first = names[0].lower() if names else ""
+    return first == o or (word_support(o, names) >= 3 and word_support(p, names) == 0)
+
+
+def truncated_form(p, o):
+    """Whether the one-word name `p` is the one-word name `o` cut by one or two letters at its
+    start or end (`obramycin` for `tobramycin`), and not an English spelling variant of it
+    (`estradiol` for `oestradiol`)."""
+    if not (re.fullmatch(r"[a-z]{6,}", p) and re.fullmatch(r"[a-z]+", o)):
+        return False
+    if not 1 <= len(o) - len(p) <= 2 or spelling_key(p) == spelling_key(o):
+        return False
+    return o.endswith(p) or (o.startswith(p) and o[len(p):] != "e")
+
+
+def stem_support(word, names):
+    """How many of the names hold a word starting with the first six letters of `word`."""
+    st = word[:6]
+    return sum(1 for n in names if any(t.startswith(st) for t in re.findall(r"[a-z]+", n.lower())))
+
+
+def unsupported_brand(p, usual, names):
+    """Whether the one-word name `p` is a brand the record's synonyms do not back: no other
+    synonym holds its stem (a generic name recurs in salt, grade and list forms: `diazinon
+    50w`, `diazinon [iso]`), it shares no five letters with a usual name of the record (a
+    variant of that name, `troxone` beside `troxonium tosilate`), and the record's first usual
+    name is no systematic name and recurs in three synonyms or more (`carbiphene hydrochloride`
+    beside `jubalon`; `kanamycin sulfate` beside `ophtalmokalixan`)."""
+    if not re.fullmatch(r"[a-z]{4,}", p) or p in KEPT_ABBREVIATIONS or not usual:
+        return False
+    others = [n for n in names if n.lower() != p and name_tag(n)[0].lower() != p
+              and not re.fullmatch(re.escape(p) + r" (?:" + DOSAGE_FORMS + r")\b.*", n.lower())]
+    if stem_support(p, others) > 0:
+        return False
+    kp = spelling_key(p)
+    for u in usual:
+        ku = spelling_key(u.lower())
+        if any(kp[i:i + 5] in ku for i in range(len(kp) - 4)) or spelling_variant(p, u.lower()):
+            return False
+    u = usual[0].lower()
+    words = re.findall(r"[a-z]+", u)
+    return (not any(ch.isdigit() for ch in u) and bool(words) and len(words) <= 4
+            and stem_support(words[0], names) >= 3)
+
+
+def unofficial_name(r):
+    """(why, replacement names best first) when the preferred name is not what a chemist calls
+    the record although the record has an official name: a foreign-language form of it, a
+    truncated form of it, or a brand the synonyms do not back; (None, []) otherwise. Proper
+    chemical names, older or other generic names and English spelling variants are kept."""
+    o = r["pref"].strip()
+    low = o.lower()
+    official = usual_names(r)
+    usual = usual_names(r, retention=True)
+    if not usual or normalise(o) in {normalise(u) for u in usual}:
+        return None, []
+    names = r.get("all_names", r["names"])
+    foreign = [u for u in official if foreign_form(low, u.lower()) and foreign_evidence(low, u.lower(), names)]
+    if foreign:
+        return "foreign-language form", foreign
+    cut = [u for u in official if truncated_form(low, u.lower())]
+    if cut:
+        return "truncated name", cut
+    if unsupported_brand(low, usual, names):
+        return "brand without support", usual
+    return None, []
 
 
 def bad_preferred_name(r, officials):
@@ -815,8 +1009,8 @@ def candidates(r, why, officials):
     o = r["pref"]
     names = r["names"]
     out = list(officials)
-    if why == "brand":
-        return out
+    if why in ("brand", "foreign-language form", "truncated name", "brand without support"):
+        return out   # (the names `unofficial_name` found, for the last three)
     if why == "list tag":
         # `teloxantrone [inn]` is `teloxantrone`; a trade name `sedotussin (tn)` gives way to
         # an official name first
@@ -900,6 +1094,32 @@ def set_skeletons(recs):
                 r["skel"] = k.split("-")[0]
 
 
+def with_stereo_note(idx, i, cands, pref_of):
+    """The candidate names for record i; for a record without stereo, a name that finds a
+    stereoisomer record of the same structure, as its preferred name or through the salt the
+    name finds (`tobramycin` finds `tobramycin sulfate`, with stereo, beside PubChem's
+    stereo-less tobramycin record), comes first marked `(stereo unspecified)`: the record
+    keeps the name a chemist knows, says that it stands for no one stereoisomer, and the name
+    itself keeps finding the stereoisomer."""
+    recs = idx.recs
+    r = recs[i]
+    block, stereo = r["key"].split("-")[:2]
+    if stereo != "UHFFFAOYSA":
+        return cands
+    out = []
+    for n in cands:
+        twins = [j for j in pref_of.get(normalise(n), set()) - {i}
+                 if recs[j]["key"].split("-")[0] == block and recs[j]["key"].split("-")[1] != "UHFFFAOYSA"]
+        if not twins and idx.decision(normalise(n))[0] is None:
+            j = idx.salt_route(n)
+            if j is not None and recs[j]["skel"] == r["skel"] and recs[j]["key"].split("-")[1] != "UHFFFAOYSA":
+                twins = [j]
+        if twins and not n.lower().endswith(STEREO_UNSPECIFIED):
+            out.append(n + STEREO_UNSPECIFIED)
+        out.append(n)
+    return out
+
+
 def rename_preferred(recs, report=None):
     """Replace recognisably bad preferred names (see `bad_preferred_name`) by a synonym that is
     a proper name; the old name stays a synonym. A replacement is taken only when no other
@@ -916,10 +1136,12 @@ def rename_preferred(recs, report=None):
         officials = [n for n in official_names(r.get("all_names", r["names"])) if fits_record(r, n)]
         why = bad_preferred_name(r, officials)
         if not why:
+            why, officials = unofficial_name(r)
+        if not why:
             continue
         o = r["pref"]
         done = False
-        for n in candidates(r, why, officials):
+        for n in with_stereo_note(idx, i, candidates(r, why, officials), pref_of):
             if not fits_record(r, n):
                 continue
             nn, on = normalise(n), normalise(o)
@@ -939,6 +1161,10 @@ def rename_preferred(recs, report=None):
             idx.replace(i, n, names)
             after = (idx.decision(on), idx.decision(nn))
             if before[1][0] is None and after[1][0] == i:
+                if idx.salt_route(n) not in (None, i):
+                    # not new: the name found a salt record (`tobramycin` -> `tobramycin sulfate`)
+                    idx.replace(i, o, old_names)
+                    continue
                 before = (before[0], after[1])   # a name new to the base (`aflatoxin m1`) finds this record
             moved_from_twin = (after[1][0] == i and before[1][0] in others and after[0] == before[0]
                                and after[1][1] == before[1][1])
@@ -1043,7 +1269,8 @@ def main():
         # "|" separates synonyms; drop it from names themselves (very rare)
         names = [n.replace("|", "/") for n in names]
         recs.append(dict(key=c["key"], cid=c["cid"], cas=c["cas"], smiles=c["smiles"], formula=c["formula"], pref=c["pref"].replace("|", "/"),
-                         names=names, all_names=c["names"], retention_names=ret, c=c))
+                         names=names, all_names=c["names"], retention_names=ret,
+                         retention_confirmed=[n for n in c.get("retention_confirmed", []) if n in names], c=c))
     set_skeletons(recs)
     report = []
     rename_preferred(recs, report)
